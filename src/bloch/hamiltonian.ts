@@ -1,0 +1,171 @@
+/**
+ * A model compiled once into typed arrays, then H(k) and dH/dk_i at any reduced momentum k
+ * (k_i = k·a_i, radians). New parameter values re-evaluate the amplitudes in place; the structure
+ * (which orbitals, which phases) is never rebuilt.
+ */
+import type { CMatrix } from '../linalg/cmatrix.js';
+import { ModelError, show } from '../model/errors.js';
+import { compileAmplitude, resolveParameters, type AmplitudeEvaluator } from '../model/expressions.js';
+import type { ModelSpec, ParameterValues } from '../model/spec.js';
+import { validateModel } from '../model/validate.js';
+
+/**
+ * `'lattice'`: |k,a> = sum_R e^{ik·R}|R,a> (H periodic in k). `'orbital'`: the phase also carries the
+ * orbital positions, e^{ik·(R + r_b - r_a)}. Chern numbers do not depend on it; Berry phases and
+ * Wannier centres do.
+ */
+export type BlochConvention = 'lattice' | 'orbital';
+
+export interface BlochOptions {
+  convention?: BlochConvention;
+}
+
+export class BlochHamiltonian {
+  readonly spec: ModelSpec;
+  /** Number of orbitals: the matrix size. */
+  readonly size: number;
+  /** Number of periodic directions: the length of k. */
+  readonly dim: number;
+  readonly convention: BlochConvention;
+  /** Current parameter values (defaults filled in). */
+  params: ParameterValues;
+
+  private readonly termFrom: Int32Array;
+  private readonly termTo: Int32Array;
+  private readonly termOnsite: Uint8Array;
+  /** Index of each term's phase vector in `phaseVectors`. */
+  private readonly termPhase: Int32Array;
+  /** Distinct displacement vectors (dim per entry) whose phases are computed once per k. */
+  private readonly phaseVectors: Float64Array;
+  private readonly phaseCount: number;
+  private readonly evaluators: AmplitudeEvaluator[];
+  /** Current amplitudes, interleaved (re, im) per term. */
+  private readonly amplitudes: Float64Array;
+  /** Per-k scratch: (cos, sin) of each distinct phase. */
+  private readonly phases: Float64Array;
+
+  constructor(model: ModelSpec, params: ParameterValues = {}, options: BlochOptions = {}) {
+    const spec = validateModel(model);
+    this.spec = spec;
+    this.size = spec.orbitals.length;
+    this.dim = spec.periodic;
+    this.convention = options.convention ?? 'lattice';
+    if (this.convention !== 'lattice' && this.convention !== 'orbital') {
+      throw new ModelError('convention', `expected "lattice" or "orbital". Value: ${show(this.convention)}`);
+    }
+    const index = new Map(spec.orbitals.map((o, i) => [o.label, i]));
+    const parameterNames = new Set(Object.keys(spec.parameters));
+    const n = spec.terms.length;
+    this.termFrom = new Int32Array(n);
+    this.termTo = new Int32Array(n);
+    this.termOnsite = new Uint8Array(n);
+    this.termPhase = new Int32Array(n);
+    this.evaluators = [];
+    const phaseKeys = new Map<string, number>();
+    const vectors: number[] = [];
+    spec.terms.forEach((t, i) => {
+      const a = index.get(t.from)!;
+      const b = index.get(t.to)!;
+      this.termFrom[i] = a;
+      this.termTo[i] = b;
+      this.termOnsite[i] = a === b && t.cell.every((c) => c === 0) ? 1 : 0;
+      const d = t.cell.map((c, j) =>
+        this.convention === 'orbital' ? c + spec.orbitals[b].position[j] - spec.orbitals[a].position[j] : c,
+      );
+      const key = d.join(',');
+      let slot = phaseKeys.get(key);
+      if (slot === undefined) {
+        slot = phaseKeys.size;
+        phaseKeys.set(key, slot);
+        vectors.push(...d);
+      }
+      this.termPhase[i] = slot;
+      this.evaluators.push(compileAmplitude(t.amplitude, `terms[${i}].amplitude`, parameterNames));
+    });
+    this.phaseVectors = Float64Array.from(vectors);
+    this.phaseCount = phaseKeys.size;
+    this.phases = new Float64Array(2 * this.phaseCount);
+    this.amplitudes = new Float64Array(2 * n);
+    this.params = {};
+    this.setParameters(params);
+  }
+
+  /** Re-evaluate every amplitude for new parameter values (defaults fill the rest). */
+  setParameters(values: ParameterValues): this {
+    const resolved = resolveParameters(this.spec, values);
+    const amps = this.amplitudes;
+    for (let i = 0; i < this.evaluators.length; i++) {
+      this.evaluators[i](resolved, amps, 2 * i);
+      if (this.termOnsite[i] && Math.abs(amps[2 * i + 1]) > 1e-12 * Math.max(1, Math.abs(amps[2 * i]))) {
+        throw new ModelError(
+          `terms[${i}].amplitude`,
+          `an onsite energy must be real (a non-Hermitian onsite block). Value: ${amps[2 * i]} + ${amps[2 * i + 1]}i`,
+        );
+      }
+    }
+    this.params = resolved;
+    return this;
+  }
+
+  private computePhases(k: ArrayLike<number>): void {
+    const dim = this.dim;
+    if (k.length < dim) throw new ModelError('k', `expected ${dim} components. Value: ${show(Array.from(k))}`);
+    const v = this.phaseVectors;
+    const ph = this.phases;
+    for (let p = 0; p < this.phaseCount; p++) {
+      let phi = 0;
+      for (let j = 0; j < dim; j++) phi += k[j] * v[p * dim + j];
+      ph[2 * p] = Math.cos(phi);
+      ph[2 * p + 1] = Math.sin(phi);
+    }
+  }
+
+  /** H(k) into `out` (size x size). */
+  fill(k: ArrayLike<number>, out: CMatrix): CMatrix {
+    this.computePhases(k);
+    return this.accumulate(out, -1);
+  }
+
+  /** dH/dk_dir (reduced momentum) into `out`. */
+  fillDerivative(k: ArrayLike<number>, dir: number, out: CMatrix): CMatrix {
+    if (!Number.isInteger(dir) || dir < 0 || dir >= this.dim) throw new ModelError('dir', `expected 0..${this.dim - 1}. Value: ${dir}`);
+    this.computePhases(k);
+    return this.accumulate(out, dir);
+  }
+
+  /** Sum the terms with their phases; with dir >= 0, each term is multiplied by i d_dir. */
+  private accumulate(out: CMatrix, dir: number): CMatrix {
+    const n = this.size;
+    out.fill(0, 0, 2 * n * n);
+    const amps = this.amplitudes;
+    const ph = this.phases;
+    const dim = this.dim;
+    for (let t = 0; t < this.termFrom.length; t++) {
+      const p = this.termPhase[t];
+      const tr = amps[2 * t], ti = amps[2 * t + 1];
+      const cr = ph[2 * p], ci = ph[2 * p + 1];
+      let re = tr * cr - ti * ci;
+      let im = tr * ci + ti * cr;
+      if (dir >= 0) {
+        const d = this.phaseVectors[p * dim + dir];
+        const r = -im * d;
+        im = re * d;
+        re = r;
+      }
+      const a = this.termFrom[t];
+      const b = this.termTo[t];
+      out[2 * (b * n + a)] += re;
+      out[2 * (b * n + a) + 1] += im;
+      if (!this.termOnsite[t]) {
+        out[2 * (a * n + b)] += re;
+        out[2 * (a * n + b) + 1] -= im;
+      }
+    }
+    return out;
+  }
+}
+
+/** Compile a model for Bloch Hamiltonians; validates it first. */
+export function blochHamiltonian(model: ModelSpec, params?: ParameterValues, options?: BlochOptions): BlochHamiltonian {
+  return new BlochHamiltonian(model, params, options);
+}

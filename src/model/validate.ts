@@ -1,0 +1,93 @@
+/**
+ * Structural validation of a model description. Every error names the field path and the value;
+ * amplitudes are checked again, numerically, when parameters are resolved (src/bloch).
+ */
+import { ModelError, show } from './errors.js';
+import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
+import { MODEL_FORMAT, MODEL_VERSION, type ModelSpec } from './spec.js';
+
+function isFiniteArray(x: unknown, length: number): x is number[] {
+  return Array.isArray(x) && x.length === length && x.every((v) => typeof v === 'number' && Number.isFinite(v));
+}
+
+/** Throws ModelError on the first problem; returns the spec (typed) when it is well formed. */
+export function validateModel(spec: unknown): ModelSpec {
+  if (spec === null || typeof spec !== 'object') throw new ModelError('model', `expected a model description object. Value: ${show(spec)}`);
+  const m = spec as Partial<ModelSpec>;
+  if (m.format !== MODEL_FORMAT) throw new ModelError('format', `expected "${MODEL_FORMAT}". Value: ${show(m.format)}`);
+  if (m.version !== MODEL_VERSION) throw new ModelError('version', `this engine reads version ${MODEL_VERSION}. Value: ${show(m.version)}`);
+  if (typeof m.name !== 'string') throw new ModelError('name', `expected a string. Value: ${show(m.name)}`);
+  const periodic = m.periodic;
+  if (typeof periodic !== 'number' || !Number.isInteger(periodic) || periodic < 0 || periodic > 3) {
+    throw new ModelError('periodic', `expected an integer from 0 to 3. Value: ${show(periodic)}`);
+  }
+  if (!Array.isArray(m.vectors) || m.vectors.length < Math.max(periodic, 1) || m.vectors.length > 3) {
+    throw new ModelError('vectors', `expected ${Math.max(periodic, 1)} to 3 basis vectors. Value: ${show(m.vectors)}`);
+  }
+  const space = m.vectors.length;
+  m.vectors.forEach((v, i) => {
+    if (!isFiniteArray(v, space)) throw new ModelError(`vectors[${i}]`, `expected ${space} finite numbers. Value: ${show(v)}`);
+  });
+  if (Math.abs(determinant(m.vectors)) < 1e-12) throw new ModelError('vectors', `basis vectors are linearly dependent. Value: ${show(m.vectors)}`);
+
+  if (m.parameters === null || typeof m.parameters !== 'object' || Array.isArray(m.parameters)) {
+    throw new ModelError('parameters', `expected an object of named parameters. Value: ${show(m.parameters)}`);
+  }
+  for (const [name, p] of Object.entries(m.parameters)) {
+    const field = `parameters.${name}`;
+    if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) throw new ModelError(field, `parameter names must be identifiers. Value: ${show(name)}`);
+    if (RESERVED_NAMES.has(name)) throw new ModelError(field, `"${name}" is reserved in expressions; choose another name`);
+    if (p === null || typeof p !== 'object' || typeof p.default !== 'number' || !Number.isFinite(p.default)) {
+      throw new ModelError(`${field}.default`, `expected a finite number. Value: ${show(p?.default)}`);
+    }
+    if (p.range !== undefined) {
+      if (!isFiniteArray(p.range, 2) || !(p.range[0] < p.range[1])) throw new ModelError(`${field}.range`, `expected [low, high] with low < high. Value: ${show(p.range)}`);
+      if (p.default < p.range[0] || p.default > p.range[1]) throw new ModelError(`${field}.default`, `value ${p.default} is outside the declared range [${p.range[0]}, ${p.range[1]}]`);
+    }
+  }
+  const parameterNames = new Set(Object.keys(m.parameters));
+
+  if (!Array.isArray(m.orbitals) || m.orbitals.length === 0) throw new ModelError('orbitals', `expected at least one orbital. Value: ${show(m.orbitals)}`);
+  const labels = new Set<string>();
+  m.orbitals.forEach((o, i) => {
+    const field = `orbitals[${i}]`;
+    if (o === null || typeof o !== 'object' || typeof o.label !== 'string' || o.label === '') throw new ModelError(`${field}.label`, `expected a non-empty string. Value: ${show(o?.label)}`);
+    if (labels.has(o.label)) throw new ModelError(`${field}.label`, `duplicate orbital label ${show(o.label)}`);
+    labels.add(o.label);
+    if (!isFiniteArray(o.position, space)) throw new ModelError(`${field}.position`, `expected ${space} finite reduced coordinates. Value: ${show(o.position)}`);
+    if (o.spin !== undefined && o.spin !== 'up' && o.spin !== 'down') throw new ModelError(`${field}.spin`, `expected "up" or "down". Value: ${show(o.spin)}`);
+    if (o.nambu !== undefined && o.nambu !== 'particle' && o.nambu !== 'hole') throw new ModelError(`${field}.nambu`, `expected "particle" or "hole". Value: ${show(o.nambu)}`);
+  });
+
+  if (!Array.isArray(m.terms)) throw new ModelError('terms', `expected an array. Value: ${show(m.terms)}`);
+  const seen = new Map<string, number>();
+  m.terms.forEach((t, i) => {
+    const field = `terms[${i}]`;
+    if (t === null || typeof t !== 'object') throw new ModelError(field, `expected a term object. Value: ${show(t)}`);
+    if (!labels.has(t.from)) throw new ModelError(`${field}.from`, `unknown orbital ${show(t.from)}`);
+    if (!labels.has(t.to)) throw new ModelError(`${field}.to`, `unknown orbital ${show(t.to)}`);
+    if (!Array.isArray(t.cell) || t.cell.length !== periodic || !t.cell.every((c) => Number.isInteger(c))) {
+      throw new ModelError(`${field}.cell`, `expected ${periodic} integers (one per periodic direction). Value: ${show(t.cell)}`);
+    }
+    compileAmplitude(t.amplitude, `${field}.amplitude`, parameterNames);
+    const key = `${t.from}|${t.to}|${t.cell.join(',')}`;
+    const partner = `${t.to}|${t.from}|${t.cell.map((c) => -c || 0).join(',')}`;
+    const onsite = t.from === t.to && t.cell.every((c) => c === 0);
+    if (seen.has(key)) throw new ModelError(field, `repeats terms[${seen.get(key)}] (${t.from} -> ${t.to}, cell ${show(t.cell)}); combine the amplitudes`);
+    if (!onsite && seen.has(partner)) {
+      throw new ModelError(field, `is the Hermitian partner of terms[${seen.get(partner)}], which is added automatically; remove one of them`);
+    }
+    seen.set(key, i);
+  });
+  return m as ModelSpec;
+}
+
+function determinant(v: number[][]): number {
+  if (v.length === 1) return v[0][0];
+  if (v.length === 2) return v[0][0] * v[1][1] - v[0][1] * v[1][0];
+  return (
+    v[0][0] * (v[1][1] * v[2][2] - v[1][2] * v[2][1]) -
+    v[0][1] * (v[1][0] * v[2][2] - v[1][2] * v[2][0]) +
+    v[0][2] * (v[1][0] * v[2][1] - v[1][1] * v[2][0])
+  );
+}
