@@ -1,0 +1,18 @@
+#!/usr/bin/env bash
+# Every test layer, in order; stops at the first failing layer. Run `npm run setup` first.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+export CHERNEL_ARTIFACTS="${CHERNEL_ARTIFACTS:-$PWD/test-artifacts}"
+mkdir -p "$CHERNEL_ARTIFACTS"
+
+layer() {
+  local name="$1"; shift
+  echo "=== $name: $*"
+  local start=$SECONDS
+  "$@"
+  echo "=== $name passed in $((SECONDS - start)) s"
+}
+
+layer typecheck npx tsc -p tsconfig.json --noEmit
+layer engine-purity npx tsc -p tsconfig.engine.json
+layer engine npx vitest run
