@@ -1,0 +1,230 @@
+// Everything needed to run the chernel lab, shared by `npm start` (lab/start.ts) and the browser
+// tests (tests/browser/lab-harness.ts): install and build what is missing or stale, register the
+// chernel kernelspec in a project-local Jupyter data folder, start and stop the server.
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { createHash, randomBytes } from 'node:crypto';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { dirname, join, relative, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const labDir = dirname(fileURLToPath(import.meta.url));
+export const projectDir = resolve(labDir, '..');
+/** Prefix given to `chernel install --prefix`; its share/jupyter goes on JUPYTER_PATH. */
+export const jupyterPrefix = join(projectDir, '.jupyter-local');
+export const jupyterDataPath = join(jupyterPrefix, 'share', 'jupyter');
+/** Debian's interpreter: it has jupyter_server and jupyterlab_server (the first python3 on PATH may not). */
+export const debianPython = '/usr/bin/python3';
+
+const stampFile = join(labDir, 'build', '.inputs-stamp');
+const kernelCli = join(projectDir, 'bin', 'chernel.js');
+
+type Log = (message: string) => void;
+
+function run(command: string, args: string[], cwd: string, log: Log): void {
+  log(`${relative(projectDir, cwd) || '.'}$ ${command} ${args.join(' ')}`);
+  const result = spawnSync(command, args, { cwd, stdio: 'inherit' });
+  if (result.status !== 0) {
+    throw new Error(`lab: \`${command} ${args.join(' ')}\` in ${cwd} failed with exit code ${result.status ?? result.signal}`);
+  }
+}
+
+/** Files under `dir` (skipping node_modules, build outputs and dot folders), for the input fingerprint. */
+function listFiles(dir: string, skip: ReadonlySet<string>): string[] {
+  if (!existsSync(dir)) return [];
+  if (statSync(dir).isFile()) return [dir];
+  return readdirSync(dir, { withFileTypes: true }).flatMap(entry => {
+    if (entry.name.startsWith('.') || skip.has(entry.name)) return [];
+    const path = join(dir, entry.name);
+    return entry.isDirectory() ? listFiles(path, skip) : [path];
+  });
+}
+
+interface LabPackage {
+  dependencies: Record<string, string>;
+  jupyterlab: { extensions: string[] };
+}
+
+function readLabPackage(): LabPackage {
+  return JSON.parse(readFileSync(join(labDir, 'package.json'), 'utf8')) as LabPackage;
+}
+
+/** Folders of extensions installed from this repository (`file:` dependencies), e.g. ../widgets. */
+function localExtensionDirs(pkg: LabPackage): string[] {
+  return pkg.jupyterlab.extensions
+    .filter(name => pkg.dependencies[name]?.startsWith('file:'))
+    .map(name => resolve(labDir, pkg.dependencies[name].slice('file:'.length)));
+}
+
+/** A hash of the paths, sizes and mtimes of every input of the bundle. */
+function inputFingerprint(pkg: LabPackage): string {
+  const skip = new Set(['node_modules', 'build']);
+  const files = [
+    ...['package.json', 'package-lock.json', 'webpack.config.js', 'src'].flatMap(p => listFiles(join(labDir, p), skip)),
+    ...localExtensionDirs(pkg).flatMap(dir => listFiles(dir, skip)),
+  ].sort();
+  const hash = createHash('sha256');
+  for (const file of files) {
+    const { size, mtimeMs } = statSync(file);
+    hash.update(`${file}\0${size}\0${mtimeMs}\n`);
+  }
+  return hash.digest('hex');
+}
+
+/**
+ * Installs lab/node_modules when absent or older than the lockfile, rebuilds local extensions
+ * (their own `npm run build`) and the lab bundle when any input changed since the last build.
+ */
+export function ensureLabBuilt(log: Log = console.log): void {
+  const installed = join(labDir, 'node_modules', '.package-lock.json');
+  if (!existsSync(installed) || statSync(join(labDir, 'package-lock.json')).mtimeMs > statSync(installed).mtimeMs) {
+    run('npm', ['ci', '--no-audit', '--no-fund'], labDir, log);
+  }
+  const pkg = readLabPackage();
+  if (existsSync(stampFile) && readFileSync(stampFile, 'utf8') === inputFingerprint(pkg)) return;
+
+  for (const dir of localExtensionDirs(pkg)) {
+    if (!existsSync(join(dir, 'node_modules'))) run('npm', ['ci', '--no-audit', '--no-fund'], dir, log);
+    run('npm', ['run', 'build', '--silent'], dir, log);
+  }
+  run('npm', ['run', 'build', '--silent'], labDir, log);
+  // Taken after the builds, so that their own outputs count as seen.
+  writeFileSync(stampFile, inputFingerprint(pkg));
+}
+
+/**
+ * Writes the chernel kernelspec under .jupyter-local/share/jupyter/kernels/chernel through the
+ * kernel's own `install --prefix`. Returns false (with a warning) while the kernel does not exist.
+ */
+export function registerChernelKernel(log: Log = console.log): boolean {
+  if (!existsSync(kernelCli)) {
+    log(`lab: warning: ${relative(projectDir, kernelCli)} not found; starting without the chernel kernel`);
+    return false;
+  }
+  run(process.execPath, [kernelCli, 'install', '--prefix', jupyterPrefix], projectDir, log);
+  return existsSync(join(jupyterDataPath, 'kernels', 'chernel', 'kernel.json'));
+}
+
+/** A TCP port free on 127.0.0.1 right now (the OS picks one when `preferred` is 0 or taken). */
+export async function freePort(preferred = 0): Promise<number> {
+  const tryPort = (port: number) =>
+    new Promise<number | null>(done => {
+      const server = createServer();
+      server.once('error', () => done(null));
+      server.listen(port, '127.0.0.1', () => {
+        const address = server.address();
+        const chosen = typeof address === 'object' && address ? address.port : null;
+        server.close(() => done(chosen));
+      });
+    });
+  return (preferred ? await tryPort(preferred) : null) ?? (await tryPort(0)) ?? Promise.reject(new Error('lab: no free port on 127.0.0.1'));
+}
+
+export interface LabServerOptions {
+  /** The folder the lab shows and saves notebooks in. */
+  rootDir: string;
+  /** 0 (default) lets the OS choose. */
+  port?: number;
+  /** Extra kernelspec folders ahead of the project's .jupyter-local (each holds kernels/NAME/kernel.json). */
+  jupyterPath?: string[];
+  /** Server output goes here as it arrives (default: kept only in `output()`). */
+  onOutput?: (text: string) => void;
+}
+
+export interface LabServer {
+  readonly port: number;
+  readonly token: string;
+  /** The base URL, ending in '/'. */
+  readonly baseUrl: string;
+  /** The lab page, token included. */
+  readonly labUrl: string;
+  readonly process: ChildProcess;
+  /** Everything the server (and its kernels) printed so far. */
+  output(): string;
+  /** Shuts down kernels and the server; safe to call twice. */
+  stop(): Promise<void>;
+}
+
+/**
+ * Starts lab/server.py on 127.0.0.1 with a random token and a private Jupyter runtime, data and
+ * config folder (so nothing in ~/.jupyter or ~/.local/share/jupyter changes what it sees), and
+ * waits until it answers.
+ */
+export async function startLabServer(options: LabServerOptions): Promise<LabServer> {
+  const port = await freePort(options.port ?? 0);
+  const token = randomBytes(24).toString('hex');
+  const home = mkdtempSync(join(tmpdir(), 'chernel-lab-home-'));
+  const env = {
+    ...process.env,
+    JUPYTER_PATH: [...(options.jupyterPath ?? []), jupyterDataPath].join(':'),
+    JUPYTER_DATA_DIR: join(home, 'data'),
+    JUPYTER_RUNTIME_DIR: join(home, 'runtime'),
+    JUPYTER_CONFIG_DIR: join(home, 'config'),
+    IPYTHONDIR: join(home, 'ipython'),
+    PYDEVD_DISABLE_FILE_VALIDATION: '1',
+  };
+  mkdirSync(options.rootDir, { recursive: true });
+  const args = [
+    join(labDir, 'server.py'),
+    '--ServerApp.ip=127.0.0.1',
+    `--ServerApp.port=${port}`,
+    '--ServerApp.port_retries=0',
+    `--ServerApp.token=${token}`,
+    '--ServerApp.open_browser=False',
+    '--ServerApp.allow_root=True',
+    `--ServerApp.root_dir=${resolve(options.rootDir)}`,
+  ];
+  // Its own process group, so that stop() can also end kernels the server failed to end.
+  const child = spawn(debianPython, args, { env, cwd: projectDir, stdio: ['ignore', 'pipe', 'pipe'], detached: true });
+  let output = '';
+  const collect = (chunk: Buffer) => {
+    const text = chunk.toString();
+    output += text;
+    options.onOutput?.(text);
+  };
+  child.stdout.on('data', collect);
+  child.stderr.on('data', collect);
+  const exited = new Promise<void>(done => child.once('exit', () => done()));
+
+  const baseUrl = `http://127.0.0.1:${port}/`;
+  let stopped = false;
+  const stop = async () => {
+    if (stopped) return;
+    stopped = true;
+    if (child.exitCode === null && child.signalCode === null) {
+      // The shutdown API ends the kernels first; SIGKILL of the group is the fallback.
+      await fetch(`${baseUrl}api/shutdown`, { method: 'POST', headers: { Authorization: `token ${token}` } }).catch(() => undefined);
+      const timer = setTimeout(() => killGroup(child), 10_000);
+      await exited;
+      clearTimeout(timer);
+    }
+    killGroup(child);
+    rmSync(home, { recursive: true, force: true });
+  };
+
+  const deadline = Date.now() + 60_000;
+  for (;;) {
+    if (child.exitCode !== null || child.signalCode !== null) {
+      await stop();
+      throw new Error(`lab: server exited (${child.exitCode ?? child.signalCode}) before answering:\n${output}`);
+    }
+    const status = await fetch(`${baseUrl}api/status`, { headers: { Authorization: `token ${token}` } }).catch(() => null);
+    if (status?.ok) break;
+    if (Date.now() > deadline) {
+      await stop();
+      throw new Error(`lab: server did not answer on ${baseUrl} within 60 s:\n${output}`);
+    }
+    await new Promise(done => setTimeout(done, 200));
+  }
+  return { port, token, baseUrl, labUrl: `${baseUrl}lab?token=${token}`, process: child, output: () => output, stop };
+}
+
+function killGroup(child: ChildProcess): void {
+  if (child.pid === undefined) return;
+  try {
+    process.kill(-child.pid, 'SIGKILL');
+  } catch {
+    // Already gone.
+  }
+}

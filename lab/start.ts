@@ -1,0 +1,34 @@
+// `npm start`: the chernel lab on the demo notebooks. Installs and builds what is missing or
+// stale, registers the chernel kernel, starts the server on 127.0.0.1 and prints its URL.
+// Options: --port N (default 8888, or the next free one), --root DIR (default notebooks-demo/).
+// Run: node --import ./scripts/register-ts.js lab/start.ts
+import { parseArgs } from 'node:util';
+import { join, resolve } from 'node:path';
+import { ensureLabBuilt, projectDir, registerChernelKernel, startLabServer } from './launch.js';
+
+const { values } = parseArgs({
+  options: { port: { type: 'string', default: '8888' }, root: { type: 'string', default: join(projectDir, 'notebooks-demo') } },
+});
+const port = Number(values.port);
+if (!Number.isInteger(port) || port < 0 || port > 65535) {
+  console.error(`lab: --port: expected a port number, got "${values.port}"`);
+  process.exit(2);
+}
+
+ensureLabBuilt();
+registerChernelKernel();
+const server = await startLabServer({ rootDir: resolve(values.root), port, onOutput: text => process.stderr.write(text) });
+console.log(`\nchernel lab is running on ${resolve(values.root)}\n\n    ${server.labUrl}\n\nPress Ctrl-C to stop.`);
+
+let stopping = false;
+for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+  process.once(signal, () => {
+    stopping = true;
+    void server.stop().then(() => process.exit(0));
+  });
+}
+server.process.once('exit', code => {
+  if (stopping) return;
+  console.error(`lab: server exited (${code})`);
+  process.exit(1);
+});
