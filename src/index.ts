@@ -11,3 +11,9 @@ export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOpt
 export { type CMatrix, cmatrix } from './linalg/cmatrix.js';
 export { HermitianEigensolver, eigh } from './linalg/eigh.js';
 export { InterruptedError, checkInterrupt, installInterruptFlag } from './interrupt.js';
+export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
+export { reciprocalVectors, cartesianMomentum, highSymmetryPoints, type HighSymmetryPoints, type LatticeFamily } from './spectra/lattice.js';
+export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } from './spectra/path.js';
+export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
+export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
+export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
