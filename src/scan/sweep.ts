@@ -1,0 +1,358 @@
+/**
+ * Phase diagrams: an invariant (or the gap) over a 1D or 2D grid of parameters, with the phase
+ * boundaries located by bisection along every grid edge whose two ends disagree.
+ *
+ * The sweep is a pure, deterministic schedule: `advanceSweep(request, known)` looks at the points
+ * known so far and says either which points to compute next (the grid, then one bisection round at
+ * a time) or, when nothing is missing, the finished phase map. Everything else builds on that:
+ * executors compute the pending points, a checkpoint is just the known points, resuming is replaying
+ * the schedule with them, and a cluster round is one batch of pending points split into shards.
+ */
+import { ModelError, show } from '../model/errors.js';
+import type { ModelSpec, ParameterValues } from '../model/spec.js';
+import { validateModel } from '../model/validate.js';
+import { canonicalJson, digest } from './checksum.js';
+
+/** What a point of a phase map computes: a quantised invariant, or the gap itself. */
+export type SweepQuantity = 'chern' | 'z2' | 'winding' | 'majorana' | 'gap';
+export const SWEEP_QUANTITIES: readonly SweepQuantity[] = ['chern', 'z2', 'winding', 'majorana', 'gap'];
+
+/** One swept parameter: `count` evenly spaced values from `from` to `to` inclusive. */
+export interface SweepAxis {
+  param: string;
+  from: number;
+  to: number;
+  count: number;
+}
+
+export interface RefineOptions {
+  /** Bisect until each boundary bracket is at most this wide, in the swept parameter's units. */
+  tolerance: number;
+  /** Upper bound on bisection rounds (default 60, more than enough to reach double precision). */
+  maxRounds?: number;
+}
+
+/**
+ * The `'phase-map'` diagnostic request. Fields other than the ones named here (`bands`, `grid`,
+ * `method`, ...) are passed on unchanged to the request computed at every point.
+ */
+export interface PhaseMapRequest {
+  kind: 'phase-map';
+  model: ModelSpec;
+  /** Values of the parameters that are not swept; a swept parameter's value here is ignored. */
+  params?: ParameterValues;
+  /** One or two swept parameters. */
+  axes: SweepAxis[];
+  invariant: SweepQuantity;
+  refine?: RefineOptions;
+  bands?: number | number[];
+  grid?: number | number[] | 'auto';
+  [option: string]: unknown;
+}
+
+/** The request computed at each point: the phase map's request with `kind` = its invariant. */
+export interface PointTarget {
+  kind: SweepQuantity;
+  model: ModelSpec;
+  params?: ParameterValues;
+  [option: string]: unknown;
+}
+
+/** What one point yields: the invariant (null when the bands are not gapped there) and the gap. */
+export interface PointOutcome {
+  value: number | null;
+  gap: number;
+}
+
+/** Evaluates one point, given the swept parameters' values (the target's fixed ones are merged in). */
+export type PointFunction = (swept: ParameterValues) => PointOutcome;
+
+/** A located boundary: a bracket along one swept parameter whose two ends disagree. */
+export interface PhaseBoundary {
+  /** The middle of the bracket: the boundary lies within `(upper - lower) / 2` of it along `along`. */
+  at: ParameterValues;
+  /** The swept parameter the bracket runs along. */
+  along: string;
+  lower: number;
+  upper: number;
+  /** The invariant at `lower` and at `upper` (null: gapless there). */
+  values: [number | null, number | null];
+}
+
+export interface PhaseMapAxis extends SweepAxis {
+  /** The grid values along the axis. */
+  values: number[];
+}
+
+/** The engine-wide `checks`, for a phase map. */
+export interface PhaseMapChecks {
+  /** Smallest gap over the grid points, and where. */
+  minGap: number;
+  minGapAt: ParameterValues;
+  /** The k-grid each point used, when the request named one. */
+  grid?: number | number[] | 'auto';
+  /** True when any grid point was gapless (its value is null). */
+  gapless: boolean;
+  warnings: string[];
+}
+
+export interface PhaseMapResult {
+  kind: 'phase-map';
+  invariant: SweepQuantity;
+  axes: PhaseMapAxis[];
+  /**
+   * Row-major with the first axis fastest: `values[j * n0 + i]` is the invariant at
+   * (`axes[0].values[i]`, `axes[1].values[j]`); null where the bands are not gapped.
+   */
+  values: (number | null)[];
+  /** The gap at each grid point, same layout. */
+  gaps: number[];
+  /** Refined boundaries (empty without `refine`), in the order the grid edges were scanned. */
+  boundaries: PhaseBoundary[];
+  /** Bisection rounds run and points evaluated beyond the grid. */
+  refinement?: { tolerance: number; rounds: number; points: number };
+  checks: PhaseMapChecks;
+}
+
+/** Which stage the schedule is in: the grid (round 0) or bisection round `round` >= 1. */
+export interface SweepStage {
+  stage: 'grid' | 'refine';
+  round: number;
+}
+
+export type SweepStep =
+  | ({ done: false; pending: number[][] } & SweepStage)
+  | { done: true; result: PhaseMapResult };
+
+/** Points known so far, by `pointKey` of their swept coordinates. */
+export type KnownPoints = ReadonlyMap<string, PointOutcome>;
+
+const DEFAULT_MAX_ROUNDS = 60;
+
+/**
+ * The key of a point: its swept coordinates in axis order, in shortest round-trip form, so the same
+ * point computed in another process or read back from JSON finds the same entry.
+ */
+export function pointKey(coords: readonly number[]): string {
+  return coords.map((x) => (Object.is(x, -0) ? '0' : String(x))).join(',');
+}
+
+/** The swept coordinates as named parameter values. */
+export function sweptParams(axes: readonly SweepAxis[], coords: readonly number[]): ParameterValues {
+  const out: ParameterValues = {};
+  axes.forEach((a, i) => (out[a.param] = coords[i]));
+  return out;
+}
+
+/** The grid values along an axis (exact ends; interior values are from + step * i). */
+export function axisValues(axis: SweepAxis): number[] {
+  const { from, to, count } = axis;
+  if (count === 1) return [from];
+  const values: number[] = [];
+  for (let i = 0; i < count; i++) values.push(i === count - 1 ? to : from + ((to - from) * i) / (count - 1));
+  return values;
+}
+
+/** The request for each point (the phase map's own fields removed, `kind` = the invariant). */
+export function pointTarget(request: PhaseMapRequest): PointTarget {
+  const { kind: _kind, axes: _axes, invariant, refine: _refine, ...rest } = request;
+  return { ...rest, kind: invariant };
+}
+
+/**
+ * Check a phase-map request before any computing. Every error is a ModelError naming the field and
+ * its value. Returns the request (typed).
+ */
+export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
+  if (request === null || typeof request !== 'object') throw new ModelError('request', `expected a phase-map request object. Value: ${show(request)}`);
+  const r = request as Partial<PhaseMapRequest>;
+  if (r.kind !== 'phase-map') throw new ModelError('kind', `expected "phase-map". Value: ${show(r.kind)}`);
+  let model: ModelSpec;
+  try {
+    model = validateModel(r.model);
+  } catch (err) {
+    if (err instanceof ModelError) throw new ModelError(`model.${err.field}`, err.message.slice(err.field.length + 2));
+    throw err;
+  }
+  if (!SWEEP_QUANTITIES.includes(r.invariant as SweepQuantity)) {
+    throw new ModelError('invariant', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${show(r.invariant)}`);
+  }
+  if (r.params !== undefined && (r.params === null || typeof r.params !== 'object' || Array.isArray(r.params))) {
+    throw new ModelError('params', `expected an object of parameter values. Value: ${show(r.params)}`);
+  }
+  for (const [name, value] of Object.entries(r.params ?? {})) {
+    if (!(name in model.parameters)) throw new ModelError(`params.${name}`, `model "${model.name}" has no parameter "${name}"`);
+    if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelError(`params.${name}`, `must be a finite number. Value: ${show(value)}`);
+  }
+  if (!Array.isArray(r.axes) || r.axes.length < 1 || r.axes.length > 2) {
+    throw new ModelError('axes', `expected one or two swept parameters. Value: ${show(r.axes)}`);
+  }
+  const seen = new Set<string>();
+  r.axes.forEach((a, i) => {
+    const field = `axes[${i}]`;
+    if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${show(a)}`);
+    const spec = model.parameters[a.param];
+    if (typeof a.param !== 'string' || spec === undefined) {
+      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${show(a.param)} (it has: ${Object.keys(model.parameters).join(', ') || 'none'})`);
+    }
+    if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);
+    seen.add(a.param);
+    for (const end of ['from', 'to'] as const) {
+      const v = a[end];
+      if (typeof v !== 'number' || !Number.isFinite(v)) throw new ModelError(`${field}.${end}`, `must be a finite number. Value: ${show(v)}`);
+      if (spec.range !== undefined && (v < spec.range[0] || v > spec.range[1])) {
+        throw new ModelError(`${field}.${end}`, `value ${v} is outside the declared range of "${a.param}", [${spec.range[0]}, ${spec.range[1]}]`);
+      }
+    }
+    if (typeof a.count !== 'number' || !Number.isInteger(a.count) || a.count < 1) {
+      throw new ModelError(`${field}.count`, `the grid is empty: expected a whole number of points >= 1. Value: ${show(a.count)}`);
+    }
+    if (a.count > 1 && a.from === a.to) throw new ModelError(`${field}.to`, `equals from (${a.from}) with count ${a.count}: the points would coincide`);
+  });
+  if (r.refine !== undefined) {
+    if (r.refine === null || typeof r.refine !== 'object') throw new ModelError('refine', `expected {tolerance}. Value: ${show(r.refine)}`);
+    const { tolerance, maxRounds } = r.refine;
+    if (typeof tolerance !== 'number' || !(tolerance > 0) || !Number.isFinite(tolerance)) {
+      throw new ModelError('refine.tolerance', `expected a positive number. Value: ${show(tolerance)}`);
+    }
+    if (maxRounds !== undefined && (!Number.isInteger(maxRounds) || maxRounds < 0)) {
+      throw new ModelError('refine.maxRounds', `expected a whole number >= 0. Value: ${show(maxRounds)}`);
+    }
+    if (r.invariant === 'gap') {
+      throw new ModelError('refine', 'boundaries are refined between different values of a quantised invariant; a gap map has none (drop refine, or sweep an invariant)');
+    }
+  }
+  return r as PhaseMapRequest;
+}
+
+/** A stable fingerprint of a request: checkpoints and shard outputs carry it to be matched. */
+export function requestFingerprint(request: PhaseMapRequest): string {
+  return digest(canonicalJson(request));
+}
+
+interface Bracket {
+  axis: number;
+  lo: number[];
+  hi: number[];
+  vlo: number | null;
+  vhi: number | null;
+}
+
+function withCoord(coords: readonly number[], axis: number, x: number): number[] {
+  const out = coords.slice();
+  out[axis] = x;
+  return out;
+}
+
+/**
+ * One step of the deterministic schedule. `request` must have passed `validatePhaseMapRequest`.
+ * Pending points are listed in a fixed order (grid row-major, first axis fastest; brackets in scan
+ * order), which is what lets shards split them and resumed runs recognise them.
+ */
+export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): SweepStep {
+  const axes = request.axes;
+  const grids = axes.map(axisValues);
+  const n0 = grids[0].length;
+  const n1 = grids.length > 1 ? grids[1].length : 1;
+  const gridCoords: number[][] = [];
+  for (let j = 0; j < n1; j++) {
+    for (let i = 0; i < n0; i++) gridCoords.push(grids.length > 1 ? [grids[0][i], grids[1][j]] : [grids[0][i]]);
+  }
+  const missing = gridCoords.filter((c) => !known.has(pointKey(c)));
+  if (missing.length > 0) return { done: false, pending: missing, stage: 'grid', round: 0 };
+  const outcomes = gridCoords.map((c) => known.get(pointKey(c))!);
+
+  const boundaries: PhaseBoundary[] = [];
+  let refinement: PhaseMapResult['refinement'];
+  const warnings: string[] = [];
+  if (request.refine !== undefined) {
+    const tolerance = request.refine.tolerance;
+    const maxRounds = request.refine.maxRounds ?? DEFAULT_MAX_ROUNDS;
+    // Initial brackets: every grid edge whose ends disagree, along axis 0 then axis 1.
+    let brackets: Bracket[] = [];
+    const at = (i: number, j: number) => j * n0 + i;
+    for (let axis = 0; axis < grids.length; axis++) {
+      for (let j = 0; j < n1; j++) {
+        for (let i = 0; i < n0; i++) {
+          const i2 = axis === 0 ? i + 1 : i;
+          const j2 = axis === 1 ? j + 1 : j;
+          if (i2 >= n0 || j2 >= n1) continue;
+          const a = outcomes[at(i, j)].value;
+          const b = outcomes[at(i2, j2)].value;
+          if (a !== b) brackets.push({ axis, lo: gridCoords[at(i, j)], hi: gridCoords[at(i2, j2)], vlo: a, vhi: b });
+        }
+      }
+    }
+    let rounds = 0;
+    let extra = 0;
+    const finished: Bracket[] = [];
+    for (;;) {
+      const open: Bracket[] = [];
+      for (const b of brackets) (Math.abs(b.hi[b.axis] - b.lo[b.axis]) > tolerance ? open : finished).push(b);
+      if (open.length === 0) break;
+      if (rounds >= maxRounds) {
+        warnings.push(`${open.length} boundary bracket(s) are still wider than the tolerance ${tolerance} after ${maxRounds} bisection rounds`);
+        finished.push(...open);
+        break;
+      }
+      const mids = open.map((b) => withCoord(b.lo, b.axis, (b.lo[b.axis] + b.hi[b.axis]) / 2));
+      const absent = mids.filter((m) => !known.has(pointKey(m)));
+      if (absent.length > 0) {
+        // Two brackets can share a midpoint only if they are the same bracket; list each point once.
+        const unique = new Map(absent.map((m) => [pointKey(m), m]));
+        return { done: false, pending: [...unique.values()], stage: 'refine', round: rounds + 1 };
+      }
+      rounds++;
+      extra += mids.length;
+      const next: Bracket[] = [];
+      open.forEach((b, n) => {
+        const m = mids[n];
+        const vm = known.get(pointKey(m))!.value;
+        // Keep each half whose ends still disagree: a third phase in between keeps both.
+        if (b.vlo !== vm) next.push({ axis: b.axis, lo: b.lo, hi: m, vlo: b.vlo, vhi: vm });
+        if (vm !== b.vhi) next.push({ axis: b.axis, lo: m, hi: b.hi, vlo: vm, vhi: b.vhi });
+      });
+      brackets = next;
+    }
+    for (const b of finished) {
+      const mid = withCoord(b.lo, b.axis, (b.lo[b.axis] + b.hi[b.axis]) / 2);
+      const lower = Math.min(b.lo[b.axis], b.hi[b.axis]);
+      const upper = Math.max(b.lo[b.axis], b.hi[b.axis]);
+      const ascending = b.lo[b.axis] <= b.hi[b.axis];
+      boundaries.push({
+        at: sweptParams(axes, mid),
+        along: axes[b.axis].param,
+        lower,
+        upper,
+        values: ascending ? [b.vlo, b.vhi] : [b.vhi, b.vlo],
+      });
+    }
+    refinement = { tolerance, rounds, points: extra };
+  }
+
+  let minIndex = 0;
+  outcomes.forEach((o, n) => {
+    if (o.gap < outcomes[minIndex].gap) minIndex = n;
+  });
+  const gaplessCount = request.invariant === 'gap' ? 0 : outcomes.filter((o) => o.value === null).length;
+  if (gaplessCount > 0) {
+    warnings.unshift(`${gaplessCount} of ${outcomes.length} grid points are gapless (no invariant there); the smallest gap is ${outcomes[minIndex].gap} at ${show(sweptParams(axes, gridCoords[minIndex]))}`);
+  }
+  const result: PhaseMapResult = {
+    kind: 'phase-map',
+    invariant: request.invariant,
+    axes: axes.map((a, i) => ({ param: a.param, from: a.from, to: a.to, count: a.count, values: grids[i] })),
+    values: outcomes.map((o) => o.value),
+    gaps: outcomes.map((o) => o.gap),
+    boundaries,
+    ...(refinement !== undefined ? { refinement } : {}),
+    checks: {
+      minGap: outcomes[minIndex].gap,
+      minGapAt: sweptParams(axes, gridCoords[minIndex]),
+      ...(request.grid !== undefined ? { grid: request.grid } : {}),
+      gapless: gaplessCount > 0,
+      warnings,
+    },
+  };
+  return { done: true, result };
+}
