@@ -1,66 +1,119 @@
 /**
- * A fluent builder that reads naturally in a notebook cell and produces a ModelSpec:
+ * A fluent builder that reads naturally in a notebook cell and produces a ModelSpec.
  *
- *   const m = lattice('square Chern insulator', [[1, 0], [0, 1]])
- *     .parameter('u', { default: -1, range: [-4, 4] })
- *     .site('a', [0, 0]).site('b', [0, 0])
- *     .onsite('a', 'u').onsite('b', '-u')
- *     .hop('a', 'b', [1, 0], { re: 0, im: -0.5 })
+ * Orbital by orbital:
+ *
+ *   lattice('chain', [[1]]).parameter('t', { default: 1 })
+ *     .site('a', [0]).onsite('a', 0).hop('a', 'a', [1], '-t').build();
+ *
+ * Or as matrices in the orbital space of a block, written as Pauli strings, with Fourier harmonics
+ * so that a d·sigma model is typed as it is printed (Qi–Wu–Zhang):
+ *
+ *   lattice('QWZ', [[1, 0], [0, 1]]).parameter('u', { default: -1, range: [-4, 4] })
+ *     .site('a', [0, 0]).site('b', [0, 0]).block('s', ['a', 'b'])
+ *     .onsiteMatrix('s', { z: 'u' })
+ *     .harmonic('s', [1, 0], { cos: { z: 1 }, sin: { x: 1 } })   // cos kx sz + sin kx sx
+ *     .harmonic('s', [0, 1], { cos: { z: 1 }, sin: { y: 1 } })   // cos ky sz + sin ky sy
  *     .build();
  *
- * Spinful sites expand into two orbitals, `A.up` and `A.dn`; a spin matrix ('0', 'x', 'y', 'z' for
- * the identity and the Pauli matrices, or any 2x2 matrix of amplitudes) multiplies the amplitude.
+ * A Pauli string has one letter per factor ('0' identity, 'x', 'y', 'z'), leftmost = slowest index:
+ * on a block of 4 orbitals (s.up, s.dn, p.up, p.dn) the key 'zx' is tau_z (x) sigma_x. Spinful
+ * sites expand into two orbitals `A.up` and `A.dn`; a block, a site or an orbital label may be used
+ * wherever a block is expected. Terms on the same orbitals and cell are summed (the Hermitian
+ * partner of an existing term is folded into it), so harmonics, hoppings and onsite terms combine.
  */
+import { addAmplitudes, fromComplex, isZero, multiplyAmplitudes, numericValue } from './amplitude.js';
 import { ModelError, show } from './errors.js';
+import { compileAmplitude } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type Amplitude, type ModelSpec, type OrbitalSpec, type ParameterSpec, type TermSpec } from './spec.js';
+import { TermSet } from './terms.js';
 import { validateModel } from './validate.js';
 
+/** A 2x2 spin matrix: '0' (identity) or a Pauli matrix, or explicit rows. */
 export type SpinMatrix = '0' | 'x' | 'y' | 'z' | [[Amplitude, Amplitude], [Amplitude, Amplitude]];
 
-type Entry = [number, number] | null; // (re, im) of a fixed matrix entry, null for zero
+/**
+ * A matrix on a block's orbitals: a sum of Pauli strings with amplitudes (`{ z: 'u', x: 1 }`,
+ * `{ zx: 'A', '0z': 'M' }`), or explicit rows (`[[a, b], [c, d]]`, row = `to`, column = `from`).
+ */
+export type OrbitalMatrix = { readonly [pauli: string]: Amplitude } | readonly (readonly Amplitude[])[];
 
-const PAULI: Record<'0' | 'x' | 'y' | 'z', [[Entry, Entry], [Entry, Entry]]> = {
-  '0': [[[1, 0], null], [null, [1, 0]]],
-  x: [[null, [1, 0]], [[1, 0], null]],
-  y: [[null, [0, -1]], [[0, 1], null]],
-  z: [[[1, 0], null], [null, [-1, 0]]],
+/** The cos and sin parts of one Fourier harmonic: M_cos cos(k·R) + M_sin sin(k·R). */
+export interface Harmonic {
+  cos?: OrbitalMatrix;
+  sin?: OrbitalMatrix;
+}
+
+type Dense = (Amplitude | null)[][];
+
+const PAULI: Record<string, [number, number][][]> = {
+  '0': [[[1, 0], [0, 0]], [[0, 0], [1, 0]]],
+  x: [[[0, 0], [1, 0]], [[1, 0], [0, 0]]],
+  y: [[[0, 0], [0, -1]], [[0, 1], [0, 0]]],
+  z: [[[1, 0], [0, 0]], [[0, 0], [-1, 0]]],
 };
 
 const SPIN_SUFFIX = ['.up', '.dn'] as const;
 
-/** Multiply an amplitude by a fixed complex number, keeping it an amplitude. */
-function scaleAmplitude(a: Amplitude, [re, im]: [number, number]): Amplitude {
-  if (im === 0 && re === 1) return a;
-  if (typeof a === 'number') return im === 0 ? a * re : { re: a * re, im: a * im };
-  const factor = im === 0 ? `${re}` : `(${re} + ${im}i)`;
-  if (typeof a === 'string') return `(${a}) * ${factor}`;
-  return `((${a.re}) + i*(${a.im})) * ${factor}`;
-}
-
-function entryOf(m: SpinMatrix, row: number, col: number): Amplitude | null {
-  if (typeof m === 'string') {
-    const e = PAULI[m][row][col];
-    return e === null ? null : e[1] === 0 ? e[0] : { re: e[0], im: e[1] };
+/** Entry (row, col) of a Kronecker product of Pauli matrices named by `key`. */
+function pauliEntry(key: string, row: number, col: number): [number, number] {
+  let re = 1, im = 0;
+  for (let f = 0; f < key.length; f++) {
+    const shift = key.length - 1 - f;
+    const [er, ei] = PAULI[key[f]][(row >> shift) & 1][(col >> shift) & 1];
+    [re, im] = [re * er - im * ei, re * ei + im * er];
+    if (re === 0 && im === 0) break;
   }
-  return m[row][col];
+  return [re, im];
 }
 
-function multiplyAmplitudes(a: Amplitude, b: Amplitude): Amplitude {
-  if (typeof b === 'number') return scaleAmplitude(a, [b, 0]);
-  if (typeof b === 'object' && typeof b.re === 'number' && typeof b.im === 'number') return scaleAmplitude(a, [b.re, b.im]);
-  const left = typeof a === 'number' ? `${a}` : typeof a === 'string' ? `(${a})` : `((${a.re}) + i*(${a.im}))`;
-  const right = typeof b === 'string' ? `(${b})` : `((${b.re}) + i*(${b.im}))`;
-  return `${left} * ${right}`;
+function isRows(m: OrbitalMatrix): m is readonly (readonly Amplitude[])[] {
+  return Array.isArray(m);
+}
+
+/** Expand an OrbitalMatrix to dense rows x cols (null = zero), naming `field` in errors. */
+function denseMatrix(m: OrbitalMatrix, rows: number, cols: number, field: string): Dense {
+  const out: Dense = Array.from({ length: rows }, () => new Array<Amplitude | null>(cols).fill(null));
+  if (isRows(m)) {
+    if (m.length !== rows || !m.every((r) => Array.isArray(r) && r.length === cols)) {
+      throw new ModelError(field, `expected a ${rows} x ${cols} matrix (rows = "to" orbitals, columns = "from"). Value: ${show(m)}`);
+    }
+    m.forEach((r, i) => r.forEach((e, j) => (out[i][j] = isZero(e) ? null : e)));
+    return out;
+  }
+  if (m === null || typeof m !== 'object') throw new ModelError(field, `expected Pauli strings with amplitudes or matrix rows. Value: ${show(m)}`);
+  for (const [key, coefficient] of Object.entries(m as Record<string, Amplitude>)) {
+    if (!/^[0xyz]+$/.test(key)) throw new ModelError(`${field}.${key}`, `a Pauli string is made of the letters 0, x, y, z. Value: ${show(key)}`);
+    if (rows !== cols || 2 ** key.length !== rows) {
+      throw new ModelError(`${field}.${key}`, `a Pauli string of ${key.length} letters acts on ${2 ** key.length} orbitals, but this block is ${rows} x ${cols}`);
+    }
+    for (let i = 0; i < rows; i++) {
+      for (let j = 0; j < cols; j++) {
+        const [re, im] = pauliEntry(key, i, j);
+        if (re === 0 && im === 0) continue;
+        const term = multiplyAmplitudes(coefficient, fromComplex(re, im));
+        out[i][j] = out[i][j] === null ? term : addAmplitudes(out[i][j]!, term);
+      }
+    }
+  }
+  return out;
+}
+
+function spinDense(spin: SpinMatrix, field: string): Dense {
+  return typeof spin === 'string' ? denseMatrix({ [spin]: 1 }, 2, 2, field) : denseMatrix(spin, 2, 2, field);
 }
 
 export class LatticeBuilder {
   private readonly name: string;
   private readonly vectors: number[][];
-  private periodic: number;
+  private readonly periodic: number;
   private readonly orbitals: OrbitalSpec[] = [];
-  private readonly spinful = new Map<string, boolean>();
+  private readonly sites = new Map<string, string[]>();
+  private readonly blocks = new Map<string, string[]>();
   private readonly parameters: Record<string, ParameterSpec> = {};
-  private readonly terms: TermSpec[] = [];
+  private readonly terms = new TermSet();
+  /** Amplitudes and matrices to check once all parameters are declared (at build). */
+  private readonly pending: { field: string; amplitude?: Amplitude; hermitian?: Dense }[] = [];
   private doc: string | undefined;
 
   constructor(name: string, vectors: number[][], periodic = vectors.length) {
@@ -77,44 +130,37 @@ export class LatticeBuilder {
 
   /** Add a site at a reduced position; with `{ spin: true }` it holds two orbitals, `label.up` and `label.dn`. */
   site(label: string, position: number[], options: { spin?: boolean } = {}): this {
-    if (this.spinful.has(label)) throw new ModelError(`site(${show(label)})`, 'a site with this label exists already');
+    if (this.sites.has(label)) throw new ModelError(`site(${show(label)})`, 'a site with this label exists already');
     const spin = options.spin ?? false;
-    this.spinful.set(label, spin);
-    if (spin) {
-      this.orbitals.push({ label: label + SPIN_SUFFIX[0], position: [...position], spin: 'up' });
-      this.orbitals.push({ label: label + SPIN_SUFFIX[1], position: [...position], spin: 'down' });
-    } else {
-      this.orbitals.push({ label, position: [...position] });
-    }
+    const labels = spin ? SPIN_SUFFIX.map((s) => label + s) : [label];
+    this.sites.set(label, labels);
+    labels.forEach((l, i) => this.orbitals.push({ label: l, position: [...position], ...(spin ? { spin: i === 0 ? 'up' : 'down' } : {}) }));
     return this;
   }
 
-  private siteOrbitals(label: string, where: string): string[] {
-    const spin = this.spinful.get(label);
-    if (spin === undefined) throw new ModelError(where, `unknown site ${show(label)} (declare it with .site() first)`);
-    return spin ? SPIN_SUFFIX.map((s) => label + s) : [label];
+  /**
+   * Name an ordered group of orbitals (sites expand to their orbitals) for matrix-valued terms.
+   * `block('s', ['a', 'b'])` on spinful a, b orders the orbitals a.up, a.dn, b.up, b.dn.
+   */
+  block(name: string, members: string[]): this {
+    const where = `block(${show(name)})`;
+    if (this.blocks.has(name) || this.sites.has(name)) throw new ModelError(where, `the name ${show(name)} is taken by a block or site`);
+    if (!Array.isArray(members) || members.length === 0) throw new ModelError(`${where}.members`, `expected a non-empty list of sites or orbitals. Value: ${show(members)}`);
+    const orbitals = members.flatMap((m, i) => this.resolve(m, `${where}.members[${i}]`));
+    if (new Set(orbitals).size !== orbitals.length) throw new ModelError(`${where}.members`, `an orbital appears twice. Value: ${show(orbitals)}`);
+    this.blocks.set(name, orbitals);
+    return this;
   }
 
   /** An onsite energy; on a spinful site, times a Hermitian spin matrix (default identity). */
   onsite(site: string, amplitude: Amplitude, spin: SpinMatrix = '0'): this {
-    const orbs = this.siteOrbitals(site, `onsite(${show(site)})`);
-    if (orbs.length === 1) {
-      this.terms.push({ from: site, to: site, cell: this.zeroCell(), amplitude });
-      return this;
-    }
-    if (typeof spin !== 'string') {
-      const [[, upper], [lower]] = spin;
-      if (!isConjugatePair(upper, lower)) {
-        throw new ModelError(`onsite(${show(site)}).spin`, `spin matrix must be Hermitian (a non-Hermitian onsite block): [0][1] = ${show(upper)}, [1][0] = ${show(lower)}`);
-      }
-    }
-    for (let r = 0; r < 2; r++) {
-      for (let c = 0; c <= r; c++) {
-        const e = entryOf(spin, r, c);
-        if (e !== null) this.terms.push({ from: orbs[c], to: orbs[r], cell: this.zeroCell(), amplitude: multiplyAmplitudes(amplitude, e) });
-      }
-    }
-    return this;
+    const where = `onsite(${show(site)})`;
+    const orbs = this.siteOrbitals(site, where);
+    this.pending.push({ field: `${where}.amplitude`, amplitude });
+    if (orbs.length === 1) return this.addTerm(site, site, this.zeroCell(), amplitude);
+    const m = spinDense(spin, `${where}.spin`);
+    if (typeof spin !== 'string') this.pending.push({ field: `${where}.spin`, hermitian: m });
+    return this.addOnsiteBlock(orbs, m.map((row) => row.map((e) => (e === null ? null : multiplyAmplitudes(amplitude, e)))));
   }
 
   /**
@@ -122,26 +168,76 @@ export class LatticeBuilder {
    * Hermitian partner is implied).
    */
   hop(from: string, to: string, cell: number[], amplitude: Amplitude, spin: SpinMatrix = '0'): this {
-    const a = this.siteOrbitals(from, `hop(${show(from)}, ${show(to)}).from`);
-    const b = this.siteOrbitals(to, `hop(${show(from)}, ${show(to)}).to`);
-    if (a.length !== b.length) throw new ModelError(`hop(${show(from)}, ${show(to)})`, 'cannot hop between a spinful and a spinless site');
-    if (a.length === 1) {
-      this.terms.push({ from, to, cell: [...cell], amplitude });
-      return this;
+    const where = `hop(${show(from)}, ${show(to)})`;
+    const a = this.siteOrbitals(from, `${where}.from`);
+    const b = this.siteOrbitals(to, `${where}.to`);
+    if (a.length !== b.length) throw new ModelError(where, 'cannot hop between a spinful and a spinless site');
+    this.checkCell(cell, `${where}.cell`);
+    this.checkNotOnsite(a, b, cell, where, 'onsite');
+    this.pending.push({ field: `${where}.amplitude`, amplitude });
+    if (a.length === 1) return this.addTerm(from, to, cell, amplitude);
+    const m = spinDense(spin, `${where}.spin`);
+    return this.addMatrix(a, b, cell, m.map((row) => row.map((e) => (e === null ? null : multiplyAmplitudes(amplitude, e)))));
+  }
+
+  /** A Hermitian matrix of onsite terms on a block: `onsiteMatrix('s', { z: 'm', x: 'Delta' })`. */
+  onsiteMatrix(block: string, matrix: OrbitalMatrix): this {
+    const where = `onsiteMatrix(${show(block)})`;
+    const orbs = this.resolve(block, where);
+    const m = denseMatrix(matrix, orbs.length, orbs.length, where);
+    this.pending.push({ field: where, hermitian: m });
+    return this.addOnsiteBlock(orbs, m);
+  }
+
+  /**
+   * A matrix-valued hopping between blocks: <cell, to_i| H |0, from_j> = matrix[i][j] (Hermitian
+   * partner implied).
+   */
+  hopMatrix(from: string, to: string, cell: number[], matrix: OrbitalMatrix): this {
+    const where = `hopMatrix(${show(from)}, ${show(to)})`;
+    const a = this.resolve(from, `${where}.from`);
+    const b = this.resolve(to, `${where}.to`);
+    this.checkCell(cell, `${where}.cell`);
+    this.checkNotOnsite(a, b, cell, where, 'onsiteMatrix');
+    return this.addMatrix(a, b, cell, denseMatrix(matrix, b.length, a.length, where));
+  }
+
+  /**
+   * Adds M_cos cos(k·R) + M_sin sin(k·R) to the block of H(k), k·R = sum_i k_i R_i (reduced
+   * momentum, the 'lattice' Bloch convention); both matrices must be Hermitian. The signs of the
+   * e^{±ik·R} terms are derived here: amplitude (M_cos - i M_sin)/2 on cell R, its partner on -R.
+   */
+  harmonic(block: string, cell: number[], parts: Harmonic): this {
+    const where = `harmonic(${show(block)}, ${show(cell)})`;
+    const orbs = this.resolve(block, where);
+    this.checkCell(cell, `${where}.cell`);
+    if (cell.every((c) => c === 0)) throw new ModelError(`${where}.cell`, `a harmonic needs a non-zero cell (use onsiteMatrix for R = 0). Value: ${show(cell)}`);
+    if (parts === null || typeof parts !== 'object' || (parts.cos === undefined && parts.sin === undefined)) {
+      throw new ModelError(where, `expected { cos?, sin? } matrices. Value: ${show(parts)}`);
     }
-    for (let r = 0; r < 2; r++) {
-      for (let c = 0; c < 2; c++) {
-        const e = entryOf(spin, r, c);
-        if (e !== null) this.terms.push({ from: a[c], to: b[r], cell: [...cell], amplitude: multiplyAmplitudes(amplitude, e) });
-      }
-    }
-    return this;
+    const n = orbs.length;
+    const c = parts.cos === undefined ? null : denseMatrix(parts.cos, n, n, `${where}.cos`);
+    const s = parts.sin === undefined ? null : denseMatrix(parts.sin, n, n, `${where}.sin`);
+    if (c !== null) this.pending.push({ field: `${where}.cos`, hermitian: c });
+    if (s !== null) this.pending.push({ field: `${where}.sin`, hermitian: s });
+    const m: Dense = Array.from({ length: n }, (_, i) =>
+      Array.from({ length: n }, (_, j) => {
+        const fromCos = c?.[i][j] ? multiplyAmplitudes(c[i][j]!, 0.5) : null;
+        const fromSin = s?.[i][j] ? multiplyAmplitudes(s[i][j]!, { re: 0, im: -0.5 }) : null;
+        return fromCos === null ? fromSin : fromSin === null ? fromCos : addAmplitudes(fromCos, fromSin);
+      }),
+    );
+    return this.addMatrix(orbs, orbs, cell, m);
   }
 
   /** A raw term between orbitals (not sites), for what the helpers above do not cover. */
   term(term: TermSpec): this {
-    this.terms.push({ ...term, cell: [...term.cell] });
-    return this;
+    const where = `term(${show(term?.from)}, ${show(term?.to)})`;
+    this.resolve(term.from, `${where}.from`);
+    this.resolve(term.to, `${where}.to`);
+    this.checkCell(term.cell, `${where}.cell`);
+    this.pending.push({ field: `${where}.amplitude`, amplitude: term.amplitude });
+    return this.addTerm(term.from, term.to, term.cell, term.amplitude);
   }
 
   /** Provenance shown with the model (e.g. a citation). */
@@ -152,6 +248,13 @@ export class LatticeBuilder {
 
   /** The validated model description. */
   build(): ModelSpec {
+    const names = new Set(Object.keys(this.parameters));
+    const defaults: Record<string, number> = {};
+    for (const [k, p] of Object.entries(this.parameters)) defaults[k] = p?.default;
+    for (const check of this.pending) {
+      if (check.amplitude !== undefined) compileAmplitude(check.amplitude, check.field, names);
+      if (check.hermitian !== undefined) checkHermitian(check.hermitian, check.field, names, defaults);
+    }
     const spec: ModelSpec = {
       format: MODEL_FORMAT,
       version: MODEL_VERSION,
@@ -160,10 +263,59 @@ export class LatticeBuilder {
       vectors: this.vectors.map((v) => [...v]),
       orbitals: this.orbitals.map((o) => ({ ...o, position: [...o.position] })),
       parameters: JSON.parse(JSON.stringify(this.parameters)) as Record<string, ParameterSpec>,
-      terms: this.terms.map((t) => ({ ...t, cell: [...t.cell] })),
+      terms: this.terms.list(),
       ...(this.doc !== undefined ? { doc: this.doc } : {}),
     };
     return validateModel(spec);
+  }
+
+  private resolve(name: string, where: string): string[] {
+    const found = this.blocks.get(name) ?? this.sites.get(name) ?? (this.orbitals.some((o) => o.label === name) ? [name] : undefined);
+    if (found === undefined) throw new ModelError(where, `unknown block, site or orbital ${show(name)}`);
+    return found;
+  }
+
+  private siteOrbitals(label: string, where: string): string[] {
+    const orbs = this.sites.get(label);
+    if (orbs === undefined) throw new ModelError(where, `unknown site ${show(label)} (declare it with .site() first)`);
+    return orbs;
+  }
+
+  private checkCell(cell: unknown, field: string): void {
+    if (!Array.isArray(cell) || cell.length !== this.periodic || !cell.every((c) => Number.isInteger(c))) {
+      throw new ModelError(field, `expected ${this.periodic} integers (one per periodic direction). Value: ${show(cell)}`);
+    }
+  }
+
+  /** Within one cell an orbital cannot hop to itself: that is an onsite term, added once. */
+  private checkNotOnsite(from: string[], to: string[], cell: number[], where: string, instead: string): void {
+    if (cell.some((c) => c !== 0)) return;
+    const shared = from.filter((o) => to.includes(o));
+    if (shared.length > 0) throw new ModelError(`${where}.cell`, `a hopping within the cell from ${show(shared[0])} to itself is an onsite term; use .${instead}(). Value: ${show(cell)}`);
+  }
+
+  /** Lower triangle and diagonal of a Hermitian onsite block (the upper triangle is the implied partner). */
+  private addOnsiteBlock(orbs: string[], m: Dense): this {
+    for (let r = 0; r < orbs.length; r++) {
+      for (let c = 0; c <= r; c++) {
+        const e = m[r][c];
+        if (e !== null) this.addTerm(orbs[c], orbs[r], this.zeroCell(), e);
+      }
+    }
+    return this;
+  }
+
+  private addMatrix(from: string[], to: string[], cell: number[], m: Dense): this {
+    to.forEach((b, r) => from.forEach((a, c) => {
+      const e = m[r][c];
+      if (e !== null) this.addTerm(a, b, cell, e);
+    }));
+    return this;
+  }
+
+  private addTerm(from: string, to: string, cell: readonly number[], amplitude: Amplitude): this {
+    this.terms.add(from, to, cell, amplitude);
+    return this;
   }
 
   private zeroCell(): number[] {
@@ -171,14 +323,31 @@ export class LatticeBuilder {
   }
 }
 
-/** Whether b = conj(a); amplitudes given as expressions are compared as written (a == b, real). */
-function isConjugatePair(a: Amplitude, b: Amplitude): boolean {
-  const numeric = (x: Amplitude): [number, number] | null =>
-    typeof x === 'number' ? [x, 0] : typeof x === 'object' && typeof x.re === 'number' && typeof x.im === 'number' ? [x.re, x.im] : null;
-  const na = numeric(a);
-  const nb = numeric(b);
-  if (na !== null && nb !== null) return Math.abs(na[0] - nb[0]) <= 1e-14 && Math.abs(na[1] + nb[1]) <= 1e-14;
-  return JSON.stringify(a) === JSON.stringify(b);
+/** Hermiticity of a matrix of amplitudes, evaluated at the parameter defaults. */
+function checkHermitian(m: Dense, field: string, names: ReadonlySet<string>, defaults: Record<string, number>): void {
+  const value = (e: Amplitude | null, where: string): [number, number] => {
+    if (e === null) return [0, 0];
+    const fixed = numericValue(e);
+    if (fixed !== null) return fixed;
+    const out = new Float64Array(2);
+    compileAmplitude(e, where, names)(defaults, out, 0);
+    return [out[0], out[1]];
+  };
+  for (let i = 0; i < m.length; i++) {
+    for (let j = 0; j <= i; j++) {
+      const a = value(m[i][j], `${field}[${i}][${j}]`);
+      const b = value(m[j][i], `${field}[${j}][${i}]`);
+      const scale = Math.max(1, Math.hypot(...a), Math.hypot(...b));
+      if (Math.abs(a[0] - b[0]) > 1e-12 * scale || Math.abs(a[1] + b[1]) > 1e-12 * scale) {
+        const entry = (e: Amplitude | null): string => (e === null ? '0' : show(e));
+        throw new ModelError(
+          field,
+          `matrix must be Hermitian (a non-Hermitian onsite block or harmonic): [${i}][${j}] = ${entry(m[i][j])}, [${j}][${i}] = ${entry(m[j][i])}` +
+            (numericValue(m[i][j] ?? 0) === null || numericValue(m[j][i] ?? 0) === null ? ' (at the parameter defaults)' : ''),
+        );
+      }
+    }
+  }
 }
 
 /**

@@ -19,6 +19,11 @@ export interface OrbitalSpec {
   position: number[];
   spin?: 'up' | 'down';
   nambu?: 'particle' | 'hole';
+  /**
+   * On a ribbon or slab: the index (0 .. width-1) of the cell along the open direction this
+   * orbital came from, so spectra can weigh states by edge. Set by the ribbon builder.
+   */
+  layer?: number;
 }
 
 export interface ParameterSpec {

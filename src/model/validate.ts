@@ -3,6 +3,7 @@
  * amplitudes are checked again, numerically, when parameters are resolved (src/bloch).
  */
 import { ModelError, show } from './errors.js';
+import { numericValue } from './amplitude.js';
 import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type ModelSpec } from './spec.js';
 
@@ -57,6 +58,7 @@ export function validateModel(spec: unknown): ModelSpec {
     if (!isFiniteArray(o.position, space)) throw new ModelError(`${field}.position`, `expected ${space} finite reduced coordinates. Value: ${show(o.position)}`);
     if (o.spin !== undefined && o.spin !== 'up' && o.spin !== 'down') throw new ModelError(`${field}.spin`, `expected "up" or "down". Value: ${show(o.spin)}`);
     if (o.nambu !== undefined && o.nambu !== 'particle' && o.nambu !== 'hole') throw new ModelError(`${field}.nambu`, `expected "particle" or "hole". Value: ${show(o.nambu)}`);
+    if (o.layer !== undefined && !(Number.isInteger(o.layer) && o.layer >= 0)) throw new ModelError(`${field}.layer`, `expected a non-negative integer. Value: ${show(o.layer)}`);
   });
 
   if (!Array.isArray(m.terms)) throw new ModelError('terms', `expected an array. Value: ${show(m.terms)}`);
@@ -70,9 +72,13 @@ export function validateModel(spec: unknown): ModelSpec {
       throw new ModelError(`${field}.cell`, `expected ${periodic} integers (one per periodic direction). Value: ${show(t.cell)}`);
     }
     compileAmplitude(t.amplitude, `${field}.amplitude`, parameterNames);
+    const onsite = t.from === t.to && t.cell.every((c) => c === 0);
+    const fixed = numericValue(t.amplitude);
+    if (onsite && fixed !== null && fixed[1] !== 0) {
+      throw new ModelError(`${field}.amplitude`, `an onsite energy must be real (a non-Hermitian onsite block). Value: ${show(t.amplitude)}`);
+    }
     const key = `${t.from}|${t.to}|${t.cell.join(',')}`;
     const partner = `${t.to}|${t.from}|${t.cell.map((c) => -c || 0).join(',')}`;
-    const onsite = t.from === t.to && t.cell.every((c) => c === 0);
     if (seen.has(key)) throw new ModelError(field, `repeats terms[${seen.get(key)}] (${t.from} -> ${t.to}, cell ${show(t.cell)}); combine the amplitudes`);
     if (!onsite && seen.has(partner)) {
       throw new ModelError(field, `is the Hermitian partner of terms[${seen.get(partner)}], which is added automatically; remove one of them`);
@@ -90,4 +96,31 @@ function determinant(v: number[][]): number {
     v[0][1] * (v[1][0] * v[2][2] - v[1][2] * v[2][0]) +
     v[0][2] * (v[1][0] * v[2][1] - v[1][1] * v[2][0])
   );
+}
+
+/**
+ * A band selection checked against a model, as the topology and spectra code takes it: a count n
+ * (the lowest n bands) or a list of band indices (0 = lowest). Undefined means the lower half
+ * (half filling, at least one band). Returns the indices, ascending; a ModelError names `field`
+ * and the value when a count or index is out of range, repeated, or not an integer.
+ */
+export function checkBandSelection(spec: ModelSpec, bands?: number | readonly number[], field = 'bands'): number[] {
+  const count = spec.orbitals.length;
+  if (bands === undefined) return Array.from({ length: Math.max(1, Math.floor(count / 2)) }, (_, i) => i);
+  if (typeof bands === 'number') {
+    if (!Number.isInteger(bands) || bands < 1 || bands > count) {
+      throw new ModelError(field, `expected a band count from 1 to ${count} (model "${spec.name}" has ${count} bands). Value: ${show(bands)}`);
+    }
+    return Array.from({ length: bands }, (_, i) => i);
+  }
+  if (!Array.isArray(bands) || bands.length === 0) throw new ModelError(field, `expected a band count or a non-empty list of band indices. Value: ${show(bands)}`);
+  const seen = new Set<number>();
+  bands.forEach((b, i) => {
+    if (!Number.isInteger(b) || b < 0 || b >= count) {
+      throw new ModelError(`${field}[${i}]`, `band index out of range: model "${spec.name}" has bands 0 to ${count - 1}. Value: ${show(b)}`);
+    }
+    if (seen.has(b)) throw new ModelError(`${field}[${i}]`, `band ${b} is listed twice. Value: ${show(bands)}`);
+    seen.add(b);
+  });
+  return [...bands].sort((a, b) => a - b);
 }
