@@ -106,6 +106,33 @@ describe('Qi–Wu–Zhang gap closings from the closed form |d(k)| = 0 (Qi, Wu, 
   });
 });
 
+// Two-band Weyl model d = (sin kx, sin ky, 2 - cos kx - cos ky + cos kz - cos k0) with k0 = pi/2:
+// |d| = 0 only at (0, 0, ±k0) (closed form; a minimal Weyl semimetal, common practice).
+function weyl() {
+  return lattice('Weyl', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
+    .site('a', [0, 0, 0]).site('b', [0, 0, 0])
+    .onsite('a', 2).onsite('b', -2)
+    .hop('a', 'a', [1, 0, 0], -0.5).hop('b', 'b', [1, 0, 0], 0.5)
+    .hop('a', 'a', [0, 1, 0], -0.5).hop('b', 'b', [0, 1, 0], 0.5)
+    .hop('a', 'a', [0, 0, 1], 0.5).hop('b', 'b', [0, 0, 1], -0.5)
+    .hop('b', 'a', [1, 0, 0], { re: 0, im: -0.5 }).hop('a', 'b', [1, 0, 0], { re: 0, im: -0.5 })
+    .hop('b', 'a', [0, 1, 0], -0.5).hop('a', 'b', [0, 1, 0], 0.5)
+    .build();
+}
+
+describe('Weyl points in 3D from the closed form |d(k)| = 0 (common practice)', () => {
+  it('locates exactly the two nodes (0, 0, ±pi/2) from a coarse grid that misses them', () => {
+    const result = findGapClosings(weyl(), { bands: 1, grid: 9 });
+    const closed = result.points.filter((p) => p.closed);
+    expect(closed).toHaveLength(2);
+    for (const kz of [Math.PI / 2, -Math.PI / 2]) {
+      const hit = closed.filter((p) => Math.hypot(p.k[0], p.k[1], p.k[2] - kz) < 1e-7);
+      expect(hit).toHaveLength(1);
+      expect(hit[0].cartesian[2]).toBeCloseTo(kz, 7); // unit cubic cell: Cartesian = reduced
+    }
+  });
+});
+
 describe('square-lattice tight binding, E = -2t(cos kx + cos ky) (common practice)', () => {
   const t = 1;
   const model = lattice('square', [[2, 0], [0, 2]]).parameter('t', { default: t }).site('s', [0, 0])
