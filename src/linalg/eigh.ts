@@ -1,134 +1,402 @@
 /**
  * Hermitian eigensolver: eigenvalues ascending, eigenvectors as the columns of V.
  *
- * Cyclic complex Jacobi rotations: each rotation is a phase that makes the pivot real followed by
- * a real plane rotation that annihilates it. Accurate to machine precision on clustered and exactly
- * degenerate spectra (no deflation heuristics to get wrong).
+ * n = 1 and n = 2 in closed form. Larger n: Householder reduction to tridiagonal form, a diagonal
+ * phase transform that makes the off-diagonal real, implicit QL with Wilkinson shifts on the real
+ * tridiagonal (rotations accumulated in a real matrix), then the phases and reflectors applied to
+ * each eigenvector. Normwise backward stable: residuals and orthonormality are of order eps ||H||,
+ * also on clustered and exactly degenerate spectra.
  */
 import type { CMatrix } from './cmatrix.js';
+import { tridiagonalQL } from './tridiagonal.js';
+
+/** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
+const SAFE_MIN = 2 ** -300;
+const SAFE_MAX = 2 ** 300;
+
+/** A power of two near `big` (exact to scale by); clamped so that its reciprocal is finite. */
+function powerOfTwoNear(big: number): number {
+  const k = Math.max(-1000, Math.min(1000, Math.round(Math.log2(big))));
+  return 2 ** k;
+}
+
+function checkArray(name: string, x: ArrayLike<number>, offset: number, needed: number): void {
+  if (!Number.isInteger(offset) || offset < 0) {
+    throw new RangeError(`${name} offset must be a nonnegative integer. Value: ${offset}`);
+  }
+  if (x.length < offset + needed) {
+    throw new RangeError(`${name} must hold ${needed} entries from offset ${offset}. Value: length ${x.length}`);
+  }
+}
 
 export class HermitianEigensolver {
   readonly n: number;
+  /** Working copy of the upper triangle; after the reduction, row k holds reflector k. */
   private readonly a: Float64Array;
-  private readonly v: Float64Array;
+  /** Reflector k is I - beta[k] u u^dagger (beta 0: no reflector). */
+  private readonly beta: Float64Array;
+  /** Complex subdiagonal of the tridiagonal form, then the diagonal phases D. */
+  private readonly off: Float64Array;
+  private readonly phase: Float64Array;
+  private readonly d: Float64Array;
+  private readonly e: Float64Array;
+  /** Real eigenvectors of the tridiagonal form, one per row. */
+  private readonly z: Float64Array;
+  /** Complex scratch vector. */
+  private readonly p: Float64Array;
   private readonly order: Int32Array;
-  private readonly values: Float64Array;
 
   constructor(n: number) {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigensolver size must be a positive integer. Value: ${n}`);
     this.n = n;
     this.a = new Float64Array(2 * n * n);
-    this.v = new Float64Array(2 * n * n);
+    this.beta = new Float64Array(n);
+    this.off = new Float64Array(2 * n);
+    this.phase = new Float64Array(2 * n);
+    this.d = new Float64Array(n);
+    this.e = new Float64Array(n);
+    this.z = new Float64Array(n * n);
+    this.p = new Float64Array(2 * n);
     this.order = new Int32Array(n);
-    this.values = new Float64Array(n);
   }
 
   /**
    * Eigenvalues of the Hermitian matrix `h` into `w` (ascending) and, when `vecs` is given, the
-   * orthonormal eigenvectors into its columns. Only the upper triangle of `h` is read; `h` is not
-   * modified. Returns `w`.
+   * orthonormal eigenvectors into its columns. Only the upper triangle of `h` is read (the
+   * imaginary part of the diagonal is ignored); `h` is not modified, and `w` or `vecs` may be `h`
+   * itself. Returns `w`.
    */
   solve(h: CMatrix, w: Float64Array, vecs?: CMatrix): Float64Array {
+    return this.solveAt(h, 0, w, 0, vecs ?? null, 0);
+  }
+
+  /**
+   * `solve` on matrices stored at offsets (in doubles) inside larger arrays, e.g. one H(k) of a
+   * batch: reads `h[hOffset .. hOffset + 2n^2)`, writes `w[wOffset .. wOffset + n)` and, unless
+   * `vecs` is null, `vecs[vecsOffset .. vecsOffset + 2n^2)`. Returns `w`.
+   */
+  solveAt(h: CMatrix, hOffset: number, w: Float64Array, wOffset: number, vecs: CMatrix | null, vecsOffset = 0): Float64Array {
     const n = this.n;
-    const a = this.a;
-    const v = this.v;
-    const wantVectors = vecs !== undefined;
-    for (let i = 0; i < n; i++) {
-      for (let j = i; j < n; j++) {
-        const re = h[2 * (i * n + j)], im = h[2 * (i * n + j) + 1];
-        a[2 * (i * n + j)] = re;
-        a[2 * (i * n + j) + 1] = i === j ? 0 : im;
-        a[2 * (j * n + i)] = re;
-        a[2 * (j * n + i) + 1] = i === j ? 0 : -im;
-      }
-    }
-    if (wantVectors) {
-      v.fill(0);
-      for (let i = 0; i < n; i++) v[2 * (i * n + i)] = 1;
-    }
-    for (let sweep = 0; sweep < 100; sweep++) {
-      let off = 0;
-      let diag = 0;
-      for (let i = 0; i < n; i++) {
-        diag += a[2 * (i * n + i)] ** 2;
-        for (let j = i + 1; j < n; j++) off += a[2 * (i * n + j)] ** 2 + a[2 * (i * n + j) + 1] ** 2;
-      }
-      if (off <= 1e-32 * diag || off === 0) break;
-      for (let p = 0; p < n - 1; p++) {
-        for (let q = p + 1; q < n; q++) this.rotate(p, q, wantVectors);
-      }
-    }
-    const values = this.values;
-    const order = this.order;
-    for (let i = 0; i < n; i++) {
-      values[i] = a[2 * (i * n + i)];
-      order[i] = i;
-    }
-    order.sort((x, y) => values[x] - values[y]);
-    for (let i = 0; i < n; i++) w[i] = values[order[i]];
-    if (vecs !== undefined) {
-      for (let col = 0; col < n; col++) {
-        const src = order[col];
-        for (let row = 0; row < n; row++) {
-          vecs[2 * (row * n + col)] = v[2 * (row * n + src)];
-          vecs[2 * (row * n + col) + 1] = v[2 * (row * n + src) + 1];
-        }
-      }
-    }
+    checkArray('h', h, hOffset, 2 * n * n);
+    checkArray('w', w, wOffset, n);
+    if (vecs !== null) checkArray('vecs', vecs, vecsOffset, 2 * n * n);
+    if (n === 1) this.solve1(h, hOffset, w, wOffset, vecs, vecsOffset);
+    else if (n === 2) this.solve2(h, hOffset, w, wOffset, vecs, vecsOffset);
+    else this.solveGeneral(h, hOffset, w, wOffset, vecs, vecsOffset);
     return w;
   }
 
-  private rotate(p: number, q: number, wantVectors: boolean): void {
+  private solve1(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
+    const x = h[ho];
+    if (!Number.isFinite(x)) throw nonFinite(1, h, ho);
+    w[wo] = x;
+    if (vecs !== null) {
+      vecs[vo] = 1;
+      vecs[vo + 1] = 0;
+    }
+  }
+
+  /**
+   * [[a, b], [conj b, c]] = D R D^dagger with D = diag(1, conj(b)/|b|) and R = [[a, |b|], [|b|, c]]
+   * real; R's eigenvalues as in LAPACK's dlaev2 (the smaller one from the determinant, no
+   * cancellation), its eigenvectors from the stable tangent of the rotation angle.
+   */
+  private solve2(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
+    let a = h[ho];
+    let br = h[ho + 2];
+    let bi = h[ho + 3];
+    let c = h[ho + 6];
+    if ((a * 0 + br * 0 + bi * 0 + c * 0) !== 0) throw nonFinite(2, h, ho);
+    const big = Math.max(Math.abs(a), Math.abs(c), Math.abs(br), Math.abs(bi));
+    let scale = 1;
+    if (big !== 0 && (big < SAFE_MIN || big > SAFE_MAX)) {
+      scale = powerOfTwoNear(big);
+      const inv = 1 / scale;
+      a *= inv;
+      br *= inv;
+      bi *= inv;
+      c *= inv;
+    }
+    const beta = Math.sqrt(br * br + bi * bi);
+    const delta = a - c;
+    const sum = a + c;
+    const rt = Math.sqrt(delta * delta + 4 * beta * beta);
+    const acmx = Math.abs(a) > Math.abs(c) ? a : c;
+    const acmn = Math.abs(a) > Math.abs(c) ? c : a;
+    let lo: number;
+    let hi: number;
+    if (sum > 0) {
+      hi = 0.5 * (sum + rt);
+      lo = (acmx / hi) * acmn - (beta / hi) * beta;
+    } else if (sum < 0) {
+      lo = 0.5 * (sum - rt);
+      hi = (acmx / lo) * acmn - (beta / lo) * beta;
+    } else {
+      hi = 0.5 * rt;
+      lo = -hi;
+    }
+    w[wo] = lo * scale;
+    w[wo + 1] = hi * scale;
+    if (vecs === null) return;
+    const t = rt === 0 ? 0 : (2 * beta) / (Math.abs(delta) + rt);
+    const cs = 1 / Math.sqrt(1 + t * t);
+    const sn = t * cs;
+    // (hi0, hi1) belongs to the larger eigenvalue, (lo0, lo1) is orthogonal to it.
+    let hi0 = cs, hi1 = sn, lo0 = -sn, lo1 = cs;
+    if (delta < 0) {
+      hi0 = sn;
+      hi1 = cs;
+      lo0 = cs;
+      lo1 = -sn;
+    }
+    const fr = beta === 0 ? 1 : br / beta;
+    const fi = beta === 0 ? 0 : -bi / beta;
+    vecs[vo] = lo0;
+    vecs[vo + 1] = 0;
+    vecs[vo + 2] = hi0;
+    vecs[vo + 3] = 0;
+    vecs[vo + 4] = lo1 * fr;
+    vecs[vo + 5] = lo1 * fi;
+    vecs[vo + 6] = hi1 * fr;
+    vecs[vo + 7] = hi1 * fi;
+  }
+
+  private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
     const n = this.n;
     const a = this.a;
-    const pr = a[2 * (p * n + q)], pi = a[2 * (p * n + q) + 1];
-    const b = Math.hypot(pr, pi);
-    const app = a[2 * (p * n + p)], aqq = a[2 * (q * n + q)];
-    if (b === 0 || b <= 1e-300 || Math.abs(b) < 1e-17 * (Math.abs(app) + Math.abs(aqq)) * 1e-2) {
-      if (b !== 0 && b < 1e-17 * (Math.abs(app) + Math.abs(aqq)) * 1e-2) {
-        a[2 * (p * n + q)] = a[2 * (p * n + q) + 1] = a[2 * (q * n + p)] = a[2 * (q * n + p) + 1] = 0;
+    // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
+    let big = 0;
+    let bad = 0;
+    for (let i = 0; i < n; i++) {
+      const di = 2 * (i * n + i);
+      const x = h[ho + di];
+      a[di] = x;
+      a[di + 1] = 0;
+      bad += x * 0;
+      const ax = Math.abs(x);
+      if (ax > big) big = ax;
+      const end = 2 * (i * n + n);
+      for (let j = di + 2; j < end; j++) {
+        const y = h[ho + j];
+        a[j] = y;
+        bad += y * 0;
+        const ay = Math.abs(y);
+        if (ay > big) big = ay;
+      }
+    }
+    if (bad !== 0) throw nonFinite(n, h, ho);
+    if (big === 0) {
+      for (let i = 0; i < n; i++) w[wo + i] = 0;
+      if (vecs !== null) {
+        for (let j = 0; j < 2 * n * n; j++) vecs[vo + j] = 0;
+        for (let i = 0; i < n; i++) vecs[vo + 2 * (i * n + i)] = 1;
       }
       return;
     }
-    // Phase e^{-i phi} makes the pivot real; then the real Jacobi rotation (c, s).
-    const er = pr / b, ei = -pi / b; // e^{-i phi}
-    const theta = (aqq - app) / (2 * b);
-    const t = (theta >= 0 ? 1 : -1) / (Math.abs(theta) + Math.sqrt(theta * theta + 1));
-    const c = 1 / Math.sqrt(t * t + 1);
-    const s = t * c;
-    // U = [[c, s], [-s e^{-i phi}, c e^{-i phi}]] on (p, q). A <- A U (columns).
-    const ser = s * er, sei = s * ei, cer = c * er, cei = c * ei;
-    for (let k = 0; k < n; k++) {
-      const kp = 2 * (k * n + p), kq = 2 * (k * n + q);
-      const xr = a[kp], xi = a[kp + 1], yr = a[kq], yi = a[kq + 1];
-      a[kp] = c * xr - (yr * ser - yi * sei);
-      a[kp + 1] = c * xi - (yr * sei + yi * ser);
-      a[kq] = s * xr + (yr * cer - yi * cei);
-      a[kq + 1] = s * xi + (yr * cei + yi * cer);
+    let scale = 1;
+    if (big < SAFE_MIN || big > SAFE_MAX) {
+      scale = powerOfTwoNear(big);
+      const inv = 1 / scale;
+      for (let i = 0; i < n; i++) {
+        for (let j = 2 * (i * n + i); j < 2 * (i * n + n); j++) a[j] *= inv;
+      }
     }
-    // A <- U^dagger A (rows): row p = c row p - s e^{i phi} row q; row q = s row p + c e^{i phi} row q.
-    for (let k = 0; k < n; k++) {
-      const pk = 2 * (p * n + k), qk = 2 * (q * n + k);
-      const xr = a[pk], xi = a[pk + 1], yr = a[qk], yi = a[qk + 1];
-      a[pk] = c * xr - (yr * ser + yi * sei);
-      a[pk + 1] = c * xi - (yi * ser - yr * sei);
-      a[qk] = s * xr + (yr * cer + yi * cei);
-      a[qk + 1] = s * xi + (yi * cer - yr * cei);
+    this.reduce();
+    const d = this.d;
+    const e = this.e;
+    const z = vecs === null ? null : this.z;
+    if (z !== null) {
+      z.fill(0);
+      for (let i = 0; i < n; i++) z[i * n + i] = 1;
     }
-    a[2 * (p * n + q)] = a[2 * (p * n + q) + 1] = a[2 * (q * n + p)] = a[2 * (q * n + p) + 1] = 0;
-    a[2 * (p * n + p) + 1] = a[2 * (q * n + q) + 1] = 0;
-    if (wantVectors) {
-      const v = this.v;
-      for (let k = 0; k < n; k++) {
-        const kp = 2 * (k * n + p), kq = 2 * (k * n + q);
-        const xr = v[kp], xi = v[kp + 1], yr = v[kq], yi = v[kq + 1];
-        v[kp] = c * xr - (yr * ser - yi * sei);
-        v[kp + 1] = c * xi - (yr * sei + yi * ser);
-        v[kq] = s * xr + (yr * cer - yi * cei);
-        v[kq + 1] = s * xi + (yr * cei + yi * cer);
+    if (!tridiagonalQL(n, d, e, z)) {
+      throw new RangeError(`eigensolver: the QL iteration did not converge (n = ${n}); is h finite and Hermitian?`);
+    }
+    // Ascending order by insertion sort (n is small, and QL leaves d nearly ordered in blocks).
+    const order = this.order;
+    for (let i = 0; i < n; i++) {
+      const x = d[i];
+      let j = i - 1;
+      while (j >= 0 && d[order[j]] > x) {
+        order[j + 1] = order[j];
+        j--;
+      }
+      order[j + 1] = i;
+    }
+    for (let i = 0; i < n; i++) w[wo + i] = d[order[i]] * scale;
+    if (vecs !== null) this.backTransform(vecs, vo);
+  }
+
+  /**
+   * Householder reduction of the Hermitian matrix in `a` (upper triangle) to tridiagonal form:
+   * fills d (diagonal), e (|subdiagonal|), phase (D with T = D T_real D^dagger), and leaves the
+   * reflectors in the rows of `a`.
+   */
+  private reduce(): void {
+    const n = this.n;
+    const a = this.a;
+    const p = this.p;
+    const off = this.off;
+    const betas = this.beta;
+    for (let k = 0; k < n - 2; k++) {
+      const base = 2 * k * n;
+      // x = column k below the diagonal = conj(row k right of the diagonal).
+      let tail = 0;
+      for (let j = base + 2 * (k + 2); j < base + 2 * n; j++) tail += a[j] * a[j];
+      const x0r = a[base + 2 * (k + 1)];
+      const x0i = -a[base + 2 * (k + 1) + 1];
+      if (tail === 0) {
+        betas[k] = 0;
+        off[2 * k] = x0r;
+        off[2 * k + 1] = x0i;
+        continue;
+      }
+      const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
+      const sigma = Math.sqrt(ax0 * ax0 + tail);
+      const cr = ax0 === 0 ? 1 : x0r / ax0;
+      const ci = ax0 === 0 ? 0 : x0i / ax0;
+      // P x = alpha e1 with alpha = -e^{i arg x0} sigma, u = x - alpha e1, P = I - beta u u^dagger.
+      off[2 * k] = -cr * sigma;
+      off[2 * k + 1] = -ci * sigma;
+      const beta = 1 / (sigma * (sigma + ax0));
+      betas[k] = beta;
+      a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
+      a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
+      for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
+      // p = beta B u, B the trailing block (upper triangle stored).
+      for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] = 0;
+      for (let i = k + 1; i < n; i++) {
+        const ri = 2 * i * n;
+        const uir = a[base + 2 * i];
+        const uii = a[base + 2 * i + 1];
+        const bii = a[ri + 2 * i];
+        let sr = bii * uir;
+        let si = bii * uii;
+        for (let j = i + 1; j < n; j++) {
+          const br = a[ri + 2 * j];
+          const bi = a[ri + 2 * j + 1];
+          const ujr = a[base + 2 * j];
+          const uji = a[base + 2 * j + 1];
+          sr += br * ujr - bi * uji;
+          si += br * uji + bi * ujr;
+          p[2 * j] += br * uir + bi * uii;
+          p[2 * j + 1] += br * uii - bi * uir;
+        }
+        p[2 * i] += sr;
+        p[2 * i + 1] += si;
+      }
+      // q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger.
+      let upr = 0;
+      for (let j = 2 * (k + 1); j < 2 * n; j++) {
+        p[j] *= beta;
+        upr += a[base + j] * p[j];
+      }
+      const kk = 0.5 * beta * upr;
+      for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] -= kk * a[base + j];
+      for (let i = k + 1; i < n; i++) {
+        const ri = 2 * i * n;
+        const uir = a[base + 2 * i];
+        const uii = a[base + 2 * i + 1];
+        const qir = p[2 * i];
+        const qii = p[2 * i + 1];
+        for (let j = i; j < n; j++) {
+          const ujr = a[base + 2 * j];
+          const uji = a[base + 2 * j + 1];
+          const qjr = p[2 * j];
+          const qji = p[2 * j + 1];
+          a[ri + 2 * j] -= uir * qjr + uii * qji + qir * ujr + qii * uji;
+          a[ri + 2 * j + 1] -= uii * qjr - uir * qji + qii * ujr - qir * uji;
+        }
+      }
+    }
+    // The last subdiagonal entry needs no reflector.
+    const last = 2 * ((n - 2) * n + n - 1);
+    off[2 * (n - 2)] = a[last];
+    off[2 * (n - 2) + 1] = -a[last + 1];
+    // Real tridiagonal T_real = D^dagger T D: D_{i+1} = D_i alpha_i / |alpha_i|.
+    const d = this.d;
+    const e = this.e;
+    const phase = this.phase;
+    phase[0] = 1;
+    phase[1] = 0;
+    for (let i = 0; i < n; i++) d[i] = a[2 * (i * n + i)];
+    for (let i = 0; i < n - 1; i++) {
+      const xr = off[2 * i];
+      const xi = off[2 * i + 1];
+      const m = Math.sqrt(xr * xr + xi * xi);
+      e[i] = m;
+      const pr = phase[2 * i];
+      const pi = phase[2 * i + 1];
+      if (m === 0) {
+        phase[2 * i + 2] = pr;
+        phase[2 * i + 3] = pi;
+      } else {
+        const sr = xr / m;
+        const si = xi / m;
+        phase[2 * i + 2] = pr * sr - pi * si;
+        phase[2 * i + 3] = pr * si + pi * sr;
       }
     }
   }
+
+  /** Eigenvector j of H = Q D z_j, Q = P_0 P_1 ... P_{n-3}; written to the columns of `vecs` in order. */
+  private backTransform(vecs: CMatrix, vo: number): void {
+    const n = this.n;
+    const a = this.a;
+    const z = this.z;
+    const y = this.p;
+    const phase = this.phase;
+    const betas = this.beta;
+    const order = this.order;
+    for (let col = 0; col < n; col++) {
+      const zr = order[col] * n;
+      for (let i = 0; i < n; i++) {
+        const zi = z[zr + i];
+        y[2 * i] = phase[2 * i] * zi;
+        y[2 * i + 1] = phase[2 * i + 1] * zi;
+      }
+      for (let k = n - 3; k >= 0; k--) {
+        const beta = betas[k];
+        if (beta === 0) continue;
+        const base = 2 * k * n;
+        let sr = 0;
+        let si = 0;
+        for (let j = 2 * (k + 1); j < 2 * n; j += 2) {
+          const ur = a[base + j];
+          const ui = a[base + j + 1];
+          const yr = y[j];
+          const yi = y[j + 1];
+          sr += ur * yr + ui * yi;
+          si += ur * yi - ui * yr;
+        }
+        sr *= beta;
+        si *= beta;
+        for (let j = 2 * (k + 1); j < 2 * n; j += 2) {
+          const ur = a[base + j];
+          const ui = a[base + j + 1];
+          y[j] -= sr * ur - si * ui;
+          y[j + 1] -= sr * ui + si * ur;
+        }
+      }
+      for (let i = 0; i < n; i++) {
+        vecs[vo + 2 * (i * n + col)] = y[2 * i];
+        vecs[vo + 2 * (i * n + col) + 1] = y[2 * i + 1];
+      }
+    }
+  }
+}
+
+function nonFinite(n: number, h: ArrayLike<number>, ho: number): RangeError {
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      const re = h[ho + 2 * (i * n + j)];
+      const im = i === j ? 0 : h[ho + 2 * (i * n + j) + 1];
+      if (!Number.isFinite(re) || !Number.isFinite(im)) {
+        return new RangeError(`eigensolver: h[${i}][${j}] is not finite. Value: ${re} + ${im}i`);
+      }
+    }
+  }
+  return new RangeError('eigensolver: h has a non-finite entry');
 }
 
 /** Convenience: eigenvalues (and vectors) of one matrix, allocating. Not for per-k loops. */
