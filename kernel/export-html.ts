@@ -1,0 +1,225 @@
+/**
+ * `chernel export-html notebook.ipynb -o out.html`: one standalone page with the notebook's cells,
+ * its outputs, and its saved widget state. The page carries the widget runtime
+ * (widgets/dist/embed.js: html-manager, chernel's views, the engine worker), so the widgets draw
+ * and their controls recompute with no kernel, also when the page is opened from a file.
+ */
+
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { basename, dirname, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const WIDGET_STATE_MIME = 'application/vnd.jupyter.widget-state+json';
+export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+
+/** Where the page runtime is found: built by `npm run build` in widgets/. */
+export function defaultRuntimePath(): string {
+  const here = dirname(fileURLToPath(import.meta.url));
+  // From kernel/ (sources) or dist/kernel/ (compiled).
+  for (const up of ['..', '../..']) {
+    const candidate = resolve(here, up, 'widgets', 'dist', 'embed.js');
+    if (existsSync(candidate)) return candidate;
+  }
+  return resolve(here, '..', 'widgets', 'dist', 'embed.js');
+}
+
+export class NotebookFormatError extends Error {
+  constructor(field: string, message: string) {
+    super(`${field}: ${message}`);
+    this.name = 'NotebookFormatError';
+  }
+}
+
+type Json = Record<string, unknown>;
+
+interface Cell {
+  cell_type: string;
+  source: string;
+  outputs: Json[];
+}
+
+function text(value: unknown): string {
+  if (Array.isArray(value)) return value.join('');
+  return typeof value === 'string' ? value : '';
+}
+
+function escapeHtml(value: string): string {
+  return value.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+}
+
+/** Text that is safe inside <script>: no closing tag or comment opener can end it early. */
+function scriptSafe(value: string): string {
+  return value.replace(/<\/(script)/gi, '<\\/$1').replace(/<!--/g, '<\\!--');
+}
+
+function stripAnsi(value: string): string {
+  // eslint-disable-next-line no-control-regex
+  return value.replace(/\u001b\[[0-9;]*[A-Za-z]/g, '');
+}
+
+function cellsOf(notebook: Json): Cell[] {
+  if (!Array.isArray(notebook.cells)) throw new NotebookFormatError('cells', `expected a list. Value: ${JSON.stringify(notebook.cells)}`);
+  return notebook.cells.map((raw: unknown, i: number) => {
+    if (raw === null || typeof raw !== 'object') throw new NotebookFormatError(`cells[${i}]`, 'expected an object');
+    const cell = raw as Json;
+    return {
+      cell_type: String(cell.cell_type),
+      source: text(cell.source),
+      outputs: Array.isArray(cell.outputs) ? (cell.outputs as Json[]) : [],
+    };
+  });
+}
+
+/** A small Markdown subset: headings, paragraphs, lists, code spans and blocks, emphasis. */
+export function markdownToHtml(source: string): string {
+  const inline = (line: string) =>
+    escapeHtml(line)
+      .replace(/`([^`]+)`/g, '<code>$1</code>')
+      .replace(/\*\*([^*]+)\*\*/g, '<strong>$1</strong>')
+      .replace(/(^|[^*])\*([^*]+)\*/g, '$1<em>$2</em>');
+  const out: string[] = [];
+  const blocks = source.split(/\n{2,}/);
+  for (const block of blocks) {
+    const trimmed = block.trim();
+    if (!trimmed) continue;
+    const fence = /^```[^\n]*\n([\s\S]*?)\n?```$/.exec(trimmed);
+    const heading = /^(#{1,6})\s+(.*)$/.exec(trimmed);
+    if (fence) out.push(`<pre><code>${escapeHtml(fence[1])}</code></pre>`);
+    else if (heading && !trimmed.includes('\n')) out.push(`<h${heading[1].length}>${inline(heading[2])}</h${heading[1].length}>`);
+    else if (trimmed.split('\n').every((l) => /^\s*[-*]\s+/.test(l))) {
+      out.push(`<ul>${trimmed.split('\n').map((l) => `<li>${inline(l.replace(/^\s*[-*]\s+/, ''))}</li>`).join('')}</ul>`);
+    } else out.push(`<p>${trimmed.split('\n').map(inline).join('<br>')}</p>`);
+  }
+  return out.join('\n');
+}
+
+function outputHtml(output: Json): string {
+  const type = output.output_type;
+  if (type === 'stream') return `<pre class="output stream ${escapeHtml(String(output.name))}">${escapeHtml(text(output.text))}</pre>`;
+  if (type === 'error') {
+    const trace = Array.isArray(output.traceback) ? (output.traceback as string[]).join('\n') : `${output.ename}: ${output.evalue}`;
+    return `<pre class="output error">${escapeHtml(stripAnsi(trace))}</pre>`;
+  }
+  if (type !== 'display_data' && type !== 'execute_result') return '';
+  const data = (output.data ?? {}) as Json;
+  if (data[WIDGET_VIEW_MIME]) {
+    // The view tag; the runtime replaces it by the live widget. The text/plain beside it shows
+    // if the widget's state was not saved.
+    const fallback = data['text/plain'] ? `<noscript><pre>${escapeHtml(text(data['text/plain']))}</pre></noscript>` : '';
+    return `<div class="output widget">${fallback}<script type="${WIDGET_VIEW_MIME}">${scriptSafe(JSON.stringify(data[WIDGET_VIEW_MIME]))}</script></div>`;
+  }
+  // Notebook outputs are the author's own HTML, shown as JupyterLab shows a trusted notebook.
+  if (data['text/html']) return `<div class="output html">${text(data['text/html'])}</div>`;
+  if (data['image/svg+xml']) return `<div class="output svg">${text(data['image/svg+xml'])}</div>`;
+  if (data['image/png']) return `<div class="output image"><img alt="figure" src="data:image/png;base64,${text(data['image/png']).trim()}"></div>`;
+  if (data['text/plain']) return `<pre class="output text">${escapeHtml(stripAnsi(text(data['text/plain'])))}</pre>`;
+  return '';
+}
+
+const PAGE_CSS = `
+body { font: 14px/1.45 system-ui, -apple-system, "Segoe UI", sans-serif; margin: 0 auto; max-width: 960px; padding: 24px; color: #222; }
+.cell { margin: 14px 0; }
+.cell pre.input { background: #f5f6f8; border-left: 3px solid #9aa8c0; padding: 8px 10px; overflow-x: auto; margin: 0 0 6px; }
+pre.output { margin: 4px 0; padding: 4px 10px; overflow-x: auto; }
+pre.output.error, pre.output.stderr { background: #fdecea; }
+.output.image img { max-width: 100%; }
+footer { margin-top: 32px; color: #777; font-size: 12px; }
+`;
+
+export interface ExportOptions {
+  /** The page runtime script (default: widgets/dist/embed.js). */
+  runtime?: string;
+  title?: string;
+}
+
+/** The page for a parsed notebook. Throws NotebookFormatError naming the malformed field. */
+export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): string {
+  if (notebook === null || typeof notebook !== 'object') throw new NotebookFormatError('notebook', 'expected a JSON object');
+  const nb = notebook as Json;
+  const cells = cellsOf(nb);
+  const metadata = (nb.metadata ?? {}) as Json;
+  const widgets = (metadata.widgets ?? {}) as Json;
+  const widgetState = widgets[WIDGET_STATE_MIME];
+  const runtimePath = options.runtime ?? defaultRuntimePath();
+  if (!existsSync(runtimePath)) {
+    throw new Error(`export-html: the widget runtime ${runtimePath} is missing; run \`npm run build\` in widgets/`);
+  }
+  const runtime = readFileSync(runtimePath, 'utf8');
+  const title = options.title ?? 'chernel notebook';
+
+  const body = cells
+    .map((cell) => {
+      if (cell.cell_type === 'markdown') return `<div class="cell markdown">${markdownToHtml(cell.source)}</div>`;
+      if (cell.cell_type === 'raw') return `<div class="cell raw"><pre>${escapeHtml(cell.source)}</pre></div>`;
+      const input = cell.source.trim() ? `<pre class="input"><code>${escapeHtml(cell.source)}</code></pre>` : '';
+      return `<div class="cell code">${input}${cell.outputs.map(outputHtml).join('')}</div>`;
+    })
+    .join('\n');
+
+  const stateTag = widgetState
+    ? `<script type="${WIDGET_STATE_MIME}">${scriptSafe(JSON.stringify(widgetState))}</script>`
+    : '';
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="generator" content="chernel export-html">
+<title>${escapeHtml(title)}</title>
+<style>${PAGE_CSS}</style>
+${stateTag}
+</head>
+<body>
+<main>
+${body}
+</main>
+<footer>Exported by chernel. Widgets recompute in this page; no kernel is running.</footer>
+<script>${scriptSafe(runtime)}</script>
+</body>
+</html>
+`;
+}
+
+/** Reads a notebook file and writes the page. */
+export function exportHtml(input: string, output: string, options: ExportOptions = {}): void {
+  let notebook: unknown;
+  try {
+    notebook = JSON.parse(readFileSync(input, 'utf8'));
+  } catch (err) {
+    throw new NotebookFormatError(input, `not a readable notebook (JSON): ${(err as Error).message}`);
+  }
+  writeFileSync(output, notebookToHtml(notebook, { title: basename(input, '.ipynb'), ...options }));
+}
+
+export const USAGE = 'usage: chernel export-html NOTEBOOK.ipynb [-o OUT.html]';
+
+/** The CLI subcommand: `chernel export-html nb.ipynb -o out.html`. Returns the exit code. */
+export function exportHtmlCommand(argv: string[], stderr: (line: string) => void = (l) => process.stderr.write(l + '\n')): number {
+  let input: string | undefined;
+  let output: string | undefined;
+  for (let i = 0; i < argv.length; i++) {
+    const arg = argv[i];
+    if (arg === '-o' || arg === '--output') output = argv[++i];
+    else if (arg === '-h' || arg === '--help') {
+      stderr(USAGE);
+      return 0;
+    } else if (input === undefined) input = arg;
+    else {
+      stderr(`export-html: unexpected argument "${arg}"\n${USAGE}`);
+      return 2;
+    }
+  }
+  if (input === undefined) {
+    stderr(USAGE);
+    return 2;
+  }
+  output ??= input.replace(/\.ipynb$/, '') + '.html';
+  try {
+    exportHtml(input, output);
+  } catch (err) {
+    stderr(`export-html: ${(err as Error).message}`);
+    return 1;
+  }
+  stderr(`export-html: wrote ${output}`);
+  return 0;
+}

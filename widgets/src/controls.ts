@@ -1,0 +1,112 @@
+/**
+ * One slider per model parameter, from its declared range and unit. The number box beside each
+ * slider accepts typed values (out-of-range values are refused with a message naming the field).
+ */
+import type { ParameterDecl } from './protocol.js';
+
+export interface ParameterControls {
+  element: HTMLElement;
+  /** Move the controls to values pushed from elsewhere (kernel, saved state) without firing onInput. */
+  setValues(values: Record<string, number>): void;
+  dispose(): void;
+}
+
+/** The slider's span: the declared range, else a window around the default (common practice). */
+export function sliderRange(decl: ParameterDecl): [number, number] {
+  if (decl.range) return decl.range;
+  const half = Math.max(1, Math.abs(decl.default));
+  return [decl.default - half, decl.default + half];
+}
+
+/** 400 steps over the span, rounded to a 1-2-5 value so typed and dragged values line up. */
+export function sliderStep(lo: number, hi: number): number {
+  const raw = (hi - lo) / 400;
+  if (!(raw > 0)) return 1;
+  const exponent = Math.floor(Math.log10(raw));
+  const base = 10 ** exponent;
+  const mantissa = raw / base;
+  const nice = mantissa <= 1 ? 1 : mantissa <= 2 ? 2 : mantissa <= 5 ? 5 : 10;
+  return nice * base;
+}
+
+export function formatValue(value: number): string {
+  if (value === 0) return '0';
+  const abs = Math.abs(value);
+  return abs >= 1e4 || abs < 1e-3 ? value.toExponential(3) : String(Number(value.toPrecision(5)));
+}
+
+export function createParameterControls(
+  parameters: Record<string, ParameterDecl>,
+  values: Record<string, number>,
+  onInput: (name: string, value: number) => void,
+  onInvalid: (message: string) => void,
+): ParameterControls {
+  const element = document.createElement('div');
+  element.className = 'chernel-controls';
+  const rows = new Map<string, { slider: HTMLInputElement; box: HTMLInputElement }>();
+
+  for (const [name, decl] of Object.entries(parameters)) {
+    const [lo, hi] = sliderRange(decl);
+    const row = document.createElement('label');
+    row.className = 'chernel-control';
+    row.dataset.parameter = name;
+    row.title = decl.doc ?? '';
+
+    const caption = document.createElement('span');
+    caption.className = 'chernel-control-name';
+    caption.textContent = decl.unit ? `${name} [${decl.unit}]` : name;
+
+    const slider = document.createElement('input');
+    slider.type = 'range';
+    slider.min = String(lo);
+    slider.max = String(hi);
+    slider.step = String(sliderStep(lo, hi));
+    slider.value = String(values[name] ?? decl.default);
+    slider.setAttribute('aria-label', name);
+
+    const box = document.createElement('input');
+    box.type = 'number';
+    box.className = 'chernel-control-value';
+    box.step = 'any';
+    box.value = formatValue(values[name] ?? decl.default);
+    box.setAttribute('aria-label', `${name} value`);
+
+    slider.addEventListener('input', () => {
+      const value = Number(slider.value);
+      box.value = formatValue(value);
+      onInput(name, value);
+    });
+    box.addEventListener('change', () => {
+      const value = Number(box.value);
+      if (box.value.trim() === '' || !Number.isFinite(value)) {
+        onInvalid(`${name}: not a number. Value: "${box.value}"`);
+        return;
+      }
+      if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
+        onInvalid(`${name}: outside its range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`);
+        return;
+      }
+      slider.value = String(value);
+      onInput(name, value);
+    });
+
+    row.append(caption, slider, box);
+    element.append(row);
+    rows.set(name, { slider, box });
+  }
+
+  return {
+    element,
+    setValues(next) {
+      for (const [name, value] of Object.entries(next)) {
+        const row = rows.get(name);
+        if (row === undefined) continue;
+        row.slider.value = String(value);
+        row.box.value = formatValue(value);
+      }
+    },
+    dispose() {
+      element.remove();
+    },
+  };
+}

@@ -1,0 +1,58 @@
+/**
+ * The runtime of an exported notebook page (kernel/export-html.ts writes the page): the saved
+ * widget state is loaded into an HTMLManager, each widget-view tag becomes a live view, and the
+ * controls keep recomputing in the page's own engine worker. No kernel, works from file://.
+ */
+import { HTMLManager } from '@jupyter-widgets/html-manager/lib/htmlmanager.js';
+import { DiagnosticModel, DiagnosticView, MODULE_NAME } from './widget.js';
+
+const STATE_MIME = 'application/vnd.jupyter.widget-state+json';
+const VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+
+function failure(where: Element, message: string): void {
+  const box = document.createElement('div');
+  box.className = 'chernel-message';
+  box.dataset.level = 'error';
+  box.textContent = message;
+  where.replaceWith(box);
+}
+
+export async function renderSavedWidgets(root: ParentNode = document): Promise<number> {
+  const stateTag = root.querySelector(`script[type="${STATE_MIME}"]`);
+  if (stateTag === null) return 0;
+  const manager = new HTMLManager({
+    loader: async (moduleName: string, moduleVersion: string) => {
+      if (moduleName === MODULE_NAME) return { DiagnosticModel, DiagnosticView };
+      throw new Error(`this page carries no widget module "${moduleName}" (${moduleVersion})`);
+    },
+  });
+  const models = await manager.set_state(JSON.parse(stateTag.textContent ?? '{}'));
+  let shown = 0;
+  for (const tag of Array.from(root.querySelectorAll(`script[type="${VIEW_MIME}"]`))) {
+    const { model_id: modelId } = JSON.parse(tag.textContent ?? '{}') as { model_id?: string };
+    const model = models.find((m) => m.model_id === modelId);
+    if (model === undefined) {
+      failure(tag, `widget ${modelId ?? '(no id)'} was not saved with the notebook`);
+      continue;
+    }
+    const host = document.createElement('div');
+    host.className = 'widget-subarea';
+    tag.before(host);
+    try {
+      const view = await manager.create_view(model);
+      await manager.display_view(view, host);
+      shown++;
+    } catch (err) {
+      failure(host, `widget ${modelId} could not be shown: ${(err as Error).message}`);
+    }
+  }
+  return shown;
+}
+
+declare global {
+  interface Window {
+    chernelWidgets?: { ready: Promise<number> };
+  }
+}
+
+window.chernelWidgets = { ready: renderSavedWidgets() };

@@ -1,0 +1,106 @@
+/** What every figure builder returns, and helpers for reading results defensively. */
+import type { Data, Layout } from '../plotly.js';
+import type { DiagnosticResult, ModelSpecView } from '../protocol.js';
+import type { NumericArray } from '../wire.js';
+
+export interface FigureContext {
+  spec: ModelSpecView;
+  values: Record<string, number>;
+  options: Record<string, unknown>;
+}
+
+export interface Figure {
+  data: Data[];
+  layout: Partial<Layout>;
+  /** One line for the widget's summary bar, e.g. "C = 1 · min gap 0.42". */
+  summary: string;
+  /** The invariant shown, or null when withheld (gapless) or not applicable. */
+  invariant: number | null;
+  gapless: boolean;
+}
+
+/** Data export: named columns of numbers (CSV) next to the raw result (JSON). */
+export interface Table {
+  columns: string[];
+  rows: (number | string | null)[][];
+}
+
+export class ResultShapeError extends Error {
+  constructor(kind: string, field: string, found: unknown) {
+    super(`${kind} result: field "${field}" missing or malformed. Value: ${describe(found)}`);
+    this.name = 'ResultShapeError';
+  }
+}
+
+function describe(value: unknown): string {
+  if (value === undefined) return 'undefined';
+  if (ArrayBuffer.isView(value)) return `${value.constructor.name}(${(value as NumericArray).length})`;
+  const text = JSON.stringify(value);
+  return text === undefined ? String(value) : text.length > 80 ? `${text.slice(0, 77)}...` : text;
+}
+
+export function numberArray(result: DiagnosticResult, field: string): ArrayLike<number> {
+  const value = result[field];
+  if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return value as NumericArray;
+  if (Array.isArray(value) && value.every((v) => typeof v === 'number' || v === null)) return value as number[];
+  throw new ResultShapeError(result.kind, field, value);
+}
+
+export function optionalNumber(result: DiagnosticResult, field: string): number | null {
+  const value = result[field];
+  if (value === null || value === undefined) return null;
+  if (typeof value === 'number') return value;
+  throw new ResultShapeError(result.kind, field, value);
+}
+
+export function gridOf(result: DiagnosticResult, field = 'grid'): [number, number] {
+  const value = result[field] ?? result.checks?.grid;
+  if (Array.isArray(value) && value.length >= 2 && value.every((n) => Number.isInteger(n) && n > 0)) {
+    return [value[0] as number, value[1] as number];
+  }
+  throw new ResultShapeError(result.kind, field, value);
+}
+
+export function fmt(value: number, digits = 3): string {
+  if (!Number.isFinite(value)) return String(value);
+  if (value === 0) return '0';
+  const abs = Math.abs(value);
+  return abs >= 1e4 || abs < 1e-3 ? value.toExponential(digits - 1) : String(Number(value.toPrecision(digits)));
+}
+
+/** The energy unit of a model: the unit its parameters share, if they name one. */
+export function energyUnit(spec: ModelSpecView): string {
+  const units = new Set(Object.values(spec.parameters).map((p) => p.unit).filter((u): u is string => !!u));
+  return units.size === 1 ? [...units][0] : '';
+}
+
+export function withUnit(label: string, unit: string): string {
+  return unit ? `${label} [${unit}]` : label;
+}
+
+/** A gap line for summaries: "min gap 0.42 eV" or the closing point when gapless. */
+export function gapText(result: DiagnosticResult, unit: string): string {
+  const { minGap, minGapAt, gapless } = result.checks;
+  const at = minGapAt && minGapAt.length ? ` at k = (${minGapAt.map((k) => fmt(k / (2 * Math.PI))).join(', ')})` : '';
+  if (gapless) return `gapless${at} (gap ${fmt(minGap)}${unit ? ' ' + unit : ''})`;
+  return `min gap ${fmt(minGap)}${unit ? ' ' + unit : ''}`;
+}
+
+export const BASE_LAYOUT: Partial<Layout> = {
+  margin: { l: 64, r: 24, t: 48, b: 56 },
+  font: { family: 'system-ui, -apple-system, "Segoe UI", sans-serif', size: 12 },
+  paper_bgcolor: 'rgba(0,0,0,0)',
+  plot_bgcolor: '#ffffff',
+  hovermode: 'closest',
+};
+
+/** A diverging scale (blue, white, red) with zero pinned to white by `zmid: 0`. */
+export const DIVERGING: [number, string][] = [
+  [0, '#1f4e9c'],
+  [0.25, '#6f9bd1'],
+  [0.5, '#f7f7f7'],
+  [0.75, '#e08a6f'],
+  [1, '#a1221b'],
+];
+
+export const CLOSING_MARKER = { symbol: 'x-thin-open' as const, size: 14, color: '#000', line: { width: 3, color: '#d40000' } };

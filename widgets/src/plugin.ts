@@ -1,0 +1,18 @@
+/** The JupyterLab plugin: registers chernel's widget models and views with the widget manager. */
+import { IJupyterWidgetRegistry } from '@jupyter-widgets/base';
+import type { JupyterFrontEnd, JupyterFrontEndPlugin } from '@jupyterlab/application';
+import { DiagnosticModel, DiagnosticView, MODULE_NAME, MODULE_VERSION } from './widget.js';
+
+export const widgetsPlugin: JupyterFrontEndPlugin<void> = {
+  id: 'chernel-widgets:plugin',
+  description: 'Live topology widgets for chernel notebooks: curvature, Wannier-centre flow, bands, ribbons, phase maps.',
+  requires: [IJupyterWidgetRegistry],
+  autoStart: true,
+  activate: (_app: JupyterFrontEnd, registry: IJupyterWidgetRegistry) => {
+    registry.registerWidget({
+      name: MODULE_NAME,
+      version: MODULE_VERSION,
+      exports: { DiagnosticModel, DiagnosticView },
+    });
+  },
+};

@@ -1,0 +1,57 @@
+/**
+ * What the widgets send to the engine and read back. The request is the engine's own
+ * `DiagnosticRequest` (src/diagnostics.ts); the result types below list only the fields the
+ * figures draw, so a saved notebook from an older engine still opens.
+ */
+
+export type WidgetKind = 'curvature' | 'wannier-flow' | 'bands' | 'ribbon' | 'phase-map';
+
+export interface ParameterDecl {
+  default: number;
+  range?: [number, number];
+  unit?: string;
+  doc?: string;
+}
+
+/** The part of a ModelSpec the views read (the full spec travels untouched to the worker). */
+export interface ModelSpecView {
+  format: string;
+  name: string;
+  periodic: number;
+  vectors: number[][];
+  orbitals: { label: string; position: number[] }[];
+  parameters: Record<string, ParameterDecl>;
+}
+
+export interface DiagnosticRequest {
+  kind: WidgetKind;
+  model: ModelSpecView;
+  params: Record<string, number>;
+  [option: string]: unknown;
+}
+
+export interface Checks {
+  minGap: number;
+  minGapAt?: number[];
+  grid?: number[];
+  warnings: string[];
+  gapless?: boolean;
+}
+
+export interface DiagnosticResult {
+  kind: string;
+  checks: Checks;
+  convention?: 'lattice' | 'orbital';
+  [field: string]: unknown;
+}
+
+/** Main thread -> worker. */
+export interface ComputeMessage {
+  id: number;
+  request: DiagnosticRequest;
+}
+
+/** Worker -> main thread. */
+export type ComputeReply =
+  | { id: number; ok: true; result: DiagnosticResult; ms: number }
+  | { id: number; ok: false; error: { name: string; message: string } };

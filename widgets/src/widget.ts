@@ -1,0 +1,333 @@
+/**
+ * The widget: the model holds the diagnostic request (model description, parameter values,
+ * options) and its last result; the view draws the result and, when a control moves, recomputes
+ * in a Web Worker, then writes values and result back to the model (and so to the kernel and the
+ * saved notebook).
+ */
+import { DOMWidgetModel, DOMWidgetView, type ISerializers } from '@jupyter-widgets/base';
+import { LatestWinsClient, type Outcome, type WorkerLike } from './compute-client.js';
+import { createParameterControls, formatValue, type ParameterControls } from './controls.js';
+import { spawnEngineWorker } from './engine-worker.js';
+import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
+import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
+import Plotly, { type Config } from './plotly.js';
+import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
+import { ensureStyles } from './styles.js';
+import { packArrays, unpackArrays } from './wire.js';
+
+export const MODULE_NAME = 'chernel-widgets';
+export const MODULE_VERSION = '0.1.0';
+
+export const KIND_TITLES: Record<WidgetKind, string> = {
+  curvature: 'Berry curvature',
+  'wannier-flow': 'Wannier-centre flow',
+  bands: 'Band structure',
+  ribbon: 'Ribbon spectrum',
+  'phase-map': 'Phase map',
+};
+
+export type Values = Record<string, number>;
+
+export function sameValues(a: Values | null | undefined, b: Values | null | undefined): boolean {
+  if (!a || !b) return false;
+  const keys = Object.keys(a);
+  return keys.length === Object.keys(b).length && keys.every((k) => Object.is(a[k], b[k]));
+}
+
+export class DiagnosticModel extends DOMWidgetModel {
+  override defaults(): Backbone.ObjectHash {
+    return {
+      ...super.defaults(),
+      _model_name: 'DiagnosticModel',
+      _model_module: MODULE_NAME,
+      _model_module_version: MODULE_VERSION,
+      _view_name: 'DiagnosticView',
+      _view_module: MODULE_NAME,
+      _view_module_version: MODULE_VERSION,
+      title: '',
+      kind: 'curvature',
+      spec: null,
+      options: {},
+      values: {},
+      result: null,
+      result_values: null,
+      error: '',
+    };
+  }
+
+  static override serializers: ISerializers = {
+    ...DOMWidgetModel.serializers,
+    result: { serialize: (value: unknown) => packArrays(value), deserialize: (value: unknown) => unpackArrays(value) },
+  };
+
+  /** The request the current values describe. */
+  request(values: Values = this.get('values')): DiagnosticRequest {
+    return { ...(this.get('options') as Record<string, unknown>), kind: this.get('kind'), model: this.get('spec'), params: { ...values } };
+  }
+}
+
+const PLOT_CONFIG: Partial<Config> = {
+  responsive: true,
+  displaylogo: false,
+  modeBarButtonsToRemove: ['toImage', 'lasso2d', 'select2d'],
+};
+
+/** Fired on the widget element after each draw; the browser tests and the bench listen for it. */
+export interface DrawnDetail {
+  summary: string;
+  invariant: number | null;
+  gapless: boolean;
+  /** Milliseconds from the control moving to the plot drawn, or null for a draw from saved state. */
+  latency: number | null;
+  computeMs: number | null;
+}
+
+/** Creates the worker for a view; replaced in unit tests by a worker running in the test process. */
+export let workerFactory: () => WorkerLike = spawnEngineWorker;
+export function setWorkerFactory(factory: () => WorkerLike): void {
+  workerFactory = factory;
+}
+
+export class DiagnosticView extends DOMWidgetView {
+  declare model: DiagnosticModel;
+  private plot!: HTMLDivElement;
+  private titleEl!: HTMLElement;
+  private summaryEl!: HTMLElement;
+  private messageEl!: HTMLElement;
+  private statusEl!: HTMLElement;
+  private controlsHost!: HTMLElement;
+  private controls: ParameterControls | null = null;
+  private client: LatestWinsClient | null = null;
+  private attached = false;
+  private figure: Figure | null = null;
+  /** The values the controls show; ahead of the model's result while a recompute is pending. */
+  private live: Values = {};
+
+  override render(): void {
+    ensureStyles(this.el.ownerDocument);
+    this.el.classList.add('chernel-widget');
+    this.el.innerHTML = '';
+
+    const header = document.createElement('div');
+    header.className = 'chernel-header';
+    this.titleEl = document.createElement('span');
+    this.titleEl.className = 'chernel-title';
+    this.summaryEl = document.createElement('span');
+    this.summaryEl.className = 'chernel-summary';
+    header.append(this.titleEl, this.summaryEl);
+
+    this.messageEl = document.createElement('div');
+    this.messageEl.className = 'chernel-message';
+    this.messageEl.setAttribute('role', 'status');
+
+    this.plot = document.createElement('div');
+    this.plot.className = 'chernel-plot';
+
+    const footer = document.createElement('div');
+    footer.className = 'chernel-footer';
+    for (const [label, action] of [
+      ['PNG', () => this.exportFigure('png')],
+      ['SVG', () => this.exportFigure('svg')],
+      ['CSV', () => this.exportData('csv')],
+      ['JSON', () => this.exportData('json')],
+    ] as const) {
+      const button = document.createElement('button');
+      button.type = 'button';
+      button.textContent = label;
+      button.title = label === 'PNG' || label === 'SVG' ? `Download the figure as ${label}` : `Download the plotted data as ${label}`;
+      button.dataset.export = label.toLowerCase();
+      button.addEventListener('click', action);
+      footer.append(button);
+    }
+    this.statusEl = document.createElement('span');
+    this.statusEl.className = 'chernel-status';
+    footer.append(this.statusEl);
+
+    this.controlsHost = document.createElement('div');
+    this.el.append(header, this.messageEl, this.controlsHost, this.plot, footer);
+    this.buildControls();
+
+    this.listenTo(this.model, 'change:values', (_m: unknown, _v: unknown, options: { updated_view?: unknown }) => {
+      if (options?.updated_view !== this) this.valuesPushed();
+    });
+    this.listenTo(this.model, 'change:result change:error', (_m: unknown, _v: unknown, options: { updated_view?: unknown }) => {
+      if (options?.updated_view !== this) this.showModelState();
+    });
+    this.listenTo(this.model, 'change:spec change:options change:kind', () => {
+      this.buildControls();
+      this.refresh();
+    });
+
+    void this.displayed.then(() => {
+      this.attached = true;
+      this.refresh();
+    });
+  }
+
+  override remove(): this {
+    this.attached = false;
+    Plotly.purge(this.plot);
+    this.client?.dispose();
+    this.client = null;
+    this.controls?.dispose();
+    return super.remove();
+  }
+
+  private get spec(): ModelSpecView {
+    return this.model.get('spec') as ModelSpecView;
+  }
+
+  private context(values: Values): FigureContext {
+    return { spec: this.spec, values, options: this.model.get('options') as Record<string, unknown> };
+  }
+
+  private buildControls(): void {
+    this.controls?.dispose();
+    const spec = this.spec;
+    const kind = this.model.get('kind') as WidgetKind;
+    this.titleEl.textContent = this.model.get('title') || `${KIND_TITLES[kind] ?? kind} · ${spec?.name ?? 'no model'}`;
+    this.live = { ...(this.model.get('values') as Values) };
+    if (!spec) return;
+    this.controls = createParameterControls(
+      spec.parameters,
+      this.live,
+      (name, value) => this.controlMoved(name, value),
+      (message) => this.showMessage('error', message),
+    );
+    this.controlsHost.append(this.controls.element);
+  }
+
+  /** Draw the saved result when it matches the values; otherwise compute. */
+  private refresh(): void {
+    if (!this.attached) return;
+    const result = this.model.get('result') as DiagnosticResult | null;
+    const error = this.model.get('error') as string;
+    if (result && sameValues(this.model.get('result_values'), this.live)) {
+      this.draw(result, this.live, null);
+      if (error) this.showMessage('error', error);
+    } else if (this.spec) {
+      this.recompute();
+    }
+  }
+
+  private showModelState(): void {
+    const result = this.model.get('result') as DiagnosticResult | null;
+    const error = this.model.get('error') as string;
+    if (error) this.showMessage('error', error);
+    else if (result) this.draw(result, this.model.get('result_values') ?? this.live, null);
+  }
+
+  private valuesPushed(): void {
+    this.live = { ...this.live, ...(this.model.get('values') as Values) };
+    this.controls?.setValues(this.live);
+    this.refresh();
+  }
+
+  private controlMoved(name: string, value: number): void {
+    this.live = { ...this.live, [name]: value };
+    this.model.set('values', { ...this.live }, { updated_view: this });
+    this.recompute();
+  }
+
+  private recompute(): void {
+    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome));
+    this.plot.classList.add('chernel-stale');
+    this.statusEl.textContent = 'computing…';
+    this.client.submit(this.model.request(this.live));
+  }
+
+  private computed(outcome: Outcome): void {
+    if (!this.attached) return;
+    const values = outcome.request.params;
+    if (outcome.error) {
+      const message = `${outcome.error.name}: ${outcome.error.message}`;
+      this.model.set({ error: message, values: { ...this.live } }, { updated_view: this });
+      this.sync();
+      this.showMessage('error', message);
+      this.statusEl.textContent = `failed for ${describeValues(values)}`;
+      this.plot.classList.toggle('chernel-stale', !this.client?.busy);
+      this.el.dispatchEvent(new CustomEvent('chernel-error', { bubbles: true, detail: { message } }));
+      return;
+    }
+    const result = outcome.result as DiagnosticResult;
+    this.model.set({ result, result_values: values, error: '', values: { ...this.live } }, { updated_view: this });
+    this.sync();
+    this.draw(result, values, outcome);
+  }
+
+  /** Send values and result to the kernel when one is connected (not in an exported page). */
+  private sync(): void {
+    if (this.model.comm_live) this.touch();
+  }
+
+  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null): void {
+    if (!this.attached) return;
+    let figure: Figure;
+    try {
+      figure = figureFor(result, this.context(values));
+    } catch (err) {
+      this.showMessage('error', (err as Error).message);
+      return;
+    }
+    this.figure = figure;
+    this.summaryEl.textContent = figure.summary;
+    this.summaryEl.dataset.gapless = String(figure.gapless);
+    this.summaryEl.dataset.invariant = figure.invariant === null ? '' : String(figure.invariant);
+    const warnings = result.checks?.warnings ?? [];
+    if (figure.gapless) {
+      this.showMessage('warning', ['Gapless: the invariant is withheld; the cross marks where the gap closes.', ...warnings].join('\n'));
+    } else if (warnings.length > 0) {
+      this.showMessage('warning', warnings.join('\n'));
+    } else {
+      this.showMessage(null, '');
+    }
+    const busy = this.client?.busy ?? false;
+    void Plotly.react(this.plot, figure.data, figure.layout, PLOT_CONFIG).then(() => {
+      if (!this.attached) return;
+      this.plot.classList.toggle('chernel-stale', busy);
+      this.statusEl.textContent = outcome
+        ? `${describeValues(values)} · engine ${outcome.computeMs.toFixed(0)} ms`
+        : `${describeValues(values)} · saved result`;
+      const detail: DrawnDetail = {
+        summary: figure.summary,
+        invariant: figure.invariant,
+        gapless: figure.gapless,
+        latency: outcome ? outcome.latency : null,
+        computeMs: outcome ? outcome.computeMs : null,
+      };
+      this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
+    });
+  }
+
+  private showMessage(level: 'error' | 'warning' | null, text: string): void {
+    if (level === null) delete this.messageEl.dataset.level;
+    else this.messageEl.dataset.level = level;
+    this.messageEl.textContent = text;
+  }
+
+  private fileStem(): string {
+    return safeFileName(`${this.spec?.name ?? 'model'}-${this.model.get('kind')}`);
+  }
+
+  private exportFigure(format: 'png' | 'svg'): void {
+    if (this.figure === null) return;
+    void downloadFigure(this.plot, format, this.fileStem());
+  }
+
+  private exportData(format: 'csv' | 'json'): void {
+    const result = this.model.get('result') as DiagnosticResult | null;
+    if (!result) return;
+    const values = (this.model.get('result_values') as Values | null) ?? this.live;
+    const text =
+      format === 'csv'
+        ? toCsv(tableFor(result, this.context(values)))
+        : resultJson({ request: { ...this.model.request(values), model: this.spec }, result });
+    downloadText(text, `${this.fileStem()}.${format}`, format === 'csv' ? 'text/csv' : 'application/json');
+  }
+}
+
+function describeValues(values: Values): string {
+  return Object.entries(values)
+    .map(([k, v]) => `${k} = ${formatValue(v)}`)
+    .join(', ');
+}
