@@ -1,0 +1,262 @@
+/**
+ * The main-thread side of the executor: compiles cells, runs them in a worker thread, relays what
+ * they print and display, and handles interrupts:
+ *
+ *   - an interrupt sets a shared flag (engine loops stop at their next `checkInterrupt()`) and
+ *     rejects an awaiting cell; the worker and its state stay;
+ *   - a cell that still runs GRACE_MS later ignores interrupts (a plain `while (true) {}`): the
+ *     worker is terminated and a fresh one started, and the cell's error says that state was reset.
+ */
+
+import { fileURLToPath } from 'node:url';
+import { Worker } from 'node:worker_threads';
+import { log } from '../log.js';
+import type { CommPayload, Description, DisplayOutput, HostToWorker, WorkerToHost } from './channel.js';
+import { CellRegistry, type FormattedError } from './traceback.js';
+import { CellSyntaxError, compileCell } from './transpile.js';
+
+/** How long a cell may ignore an interrupt before its worker is replaced. */
+export const GRACE_MS = 2000;
+/** Printed text is gathered this long before it is published. */
+const STREAM_FLUSH_MS = 20;
+const QUERY_TIMEOUT_MS = 1500;
+
+export type CommEvent = ({ type: 'comm_open'; targetName: string } & CommPayload) | ({ type: 'comm_msg' | 'comm_close' } & CommPayload);
+
+/** Where the executor's output goes (the protocol layer turns these into iopub messages). */
+export interface ExecutorEvents {
+  stream(name: 'stdout' | 'stderr', text: string): void;
+  display(output: DisplayOutput, displayId: string | null, update: boolean): void;
+  clearOutput(wait: boolean): void;
+  comm(event: CommEvent): void;
+  /** A cell asks for input; rejects when the front end cannot provide it. */
+  input(prompt: string, password: boolean): Promise<string>;
+}
+
+export type ExecuteOutcome = { status: 'ok'; result: DisplayOutput | null } | ({ status: 'error' } & FormattedError);
+
+interface Running {
+  id: number;
+  resolve: (outcome: ExecuteOutcome) => void;
+}
+
+const KERNEL_DIR = fileURLToPath(new URL('..', import.meta.url));
+
+export class ExecutionHost {
+  private worker!: Worker;
+  private ready!: Promise<void>;
+  private readonly flag = new Int32Array(new SharedArrayBuffer(4));
+  private readonly cells = new CellRegistry(KERNEL_DIR);
+  private running: Running | null = null;
+  private killTimer: NodeJS.Timeout | null = null;
+  private nextId = 1;
+  private serial = 0;
+  private readonly answers = new Map<number, (message: Extract<WorkerToHost, { type: 'answer' }>) => void>();
+  private readonly openComms = new Map<string, string>();
+  private streamBuffer: { name: 'stdout' | 'stderr'; text: string } | null = null;
+  private streamTimer: NodeJS.Timeout | null = null;
+  private stopping = false;
+  /** Names the engine exports (for completion); filled when the worker is ready. */
+  engineNames: string[] = [];
+
+  constructor(private readonly events: ExecutorEvents) {
+    this.spawn();
+  }
+
+  private spawn(): void {
+    const worker = new Worker(new URL('./worker.js', import.meta.url), { workerData: { interrupt: this.flag.buffer }, stdout: false, stderr: false });
+    this.worker = worker;
+    this.ready = new Promise((resolve) => {
+      const onReady = (message: WorkerToHost): void => {
+        if (message.type !== 'ready') return;
+        worker.off('message', onReady);
+        this.engineNames = message.engineNames;
+        if (message.engineError) log(message.engineError);
+        resolve();
+      };
+      worker.on('message', onReady);
+    });
+    worker.on('message', (message: WorkerToHost) => this.receive(message));
+    worker.on('error', (error) => log(`worker error: ${error.stack ?? error.message}`));
+    worker.on('exit', (code) => {
+      if (worker !== this.worker || this.stopping) return;
+      this.replaceWorker(`the worker running your code stopped (exit code ${code})`);
+    });
+  }
+
+  /** Ends the current worker and starts a fresh one; a running cell fails with `reason`. */
+  private replaceWorker(reason: string): void {
+    const old = this.worker;
+    this.clearKillTimer();
+    Atomics.store(this.flag, 0, 0);
+    this.flushStream();
+    for (const [commId] of this.openComms) this.events.comm({ type: 'comm_close', commId, data: {}, metadata: {}, buffers: [] });
+    this.openComms.clear();
+    for (const [, answer] of this.answers) answer({ type: 'answer', id: -1 });
+    this.answers.clear();
+    this.cells.clear();
+    this.spawn();
+    void old.terminate();
+    const running = this.running;
+    this.running = null;
+    running?.resolve({
+      status: 'error',
+      ename: 'StateReset',
+      evalue: `${reason}; it was restarted and all state was reset`,
+      traceback: [
+        `\x1b[31mStateReset\x1b[0m: ${reason}.`,
+        'The kernel restarted the worker that runs cells: all variables, functions and imports',
+        'from earlier cells are gone. Re-run the cells you need.',
+      ],
+    });
+  }
+
+  private receive(message: WorkerToHost): void {
+    if (message.type !== 'stream') this.flushStream();
+    switch (message.type) {
+      case 'ready':
+        break;
+      case 'stream':
+        this.bufferStream(message.name, message.text);
+        break;
+      case 'display':
+        this.events.display(message.output, message.displayId, message.update);
+        break;
+      case 'clear_output':
+        this.events.clearOutput(message.wait);
+        break;
+      case 'done':
+        this.finish(message);
+        break;
+      case 'answer': {
+        const answer = this.answers.get(message.id);
+        this.answers.delete(message.id);
+        answer?.(message);
+        break;
+      }
+      case 'input_request':
+        this.events.input(message.prompt, message.password).then(
+          (value) => this.post({ type: 'input_reply', id: message.id, value }),
+          (error: Error) => this.post({ type: 'input_reply', id: message.id, value: null, error: error.message }),
+        );
+        break;
+      default:
+        if (message.type === 'comm_open') this.openComms.set(message.commId, message.targetName);
+        if (message.type === 'comm_close') this.openComms.delete(message.commId);
+        this.events.comm(message);
+    }
+  }
+
+  private bufferStream(name: 'stdout' | 'stderr', text: string): void {
+    if (this.streamBuffer && this.streamBuffer.name !== name) this.flushStream();
+    if (this.streamBuffer) this.streamBuffer.text += text;
+    else this.streamBuffer = { name, text };
+    this.streamTimer ??= setTimeout(() => this.flushStream(), STREAM_FLUSH_MS);
+  }
+
+  private flushStream(): void {
+    if (this.streamTimer) clearTimeout(this.streamTimer);
+    this.streamTimer = null;
+    const buffered = this.streamBuffer;
+    this.streamBuffer = null;
+    if (buffered) this.events.stream(buffered.name, buffered.text);
+  }
+
+  private finish(message: Extract<WorkerToHost, { type: 'done' }>): void {
+    if (!this.running || this.running.id !== message.id) return;
+    const { resolve } = this.running;
+    this.running = null;
+    this.clearKillTimer();
+    Atomics.store(this.flag, 0, 0);
+    if (!message.error) {
+      resolve({ status: 'ok', result: message.result });
+      return;
+    }
+    const note = message.error.name === 'InterruptedError' ? '(interrupted; the kernel kept all variables)' : undefined;
+    resolve({ status: 'error', ...this.cells.format(message.error, note) });
+  }
+
+  private clearKillTimer(): void {
+    if (this.killTimer) clearTimeout(this.killTimer);
+    this.killTimer = null;
+  }
+
+  private post(message: HostToWorker, transfer?: ArrayBuffer[]): void {
+    this.worker.postMessage(message, transfer);
+  }
+
+  /** Runs one cell. `label` names it in tracebacks (e.g. `In [3]`). */
+  async execute(source: string, options: { silent: boolean; label: string }): Promise<ExecuteOutcome> {
+    if (this.running) throw new Error('execute: a cell is already running');
+    const filename = `cell-${++this.serial}.ts`;
+    let compiled;
+    try {
+      compiled = await compileCell(source, filename);
+    } catch (error) {
+      if (!(error instanceof CellSyntaxError)) throw error;
+      return { status: 'error', ...this.cells.syntaxError(options.label, source, error.message, error.line, error.column) };
+    }
+    await this.ready;
+    this.cells.add(filename, options.label, source, compiled.map);
+    const id = this.nextId++;
+    return new Promise<ExecuteOutcome>((resolve) => {
+      this.running = { id, resolve };
+      Atomics.store(this.flag, 0, 0);
+      this.post({ type: 'execute', id, code: compiled.code, filename, hasValue: compiled.hasValue, silent: options.silent });
+    });
+  }
+
+  /** True if a cell was running and has been asked to stop. */
+  interrupt(): boolean {
+    if (!this.running) return false;
+    Atomics.store(this.flag, 0, 1);
+    this.post({ type: 'interrupt' });
+    this.killTimer ??= setTimeout(() => this.replaceWorker(`the cell did not stop within ${GRACE_MS / 1000} s of the interrupt`), GRACE_MS);
+    return true;
+  }
+
+  private async ask(message: Extract<HostToWorker, { type: 'names' | 'describe' }>): Promise<Extract<WorkerToHost, { type: 'answer' }> | null> {
+    await Promise.race([this.ready, new Promise((r) => setTimeout(r, QUERY_TIMEOUT_MS))]);
+    return new Promise((resolve) => {
+      const timer = setTimeout(() => {
+        this.answers.delete(message.id);
+        resolve(null);
+      }, QUERY_TIMEOUT_MS);
+      this.answers.set(message.id, (answer) => {
+        clearTimeout(timer);
+        resolve(answer.id === message.id ? answer : null);
+      });
+      this.post(message);
+    });
+  }
+
+  /** Names in scope (empty path) or members of a dotted path; null if the worker is busy. */
+  async names(path: string[]): Promise<string[] | null> {
+    const answer = await this.ask({ type: 'names', id: this.nextId++, path });
+    return answer?.names ?? null;
+  }
+
+  async describe(path: string[]): Promise<Description | null> {
+    const answer = await this.ask({ type: 'describe', id: this.nextId++, path });
+    return answer?.description ?? null;
+  }
+
+  /** A comm message from the front end, for the worker's comm registry. */
+  comm(event: CommEvent): void {
+    if (event.type === 'comm_open') this.openComms.set(event.commId, event.targetName);
+    if (event.type === 'comm_close') this.openComms.delete(event.commId);
+    this.post(event);
+  }
+
+  /** Open comms by id, with their target names (for comm_info). */
+  comms(): ReadonlyMap<string, string> {
+    return this.openComms;
+  }
+
+  async shutdown(): Promise<void> {
+    this.stopping = true;
+    this.clearKillTimer();
+    this.flushStream();
+    await this.worker.terminate();
+  }
+}

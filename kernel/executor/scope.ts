@@ -1,0 +1,95 @@
+/**
+ * What the kernel adds to cell scope beside the engine: `display`, `clearOutput`, `progress`,
+ * `input`. They run in the worker and talk to the host through `post`.
+ */
+
+import { randomUUID } from 'node:crypto';
+import { mimeBundle } from '../display/index.js';
+import { progressBundle, type ProgressState } from '../display/progress.js';
+import type { WorkerToHost } from './channel.js';
+
+export interface ScopeHost {
+  post(message: WorkerToHost): void;
+  requestInput(prompt: string, password: boolean): Promise<string>;
+}
+
+export interface DisplayHandle {
+  readonly displayId: string;
+  /** Replace what this display shows, in place. */
+  update(value: unknown): void;
+}
+
+export interface DisplayOptions {
+  /** Reuse a display id (to update it later with `update: true`). */
+  displayId?: string;
+  update?: boolean;
+}
+
+/** What `progress().update` accepts: a count (with optional total), or `{done, total}`, or `{fraction}`. */
+export type ProgressInput = number | { done?: number; total?: number; fraction?: number };
+
+export interface ProgressBar {
+  /** Bound: pass it as an engine call's `onProgress`. */
+  readonly update: (progress: ProgressInput, total?: number) => void;
+  /** Ends the bar; with a value, the bar is replaced by that value's display. */
+  finish(result?: unknown): void;
+}
+
+const MIN_INTERVAL_MS = 100;
+
+export function createScope(host: ScopeHost): Record<string, unknown> {
+  function display(value: unknown, options: DisplayOptions = {}): DisplayHandle {
+    const displayId = options.displayId ?? randomUUID();
+    host.post({ type: 'display', output: mimeBundle(value), displayId, update: options.update === true });
+    return {
+      displayId,
+      update: (next: unknown) => host.post({ type: 'display', output: mimeBundle(next), displayId, update: true }),
+    };
+  }
+
+  function clearOutput(wait = false): void {
+    host.post({ type: 'clear_output', wait });
+  }
+
+  function input(prompt = '', options: { password?: boolean } = {}): Promise<string> {
+    return host.requestInput(String(prompt), options.password === true);
+  }
+
+  function progress(label = '', total?: number): ProgressBar {
+    const displayId = randomUUID();
+    const state: ProgressState = { label, done: 0, total: total ?? null, finished: false };
+    let lastSent = 0;
+    const show = (update: boolean): void => {
+      lastSent = Date.now();
+      host.post({ type: 'display', output: progressBundle(state), displayId, update });
+    };
+    show(false);
+    const update = (p: ProgressInput, newTotal?: number): void => {
+      if (state.finished) return;
+      if (typeof p === 'number') {
+        state.done = p;
+        if (newTotal !== undefined) state.total = newTotal;
+      } else if (typeof p.fraction === 'number') {
+        state.done = p.fraction;
+        state.total = 1;
+      } else {
+        if (typeof p.done === 'number') state.done = p.done;
+        if (typeof p.total === 'number') state.total = p.total;
+      }
+      const complete = state.total !== null && state.done >= state.total;
+      if (complete || Date.now() - lastSent >= MIN_INTERVAL_MS) show(true);
+    };
+    return {
+      update,
+      finish(result?: unknown) {
+        if (state.finished) return;
+        state.finished = true;
+        if (state.total !== null) state.done = state.total;
+        if (result === undefined) show(true);
+        else host.post({ type: 'display', output: mimeBundle(result), displayId, update: true });
+      },
+    };
+  }
+
+  return { display, clearOutput, input, progress };
+}
