@@ -1,0 +1,107 @@
+// Latest-wins coalescing of slider drags (the behaviour ipywidgets uses for its own sync buffer:
+// while a message is pending, newer updates replace older ones; common practice).
+import { describe, expect, it } from 'vitest';
+import { LatestWinsClient, type Outcome, type WorkerLike } from '../../widgets/src/compute-client.js';
+import type { ComputeMessage, ComputeReply, DiagnosticRequest } from '../../widgets/src/protocol.js';
+
+/** A worker whose replies the test releases by hand, to order events exactly. */
+class HeldWorker implements WorkerLike {
+  onmessage: ((event: MessageEvent<ComputeReply>) => void) | null = null;
+  onerror: ((event: ErrorEvent) => void) | null = null;
+  received: ComputeMessage[] = [];
+  terminated = false;
+  postMessage(message: ComputeMessage): void {
+    this.received.push(message);
+  }
+  terminate(): void {
+    this.terminated = true;
+  }
+  reply(reply: ComputeReply): void {
+    this.onmessage?.({ data: reply } as MessageEvent<ComputeReply>);
+  }
+  fail(message: string): void {
+    this.onerror?.({ message } as ErrorEvent);
+  }
+}
+
+function request(u: number): DiagnosticRequest {
+  return { kind: 'curvature', model: { format: 'chernel.model', name: 'm', periodic: 2, vectors: [], orbitals: [], parameters: {} }, params: { u } };
+}
+
+function ok(id: number, u: number): ComputeReply {
+  return { id, ok: true, ms: 1, result: { kind: 'curvature', checks: { minGap: u, warnings: [] } } };
+}
+
+describe('LatestWinsClient', () => {
+  it('sends the first request at once, keeps only the newest while busy, and drops the rest', () => {
+    const workers: HeldWorker[] = [];
+    const outcomes: Outcome[] = [];
+    const client = new LatestWinsClient(() => {
+      const w = new HeldWorker();
+      workers.push(w);
+      return w;
+    }, (o) => outcomes.push(o));
+    for (const u of [1, 2, 3, 4, 5]) client.submit(request(u));
+    expect(workers).toHaveLength(1);
+    const worker = workers[0];
+    expect(worker.received.map((m) => m.request.params.u)).toEqual([1]);
+    expect(client.dropped).toBe(3);
+    worker.reply(ok(worker.received[0].id, 1));
+    // The in-flight result is delivered (the plot follows), then the newest request goes out.
+    expect(outcomes.map((o) => o.request.params.u)).toEqual([1]);
+    expect(worker.received.map((m) => m.request.params.u)).toEqual([1, 5]);
+    worker.reply(ok(worker.received[1].id, 5));
+    expect(outcomes.map((o) => o.result?.checks.minGap)).toEqual([1, 5]);
+    expect(client.busy).toBe(false);
+  });
+
+  it('ignores a reply that is not for the request in flight', () => {
+    const worker = new HeldWorker();
+    const outcomes: Outcome[] = [];
+    const client = new LatestWinsClient(() => worker, (o) => outcomes.push(o));
+    client.submit(request(1));
+    worker.reply(ok(999, 1));
+    expect(outcomes).toHaveLength(0);
+    expect(client.busy).toBe(true);
+  });
+
+  it('delivers an engine error and keeps working for the next value', () => {
+    const worker = new HeldWorker();
+    const outcomes: Outcome[] = [];
+    const client = new LatestWinsClient(() => worker, (o) => outcomes.push(o));
+    client.submit(request(-9));
+    worker.reply({ id: worker.received[0].id, ok: false, error: { name: 'ModelError', message: 'params.u: outside its range' } });
+    client.submit(request(1));
+    worker.reply(ok(worker.received[1].id, 1));
+    expect(outcomes[0].error).toEqual({ name: 'ModelError', message: 'params.u: outside its range' });
+    expect(outcomes[1].result?.checks.minGap).toBe(1);
+  });
+
+  it('replaces a crashed worker on the next request and reports the crash', () => {
+    const workers: HeldWorker[] = [];
+    const outcomes: Outcome[] = [];
+    const client = new LatestWinsClient(() => {
+      const w = new HeldWorker();
+      workers.push(w);
+      return w;
+    }, (o) => outcomes.push(o));
+    client.submit(request(1));
+    client.submit(request(2));
+    workers[0].fail('out of memory');
+    expect(workers[0].terminated).toBe(true);
+    expect(outcomes[0].error).toEqual({ name: 'WorkerError', message: 'out of memory' });
+    // The waiting request went to a fresh worker.
+    expect(workers).toHaveLength(2);
+    expect(workers[1].received.map((m) => m.request.params.u)).toEqual([2]);
+  });
+
+  it('dispose terminates the worker and forgets pending work', () => {
+    const worker = new HeldWorker();
+    const client = new LatestWinsClient(() => worker, () => undefined);
+    client.submit(request(1));
+    client.submit(request(2));
+    client.dispose();
+    expect(worker.terminated).toBe(true);
+    expect(client.busy).toBe(false);
+  });
+});
