@@ -17,3 +17,9 @@ export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } fr
 export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
 export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
 export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
+export { compute, computeAsync, DIAGNOSTIC_KINDS, type ComputeAsyncOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
+export { FrameSampler, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource } from './topology/common.js';
+export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } from './topology/chern.js';
+export { curvatureMap, type CurvatureChecks, type CurvatureMethod, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
+export { wannierFlow, type WannierFlowChecks, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
+export { berryPhase, type BerryPhaseChecks, type BerryPhaseOptions, type BerryPhaseResult } from './topology/berry.js';

@@ -1,0 +1,228 @@
+/**
+ * Chern numbers by Fukui–Hatsugai–Suzuki link variables (J. Phys. Soc. Jpn. 74, 1674 (2005)),
+ * non-Abelian (determinants of overlap matrices) so degenerate groups are handled.
+ *
+ * Sign convention (shared/references.md): A = i<u|grad u>, Omega = d1 A2 - d2 A1, so the Berry flux
+ * through a plaquette is minus the phase of U1(k) U2(k+1) U1(k+2)* U2(k)*, and
+ * C = (1/2pi) sum of fluxes; a1 x a2 < 0 flips the sign so C keeps the Cartesian orientation.
+ */
+import { checkInterrupt } from '../interrupt.js';
+import { ModelError, show } from '../model/errors.js';
+import {
+  bandGroup, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane,
+  type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
+} from './common.js';
+import { determinantInPlace, overlapMatrix } from './links.js';
+
+/** Plaquette phases above this make a lattice Chern number untrustworthy: the grid is too coarse. */
+export const COARSE_PLAQUETTE_PHASE = Math.PI / 2;
+
+export interface ChernChecks extends TopologyChecks {
+  /** Largest |Berry flux| through one plaquette; near pi the integer cannot be trusted. */
+  maxPlaquettePhase?: number;
+  /** True when the grid is too coarse (largest plaquette phase above pi/2, or a vanishing link). */
+  coarse?: boolean;
+  /** Automatic grid: true when two successive grids agreed and neither flag was raised. */
+  converged?: boolean;
+}
+
+export interface ChernOptions extends TopologyOptions {
+  /** k-points per direction (one number or two), or 'auto' (default): refine until the integer is certain. */
+  grid?: number | [number, number] | 'auto';
+  /** For a 3D model: the slice k_normal = at (radians). */
+  plane?: PlaneSpec;
+  /** Largest grid 'auto' may try (per direction). Default 512. */
+  maxGrid?: number;
+}
+
+export interface ChernResult {
+  kind: 'chern';
+  /** The Chern number, or null when the group is gapless or the grid could not be made trustworthy. */
+  chern: number | null;
+  /** Band indices of the group, lowest and highest. */
+  bands: [number, number];
+  /** Reduced axes of the plane (2D: [0, 1]) and, for a 3D slice, the fixed momentum. */
+  plane: { axes: [number, number]; at?: number; normal?: number };
+  /** Total Berry flux / 2pi before rounding (an integer up to rounding error when the grid is sound). */
+  flux: number;
+  checks: ChernChecks;
+}
+
+/** Berry flux over a plane sampled on an n1 x n2 grid, with the diagnostics of its plaquettes. */
+export interface PlaneFlux {
+  /** Sum of plaquette fluxes (radians), in reduced orientation. */
+  total: number;
+  maxPhase: number;
+  /** Smallest |det| of a link (normalised overlaps): near zero the link phase is meaningless. */
+  minLink: number;
+}
+
+/**
+ * Flux of every plaquette of an n1 x n2 grid over `plane` (k_i = -pi + 2pi j/n_i). With `map`
+ * (length n1*n2, row b = index along axis 2 major), each plaquette's flux is stored at its
+ * lower-left corner. Two rows of frames live at a time; nothing is allocated per k.
+ */
+export function planeFlux(sampler: FrameSampler, plane: Plane, n1: number, n2: number, map: Float64Array | null = null): PlaneFlux {
+  const h = sampler.hamiltonian;
+  const m = sampler.m;
+  const n = sampler.n;
+  const fl = sampler.frameLength;
+  const [ax1, ax2] = plane.axes;
+  const embed1 = embedding(h, ax1);
+  const embed2 = embedding(h, ax2);
+  const row0 = new Float64Array(n1 * fl);
+  let cur = new Float64Array(n1 * fl);
+  let next = new Float64Array(n1 * fl);
+  const link1Row0 = new Float64Array(2 * n1);
+  let link1Cur = new Float64Array(2 * n1);
+  let link1Next = new Float64Array(2 * n1);
+  const link2 = new Float64Array(2 * n1);
+  const scratch = new Float64Array(2 * m * m);
+  const det = new Float64Array(2);
+  const k = Float64Array.from(plane.origin);
+  let minLink = Infinity;
+
+  const link = (a: Float64Array, aOff: number, b: Float64Array, bOff: number, embed: Float64Array | null, out: Float64Array, at: number): void => {
+    overlapMatrix(n, m, a, aOff, b, bOff, embed, scratch);
+    determinantInPlace(m, scratch, det);
+    out[at] = det[0];
+    out[at + 1] = det[1];
+    const mod = Math.hypot(det[0], det[1]);
+    if (mod < minLink) minLink = mod;
+  };
+  const fillRow = (b: number, frames: Float64Array, links: Float64Array): void => {
+    k[ax2] = -Math.PI + (2 * Math.PI * b) / n2;
+    for (let a = 0; a < n1; a++) {
+      k[ax1] = -Math.PI + (2 * Math.PI * a) / n1;
+      sampler.sample(k, frames, a * fl);
+    }
+    for (let a = 0; a < n1; a++) {
+      const last = a === n1 - 1;
+      link(frames, a * fl, frames, last ? 0 : (a + 1) * fl, last ? embed1 : null, links, 2 * a);
+    }
+  };
+
+  checkInterrupt();
+  fillRow(0, row0, link1Row0);
+  cur.set(row0);
+  link1Cur.set(link1Row0);
+  let total = 0;
+  let maxPhase = 0;
+  for (let b = 0; b < n2; b++) {
+    checkInterrupt();
+    const wrap = b === n2 - 1;
+    const upper = wrap ? row0 : next;
+    const upperLinks = wrap ? link1Row0 : link1Next;
+    if (!wrap) fillRow(b + 1, next, link1Next);
+    for (let a = 0; a < n1; a++) link(cur, a * fl, upper, a * fl, wrap ? embed2 : null, link2, 2 * a);
+    for (let a = 0; a < n1; a++) {
+      const a1 = a === n1 - 1 ? 0 : a + 1;
+      // U1(a,b) U2(a+1,b) conj(U1(a,b+1)) conj(U2(a,b))
+      let pr = link1Cur[2 * a], pi = link1Cur[2 * a + 1];
+      let xr = link2[2 * a1], xi = link2[2 * a1 + 1];
+      let tr = pr * xr - pi * xi;
+      let ti = pr * xi + pi * xr;
+      xr = upperLinks[2 * a];
+      xi = -upperLinks[2 * a + 1];
+      pr = tr * xr - ti * xi;
+      pi = tr * xi + ti * xr;
+      xr = link2[2 * a];
+      xi = -link2[2 * a + 1];
+      tr = pr * xr - pi * xi;
+      ti = pr * xi + pi * xr;
+      const flux = -Math.atan2(ti, tr);
+      total += flux;
+      const mag = Math.abs(flux);
+      if (mag > maxPhase) maxPhase = mag;
+      if (map !== null) map[b * n1 + a] = flux;
+    }
+    if (!wrap) {
+      const t = cur;
+      cur = next;
+      next = t;
+      const tl = link1Cur;
+      link1Cur = link1Next;
+      link1Next = tl;
+    }
+  }
+  // Links are products of m overlaps of unit vectors; normalise the smallest to [0, 1].
+  return { total, maxPhase, minLink: Math.min(1, minLink) };
+}
+
+function resolveGridOption(grid: ChernOptions['grid'], field = 'grid'): [number, number] | 'auto' {
+  if (grid === undefined || grid === 'auto') return 'auto';
+  const pair = typeof grid === 'number' ? [grid, grid] : grid;
+  if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points, two numbers, or "auto". Value: ${show(grid)}`);
+  pair.forEach((x, i) => {
+    if (!Number.isInteger(x) || x < 3 || x > 100_000) throw new ModelError(typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 3 to 100000. Value: ${show(x)}`);
+  });
+  return [pair[0], pair[1]];
+}
+
+const AUTO_START = 16;
+
+/**
+ * Chern number of a band group of a 2D model, or of a 2D slice of a 3D model. Refuses (null with
+ * checks.gapless and a warning naming k and the gap) when the group touches the other bands on the
+ * grid; flags a grid whose plaquette phases approach pi; with grid 'auto' doubles the grid until two
+ * successive grids give the same integer with every plaquette phase below pi/2.
+ */
+export function chernNumber(source: TopologySource, options: ChernOptions = {}): ChernResult {
+  const h = compileSource(source, options);
+  const plane = resolvePlane(h.dim, options.plane);
+  const group = bandGroup(options.bands, h.size);
+  const sampler = new FrameSampler(h, group);
+  const grid = resolveGridOption(options.grid);
+  const maxGrid = options.maxGrid ?? 512;
+  if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${show(maxGrid)}`);
+  const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
+  const planeInfo = h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at };
+
+  const evaluate = (n1: number, n2: number) => {
+    sampler.resetGap();
+    const flux = planeFlux(sampler, plane, n1, n2);
+    const checks: ChernChecks = sampler.gapChecks([n1, n2], options.gapTolerance, 'the Chern number');
+    checks.maxPlaquettePhase = flux.maxPhase;
+    const c = (sign * flux.total) / (2 * Math.PI);
+    if (!checks.gapless && (flux.maxPhase > COARSE_PLAQUETTE_PHASE || flux.minLink < 1e-6)) {
+      checks.coarse = true;
+      checks.warnings.push(
+        `grid ${n1}x${n2} is too coarse to trust: largest plaquette phase ${flux.maxPhase.toFixed(3)} rad ` +
+          `(limit pi/2), smallest link modulus ${flux.minLink.toExponential(2)}; smallest gap ${sampler.minGap.toExponential(2)} at k = ${formatK(sampler.minGapAt)}`,
+      );
+    }
+    return { c, checks };
+  };
+  const result = (c: number, checks: ChernChecks): ChernResult => ({
+    kind: 'chern',
+    chern: checks.gapless || (grid === 'auto' && !checks.converged) ? null : Math.round(c) + 0,
+    bands: [group.lo, group.hi],
+    plane: planeInfo,
+    flux: c,
+    checks,
+  });
+
+  if (grid !== 'auto') {
+    const { c, checks } = evaluate(grid[0], grid[1]);
+    return result(c, checks);
+  }
+  let previous: number | null = null;
+  for (let size = AUTO_START; ; size *= 2) {
+    const { c, checks } = evaluate(size, size);
+    if (checks.gapless) return result(c, checks);
+    const sound = !checks.coarse;
+    if (sound && previous !== null && previous === Math.round(c)) {
+      checks.converged = true;
+      return result(c, checks);
+    }
+    previous = sound ? Math.round(c) : null;
+    if (size * 2 > maxGrid) {
+      checks.converged = false;
+      checks.warnings.push(
+        `no certain integer up to grid ${size}x${size} (maxGrid ${maxGrid}): last estimate ${c.toFixed(3)}; the smallest gap ` +
+          `${sampler.minGap.toExponential(2)} at k = ${formatK(sampler.minGapAt)} suggests a nearby gap closing`,
+      );
+      return result(c, checks);
+    }
+  }
+}

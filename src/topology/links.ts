@@ -1,0 +1,224 @@
+/**
+ * Overlaps of band frames and the small m x m complex algebra on them (determinant, products,
+ * eigenphases of a Wilson loop). Frames are stored as in FrameSampler: m vectors of n complex
+ * entries, one after another. All outputs and scratch belong to the caller.
+ */
+import { HermitianEigensolver } from '../linalg/eigh.js';
+
+/**
+ * out (m x m) = A^dagger E B, the overlap matrix <u_i(k)| E |u_j(k')>; E is the diagonal embedding
+ * (cos, sin per orbital) or null for the identity.
+ */
+export function overlapMatrix(
+  n: number, m: number,
+  a: Float64Array, aOff: number,
+  b: Float64Array, bOff: number,
+  embed: Float64Array | null,
+  out: Float64Array,
+): Float64Array {
+  for (let i = 0; i < m; i++) {
+    const ai = aOff + 2 * n * i;
+    for (let j = 0; j < m; j++) {
+      const bj = bOff + 2 * n * j;
+      let re = 0;
+      let im = 0;
+      if (embed === null) {
+        for (let s = 0; s < 2 * n; s += 2) {
+          const xr = a[ai + s], xi = a[ai + s + 1], yr = b[bj + s], yi = b[bj + s + 1];
+          re += xr * yr + xi * yi;
+          im += xr * yi - xi * yr;
+        }
+      } else {
+        for (let s = 0; s < 2 * n; s += 2) {
+          const er = embed[s], ei = embed[s + 1];
+          const yr0 = b[bj + s], yi0 = b[bj + s + 1];
+          const yr = er * yr0 - ei * yi0, yi = er * yi0 + ei * yr0;
+          const xr = a[ai + s], xi = a[ai + s + 1];
+          re += xr * yr + xi * yi;
+          im += xr * yi - xi * yr;
+        }
+      }
+      out[2 * (i * m + j)] = re;
+      out[2 * (i * m + j) + 1] = im;
+    }
+  }
+  return out;
+}
+
+/**
+ * Determinant of an m x m complex matrix by LU with partial pivoting; `a` is overwritten.
+ * Writes (re, im) into out[0], out[1] and returns out.
+ */
+export function determinantInPlace(m: number, a: Float64Array, out: Float64Array): Float64Array {
+  if (m === 1) {
+    out[0] = a[0];
+    out[1] = a[1];
+    return out;
+  }
+  if (m === 2) {
+    out[0] = a[0] * a[6] - a[1] * a[7] - (a[2] * a[4] - a[3] * a[5]);
+    out[1] = a[0] * a[7] + a[1] * a[6] - (a[2] * a[5] + a[3] * a[4]);
+    return out;
+  }
+  let dr = 1, di = 0;
+  for (let c = 0; c < m; c++) {
+    let p = c;
+    let best = -1;
+    for (let r = c; r < m; r++) {
+      const mag = a[2 * (r * m + c)] ** 2 + a[2 * (r * m + c) + 1] ** 2;
+      if (mag > best) {
+        best = mag;
+        p = r;
+      }
+    }
+    if (best === 0) {
+      out[0] = 0;
+      out[1] = 0;
+      return out;
+    }
+    if (p !== c) {
+      for (let j = 0; j < 2 * m; j++) {
+        const t = a[2 * c * m + j];
+        a[2 * c * m + j] = a[2 * p * m + j];
+        a[2 * p * m + j] = t;
+      }
+      dr = -dr;
+      di = -di;
+    }
+    const pr = a[2 * (c * m + c)], pi = a[2 * (c * m + c) + 1];
+    const nr = dr * pr - di * pi;
+    di = dr * pi + di * pr;
+    dr = nr;
+    const inv = 1 / (pr * pr + pi * pi);
+    for (let r = c + 1; r < m; r++) {
+      const xr = a[2 * (r * m + c)], xi = a[2 * (r * m + c) + 1];
+      const fr = (xr * pr + xi * pi) * inv, fi = (xi * pr - xr * pi) * inv;
+      for (let j = c + 1; j < m; j++) {
+        const yr = a[2 * (c * m + j)], yi = a[2 * (c * m + j) + 1];
+        a[2 * (r * m + j)] -= fr * yr - fi * yi;
+        a[2 * (r * m + j) + 1] -= fr * yi + fi * yr;
+      }
+    }
+  }
+  out[0] = dr;
+  out[1] = di;
+  return out;
+}
+
+/** out = A B for m x m complex matrices (out must not alias a or b). */
+export function multiplySmall(m: number, a: Float64Array, b: Float64Array, out: Float64Array): Float64Array {
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j < m; j++) {
+      let re = 0;
+      let im = 0;
+      for (let k = 0; k < m; k++) {
+        const ar = a[2 * (i * m + k)], ai = a[2 * (i * m + k) + 1];
+        const br = b[2 * (k * m + j)], bi = b[2 * (k * m + j) + 1];
+        re += ar * br - ai * bi;
+        im += ar * bi + ai * br;
+      }
+      out[2 * (i * m + j)] = re;
+      out[2 * (i * m + j) + 1] = im;
+    }
+  }
+  return out;
+}
+
+/**
+ * Eigenphases (radians, in (-pi, pi]) of an m x m matrix that is unitary up to discretisation
+ * error, such as a Wilson loop. m = 1, 2 in closed form; larger m through a Hermitian combination
+ * (W e^{-i phi} + h.c.)/2 that shares W's eigenvectors, with phases read from Rayleigh quotients.
+ */
+export class UnitaryPhases {
+  readonly m: number;
+  private readonly herm: Float64Array;
+  private readonly vecs: Float64Array;
+  private readonly vals: Float64Array;
+  private readonly solver: HermitianEigensolver | null;
+
+  constructor(m: number) {
+    this.m = m;
+    this.herm = new Float64Array(2 * m * m);
+    this.vecs = new Float64Array(2 * m * m);
+    this.vals = new Float64Array(m);
+    this.solver = m > 2 ? new HermitianEigensolver(m) : null;
+  }
+
+  /** Phases of `w` into `out` (unsorted) ; returns the smallest |eigenvalue| as a unitarity check. */
+  solve(w: Float64Array, out: Float64Array): number {
+    const m = this.m;
+    if (m === 1) {
+      out[0] = Math.atan2(w[1], w[0]);
+      return Math.hypot(w[0], w[1]);
+    }
+    if (m === 2) {
+      // lambda = tr/2 ± sqrt(tr^2/4 - det)
+      const tr = w[0] + w[6], ti = w[1] + w[7];
+      const detr = w[0] * w[6] - w[1] * w[7] - (w[2] * w[4] - w[3] * w[5]);
+      const deti = w[0] * w[7] + w[1] * w[6] - (w[2] * w[5] + w[3] * w[4]);
+      const hr = tr / 2, hi = ti / 2;
+      const dr = hr * hr - hi * hi - detr, di = 2 * hr * hi - deti;
+      const mod = Math.hypot(dr, di);
+      const sr = Math.sqrt(Math.max(0, (mod + dr) / 2));
+      const si = (di < 0 ? -1 : 1) * Math.sqrt(Math.max(0, (mod - dr) / 2));
+      out[0] = Math.atan2(hi + si, hr + sr);
+      out[1] = Math.atan2(hi - si, hr - sr);
+      return Math.min(Math.hypot(hr + sr, hi + si), Math.hypot(hr - sr, hi - si));
+    }
+    let worst = 0;
+    // Two angles: a collision of distinct phases in one combination is lifted in the other.
+    for (const phi of [0.6180339887498949, 2.2360679774997896]) {
+      worst = this.viaHermitian(w, phi, out);
+      if (worst > 0.5) return worst;
+    }
+    return worst;
+  }
+
+  private viaHermitian(w: Float64Array, phi: number, out: Float64Array): number {
+    const m = this.m;
+    const c = Math.cos(phi), s = Math.sin(phi);
+    const h = this.herm;
+    for (let i = 0; i < m; i++) {
+      for (let j = 0; j < m; j++) {
+        // (e^{-i phi} W + e^{i phi} W^dagger)/2, element (i, j)
+        const wr = w[2 * (i * m + j)], wi = w[2 * (i * m + j) + 1];
+        const vr = w[2 * (j * m + i)], vi = -w[2 * (j * m + i) + 1];
+        h[2 * (i * m + j)] = (c * wr + s * wi + c * vr - s * vi) / 2;
+        h[2 * (i * m + j) + 1] = (c * wi - s * wr + c * vi + s * vr) / 2;
+      }
+    }
+    this.solver!.solve(h, this.vals, this.vecs);
+    const v = this.vecs;
+    let worst = Infinity;
+    for (let col = 0; col < m; col++) {
+      let qr = 0, qi = 0;
+      for (let i = 0; i < m; i++) {
+        const xr = v[2 * (i * m + col)], xi = v[2 * (i * m + col) + 1];
+        let yr = 0, yi = 0;
+        for (let j = 0; j < m; j++) {
+          const ar = w[2 * (i * m + j)], ai = w[2 * (i * m + j) + 1];
+          const br = v[2 * (j * m + col)], bi = v[2 * (j * m + col) + 1];
+          yr += ar * br - ai * bi;
+          yi += ar * bi + ai * br;
+        }
+        qr += xr * yr + xi * yi;
+        qi += xr * yi - xi * yr;
+      }
+      out[col] = Math.atan2(qi, qr);
+      worst = Math.min(worst, Math.hypot(qr, qi));
+    }
+    return worst;
+  }
+}
+
+/** Principal value of an angle, in (-pi, pi]. */
+export function wrapAngle(x: number): number {
+  const y = x - 2 * Math.PI * Math.round(x / (2 * Math.PI));
+  return y <= -Math.PI ? y + 2 * Math.PI : y;
+}
+
+/** x mod 1 in [0, 1) (a tiny negative x gives 0, not 1). */
+export function fraction(x: number): number {
+  const y = x - Math.floor(x);
+  return y >= 1 ? 0 : y;
+}
