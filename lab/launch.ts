@@ -24,9 +24,10 @@ type Log = (message: string) => void;
 
 function run(command: string, args: string[], cwd: string, log: Log): void {
   log(`${relative(projectDir, cwd) || '.'}$ ${command} ${args.join(' ')}`);
-  const result = spawnSync(command, args, { cwd, stdio: 'inherit' });
+  const result = spawnSync(command, args, { cwd, encoding: 'utf8', maxBuffer: 64 << 20 });
   if (result.status !== 0) {
-    throw new Error(`lab: \`${command} ${args.join(' ')}\` in ${cwd} failed with exit code ${result.status ?? result.signal}`);
+    const output = `${result.stdout ?? ''}${result.stderr ?? ''}`.trim().split('\n').slice(-40).join('\n');
+    throw new Error(`lab: \`${command} ${args.join(' ')}\` in ${cwd} failed (${result.status ?? result.signal ?? result.error?.message}):\n${output}`);
   }
 }
 
@@ -61,7 +62,7 @@ function localExtensionDirs(pkg: LabPackage): string[] {
 function inputFingerprint(pkg: LabPackage): string {
   const skip = new Set(['node_modules', 'build']);
   const files = [
-    ...['package.json', 'package-lock.json', 'webpack.config.js', 'src'].flatMap(p => listFiles(join(labDir, p), skip)),
+    ...['package.json', 'package-lock.json', 'webpack.config.cjs', 'src'].flatMap(p => listFiles(join(labDir, p), skip)),
     ...localExtensionDirs(pkg).flatMap(dir => listFiles(dir, skip)),
   ].sort();
   const hash = createHash('sha256');
@@ -93,17 +94,49 @@ export function ensureLabBuilt(log: Log = console.log): void {
   writeFileSync(stampFile, inputFingerprint(pkg));
 }
 
+export interface KernelRegistration {
+  registered: boolean;
+  /** Why not, when not. */
+  reason?: string;
+}
+
+/** The newest modification time of any file under the folders (0 when there are none). */
+function newestMtime(dirs: string[]): number {
+  const skip = new Set(['node_modules']);
+  return Math.max(0, ...dirs.flatMap(dir => listFiles(dir, skip)).map(file => statSync(file).mtimeMs));
+}
+
 /**
  * Writes the chernel kernelspec under .jupyter-local/share/jupyter/kernels/chernel through the
- * kernel's own `install --prefix`. Returns false (with a warning) while the kernel does not exist.
+ * kernel's own `chernel install --prefix`, compiling the kernel first (`npm run build` at the
+ * root) when dist/ is missing or older than src/ or kernel/. Does not throw: a missing or broken
+ * kernel leaves the lab usable with the other kernels, so it is reported and skipped.
  */
-export function registerChernelKernel(log: Log = console.log): boolean {
-  if (!existsSync(kernelCli)) {
-    log(`lab: warning: ${relative(projectDir, kernelCli)} not found; starting without the chernel kernel`);
-    return false;
+export function registerChernelKernel(log: Log = console.log): KernelRegistration {
+  const skip = (reason: string): KernelRegistration => {
+    log(`lab: warning: ${reason}; starting without the chernel kernel`);
+    return { registered: false, reason };
+  };
+  if (!existsSync(kernelCli)) return skip(`${relative(projectDir, kernelCli)} not found`);
+  const compiled = join(projectDir, 'dist', 'kernel', 'cli.js');
+  if (!existsSync(compiled) || newestMtime([join(projectDir, 'src'), join(projectDir, 'kernel')]) > statSync(compiled).mtimeMs) {
+    try {
+      run('npm', ['run', 'build', '--silent'], projectDir, log);
+    } catch (error) {
+      // tsc still writes JavaScript for code with type errors; go on if the kernel is there.
+      if (!existsSync(compiled)) return skip(`the kernel did not compile: ${(error as Error).message}`);
+      log(`lab: warning: the project build reported errors; using the kernel it wrote anyway:\n${(error as Error).message}`);
+    }
   }
-  run(process.execPath, [kernelCli, 'install', '--prefix', jupyterPrefix], projectDir, log);
-  return existsSync(join(jupyterDataPath, 'kernels', 'chernel', 'kernel.json'));
+  try {
+    run(process.execPath, [kernelCli, 'install', '--prefix', jupyterPrefix], projectDir, log);
+  } catch (error) {
+    return skip((error as Error).message);
+  }
+  if (!existsSync(join(jupyterDataPath, 'kernels', 'chernel', 'kernel.json'))) {
+    return skip(`\`chernel install --prefix ${jupyterPrefix}\` wrote no kernels/chernel/kernel.json`);
+  }
+  return { registered: true };
 }
 
 /** A TCP port free on 127.0.0.1 right now (the OS picks one when `preferred` is 0 or taken). */

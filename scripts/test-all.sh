@@ -16,3 +16,6 @@ layer() {
 layer typecheck npx tsc -p tsconfig.json --noEmit
 layer engine-purity npx tsc -p tsconfig.engine.json
 layer engine npx vitest run
+# Real Chromium against the lab (lab/) and real kernels; ~1-2 min, most of it builds and start-ups.
+layer lab-typecheck npx tsc -p lab/tsconfig.json
+layer browser npx vitest run -c vitest.browser.config.ts
