@@ -17,6 +17,15 @@ export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } fr
 export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
 export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
 export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
+export { type OrbitalMatrix, type Harmonic } from './model/builder.js';
+export { checkBandSelection } from './model/validate.js';
+export { supercell, type SupercellOptions } from './model/builders/supercell.js';
+export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/builders/open.js';
+export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
+export { bogoliubov, type BdgOptions } from './model/builders/bdg.js';
+export { wireStack, type WireStackOptions } from './model/builders/wires.js';
+export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
+export { ribbonSpectrum, type RibbonSpectrumOptions, type RibbonSpectrumResult } from './spectra/ribbon.js';
 export { compute, computeAsync, DIAGNOSTIC_KINDS, type ComputeAsyncOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
 export { FrameSampler, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource } from './topology/common.js';
 export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } from './topology/chern.js';

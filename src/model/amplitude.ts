@@ -50,6 +50,8 @@ export function multiplyAmplitudes(a: Amplitude, b: Amplitude): Amplitude {
   if ((x !== null && x[0] === 0 && x[1] === 0) || (y !== null && y[0] === 0 && y[1] === 0)) return 0;
   if (x !== null && x[0] === 1 && x[1] === 0) return b;
   if (y !== null && y[0] === 1 && y[1] === 0) return a;
+  if (y !== null && y[0] === -1 && y[1] === 0) return `-${asExpression(a)}`;
+  if (x !== null && x[0] === -1 && x[1] === 0) return `-${asExpression(b)}`;
   return `${asExpression(a)} * ${asExpression(b)}`;
 }
 

@@ -185,6 +185,7 @@ export class LatticeBuilder {
     const where = `onsiteMatrix(${show(block)})`;
     const orbs = this.resolve(block, where);
     const m = denseMatrix(matrix, orbs.length, orbs.length, where);
+    this.checkEntries(matrix, where);
     this.pending.push({ field: where, hermitian: m });
     return this.addOnsiteBlock(orbs, m);
   }
@@ -199,7 +200,9 @@ export class LatticeBuilder {
     const b = this.resolve(to, `${where}.to`);
     this.checkCell(cell, `${where}.cell`);
     this.checkNotOnsite(a, b, cell, where, 'onsiteMatrix');
-    return this.addMatrix(a, b, cell, denseMatrix(matrix, b.length, a.length, where));
+    const m = denseMatrix(matrix, b.length, a.length, where);
+    this.checkEntries(matrix, where);
+    return this.addMatrix(a, b, cell, m);
   }
 
   /**
@@ -218,6 +221,8 @@ export class LatticeBuilder {
     const n = orbs.length;
     const c = parts.cos === undefined ? null : denseMatrix(parts.cos, n, n, `${where}.cos`);
     const s = parts.sin === undefined ? null : denseMatrix(parts.sin, n, n, `${where}.sin`);
+    if (parts.cos !== undefined) this.checkEntries(parts.cos, `${where}.cos`);
+    if (parts.sin !== undefined) this.checkEntries(parts.sin, `${where}.sin`);
     if (c !== null) this.pending.push({ field: `${where}.cos`, hermitian: c });
     if (s !== null) this.pending.push({ field: `${where}.sin`, hermitian: s });
     const m: Dense = Array.from({ length: n }, (_, i) =>
@@ -273,6 +278,12 @@ export class LatticeBuilder {
     const found = this.blocks.get(name) ?? this.sites.get(name) ?? (this.orbitals.some((o) => o.label === name) ? [name] : undefined);
     if (found === undefined) throw new ModelError(where, `unknown block, site or orbital ${show(name)}`);
     return found;
+  }
+
+  /** Each coefficient or entry as the user wrote it is compiled at build, naming its own field. */
+  private checkEntries(m: OrbitalMatrix, field: string): void {
+    if (isRows(m)) m.forEach((r, i) => r.forEach((e, j) => this.pending.push({ field: `${field}[${i}][${j}]`, amplitude: e })));
+    else for (const [key, e] of Object.entries(m)) this.pending.push({ field: `${field}.${key}`, amplitude: e });
   }
 
   private siteOrbitals(label: string, where: string): string[] {
