@@ -62,6 +62,8 @@ export async function compileCell(source: string, filename: string): Promise<Com
     throw new CellSyntaxError(first.text, first.location?.line ?? 1, (first.location?.column ?? 0) + 1);
   }
   const map = new SourceMap(JSON.parse(rawMap));
+  const tail = await droppedConstantTail(source, js, map);
+  if (tail !== null) js = `${js};\n${tail};\n`;
   try {
     const { code, hasValue } = rewriteTopLevel(js);
     return { code, map, hasValue };
@@ -71,6 +73,37 @@ export async function compileCell(source: string, filename: string): Promise<Com
     const line = loc ? mapLine(map, loc.line, loc.column + 1) ?? loc.line : 1;
     throw new CellSyntaxError(error.message.replace(/ \(\d+:\d+\)$/, ''), line, 1);
   }
+}
+
+function lastStatement(code: string): acorn.Statement | acorn.ModuleDeclaration | null {
+  try {
+    const program = acorn.parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true });
+    return program.body.at(-1) ?? null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * esbuild drops expression statements it folds to a constant (`-1`, `!0`, `'a' + 'b'`), so a
+ * cell ending with one would show no value. Find such a final statement in the source (the whole
+ * cell, or its last lines after the last statement esbuild kept, when they parse as JavaScript)
+ * and return its text; it has no side effects and cannot throw, so it is simply re-appended.
+ */
+async function droppedConstantTail(source: string, js: string, map: SourceMap): Promise<string | null> {
+  const kept = lastStatement(js);
+  const keptLine = kept ? (mapLine(map, js.slice(0, kept.start).split('\n').length, 1) ?? 0) : 0;
+  const lines = source.split('\n');
+  const starts = [0, ...Array.from({ length: lines.length - 1 }, (_, i) => i + 1).filter((i) => i >= keptLine)];
+  for (const start of starts) {
+    const suffix = lines.slice(start).join('\n');
+    const last = lastStatement(suffix);
+    if (last?.type !== 'ExpressionStatement') continue;
+    const text = suffix.slice(last.expression.start, last.expression.end);
+    const alone = await transform(text, { loader: 'ts', logLevel: 'silent' }).catch(() => null);
+    return alone && alone.code.trim() === '' ? text : null;
+  }
+  return null;
 }
 
 /** Cell line (1-based) for a script position (1-based line and column), or null. */

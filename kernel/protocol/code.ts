@@ -58,7 +58,8 @@ export async function isComplete(code: string): Promise<Completeness> {
     const line = first.location?.line ?? 0;
     const column = first.location?.column ?? 0;
     const atEnd = line === lines.length && column >= lines[lines.length - 1].length;
-    const opensTemplate = first.text === 'Unterminated string literal' && lines[line - 1]?.[column] === '`';
+    // esbuild reports an open template literal as an unterminated string: an odd backtick count.
+    const opensTemplate = first.text === 'Unterminated string literal' && (code.match(/`/g)?.length ?? 0) % 2 === 1;
     const unfinished = /end of file|to terminate multi-line comment|Unterminated template/.test(first.text) || opensTemplate;
     if (unfinished || (atEnd && !/Unterminated string literal/.test(first.text))) {
       const depth = [...code].reduce((d, c) => d + ('([{'.includes(c) ? 1 : ')]}'.includes(c) ? -1 : 0), 0);
