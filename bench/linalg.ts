@@ -3,10 +3,11 @@
  * matrices, single-threaded (OPENBLAS_NUM_THREADS=1), measured in the same run.
  * Standalone: `node --import ./scripts/register-ts.js bench/linalg.ts`.
  */
-import { spawnSync } from 'node:child_process';
+import { spawn, type ChildProcessWithoutNullStreams } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { createInterface } from 'node:readline';
 import { pathToFileURL } from 'node:url';
 import { HermitianEigensolver } from '../src/linalg/eigh.js';
 import { formatTable, type BenchRow } from './table.js';
@@ -21,9 +22,9 @@ const CASES = [
   { n: 64, batch: 200, min: 0.5 },
   { n: 256, batch: 6, min: 1 / 3 },
 ];
-/** Each timing is the best of ROUNDS rounds of at least ROUND_SECONDS. */
-const ROUNDS = 3;
-const ROUND_SECONDS = 0.25;
+/** Each timing is the best of ROUNDS rounds of about ROUND_SECONDS, ours and numpy's alternating. */
+const ROUNDS = 5;
+const ROUND_SECONDS = 0.1;
 
 /** Deterministic uniform numbers in [-1, 1) (mulberry32). */
 function uniform(seed: number): () => number {
@@ -57,86 +58,129 @@ function randomHermitianBatch(n: number, batch: number, seed: number): Float64Ar
   return out;
 }
 
-/** Solves per second over the whole batch, repeated to fill a round; best of ROUNDS. */
-function timeOurs(n: number, batch: number, h: Float64Array, w: Float64Array, vecs: Float64Array | null): number {
+/** A timer for our solver over the whole batch: seconds per pass, averaged over `reps` passes. */
+function oursTimer(n: number, batch: number, h: Float64Array, w: Float64Array, vecs: Float64Array | null): (reps: number) => number {
   const solver = new HermitianEigensolver(n);
   const stride = 2 * n * n;
-  let sink = 0;
-  const pass = (): void => {
-    for (let b = 0; b < batch; b++) {
-      solver.solveAt(h, b * stride, w, b * n, vecs, 0);
-      if (vecs !== null) sink += vecs[0];
-    }
-  };
-  pass();
-  let best = Infinity;
-  let reps = 1;
-  for (let round = 0; round < ROUNDS; round++) {
+  return (reps) => {
+    let sink = 0;
     const t0 = performance.now();
-    for (let r = 0; r < reps; r++) pass();
-    const seconds = (performance.now() - t0) / 1000;
-    best = Math.min(best, seconds / reps);
-    if (round === 0) reps = Math.max(1, Math.ceil(ROUND_SECONDS / seconds));
-  }
-  if (Number.isNaN(sink)) throw new Error('eigensolver produced NaN');
-  return batch / best;
+    for (let r = 0; r < reps; r++) {
+      for (let b = 0; b < batch; b++) {
+        solver.solveAt(h, b * stride, w, b * n, vecs, 0);
+        if (vecs !== null) sink += vecs[0];
+      }
+    }
+    const seconds = (performance.now() - t0) / 1000 / reps;
+    if (Number.isNaN(sink)) throw new Error('eigensolver produced NaN');
+    return seconds;
+  };
 }
 
-const NUMPY_SCRIPT = String.raw`
+/**
+ * numpy side: one long-lived process answering one JSON command per line, so that its rounds can
+ * alternate with ours (the machine is shared; alternating exposes both to the same load).
+ */
+const NUMPY_WORKER = String.raw`
 import json, sys, time
 import numpy as np
-path, n, batch, rounds, round_seconds = sys.argv[1], int(sys.argv[2]), int(sys.argv[3]), int(sys.argv[4]), float(sys.argv[5])
-h = np.fromfile(path, dtype=np.complex128).reshape(batch, n, n)
-def rate(f):
-    f(h)
-    best, reps = float('inf'), 1
-    for r in range(rounds):
+h = None
+for line in sys.stdin:
+    cmd = json.loads(line)
+    if cmd['op'] == 'load':
+        n, batch = cmd['n'], cmd['batch']
+        h = np.fromfile(cmd['file'], dtype=np.complex128).reshape(batch, n, n)
+        np.linalg.eigh(h)
+        out = np.linalg.eigvalsh(h[0]).tolist()
+    else:
+        f = np.linalg.eigh if cmd['op'] == 'eigh' else np.linalg.eigvalsh
         t0 = time.perf_counter()
-        for _ in range(reps):
+        for _ in range(cmd['reps']):
             f(h)
-        s = time.perf_counter() - t0
-        best = min(best, s / reps)
-        if r == 0:
-            reps = max(1, int(np.ceil(round_seconds / s)))
-    return batch / best
-out = {'eigh': rate(np.linalg.eigh), 'eigvalsh': rate(np.linalg.eigvalsh),
-       'first': np.linalg.eigvalsh(h[0]).tolist()}
-print(json.dumps(out))
+        out = (time.perf_counter() - t0) / cmd['reps']
+    print(json.dumps(out), flush=True)
 `;
 
-interface NumpyRates {
-  eigh: number;
-  eigvalsh: number;
-  first: number[];
+class NumpyWorker {
+  private readonly proc: ChildProcessWithoutNullStreams;
+  private readonly replies: string[] = [];
+  private waiting: { resolve: (line: string) => void; reject: (err: Error) => void } | null = null;
+  private failure = '';
+  private exited = false;
+
+  constructor() {
+    const env = { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
+    this.proc = spawn(PYTHON, ['-c', NUMPY_WORKER], { env });
+    this.proc.stderr.on('data', (chunk: Buffer) => (this.failure += chunk.toString()));
+    this.proc.on('exit', () => {
+      this.exited = true;
+      this.waiting?.reject(new Error(`numpy worker exited: ${this.failure.trim()}`));
+      this.waiting = null;
+    });
+    createInterface({ input: this.proc.stdout }).on('line', (line) => {
+      const waiting = this.waiting;
+      this.waiting = null;
+      if (waiting !== null) waiting.resolve(line);
+      else this.replies.push(line);
+    });
+  }
+
+  async call<T>(command: object): Promise<T> {
+    if (this.exited) throw new Error(`numpy worker exited: ${this.failure.trim()}`);
+    this.proc.stdin.write(JSON.stringify(command) + '\n');
+    const line = this.replies.shift() ?? (await new Promise<string>((resolve, reject) => (this.waiting = { resolve, reject })));
+    return JSON.parse(line) as T;
+  }
+
+  close(): void {
+    this.proc.stdin.end();
+  }
 }
 
-function timeNumpy(dir: string, n: number, batch: number, h: Float64Array): NumpyRates | null {
-  if (!existsSync(PYTHON)) return null;
-  const file = join(dir, `h${n}.bin`);
-  writeFileSync(file, new Uint8Array(h.buffer, h.byteOffset, h.byteLength));
-  const env = { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
-  const run = spawnSync(PYTHON, ['-c', NUMPY_SCRIPT, file, String(n), String(batch), String(ROUNDS), String(ROUND_SECONDS)], { env, encoding: 'utf8' });
-  if (run.status !== 0) {
-    process.stderr.write(`bench linalg: numpy unavailable (${run.stderr.trim().split('\n').pop() ?? run.status})\n`);
-    return null;
+/** Alternate rounds of ours and numpy's; best time per solve of each, as solves per second. */
+async function compare(
+  ours: (reps: number) => number,
+  numpy: ((reps: number) => Promise<number>) | null,
+  batch: number,
+): Promise<{ ours: number; numpy: number | null }> {
+  const first = ours(1);
+  const oursReps = Math.max(1, Math.ceil(ROUND_SECONDS / first));
+  let oursBest = first;
+  let numpyBest = Infinity;
+  let numpyReps = 1;
+  if (numpy !== null) {
+    const t = await numpy(1);
+    numpyBest = t;
+    numpyReps = Math.max(1, Math.ceil(ROUND_SECONDS / t));
   }
-  return JSON.parse(run.stdout) as NumpyRates;
+  for (let round = 0; round < ROUNDS; round++) {
+    oursBest = Math.min(oursBest, ours(oursReps));
+    if (numpy !== null) numpyBest = Math.min(numpyBest, await numpy(numpyReps));
+  }
+  return { ours: batch / oursBest, numpy: numpy === null ? null : batch / numpyBest };
 }
 
 export async function benchLinalg(): Promise<BenchRow[]> {
   const rows: BenchRow[] = [];
   const dir = mkdtempSync(join(tmpdir(), 'chernel-bench-linalg-'));
+  const worker = existsSync(PYTHON) ? new NumpyWorker() : null;
   try {
     for (const { n, batch, min } of CASES) {
       const h = randomHermitianBatch(n, batch, 1000 + n);
       const w = new Float64Array(batch * n);
       const vecs = new Float64Array(2 * n * n);
-      const oursVectors = timeOurs(n, batch, h, w, vecs);
-      const oursValues = timeOurs(n, batch, h, w, null);
-      const numpy = timeNumpy(dir, n, batch, h);
-      if (numpy !== null) {
+      let numpyFirst: number[] | null = null;
+      if (worker !== null) {
+        const file = join(dir, `h${n}.bin`);
+        writeFileSync(file, new Uint8Array(h.buffer, h.byteOffset, h.byteLength));
+        numpyFirst = await worker.call<number[]>({ op: 'load', file, n, batch });
+      }
+      const numpyTimer = (op: string) => (worker === null ? null : (reps: number) => worker.call<number>({ op, reps }));
+      const full = await compare(oursTimer(n, batch, h, w, vecs), numpyTimer('eigh'), batch);
+      const values = await compare(oursTimer(n, batch, h, w, null), numpyTimer('eigvalsh'), batch);
+      if (numpyFirst !== null) {
         // Same matrices, same spectrum: a bench that compared different work would be meaningless.
-        const gap = Math.max(...numpy.first.map((x, i) => Math.abs(x - w[i])));
+        const gap = Math.max(...numpyFirst.map((x, i) => Math.abs(x - w[i])));
         if (!(gap < 1e-8 * n)) throw new Error(`bench linalg: n = ${n}: eigenvalues differ from numpy by ${gap}`);
       }
       const row = (name: string, ours: number, reference: number | null, target: string): BenchRow => ({
@@ -148,10 +192,11 @@ export async function benchLinalg(): Promise<BenchRow[]> {
         target,
       });
       const words = min >= 1 ? `>= ${min}x numpy eigh` : `>= 1/${Math.round(1 / min)}x numpy eigh (time within ${Math.round(1 / min)}x)`;
-      rows.push(row(`eigh n=${n} (values + vectors)`, oursVectors, numpy?.eigh ?? null, words));
-      rows.push(row(`eigvalsh n=${n} (values only)`, oursValues, numpy?.eigvalsh ?? null, 'none (for information)'));
+      rows.push(row(`eigh n=${n} (values + vectors)`, full.ours, full.numpy, words));
+      rows.push(row(`eigvalsh n=${n} (values only)`, values.ours, values.numpy, 'none (for information)'));
     }
   } finally {
+    worker?.close();
     rmSync(dir, { recursive: true, force: true });
   }
   return rows;

@@ -133,7 +133,7 @@ export class HermitianEigensolver {
       hi = (acmx / lo) * acmn - (beta / lo) * beta;
     } else {
       hi = 0.5 * rt;
-      lo = -hi;
+      lo = 0 - hi;
     }
     w[wo] = lo * scale;
     w[wo + 1] = hi * scale;

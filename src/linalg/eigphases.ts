@@ -1,0 +1,350 @@
+/**
+ * Eigenphases of a unitary matrix (a Wilson loop): the eigenvalues e^{i phi}, phi in (-pi, pi],
+ * sorted ascending, by Householder reduction to Hessenberg form and the complex single-shift QR
+ * iteration to Schur form. A unitary matrix is normal, so its Schur form is diagonal and the Schur
+ * vectors are eigenvectors; exactly degenerate phases (Kramers pairs of Wannier centres) need no
+ * special care.
+ */
+import type { CMatrix } from './cmatrix.js';
+
+const EPS = 2 ** -52;
+/** Phases within this of -pi are reported as +pi. */
+const BRANCH_CUT = -Math.PI + 64 * EPS;
+
+function checkArray(name: string, x: ArrayLike<number>, offset: number, needed: number): void {
+  if (!Number.isInteger(offset) || offset < 0) {
+    throw new RangeError(`${name} offset must be a nonnegative integer. Value: ${offset}`);
+  }
+  if (x.length < offset + needed) {
+    throw new RangeError(`${name} must hold ${needed} entries from offset ${offset}. Value: length ${x.length}`);
+  }
+}
+
+export class UnitaryEigenphases {
+  readonly n: number;
+  /**
+   * The eigenvalues of the last solve, interleaved (re, im), in the order of the phases. Their
+   * moduli tell how far from unitary the input was.
+   */
+  readonly eigenvalues: Float64Array;
+  private readonly a: Float64Array;
+  private readonly q: Float64Array;
+  private readonly u: Float64Array;
+  private readonly s: Float64Array;
+  private readonly raw: Float64Array;
+  private readonly rawPhase: Float64Array;
+  private readonly order: Int32Array;
+
+  constructor(n: number) {
+    if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigenphase solver size must be a positive integer. Value: ${n}`);
+    this.n = n;
+    this.eigenvalues = new Float64Array(2 * n);
+    this.a = new Float64Array(2 * n * n);
+    this.q = new Float64Array(2 * n * n);
+    this.u = new Float64Array(2 * n);
+    this.s = new Float64Array(2 * n);
+    this.raw = new Float64Array(2 * n);
+    this.rawPhase = new Float64Array(n);
+    this.order = new Int32Array(n);
+  }
+
+  /**
+   * Phases of the eigenvalues of the (unitary) matrix `w` into `phases`, ascending in (-pi, pi]
+   * (a phase within 64 eps of -pi is reported as +pi);
+   * with `vecs`, the matching orthonormal eigenvectors into its columns. `w` is not modified.
+   * Returns `phases`.
+   */
+  solve(w: CMatrix, phases: Float64Array, vecs?: CMatrix): Float64Array {
+    return this.solveAt(w, 0, phases, 0, vecs ?? null, 0);
+  }
+
+  /** `solve` on matrices at offsets (in doubles) inside larger arrays. */
+  solveAt(w: CMatrix, wOffset: number, phases: Float64Array, phasesOffset: number, vecs: CMatrix | null, vecsOffset = 0): Float64Array {
+    const n = this.n;
+    checkArray('w', w, wOffset, 2 * n * n);
+    checkArray('phases', phases, phasesOffset, n);
+    if (vecs !== null) checkArray('vecs', vecs, vecsOffset, 2 * n * n);
+    const a = this.a;
+    let norm2 = 0;
+    for (let j = 0; j < 2 * n * n; j++) {
+      const x = w[wOffset + j];
+      a[j] = x;
+      norm2 += x * x;
+    }
+    if (!Number.isFinite(norm2)) {
+      for (let j = 0; j < 2 * n * n; j++) {
+        if (!Number.isFinite(w[wOffset + j])) {
+          const e = j >> 1;
+          throw new RangeError(`eigenphases: w[${Math.floor(e / n)}][${e % n}] is not finite. Value: ${w[wOffset + j]}`);
+        }
+      }
+      throw new RangeError('eigenphases: w is too large (its norm overflows)');
+    }
+    const wantVectors = vecs !== null;
+    if (wantVectors) {
+      this.q.fill(0);
+      for (let i = 0; i < n; i++) this.q[2 * (i * n + i)] = 1;
+    }
+    this.hessenberg(wantVectors);
+    this.schur(wantVectors, EPS * Math.sqrt(norm2));
+    const raw = this.raw;
+    const rawPhase = this.rawPhase;
+    const order = this.order;
+    for (let i = 0; i < n; i++) {
+      const re = a[2 * (i * n + i)];
+      const im = a[2 * (i * n + i) + 1];
+      raw[2 * i] = re;
+      raw[2 * i + 1] = im;
+      let phi = Math.atan2(im, re);
+      // Rounding puts an eigenvalue at -1 on either side of the cut; report it at +pi, so that
+      // a degenerate pair there stays together at the end of the list.
+      if (phi <= BRANCH_CUT) phi = Math.PI;
+      rawPhase[i] = phi;
+      let j = i - 1;
+      while (j >= 0 && rawPhase[order[j]] > phi) {
+        order[j + 1] = order[j];
+        j--;
+      }
+      order[j + 1] = i;
+    }
+    for (let c = 0; c < n; c++) {
+      const src = order[c];
+      phases[phasesOffset + c] = rawPhase[src];
+      this.eigenvalues[2 * c] = raw[2 * src];
+      this.eigenvalues[2 * c + 1] = raw[2 * src + 1];
+    }
+    if (vecs !== null) {
+      const q = this.q;
+      for (let c = 0; c < n; c++) {
+        const src = order[c];
+        for (let i = 0; i < n; i++) {
+          vecs[vecsOffset + 2 * (i * n + c)] = q[2 * (i * n + src)];
+          vecs[vecsOffset + 2 * (i * n + c) + 1] = q[2 * (i * n + src) + 1];
+        }
+      }
+    }
+    return phases;
+  }
+
+  /** A <- P A P column by column (P = I - beta u u^dagger Householder), Q <- Q P. */
+  private hessenberg(wantVectors: boolean): void {
+    const n = this.n;
+    const a = this.a;
+    const u = this.u;
+    const s = this.s;
+    for (let k = 0; k < n - 2; k++) {
+      let tail = 0;
+      for (let i = k + 2; i < n; i++) {
+        const xr = a[2 * (i * n + k)];
+        const xi = a[2 * (i * n + k) + 1];
+        tail += xr * xr + xi * xi;
+      }
+      if (tail === 0) continue;
+      const x0r = a[2 * ((k + 1) * n + k)];
+      const x0i = a[2 * ((k + 1) * n + k) + 1];
+      const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
+      const sigma = Math.sqrt(ax0 * ax0 + tail);
+      const cr = ax0 === 0 ? 1 : x0r / ax0;
+      const ci = ax0 === 0 ? 0 : x0i / ax0;
+      const beta = 1 / (sigma * (sigma + ax0));
+      u[2 * (k + 1)] = cr * (ax0 + sigma);
+      u[2 * (k + 1) + 1] = ci * (ax0 + sigma);
+      for (let i = k + 2; i < n; i++) {
+        u[2 * i] = a[2 * (i * n + k)];
+        u[2 * i + 1] = a[2 * (i * n + k) + 1];
+      }
+      // Left: rows k+1.., columns k+1.. (column k becomes alpha e1): s_j = sum_i conj(u_i) A_ij.
+      for (let j = k + 1; j < n; j++) s[2 * j] = s[2 * j + 1] = 0;
+      for (let i = k + 1; i < n; i++) {
+        const ur = u[2 * i];
+        const ui = u[2 * i + 1];
+        const row = 2 * i * n;
+        for (let j = k + 1; j < n; j++) {
+          const xr = a[row + 2 * j];
+          const xi = a[row + 2 * j + 1];
+          s[2 * j] += ur * xr + ui * xi;
+          s[2 * j + 1] += ur * xi - ui * xr;
+        }
+      }
+      for (let i = k + 1; i < n; i++) {
+        const ur = beta * u[2 * i];
+        const ui = beta * u[2 * i + 1];
+        const row = 2 * i * n;
+        for (let j = k + 1; j < n; j++) {
+          const sr = s[2 * j];
+          const si = s[2 * j + 1];
+          a[row + 2 * j] -= ur * sr - ui * si;
+          a[row + 2 * j + 1] -= ur * si + ui * sr;
+        }
+      }
+      a[2 * ((k + 1) * n + k)] = -cr * sigma;
+      a[2 * ((k + 1) * n + k) + 1] = -ci * sigma;
+      for (let i = k + 2; i < n; i++) a[2 * (i * n + k)] = a[2 * (i * n + k) + 1] = 0;
+      // Right: every row, columns k+1..: A <- A - beta (A u) u^dagger.
+      applyRight(n, a, u, k + 1, beta);
+      if (wantVectors) applyRight(n, this.q, u, k + 1, beta);
+    }
+  }
+
+  /** Complex single-shift QR on the Hessenberg matrix in `a` until it is upper triangular. */
+  private schur(wantVectors: boolean, small: number): void {
+    const n = this.n;
+    const a = this.a;
+    const q = this.q;
+    let hi = n - 1;
+    let iter = 0;
+    while (hi > 0) {
+      let l = hi;
+      while (l > 0) {
+        const sr = a[2 * (l * n + l - 1)];
+        const si = a[2 * (l * n + l - 1) + 1];
+        if (Math.abs(sr) + Math.abs(si) <= small) {
+          a[2 * (l * n + l - 1)] = a[2 * (l * n + l - 1) + 1] = 0;
+          break;
+        }
+        l--;
+      }
+      if (l === hi) {
+        hi--;
+        iter = 0;
+        continue;
+      }
+      if (++iter > 100) throw new RangeError(`eigenphases: the QR iteration did not converge (n = ${this.n}); is w finite?`);
+      // Shift: the eigenvalue of the trailing 2x2 block nearer its last diagonal entry (Wilkinson),
+      // or an ad hoc one every 10 iterations (a plain shift stalls on, e.g., cyclic permutations).
+      const t = 2 * ((hi - 1) * n + hi - 1);
+      const ar = a[t], ai = a[t + 1];
+      const br = a[t + 2], bi = a[t + 3];
+      const cr = a[t + 2 * n], ci = a[t + 2 * n + 1];
+      const dr = a[t + 2 * n + 2], di = a[t + 2 * n + 3];
+      let mr: number;
+      let mi: number;
+      if (iter % 10 === 0) {
+        mr = dr + 0.75 * Math.abs(cr) + 0.4375 * Math.abs(ci);
+        mi = di + 0.4375 * Math.abs(cr) - 0.75 * Math.abs(ci);
+      } else {
+        // mu = d - bc / (delta + sqrt(delta^2 + bc)), delta = (a - d)/2, root taken so |denominator| is largest.
+        const er = 0.5 * (ar - dr), ei = 0.5 * (ai - di);
+        const pr = br * cr - bi * ci, pi = br * ci + bi * cr;
+        const zr = er * er - ei * ei + pr, zi = 2 * er * ei + pi;
+        const mod = Math.hypot(zr, zi);
+        let sqr = 0;
+        let sqi = 0;
+        if (mod !== 0) {
+          if (zr >= 0) {
+            sqr = Math.sqrt(0.5 * (mod + zr));
+            sqi = zi / (2 * sqr);
+          } else {
+            sqi = Math.sqrt(0.5 * (mod - zr));
+            if (zi < 0) sqi = -sqi;
+            sqr = zi / (2 * sqi);
+          }
+        }
+        if (er * sqr + ei * sqi < 0) {
+          sqr = -sqr;
+          sqi = -sqi;
+        }
+        const denr = er + sqr, deni = ei + sqi;
+        const den2 = denr * denr + deni * deni;
+        if (den2 === 0) {
+          mr = dr;
+          mi = di;
+        } else {
+          mr = dr - (pr * denr + pi * deni) / den2;
+          mi = di - (pi * denr - pr * deni) / den2;
+        }
+      }
+      // Implicit QR sweep over the active block [l, hi]: chase the bulge with Givens rotations.
+      let fr = a[2 * (l * n + l)] - mr;
+      let fi = a[2 * (l * n + l) + 1] - mi;
+      let gr = a[2 * ((l + 1) * n + l)];
+      let gi = a[2 * ((l + 1) * n + l) + 1];
+      for (let k = l; k < hi; k++) {
+        if (k > l) {
+          fr = a[2 * (k * n + k - 1)];
+          fi = a[2 * (k * n + k - 1) + 1];
+          gr = a[2 * ((k + 1) * n + k - 1)];
+          gi = a[2 * ((k + 1) * n + k - 1) + 1];
+        }
+        // G = [[c, s], [-conj(s), c]] with G (f, g) = (r, 0), c real.
+        const fa = Math.hypot(fr, fi);
+        const ga = Math.hypot(gr, gi);
+        if (ga === 0) continue;
+        let c: number;
+        let sr: number;
+        let si: number;
+        if (fa === 0) {
+          c = 0;
+          sr = gr / ga;
+          si = -gi / ga;
+        } else {
+          const nrm = Math.hypot(fa, ga);
+          c = fa / nrm;
+          const pr = fr / fa, pi = fi / fa;
+          sr = (pr * gr + pi * gi) / nrm;
+          si = (pi * gr - pr * gi) / nrm;
+        }
+        const j0 = k > l ? k - 1 : l;
+        const rk = 2 * k * n;
+        const rk1 = rk + 2 * n;
+        for (let j = j0; j <= hi; j++) {
+          const xr = a[rk + 2 * j], xi = a[rk + 2 * j + 1];
+          const yr = a[rk1 + 2 * j], yi = a[rk1 + 2 * j + 1];
+          a[rk + 2 * j] = c * xr + sr * yr - si * yi;
+          a[rk + 2 * j + 1] = c * xi + sr * yi + si * yr;
+          a[rk1 + 2 * j] = c * yr - (sr * xr + si * xi);
+          a[rk1 + 2 * j + 1] = c * yi - (sr * xi - si * xr);
+        }
+        if (k > l) a[rk1 + 2 * (k - 1)] = a[rk1 + 2 * (k - 1) + 1] = 0;
+        const iEnd = Math.min(k + 2, hi);
+        rotateColumns(n, a, k, l, iEnd, c, sr, si);
+        if (wantVectors) rotateColumns(n, q, k, 0, n - 1, c, sr, si);
+      }
+    }
+  }
+}
+
+/** M <- M (I - beta u u^dagger) on columns from..n-1 (u stored at those indices). */
+function applyRight(n: number, m: Float64Array, u: Float64Array, from: number, beta: number): void {
+  for (let i = 0; i < n; i++) {
+    const row = 2 * i * n;
+    let tr = 0;
+    let ti = 0;
+    for (let j = from; j < n; j++) {
+      const xr = m[row + 2 * j], xi = m[row + 2 * j + 1];
+      const ur = u[2 * j], ui = u[2 * j + 1];
+      tr += xr * ur - xi * ui;
+      ti += xr * ui + xi * ur;
+    }
+    tr *= beta;
+    ti *= beta;
+    for (let j = from; j < n; j++) {
+      const ur = u[2 * j], ui = u[2 * j + 1];
+      // subtract t conj(u_j)
+      m[row + 2 * j] -= tr * ur + ti * ui;
+      m[row + 2 * j + 1] -= ti * ur - tr * ui;
+    }
+  }
+}
+
+/** M <- M G^dagger on columns k, k+1, rows i0..i1: col k = c x + conj(s) y, col k+1 = -s x + c y. */
+function rotateColumns(n: number, m: Float64Array, k: number, i0: number, i1: number, c: number, sr: number, si: number): void {
+  for (let i = i0; i <= i1; i++) {
+    const p = 2 * (i * n + k);
+    const xr = m[p], xi = m[p + 1];
+    const yr = m[p + 2], yi = m[p + 3];
+    m[p] = c * xr + sr * yr + si * yi;
+    m[p + 1] = c * xi + sr * yi - si * yr;
+    m[p + 2] = c * yr - (sr * xr - si * xi);
+    m[p + 3] = c * yi - (sr * xi + si * xr);
+  }
+}
+
+/** Convenience: eigenphases (and eigenvectors) of one unitary matrix, allocating. */
+export function eigenphases(n: number, w: CMatrix): { phases: Float64Array; vectors: CMatrix } {
+  const solver = new UnitaryEigenphases(n);
+  const phases = new Float64Array(n);
+  const vectors = new Float64Array(2 * n * n);
+  solver.solve(w, phases, vectors);
+  return { phases, vectors };
+}
