@@ -31,7 +31,9 @@ export interface DiagnosticRequest {
 }
 
 export interface Checks {
-  minGap: number;
+  /** Smallest gap of the chosen band group; null when not measured. */
+  minGap: number | null;
+  /** Where, in units of the reciprocal lattice vectors. */
   minGapAt?: number[];
   grid?: number[];
   warnings: string[];

@@ -6,8 +6,8 @@ const CSS = `
 .chernel-title { font-weight: 600; }
 .chernel-summary { font-variant-numeric: tabular-nums; }
 .chernel-summary[data-gapless="true"] { color: #a15c00; font-weight: 600; }
-.chernel-controls { display: grid; grid-template-columns: repeat(auto-fill, minmax(250px, 1fr)); gap: 4px 16px; margin: 4px 0 8px; }
-.chernel-control { display: grid; grid-template-columns: 7em 1fr 6.5em; align-items: center; gap: 6px; }
+.chernel-controls { display: grid; grid-template-columns: repeat(auto-fill, minmax(300px, 1fr)); gap: 4px 20px; margin: 4px 0 8px; }
+.chernel-control { display: grid; grid-template-columns: 6.5em minmax(80px, 1fr) 5.5em; align-items: center; gap: 6px; min-width: 0; }
 .chernel-control-name { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
 .chernel-control-value { width: 100%; box-sizing: border-box; font: inherit; }
 .chernel-plot { width: 100%; height: 440px; }

@@ -19,7 +19,8 @@ scope.onmessage = (event) => {
   const started = performance.now();
   let reply: ComputeReply;
   try {
-    const result = compute(request as Parameters<typeof compute>[0]) as unknown as DiagnosticResult;
+    // The request came from widget state: compute() validates it and names any bad field.
+    const result = compute(request as unknown as Parameters<typeof compute>[0]) as unknown as DiagnosticResult;
     reply = { id, ok: true, result, ms: performance.now() - started };
   } catch (err) {
     const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };

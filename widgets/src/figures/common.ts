@@ -68,20 +68,26 @@ export function fmt(value: number, digits = 3): string {
   return abs >= 1e4 || abs < 1e-3 ? value.toExponential(digits - 1) : String(Number(value.toPrecision(digits)));
 }
 
-/** The energy unit of a model: the unit its parameters share, if they name one. */
+/** The energy unit of a model: the unit most of its parameters share (angles excluded). */
 export function energyUnit(spec: ModelSpecView): string {
-  const units = new Set(Object.values(spec.parameters).map((p) => p.unit).filter((u): u is string => !!u));
-  return units.size === 1 ? [...units][0] : '';
+  const counts = new Map<string, number>();
+  for (const p of Object.values(spec.parameters)) {
+    if (p.unit && p.unit !== 'rad' && p.unit !== 'deg') counts.set(p.unit, (counts.get(p.unit) ?? 0) + 1);
+  }
+  let best = '';
+  for (const [unit, n] of counts) if (n > (counts.get(best) ?? 0)) best = unit;
+  return best;
 }
 
 export function withUnit(label: string, unit: string): string {
   return unit ? `${label} [${unit}]` : label;
 }
 
-/** A gap line for summaries: "min gap 0.42 eV" or the closing point when gapless. */
+/** A gap line for summaries: "min gap 0.42 eV" or the closing point (minGapAt is in units of b_i) when gapless. */
 export function gapText(result: DiagnosticResult, unit: string): string {
   const { minGap, minGapAt, gapless } = result.checks;
-  const at = minGapAt && minGapAt.length ? ` at k = (${minGapAt.map((k) => fmt(k / (2 * Math.PI))).join(', ')})` : '';
+  if (minGap === null || minGap === undefined) return 'gap not measured';
+  const at = minGapAt && minGapAt.length ? ` at k = (${minGapAt.map((k) => fmt(k)).join(', ')})` : '';
   if (gapless) return `gapless${at} (gap ${fmt(minGap)}${unit ? ' ' + unit : ''})`;
   return `min gap ${fmt(minGap)}${unit ? ' ' + unit : ''}`;
 }

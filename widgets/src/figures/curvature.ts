@@ -21,24 +21,34 @@ import {
   type Table,
 } from './common.js';
 
-/** Reduced coordinate of grid point i of n on [-1/2, 1/2): the engine samples k = -pi + 2pi i/n. */
-export function gridAxis(n: number): number[] {
-  return Array.from({ length: n }, (_, i) => -0.5 + i / n);
-}
-
 interface CurvatureData {
   n1: number;
   n2: number;
-  /** Curvature at (i1, i2), stored i1-major: omega[i1 * n2 + i2]. */
+  /** Sample momenta in units of the reciprocal lattice (k / 2pi). */
+  x1: number[];
+  x2: number[];
+  /** Curvature per rad^2 at (k1[a], k2[b]), stored k2-major: omega[b * n1 + a]. */
   omega: ArrayLike<number>;
   chern: number | null;
 }
 
 function read(result: DiagnosticResult): CurvatureData {
   const [n1, n2] = gridOf(result);
-  const omega = numberArray(result, 'curvature');
-  if (omega.length !== n1 * n2) throw new Error(`curvature result: ${omega.length} values for a ${n1}x${n2} grid`);
-  return { n1, n2, omega, chern: optionalNumber(result, 'chern') };
+  const omega = numberArray(result, 'values');
+  const k1 = numberArray(result, 'k1');
+  const k2 = numberArray(result, 'k2');
+  if (omega.length !== n1 * n2 || k1.length !== n1 || k2.length !== n2) {
+    throw new Error(`curvature result: ${omega.length} values, ${k1.length} x ${k2.length} momenta for a ${n1}x${n2} grid`);
+  }
+  const turns = (k: ArrayLike<number>) => Array.from(k, (v) => v / (2 * Math.PI));
+  return { n1, n2, x1: turns(k1), x2: turns(k2), omega, chern: integerOrValue(optionalNumber(result, 'total')) };
+}
+
+/** A lattice Chern number is an integer up to rounding; show it as one. */
+export function integerOrValue(value: number | null): number | null {
+  if (value === null) return null;
+  const nearest = Math.round(value);
+  return Math.abs(value - nearest) < 1e-6 ? nearest : value;
 }
 
 /** How many times to repeat the torus along each axis so the first zone fits in the picture. */
@@ -52,20 +62,18 @@ function tiling(corners: [number, number][] | null): { from: number; to: number 
 }
 
 export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
-  const { n1, n2, omega, chern } = read(result);
+  const { n1, n2, x1, x2, omega, chern } = read(result);
   const corners = ctx.spec.vectors.length >= 2 && ctx.spec.periodic >= 2 ? boundaryReduced(ctx.spec.vectors) : null;
   const [t1, t2] = tiling(corners);
 
   // Periodic copies of the torus so a hexagonal zone is covered; rows are k2, columns k1.
-  const base1 = gridAxis(n1);
-  const base2 = gridAxis(n2);
   const x: number[] = [];
-  for (let s = t1.from; s < t1.to; s++) for (const v of base1) x.push(v + s);
+  for (let s = t1.from; s < t1.to; s++) for (const v of x1) x.push(v + s);
   const y: number[] = [];
-  for (let s = t2.from; s < t2.to; s++) for (const v of base2) y.push(v + s);
+  for (let s = t2.from; s < t2.to; s++) for (const v of x2) y.push(v + s);
   const z: number[][] = y.map((_, r) => {
-    const i2 = r % n2;
-    return x.map((__, c) => omega[(c % n1) * n2 + i2]);
+    const row = (r % n2) * n1;
+    return x.map((__, c) => omega[row + (c % n1)]);
   });
   let peak = 0;
   for (let i = 0; i < omega.length; i++) peak = Math.max(peak, Math.abs(omega[i]));
@@ -80,7 +88,7 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
       zmin: -peak || -1,
       zmax: peak || 1,
       colorscale: DIVERGING,
-      colorbar: { title: { text: 'Ω (reduced)' } },
+      colorbar: { title: { text: 'Ω [rad⁻²]' } },
       hovertemplate: 'k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>Ω = %{z:.4g}<extra></extra>',
       name: 'Berry curvature',
     },
@@ -103,8 +111,8 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
     data.push({
       type: 'scatter',
       mode: 'markers',
-      x: [at[0] / (2 * Math.PI)],
-      y: [at[1] / (2 * Math.PI)],
+      x: [at[0]],
+      y: [at[1]],
       marker: CLOSING_MARKER,
       name: 'gap closes',
       hovertemplate: 'gap closes here<br>k = (%{x:.3f}, %{y:.3f})<extra></extra>',
@@ -116,8 +124,15 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   const invariant = gapless ? null : chern;
   const head = invariant === null ? 'C withheld' : `C = ${fmt(invariant)}`;
   const summary = `${head} · ${gapText(result, unit)}`;
-  const xRange: [number, number] = corners ? [t1.from - 0.5, t1.to - 0.5] : [-0.5, 0.5];
-  const yRange: [number, number] = corners ? [t2.from - 0.5, t2.to - 0.5] : [-0.5, 0.5];
+  const span = (axis: 0 | 1): [number, number] => {
+    if (corners === null) return [-0.5, 0.5];
+    const lo = Math.min(...corners.map((c) => c[axis]));
+    const hi = Math.max(...corners.map((c) => c[axis]));
+    const pad = 0.06 * (hi - lo);
+    return [lo - pad, hi + pad];
+  };
+  const xRange = span(0);
+  const yRange = span(1);
   return {
     data,
     layout: {
@@ -133,10 +148,8 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
 }
 
 export function curvatureTable(result: DiagnosticResult): Table {
-  const { n1, n2, omega } = read(result);
-  const a1 = gridAxis(n1);
-  const a2 = gridAxis(n2);
+  const { n1, n2, x1, x2, omega } = read(result);
   const rows: number[][] = [];
-  for (let i1 = 0; i1 < n1; i1++) for (let i2 = 0; i2 < n2; i2++) rows.push([a1[i1], a2[i2], omega[i1 * n2 + i2]]);
-  return { columns: ['k1 [b1]', 'k2 [b2]', 'curvature'], rows };
+  for (let b = 0; b < n2; b++) for (let a = 0; a < n1; a++) rows.push([x1[a], x2[b], omega[b * n1 + a]]);
+  return { columns: ['k1 [b1]', 'k2 [b2]', 'curvature [rad^-2]'], rows };
 }

@@ -1,7 +1,9 @@
 /** Rendering by result kind: result -> plotly figure, and result -> data table for export. */
 import type { DiagnosticResult } from '../protocol.js';
 import type { Figure, FigureContext, Table } from './common.js';
+import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
+import { flowFigure, flowTable } from './flow.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -12,6 +14,8 @@ interface Renderer {
 
 const RENDERERS: Record<string, Renderer> = {
   curvature: { figure: curvatureFigure, table: curvatureTable },
+  'wannier-flow': { figure: flowFigure, table: flowTable },
+  bands: { figure: bandsFigure, table: bandsTable },
 };
 
 function rendererFor(kind: string): Renderer {

@@ -1,0 +1,258 @@
+/**
+ * The kernel side of chernel's widgets. `showWidget(model, options)` computes the first result with
+ * the engine, opens a `jupyter.widget` comm carrying the state (model description, parameter
+ * values, options, result; typed arrays as binary buffers) and returns a handle that displays as
+ * `application/vnd.jupyter.widget-view+json`. The front end recomputes as controls move and syncs
+ * values and results back here; a cell reads them (`w.values`, `w.result`) and moves the controls
+ * (`w.setValues({...})`).
+ */
+
+import { compute, resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
+import { openComm, type Comm, type CommMessage } from './comms.js';
+import { MIME_BUNDLE } from './display/index.js';
+import { packArrays, putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
+
+export const WIDGET_MODULE = 'chernel-widgets';
+/** The semver range of the front-end module the state is written for. */
+export const WIDGET_MODULE_VERSION = '^0.1.0';
+export const WIDGET_PROTOCOL_VERSION = '2.1.0';
+export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+
+export type WidgetKind = 'curvature' | 'wannier-flow' | 'bands' | 'ribbon' | 'phase-map';
+export const WIDGET_KINDS: readonly WidgetKind[] = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map'];
+
+type Values = Record<string, number>;
+type Result = Record<string, unknown> & { kind: string };
+
+export interface WidgetOptions {
+  /** What to draw (default 'curvature'). */
+  kind?: WidgetKind;
+  /** Starting parameter values (defaults from the model for the rest). */
+  values?: Values;
+  title?: string;
+  /** Everything else is passed to the engine with the request: grid, bands, path, axes, ... */
+  [option: string]: unknown;
+}
+
+export class WidgetOptionError extends Error {
+  constructor(field: string, message: string) {
+    super(`${field}: ${message}`);
+    this.name = 'WidgetOptionError';
+  }
+}
+
+/** The widget's synced state before buffers are lifted out. */
+export function widgetState(fields: {
+  kind: WidgetKind;
+  spec: ModelSpec;
+  options: Record<string, unknown>;
+  values: Values;
+  result: Result | null;
+  error: string;
+  title: string;
+}): Record<string, unknown> {
+  return {
+    _model_name: 'DiagnosticModel',
+    _model_module: WIDGET_MODULE,
+    _model_module_version: WIDGET_MODULE_VERSION,
+    _view_name: 'DiagnosticView',
+    _view_module: WIDGET_MODULE,
+    _view_module_version: WIDGET_MODULE_VERSION,
+    _view_count: null,
+    _dom_classes: [],
+    tabbable: null,
+    tooltip: null,
+    title: fields.title,
+    kind: fields.kind,
+    spec: fields.spec,
+    options: fields.options,
+    values: fields.values,
+    result: fields.result === null ? null : packArrays(fields.result),
+    result_values: fields.result === null ? null : fields.values,
+    error: fields.error,
+  };
+}
+
+/**
+ * A widget's entry in a notebook's saved widget state (`metadata.widgets[WIDGET_STATE_MIME].state`),
+ * as JupyterLab writes it: binary buffers inline as base64 beside their paths.
+ */
+export function savedStateEntry(state: Record<string, unknown>): Record<string, unknown> {
+  const split = removeBuffers(state);
+  return {
+    model_name: state._model_name,
+    model_module: state._model_module,
+    model_module_version: state._model_module_version,
+    state: split.state,
+    buffers: split.buffers.map((b, i) => ({
+      path: split.buffer_paths[i],
+      encoding: 'base64',
+      data: Buffer.from(b.buffer, b.byteOffset, b.byteLength).toString('base64'),
+    })),
+  };
+}
+
+/** Checks a parameter update against the model: known names, finite numbers, declared ranges. */
+export function checkValues(spec: ModelSpec, values: unknown, field = 'values'): Values {
+  if (values === null || typeof values !== 'object' || Array.isArray(values)) {
+    throw new WidgetOptionError(field, `expected an object of parameter values. Value: ${JSON.stringify(values)}`);
+  }
+  const out: Values = {};
+  for (const [name, value] of Object.entries(values)) {
+    const decl = spec.parameters[name];
+    if (decl === undefined) {
+      const known = Object.keys(spec.parameters).join(', ') || 'none';
+      throw new WidgetOptionError(`${field}.${name}`, `not a parameter of model "${spec.name}" (parameters: ${known})`);
+    }
+    if (typeof value !== 'number' || !Number.isFinite(value)) {
+      throw new WidgetOptionError(`${field}.${name}`, `expected a finite number. Value: ${JSON.stringify(value)}`);
+    }
+    if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
+      throw new WidgetOptionError(`${field}.${name}`, `outside its range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`);
+    }
+    out[name] = value;
+  }
+  return out;
+}
+
+function describeError(err: unknown): string {
+  return err instanceof Error ? `${err.name}: ${err.message}` : String(err);
+}
+
+/** A live widget: its state mirrors the front end's; display it to show a view. */
+export class TopologyWidget {
+  readonly kind: WidgetKind;
+  readonly spec: ModelSpec;
+  readonly options: Record<string, unknown>;
+  readonly title: string;
+  private current: Values;
+  private lastResult: Result | null;
+  private resultValues: Values | null;
+  private lastError: string;
+  private readonly comm: Comm;
+  private readonly listeners: ((widget: TopologyWidget) => void)[] = [];
+
+  constructor(model: unknown, options: WidgetOptions = {}) {
+    const { kind = 'curvature', values = {}, title = '', ...requestOptions } = options;
+    if (!WIDGET_KINDS.includes(kind)) {
+      throw new WidgetOptionError('kind', `expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(kind)}`);
+    }
+    this.kind = kind;
+    this.spec = validateModel(model);
+    this.options = requestOptions;
+    this.title = String(title);
+    this.current = resolveParameters(this.spec, checkValues(this.spec, values));
+    this.lastResult = null;
+    this.resultValues = null;
+    this.lastError = '';
+    try {
+      this.lastResult = this.computeNow(this.current);
+      this.resultValues = { ...this.current };
+    } catch (err) {
+      this.lastError = describeError(err);
+    }
+    const split = removeBuffers(this.state());
+    this.comm = openComm(
+      'jupyter.widget',
+      { state: split.state, buffer_paths: split.buffer_paths },
+      { metadata: { version: WIDGET_PROTOCOL_VERSION }, buffers: split.buffers },
+    );
+    this.comm.onMessage((msg) => this.received(msg));
+  }
+
+  get modelId(): string {
+    return this.comm.id;
+  }
+
+  /** The parameter values the controls show (synced from the front end). */
+  get values(): Values {
+    return { ...this.current };
+  }
+
+  /** The last result (computed here at creation, then by the front end as values move). */
+  get result(): Result | null {
+    return this.lastResult;
+  }
+
+  /** The values `result` was computed for. */
+  get resultFor(): Values | null {
+    return this.resultValues === null ? null : { ...this.resultValues };
+  }
+
+  /** The last engine error shown in the widget, or '' when none. */
+  get error(): string {
+    return this.lastError;
+  }
+
+  /** Move the controls: the front end recomputes and syncs the result back. */
+  setValues(values: Values): this {
+    const checked = checkValues(this.spec, values, 'setValues');
+    this.current = { ...this.current, ...checked };
+    this.send({ values: this.current });
+    return this;
+  }
+
+  /** Called after every change synced from the front end. */
+  onChange(listener: (widget: TopologyWidget) => void): this {
+    this.listeners.push(listener);
+    return this;
+  }
+
+  close(): void {
+    this.comm.close();
+  }
+
+  [MIME_BUNDLE](): Record<string, unknown> {
+    return {
+      [WIDGET_VIEW_MIME]: { model_id: this.comm.id, version_major: 2, version_minor: 0 },
+      'text/plain': `${this.kind} widget for model "${this.spec.name}" (${Object.entries(this.current)
+        .map(([k, v]) => `${k} = ${v}`)
+        .join(', ')})`,
+    };
+  }
+
+  private computeNow(values: Values): Result {
+    const request = { ...this.options, kind: this.kind, model: this.spec, params: values };
+    return compute(request as Parameters<typeof compute>[0]) as unknown as Result;
+  }
+
+  /** The full synced state (typed arrays packed, not yet lifted out as buffers). */
+  state(): Record<string, unknown> {
+    return widgetState({
+      kind: this.kind,
+      spec: this.spec,
+      options: this.options,
+      values: this.current,
+      result: this.lastResult,
+      error: this.lastError,
+      title: this.title,
+    });
+  }
+
+  private send(patch: Record<string, unknown>): void {
+    const split = removeBuffers(patch);
+    this.comm.send({ method: 'update', state: split.state, buffer_paths: split.buffer_paths }, { buffers: split.buffers });
+  }
+
+  private received(msg: CommMessage): void {
+    const data = msg.data as { method?: string; state?: Record<string, unknown>; buffer_paths?: BufferPath[] };
+    if (data.method === 'request_state') {
+      const split = removeBuffers(this.state());
+      this.comm.send({ method: 'update', state: split.state, buffer_paths: split.buffer_paths }, { buffers: split.buffers });
+      return;
+    }
+    if (data.method !== 'update' || data.state === undefined) return;
+    const state = data.state;
+    putBuffers(state, data.buffer_paths ?? [], msg.buffers);
+    if (state.values !== undefined) this.current = checkValues(this.spec, state.values, 'values (from the front end)');
+    if (state.result !== undefined) this.lastResult = state.result === null ? null : (unpackArrays(state.result) as Result);
+    if (state.result_values !== undefined) this.resultValues = state.result_values as Values | null;
+    if (typeof state.error === 'string') this.lastError = state.error;
+    for (const listener of this.listeners) listener(this);
+  }
+}
+
+/** `show(model, options)` in a cell: a widget for the model, displayed by the caller. */
+export function createWidget(model: unknown, options: WidgetOptions = {}): TopologyWidget {
+  return new TopologyWidget(model, options);
+}

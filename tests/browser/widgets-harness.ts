@@ -1,0 +1,142 @@
+// Shared by the widget browser tests and the widget bench: a demo notebook whose widget state is
+// written by the kernel's own code (kernel/widgets.ts) with engine results, its standalone HTML
+// export, and headless Chromium opened on it from a file:// URL.
+import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { exportHtmlCommand, WIDGET_STATE_MIME } from '../../kernel/export-html.js';
+import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widgets.js';
+import { compute, haldane, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
+
+export const projectDir = resolve(import.meta.dirname, '../..');
+export const artifactsDir = resolve(process.env.CHERNEL_ARTIFACTS ?? join(projectDir, 'test-artifacts'));
+
+export interface DemoWidget {
+  id: string;
+  kind: WidgetKind;
+  spec: ModelSpec;
+  options: Record<string, unknown>;
+  values?: Record<string, number>;
+  title?: string;
+}
+
+/** QWZ with an extra parameter whose zero makes an amplitude infinite: a demo of an engine error. */
+export function fragileQwz(): ModelSpec {
+  const spec = qwz();
+  return {
+    ...spec,
+    name: 'qwz-fragile',
+    parameters: { ...spec.parameters, w: { default: 1, range: [0, 2], doc: 'demo only: log(w) is added to the first onsite energy' } },
+    terms: spec.terms.map((t, i) => (i === 0 ? { ...t, amplitude: `(${String(t.amplitude)}) + log(w)` } : t)),
+  };
+}
+
+/** The demo widgets: the state each one's kernel object would send, as saved in a notebook. */
+export function demoWidgets(): DemoWidget[] {
+  return [
+    { id: 'c0ffee0000000000000000000000a001', kind: 'curvature', spec: haldane(), options: { grid: 48, bands: 1 } },
+    { id: 'c0ffee0000000000000000000000a002', kind: 'wannier-flow', spec: qwz(), options: { grid: [32, 48], bands: 1 } },
+    { id: 'c0ffee0000000000000000000000a003', kind: 'curvature', spec: fragileQwz(), options: { grid: 24, bands: 1 } },
+  ];
+}
+
+export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
+  const state: Record<string, unknown> = {};
+  const cells: Record<string, unknown>[] = [
+    { cell_type: 'markdown', metadata: {}, source: '# Widgets demo\n\nDrag a control: the plot recomputes in the page.' },
+  ];
+  widgets.forEach((w, i) => {
+    const values = resolveParameters(w.spec, w.values ?? {});
+    const request = { ...w.options, kind: w.kind, model: w.spec, params: values };
+    const result = compute(request as Parameters<typeof compute>[0]) as unknown as Record<string, unknown> & { kind: string };
+    state[w.id] = savedStateEntry(
+      widgetState({ kind: w.kind, spec: w.spec, options: w.options, values, result, error: '', title: w.title ?? '' }),
+    );
+    cells.push({
+      cell_type: 'code',
+      metadata: {},
+      execution_count: i + 1,
+      source: `show(${w.spec.name}, { kind: '${w.kind}' })`,
+      outputs: [
+        {
+          output_type: 'display_data',
+          metadata: {},
+          data: { 'text/plain': `${w.kind} widget`, [WIDGET_VIEW_MIME]: { model_id: w.id, version_major: 2, version_minor: 0 } },
+        },
+      ],
+    });
+  });
+  return {
+    nbformat: 4,
+    nbformat_minor: 5,
+    metadata: {
+      kernelspec: { name: 'chernel', display_name: 'chernel (TypeScript)', language: 'typescript' },
+      widgets: { [WIDGET_STATE_MIME]: { version_major: 2, version_minor: 0, state } },
+    },
+    cells,
+  };
+}
+
+/** Writes the notebook and its HTML export into a fresh folder; returns the page's path. */
+export function exportDemo(widgets: DemoWidget[] = demoWidgets(), name = 'widgets-demo'): { notebook: string; page: string } {
+  const dir = mkdtempSync(join(tmpdir(), 'chernel-widgets-'));
+  const notebook = join(dir, `${name}.ipynb`);
+  const page = join(dir, `${name}.html`);
+  writeFileSync(notebook, JSON.stringify(notebookFor(widgets), null, 1));
+  const messages: string[] = [];
+  const code = exportHtmlCommand([notebook, '-o', page], (line) => messages.push(line));
+  if (code !== 0) throw new Error(`export-html failed (${code}): ${messages.join('\n')}`);
+  return { notebook, page };
+}
+
+const chromiumArgs = [
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
+
+export interface OpenedPage {
+  context: BrowserContext;
+  page: Page;
+  /** Page errors and console errors seen so far. */
+  errors: string[];
+  close(): Promise<void>;
+}
+
+/** Headless Chromium (Debian's) with a fresh profile, on a file:// URL; waits for the widgets. */
+export async function openPage(path: string): Promise<OpenedPage> {
+  const profile = mkdtempSync(join(tmpdir(), 'chernel-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: '/usr/bin/chromium',
+    headless: true,
+    args: chromiumArgs,
+    viewport: { width: 1000, height: 900 },
+    acceptDownloads: true,
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  const errors: string[] = [];
+  page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
+  page.on('console', (m) => {
+    if (m.type() === 'error') errors.push(`console: ${m.text()}`);
+  });
+  await page.goto(`file://${path}`);
+  await page.waitForFunction(() => window.chernelWidgets !== undefined);
+  await page.evaluate(() => window.chernelWidgets!.ready);
+  return { context, page, errors, close: () => context.close() };
+}
+
+export function artifactPath(name: string): string {
+  mkdirSync(artifactsDir, { recursive: true });
+  return join(artifactsDir, name);
+}
+
+declare global {
+  interface Window {
+    chernelWidgets?: { ready: Promise<number> };
+  }
+}
