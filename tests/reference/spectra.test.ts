@@ -1,6 +1,8 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { bands, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice } from '../../src/index.js';
+import {
+  bands, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice, qwz as catalogueQwz, ribbonSpectrum, ssh, weyl2band,
+} from '../../src/index.js';
 
 // Qi–Wu–Zhang, H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz (Qi, Wu, Zhang, PRB 74, 085308 (2006)).
 function qwz(u: number) {
@@ -133,6 +135,14 @@ describe('Weyl points in 3D from the closed form |d(k)| = 0 (common practice)', 
   });
 });
 
+describe('Weyl points of the catalogue model, at (0, 0, ±k0) by its closed form (common practice)', () => {
+  it('k0 = 1: exactly two nodes, found from a coarse grid', () => {
+    const closed = findGapClosings(weyl2band(), { params: { k0: 1 }, bands: 1, grid: 9 }).points.filter((p) => p.closed);
+    expect(closed.map((p) => p.k[2]).sort((a, b) => a - b)).toEqual([expect.closeTo(-1, 7), expect.closeTo(1, 7)]);
+    for (const p of closed) expect(Math.hypot(p.k[0], p.k[1])).toBeLessThan(1e-7);
+  });
+});
+
 describe('square-lattice tight binding, E = -2t(cos kx + cos ky) (common practice)', () => {
   const t = 1;
   const model = lattice('square', [[2, 0], [0, 2]]).parameter('t', { default: t }).site('s', [0, 0])
@@ -198,4 +208,68 @@ print(json.dumps({"exact": exact.tolist(), "hist": np.interp(E, centres, hist).t
     dos.density.forEach((d, j) => { if (d > dos.density[peak]) peak = j; });
     expect(Math.abs(dos.energy[peak])).toBeLessThan(2 * dos.binWidth);
   });
+});
+
+describe('QWZ ribbon: chiral edge modes iff the bulk is topological (bulk–boundary correspondence, common practice; phases from Qi, Wu, Zhang 2006)', () => {
+  const width = 24;
+  /** In-gap states (|E| < window) with their k and edge weights. */
+  function inGap(u: number, direction: number) {
+    const r = ribbonSpectrum(catalogueQwz(), { params: { u }, direction, width, nk: 101, edgeLayers: 4 });
+    const states: { k: number; e: number; first: number; last: number }[] = [];
+    for (let p = 0; p < r.path.count; p++) {
+      for (let n = 0; n < r.bandCount; n++) {
+        const e = r.energies[p * r.bandCount + n];
+        if (Math.abs(e) < 0.5) states.push({ k: 2 * Math.PI * r.path.fractions[p], e, first: r.edges.first[p * r.bandCount + n], last: r.edges.last[p * r.bandCount + n] });
+      }
+    }
+    return { r, states };
+  }
+  /** Least-squares slope dE/dk of a set of (k, E). */
+  function slope(points: { k: number; e: number }[]) {
+    const mk = points.reduce((s, p) => s + p.k, 0) / points.length;
+    const me = points.reduce((s, p) => s + p.e, 0) / points.length;
+    return points.reduce((s, p) => s + (p.k - mk) * (p.e - me), 0) / points.reduce((s, p) => s + (p.k - mk) ** 2, 0);
+  }
+
+  for (const direction of [0, 1]) {
+    it(`u = -1 (C = 1), opened along a${direction + 1}: every in-gap state sits on one edge, and the two edges move oppositely`, () => {
+      const { r, states } = inGap(-1, direction);
+      expect(r.kind).toBe('ribbon');
+      expect(r.bandCount).toBe(2 * width);
+      expect(r.edges.definition).toMatch(/first 4 and the last 4 of the 24 cells/);
+      expect(states.length).toBeGreaterThan(10);
+      for (const s of states) expect(Math.max(s.first, s.last)).toBeGreaterThan(0.9);
+      const onFirst = states.filter((s) => s.first > 0.9), onLast = states.filter((s) => s.last > 0.9);
+      expect(onFirst.length).toBeGreaterThan(4);
+      expect(onLast.length).toBeGreaterThan(4);
+      const v1 = slope(onFirst), v2 = slope(onLast);
+      expect(Math.sign(v1)).toBe(-Math.sign(v2));
+      expect(Math.abs(v1)).toBeGreaterThan(0.3);
+      expect(Math.abs(v2)).toBeGreaterThan(0.3);
+    });
+  }
+
+  it('u = -3 (C = 0): no state inside the bulk gap', () => {
+    const { states, r } = inGap(-3, 1);
+    expect(states).toHaveLength(0);
+    // Bulk states spread over the width: edge weights stay well below 1.
+    expect(Math.max(...r.edges.first)).toBeLessThan(0.6);
+  });
+});
+
+describe('SSH open chain: two zero-energy end modes iff w > v (Su, Schrieffer, Heeger, PRL 42, 1698 (1979))', () => {
+  for (const [v, w, zeroModes] of [[0.5, 1, 2], [1, 0.5, 0], [0.3, 1.2, 2], [1.2, 0.3, 0]] as const) {
+    it(`v = ${v}, w = ${w}: ${zeroModes} zero modes`, () => {
+      const r = ribbonSpectrum(ssh(), { params: { v, w }, direction: 0, width: 40 });
+      expect(r.path.count).toBe(1);
+      expect(r.bandCount).toBe(80);
+      const zero = Array.from(r.energies.keys()).filter((n) => Math.abs(r.energies[n]) < 1e-6);
+      expect(zero).toHaveLength(zeroModes);
+      // The end modes live on the ends: their weight on the outer 4 cells is nearly all of it.
+      for (const n of zero) expect(r.edges.first[n] + r.edges.last[n]).toBeGreaterThan(0.99);
+      // The rest of the spectrum is gapped by about 2|v - w| (bulk gap, same source).
+      const smallestNonZero = Math.min(...Array.from(r.energies).filter((e) => Math.abs(e) >= 1e-6).map(Math.abs));
+      expect(smallestNonZero).toBeGreaterThan(0.9 * Math.abs(v - w));
+    });
+  }
 });
