@@ -41,13 +41,11 @@ export type PointFunctionFactory = (target: PointTarget) => PointFunction;
 /** A point that could not be computed: names the point, keeps the original error as `cause`. */
 export class PointError extends Error {
   readonly params: ParameterValues;
-  readonly cause: unknown;
   constructor(params: ParameterValues, cause: unknown) {
     const reason = cause instanceof Error ? `${cause.name}: ${cause.message}` : String(cause);
-    super(`sweep point ${show(params)}: ${reason}`);
+    super(`sweep point ${show(params)}: ${reason}`, { cause });
     this.name = 'PointError';
     this.params = params;
-    this.cause = cause;
   }
 }
 

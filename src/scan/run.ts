@@ -23,8 +23,11 @@ import {
 export const CHECKPOINT_FORMAT = 'chernel.sweep-checkpoint';
 export const CHECKPOINT_VERSION = 1;
 
-/** A finished point: its swept coordinates (axis order), the invariant (null: gapless) and the gap. */
-export type PointRecord = [coords: number[], value: number | null, gap: number];
+/**
+ * A finished point: its swept coordinates (axis order), the invariant (null: gapless), the gap, and
+ * a trailing 1 when the point's diagnostic flagged it (`PointOutcome.doubtful`).
+ */
+export type PointRecord = [coords: number[], value: number | null, gap: number] | [coords: number[], value: number | null, gap: number, doubtful: 1];
 
 /** Everything a sweep needs to resume: the finished points, tied to the request by its fingerprint. */
 export interface SweepCheckpoint {
@@ -77,15 +80,15 @@ export function recordsToPoints(records: readonly unknown[], dims: number, field
   records.forEach((rec, n) => {
     const ok =
       Array.isArray(rec) &&
-      rec.length === 3 &&
+      (rec.length === 3 || (rec.length === 4 && rec[3] === 1)) &&
       Array.isArray(rec[0]) &&
       rec[0].length === dims &&
       rec[0].every((x: unknown) => typeof x === 'number' && Number.isFinite(x)) &&
       (rec[1] === null || typeof rec[1] === 'number') &&
       (typeof rec[2] === 'number' || rec[2] === null);
     if (!ok) throw new ModelError(`${field}[${n}]`, `expected [[${dims} coordinates], value or null, gap]. Value: ${show(rec)}`);
-    const [coords, value, gap] = rec as [number[], number | null, number | null];
-    known.set(pointKey(coords), { value, gap: gap ?? Number.NaN });
+    const [coords, value, gap, flag] = rec as [number[], number | null, number | null, 1 | undefined];
+    known.set(pointKey(coords), flag === 1 ? { value, gap: gap ?? Number.NaN, doubtful: true } : { value, gap: gap ?? Number.NaN });
   });
   return known;
 }
@@ -95,7 +98,8 @@ export function pointsToRecords(known: ReadonlyMap<string, PointOutcome>): Point
   const keys = [...known.keys()].sort();
   return keys.map((k) => {
     const o = known.get(k)!;
-    return [k.split(',').map(Number), o.value, o.gap];
+    const coords = k.split(',').map(Number);
+    return o.doubtful === true ? [coords, o.value, o.gap, 1] : [coords, o.value, o.gap];
   });
 }
 

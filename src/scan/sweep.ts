@@ -62,6 +62,8 @@ export interface PointTarget {
 export interface PointOutcome {
   value: number | null;
   gap: number;
+  /** Set when the diagnostic flagged its own result (grid too coarse, not converged): kept, but warned about. */
+  doubtful?: boolean;
 }
 
 /** Evaluates one point, given the swept parameters' values (the target's fixed ones are merged in). */
@@ -335,6 +337,11 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
     if (o.gap < outcomes[minIndex].gap) minIndex = n;
   });
   const gaplessCount = request.invariant === 'gap' ? 0 : outcomes.filter((o) => o.value === null).length;
+  const doubtful = outcomes.findIndex((o) => o.doubtful === true);
+  if (doubtful >= 0) {
+    const count = outcomes.filter((o) => o.doubtful === true).length;
+    warnings.unshift(`${count} of ${outcomes.length} grid points were flagged by the ${request.invariant} diagnostic (k-grid too coarse or not converged), first at ${show(sweptParams(axes, gridCoords[doubtful]))}; use a finer grid`);
+  }
   if (gaplessCount > 0) {
     warnings.unshift(`${gaplessCount} of ${outcomes.length} grid points are gapless (no invariant there); the smallest gap is ${outcomes[minIndex].gap} at ${show(sweptParams(axes, gridCoords[minIndex]))}`);
   }

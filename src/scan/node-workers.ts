@@ -1,0 +1,130 @@
+/**
+ * Node host for sweeps: an executor on worker threads (all cores by default) and checkpoint files.
+ * This file is also the worker's entry point. Not part of the pure engine (excluded from
+ * tsconfig.engine.json): it imports node:*.
+ */
+import { existsSync } from 'node:fs';
+import { readFile, rename, writeFile } from 'node:fs/promises';
+import { availableParallelism } from 'node:os';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
+import type { PointFunctionFactory } from './executor.js';
+import { WorkerPoolExecutor, serveSweepWorker, type FromSweepWorker, type ToSweepWorker, type WorkerPort } from './pool.js';
+import { runPhaseMap, type RunPhaseMapOptions, type SweepCheckpoint } from './run.js';
+import type { PhaseMapRequest, PhaseMapResult } from './sweep.js';
+
+const ROLE = 'chernel-sweep-worker';
+
+export interface NodeWorkerOptions {
+  /** Number of threads (default: every core). */
+  workers?: number;
+  /** An ES module (path or URL) exporting `pointFunction(target)`, instead of the engine's diagnostics. */
+  pointModule?: string | URL;
+}
+
+/** Run TypeScript sources in a worker the way the parent runs them (see scripts/register-ts.js). */
+function workerExecArgv(): string[] {
+  if (!import.meta.url.endsWith('.ts')) return [];
+  const hooks = new URL('../../scripts/register-ts.js', import.meta.url);
+  return existsSync(fileURLToPath(hooks)) ? ['--import', hooks.href] : [];
+}
+
+function startNodeWorker(): WorkerPort {
+  const worker = new Worker(new URL(import.meta.url), { workerData: { role: ROLE }, execArgv: workerExecArgv() });
+  let onMessage: (m: FromSweepWorker) => void = () => {};
+  let onCrash: (e: Error) => void = () => {};
+  worker.on('message', (m: FromSweepWorker) => onMessage(m));
+  worker.on('error', (e) => onCrash(e));
+  worker.on('exit', (code) => {
+    if (code !== 0) onCrash(new Error(`worker thread exited with code ${code}`));
+  });
+  worker.unref(); // an idle pool must not keep the process alive
+  return {
+    post: (m: ToSweepWorker) => worker.postMessage(m),
+    listen: (message, crash) => {
+      onMessage = message;
+      onCrash = crash;
+    },
+    terminate: async () => {
+      onCrash = () => {};
+      await worker.terminate();
+    },
+    hold: (busy) => (busy ? worker.ref() : worker.unref()),
+  };
+}
+
+/** Computes sweep points on Node worker threads. */
+export class NodeWorkerExecutor extends WorkerPoolExecutor {
+  constructor(options: NodeWorkerOptions = {}) {
+    const module = options.pointModule;
+    super({
+      workers: options.workers ?? availableParallelism(),
+      start: startNodeWorker,
+      pointModule: module === undefined ? undefined : module instanceof URL ? module.href : /^[a-z]+:/.test(module) ? module : pathToFileURL(module).href,
+    });
+  }
+}
+
+/** Write a file so that readers see the old or the new content, never a torn one. */
+export async function writeFileAtomic(path: string, text: string): Promise<void> {
+  const temporary = `${path}.${process.pid}.tmp`;
+  await writeFile(temporary, text);
+  await rename(temporary, path);
+}
+
+/** The checkpoint saved at `path`, or undefined when there is none yet. */
+export async function readCheckpointFile(path: string): Promise<SweepCheckpoint | undefined> {
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code === 'ENOENT') return undefined;
+    throw err;
+  }
+  try {
+    return JSON.parse(text) as SweepCheckpoint;
+  } catch (err) {
+    throw new Error(`checkpoint file ${path} is not valid JSON (${(err as Error).message}); remove it to start over`);
+  }
+}
+
+/**
+ * `runPhaseMap` with its checkpoint kept in a file: resumed from it when present, rewritten
+ * atomically as points finish and when the sweep stops.
+ */
+export async function runPhaseMapWithCheckpointFile(
+  request: PhaseMapRequest,
+  path: string,
+  options: Omit<RunPhaseMapOptions, 'checkpoint'> = {},
+): Promise<PhaseMapResult> {
+  const checkpoint = await readCheckpointFile(path);
+  let writing: Promise<void> = Promise.resolve();
+  try {
+    return await runPhaseMap(request, {
+      ...options,
+      checkpoint,
+      onCheckpoint: (c) => {
+        options.onCheckpoint?.(c);
+        const text = JSON.stringify(c);
+        writing = writing.then(() => writeFileAtomic(path, text));
+      },
+    });
+  } finally {
+    await writing;
+  }
+}
+
+if (!isMainThread && (workerData as { role?: string } | null)?.role === ROLE && parentPort !== null) {
+  const port = parentPort;
+  const engine = async (): Promise<PointFunctionFactory> => (await import('./point.js')).pointFunction;
+  const handle = serveSweepWorker(
+    (m) => port.postMessage(m),
+    engine,
+    (url) => import(url) as Promise<{ pointFunction?: PointFunctionFactory }>,
+  );
+  // Chunks are handled one at a time, in order.
+  let queue: Promise<void> = Promise.resolve();
+  port.on('message', (m: ToSweepWorker) => {
+    queue = queue.then(() => handle(m));
+  });
+}
