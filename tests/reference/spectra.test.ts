@@ -79,6 +79,26 @@ describe('graphene Dirac points (Castro Neto et al., RMP 81, 109 (2009))', () =>
   });
 });
 
+describe('graphene density of states near the Dirac point (Castro Neto et al., RMP 81, 109 (2009))', () => {
+  it('vanishes linearly: rho(E) = A_c |E| / (pi (hbar v)^2) per cell for spinless electrons, two valleys', () => {
+    // Each cone holds E^2 / (4 pi v^2) states per area below |E|; A_c = 3 sqrt3 a^2 / 2 and
+    // hbar v = 3 t a / 2 (same source) give rho = 2 sqrt3 |E| / (3 pi t^2), independent of a.
+    const dos = densityOfStates(graphene(), { grid: 300, energies: { from: -3.2 * T, to: 3.2 * T, count: 640 } });
+    const at = (E: number) => dos.density[Math.floor((E + 3.2 * T) / dos.binWidth)];
+    for (const x of [0.1, 0.15, 0.2]) {
+      const E = x * T;
+      const expected = (2 * Math.sqrt(3) * E) / (3 * Math.PI * T * T);
+      expect(Math.abs(at(E) - expected)).toBeLessThan(0.05 * expected);
+      expect(Math.abs(at(-E) - expected)).toBeLessThan(0.05 * expected);
+    }
+    // Van Hove singularities at E = ±t (the M points), bandwidth 6t.
+    let peak = 0;
+    dos.density.forEach((d, j) => { if (d > dos.density[peak]) peak = j; });
+    expect(Math.abs(Math.abs(dos.energy[peak]) - T)).toBeLessThan(2 * dos.binWidth);
+    expect(dos.bandRange[1] - dos.bandRange[0]).toBeCloseTo(6 * T, 10);
+  });
+});
+
 describe('Qi–Wu–Zhang gap closings from the closed form |d(k)| = 0 (Qi, Wu, Zhang, PRB 74, 085308 (2006))', () => {
   const cases: [number, number[][]][] = [
     [-2, [[0, 0]]],

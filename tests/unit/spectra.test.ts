@@ -1,7 +1,7 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import {
   bands, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, installInterruptFlag, InterruptedError,
-  kPath, lattice, ModelError, reciprocalVectors,
+  kPath, lattice, reciprocalVectors, ribbonSpectrum,
 } from '../../src/index.js';
 import { nelderMead } from '../../src/spectra/gap.js';
 
@@ -130,6 +130,31 @@ describe('bands', () => {
     expect(() => bands(chain([[1, 0], [0, 1]]))).toThrow(InterruptedError);
   });
   afterEach(() => installInterruptFlag(null));
+});
+
+describe('ribbon spectra', () => {
+  const square = lattice('square', [[1, 0, 0], [0, 1, 0], [0, 0, 1]]).site('s', [0, 0, 0])
+    .hop('s', 's', [1, 0, 0], -1).hop('s', 's', [0, 1, 0], -1).hop('s', 's', [0, 0, 1], -1).build();
+
+  it('a slab samples its own 2D zone; bulk states of a single band have edge weight layers/width on average', () => {
+    const r = ribbonSpectrum(square, { direction: 2, width: 10, nk: 3, edgeLayers: 2 });
+    expect(r.path.dim).toBe(2);
+    expect(r.path.labels.map((l) => l.label)).toEqual(['Γ', 'X', 'M', 'Γ']);
+    expect(r.energies.length).toBe(r.path.count * 10);
+    // Open chain of 10 sites along z: E = e_xy - 2 cos(pi m / 11) (a standing wave; common practice).
+    const e0 = r.energies[0];
+    expect(e0).toBeCloseTo(-4 - 2 * Math.cos(Math.PI / 11), 12);
+    // Summed over all states at one k, each edge holds exactly its orbitals' share: 2 of 10.
+    let first = 0;
+    for (let n = 0; n < 10; n++) first += r.edges.first[n];
+    expect(first).toBeCloseTo(2, 12);
+  });
+
+  it('names bad options', () => {
+    expect(() => ribbonSpectrum(square, { direction: 3, width: 4 })).toThrow(/ribbon\.direction/);
+    expect(() => ribbonSpectrum(square, { direction: 0, width: 4, edgeLayers: 5 })).toThrow(/edgeLayers: expected a whole number from 1 to the width 4\. Value: 5/);
+    expect(ribbonSpectrum(square, { direction: 0, width: 3, edgeLayers: 2, nk: 1 }).checks.warnings[0]).toMatch(/edges overlap/);
+  });
 });
 
 describe('band groups and gaps', () => {
