@@ -8,12 +8,21 @@ import { BlochHamiltonian } from './bloch/hamiltonian.js';
 import { checkInterrupt, InterruptedError } from './interrupt.js';
 import { ModelError, show } from './model/errors.js';
 import type { ModelSpec, ParameterValues } from './model/spec.js';
+import { pointFunction } from './scan/point.js';
+import { phaseMapSync } from './scan/run.js';
+import type { PhaseMapRequest, PhaseMapResult } from './scan/sweep.js';
 import { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
 import { directGap, findGapClosings, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
+import { ribbonSpectrum, type RibbonSpectrumOptions, type RibbonSpectrumResult } from './spectra/ribbon.js';
 import { berryPhase, type BerryPhaseOptions, type BerryPhaseResult } from './topology/berry.js';
 import { chernNumber, type ChernOptions, type ChernResult } from './topology/chern.js';
+import { majoranaNumber, windingNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';
+import type { TopologyOptions } from './topology/common.js';
 import { curvatureMap, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
+import { hallConductivity, type HallOptions, type HallResult } from './topology/hall.js';
+import { weylPoints, type WeylOptions, type WeylResult } from './topology/weyl.js';
 import { wannierFlow, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
+import { spinChern, z2Index, type SpinChernResult, type Z2Options, type Z2Result } from './topology/z2.js';
 
 /** What every request carries besides its options. */
 interface RequestBase {
@@ -31,7 +40,15 @@ export type DiagnosticRequest =
   | (RequestBase & { kind: 'chern' } & Without<ChernOptions>)
   | (RequestBase & { kind: 'curvature' } & Without<CurvatureOptions>)
   | (RequestBase & { kind: 'wannier-flow' } & Without<WannierFlowOptions>)
-  | (RequestBase & { kind: 'berry-phase' } & Without<BerryPhaseOptions>);
+  | (RequestBase & { kind: 'berry-phase' } & Without<BerryPhaseOptions>)
+  | (RequestBase & { kind: 'z2' } & Without<Z2Options>)
+  | (RequestBase & { kind: 'spin-chern' } & Without<ChernOptions>)
+  | (RequestBase & { kind: 'winding' } & Without<WindingOptions>)
+  | (RequestBase & { kind: 'majorana' } & Without<Omit<TopologyOptions, 'bands'>>)
+  | (RequestBase & { kind: 'weyl' } & Without<WeylOptions>)
+  | (RequestBase & { kind: 'hall' } & Without<HallOptions>)
+  | (RequestBase & { kind: 'ribbon' } & Without<RibbonSpectrumOptions>)
+  | PhaseMapRequest;
 
 export type DiagnosticResult =
   | BandsResult
@@ -40,11 +57,22 @@ export type DiagnosticResult =
   | ChernResult
   | CurvatureResult
   | WannierFlowResult
-  | BerryPhaseResult;
+  | BerryPhaseResult
+  | Z2Result
+  | SpinChernResult
+  | WindingResult
+  | MajoranaResult
+  | WeylResult
+  | HallResult
+  | RibbonSpectrumResult
+  | PhaseMapResult;
 
 export type DiagnosticKind = DiagnosticRequest['kind'];
 
-export const DIAGNOSTIC_KINDS: readonly DiagnosticKind[] = ['bands', 'gap', 'gap-closings', 'chern', 'curvature', 'wannier-flow', 'berry-phase'];
+export const DIAGNOSTIC_KINDS: readonly DiagnosticKind[] = [
+  'bands', 'gap', 'gap-closings', 'ribbon', 'chern', 'curvature', 'wannier-flow', 'berry-phase', 'z2', 'spin-chern',
+  'winding', 'majorana', 'weyl', 'hall', 'phase-map',
+];
 
 /** The request's own options: everything but kind and model (params and convention stay). */
 function optionsOf<T extends DiagnosticRequest>(request: T): Omit<T, 'kind' | 'model'> {
@@ -61,6 +89,7 @@ export function compute(request: DiagnosticRequest): DiagnosticResult {
   if (request.params !== undefined && (request.params === null || typeof request.params !== 'object' || Array.isArray(request.params))) {
     throw new ModelError('params', `expected an object of parameter values. Value: ${show(request.params)}`);
   }
+  if (request.kind === 'phase-map') return phaseMapSync(request, pointFunction);
   const h = new BlochHamiltonian(request.model, request.params ?? {}, { convention: request.convention ?? 'lattice' });
   switch (request.kind) {
     case 'bands':
@@ -77,6 +106,20 @@ export function compute(request: DiagnosticRequest): DiagnosticResult {
       return wannierFlow(h, optionsOf(request));
     case 'berry-phase':
       return berryPhase(h, optionsOf(request));
+    case 'z2':
+      return z2Index(h, optionsOf(request));
+    case 'spin-chern':
+      return spinChern(h, optionsOf(request));
+    case 'winding':
+      return windingNumber(h, optionsOf(request));
+    case 'majorana':
+      return majoranaNumber(h, optionsOf(request));
+    case 'weyl':
+      return weylPoints(h, optionsOf(request));
+    case 'hall':
+      return hallConductivity(h, optionsOf(request));
+    case 'ribbon':
+      return ribbonSpectrum(h, optionsOf(request));
   }
 }
 

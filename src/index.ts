@@ -35,3 +35,7 @@ export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } fr
 export { curvatureMap, type CurvatureChecks, type CurvatureMethod, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
 export { wannierFlow, type WannierFlowChecks, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
 export { berryPhase, type BerryPhaseChecks, type BerryPhaseOptions, type BerryPhaseResult } from './topology/berry.js';
+export { z2Index, spinChern, type MatrixEntry, type SpinChernResult, type Z2Checks, type Z2Method, type Z2Options, type Z2Plane, type Z2Result } from './topology/z2.js';
+export { windingNumber, majoranaNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';
+export { weylPoints, type WeylOptions, type WeylPoint, type WeylResult } from './topology/weyl.js';
+export { hallConductivity, ELEMENTARY_CHARGE, PLANCK_CONSTANT, HALL_CONDUCTANCE_QUANTUM, type HallOptions, type HallResult } from './topology/hall.js';

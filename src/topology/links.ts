@@ -222,3 +222,43 @@ export function fraction(x: number): number {
   const y = x - Math.floor(x);
   return y >= 1 ? 0 : y;
 }
+
+/**
+ * Sign of the Pfaffian of a real antisymmetric n x n matrix (row-major, overwritten), by
+ * Parlett–Reid elimination with pivoting: -1, +1, or 0 when it vanishes (odd n gives 0).
+ */
+export function pfaffianSign(n: number, a: Float64Array): number {
+  if (n % 2 === 1) return 0;
+  let sign = 1;
+  for (let k = 0; k < n - 1; k += 2) {
+    let p = k + 1;
+    for (let j = k + 2; j < n; j++) if (Math.abs(a[k * n + j]) > Math.abs(a[k * n + p])) p = j;
+    if (p !== k + 1) {
+      // Swap index k+1 with p in rows and columns: a congruence that flips the Pfaffian's sign.
+      for (let j = 0; j < n; j++) {
+        const t = a[(k + 1) * n + j]; a[(k + 1) * n + j] = a[p * n + j]; a[p * n + j] = t;
+      }
+      for (let i = 0; i < n; i++) {
+        const t = a[i * n + k + 1]; a[i * n + k + 1] = a[i * n + p]; a[i * n + p] = t;
+      }
+      sign = -sign;
+    }
+    const pivot = a[k * n + k + 1];
+    if (pivot === 0) return 0;
+    if (pivot < 0) sign = -sign;
+    // Eliminate row k beyond k+1: R_i -= tau_i R_{k+1}, C_i -= tau_i C_{k+1} (determinant-one congruence).
+    for (let i = k + 2; i < n; i++) {
+      const tau = a[k * n + i] / pivot;
+      if (tau === 0) continue;
+      for (let j = k + 2; j < n; j++) {
+        a[i * n + j] -= tau * a[(k + 1) * n + j];
+        a[j * n + i] -= tau * a[j * n + k + 1];
+      }
+    }
+    for (let i = k + 2; i < n; i++) {
+      a[k * n + i] = 0;
+      a[i * n + k] = 0;
+    }
+  }
+  return sign;
+}
