@@ -76,9 +76,11 @@ function resolvePath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, spec: PathS
   });
 }
 
-/** Sample a path through labelled points of the model's Brillouin zone. */
+/** Sample a path through labelled points of the model's Brillouin zone (a single point for a finite model). */
 export function kPath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, options: PathOptions = {}): KPath {
   const dim = model.periodic;
+  // A finite system (flake, open chain) has one "k": the empty one.
+  if (dim === 0) return { kind: 'k-path', units: 'reciprocal-lattice', dim, count: 1, fractions: new Float64Array(0), distance: new Float64Array(1), labels: [], breaks: [] };
   const per = options.pointsPerSegment ?? 60;
   if (!Number.isInteger(per) || per < 1 || per > 100000) throw new ModelError('pointsPerSegment', `expected a whole number from 1 to 100000. Value: ${show(per)}`);
   const items = resolvePath(model, options.path);

@@ -115,9 +115,7 @@ export function ribbonSpectrum(source: SpectrumSource, options: RibbonSpectrumOp
 function ribbonPath(periodic: number, spec: Parameters<typeof kPath>[0], options: RibbonSpectrumOptions): KPath {
   const nk = options.nk ?? (periodic >= 2 ? 40 : 201);
   if (!Number.isInteger(nk) || nk < (periodic === 1 ? 2 : 1) || nk > 100000) throw new ModelError('nk', `expected a whole number from 2 to 100000. Value: ${show(nk)}`);
-  if (periodic === 0) {
-    return { kind: 'k-path', units: 'reciprocal-lattice', dim: 0, count: 1, fractions: new Float64Array(0), distance: new Float64Array(1), labels: [], breaks: [] };
-  }
+  if (periodic === 0) return kPath(spec);
   if (periodic === 1) {
     const edge = [{ label: 'X', k: [-0.5] }, { label: 'Γ', k: [0] }, { label: 'X', k: [0.5] }];
     return kPath(spec, { path: options.path ?? edge, pointsPerSegment: Math.ceil((nk - 1) / 2) });

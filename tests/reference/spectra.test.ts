@@ -278,6 +278,14 @@ describe('QWZ ribbon: chiral edge modes iff the bulk is topological (bulk–boun
 });
 
 describe('SSH open chain: two zero-energy end modes iff w > v (Su, Schrieffer, Heeger, PRL 42, 1698 (1979))', () => {
+  it('bulk gap closes only at k = pi when v = w (E = ±|v + w e^{ik}|, same source)', () => {
+    const result = findGapClosings(ssh(), { params: { v: 0.7, w: 0.7 }, bands: 1, grid: 25 });
+    const closed = result.points.filter((p) => p.closed);
+    expect(closed).toHaveLength(1);
+    expect(Math.abs(Math.abs(closed[0].k[0]) - Math.PI)).toBeLessThan(1e-7);
+    expect(findGapClosings(ssh(), { params: { v: 0.7, w: 0.9 }, bands: 1, grid: 25 }).points[0].gap).toBeCloseTo(0.4, 7);
+  });
+
   for (const [v, w, zeroModes] of [[0.5, 1, 2], [1, 0.5, 0], [0.3, 1.2, 2], [1.2, 0.3, 0]] as const) {
     it(`v = ${v}, w = ${w}: ${zeroModes} zero modes`, () => {
       const r = ribbonSpectrum(ssh(), { params: { v, w }, direction: 0, width: 40 });

@@ -123,6 +123,14 @@ describe('bands', () => {
     expect(closing.energies.length).toBe(closing.path.count * 2);
   });
 
+  it('of a finite model (a flake) is its spectrum at the single empty k', () => {
+    const dimer = lattice('dimer', [[1]], 0).site('a', [0]).site('b', [0.5]).hop('a', 'b', [], -1).build();
+    const b = bands(dimer);
+    expect(b.path.count).toBe(1);
+    expect(Array.from(b.energies)).toEqual([expect.closeTo(-1, 14), expect.closeTo(1, 14)]);
+    expect(b.checks.minGap).toBeCloseTo(2, 14);
+  });
+
   it('stops at an interrupt', () => {
     const flag = new Int32Array(new SharedArrayBuffer(4));
     installInterruptFlag(flag);
