@@ -37,9 +37,9 @@ export type HostToWorker =
   | { type: 'names'; id: number; path: string[] }
   | { type: 'describe'; id: number; path: string[] }
   | { type: 'input_reply'; id: number; value: string | null; error?: string }
-  | ({ type: 'comm_open'; targetName: string } & CommPayload)
-  | ({ type: 'comm_msg' } & CommPayload)
-  | ({ type: 'comm_close' } & CommPayload);
+  | ({ type: 'comm_open'; id: number; targetName: string } & CommPayload)
+  | ({ type: 'comm_msg'; id: number } & CommPayload)
+  | ({ type: 'comm_close'; id: number } & CommPayload);
 
 export type WorkerToHost =
   | { type: 'ready'; engineNames: string[]; engineError: string | null }

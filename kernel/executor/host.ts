@@ -215,7 +215,7 @@ export class ExecutionHost {
     return true;
   }
 
-  private async ask(message: Extract<HostToWorker, { type: 'names' | 'describe' }>): Promise<Extract<WorkerToHost, { type: 'answer' }> | null> {
+  private async ask(message: Extract<HostToWorker, { id: number }>): Promise<Extract<WorkerToHost, { type: 'answer' }> | null> {
     await Promise.race([this.ready, new Promise((r) => setTimeout(r, QUERY_TIMEOUT_MS))]);
     return new Promise((resolve) => {
       const timer = setTimeout(() => {
@@ -241,11 +241,11 @@ export class ExecutionHost {
     return answer?.description ?? null;
   }
 
-  /** A comm message from the front end, for the worker's comm registry. */
-  comm(event: CommEvent): void {
+  /** A comm message from the front end, for the worker's comm registry; resolves once handled. */
+  async comm(event: CommEvent): Promise<void> {
     if (event.type === 'comm_open') this.openComms.set(event.commId, event.targetName);
     if (event.type === 'comm_close') this.openComms.delete(event.commId);
-    this.post(event);
+    await this.ask({ ...event, id: this.nextId++ });
   }
 
   /** Open comms by id, with their target names (for comm_info). */

@@ -13,10 +13,17 @@ export interface ScopeHost {
   requestInput(prompt: string, password: boolean): Promise<string>;
 }
 
-export interface DisplayHandle {
-  readonly displayId: string;
+/** Returned by `display()`; not itself shown as a cell's value. */
+export class DisplayHandle {
+  constructor(
+    readonly displayId: string,
+    private readonly host: ScopeHost,
+  ) {}
+
   /** Replace what this display shows, in place. */
-  update(value: unknown): void;
+  update(value: unknown): void {
+    this.host.post({ type: 'display', output: mimeBundle(value), displayId: this.displayId, update: true });
+  }
 }
 
 export interface DisplayOptions {
@@ -41,10 +48,7 @@ export function createScope(host: ScopeHost): Record<string, unknown> {
   function display(value: unknown, options: DisplayOptions = {}): DisplayHandle {
     const displayId = options.displayId ?? randomUUID();
     host.post({ type: 'display', output: mimeBundle(value), displayId, update: options.update === true });
-    return {
-      displayId,
-      update: (next: unknown) => host.post({ type: 'display', output: mimeBundle(next), displayId, update: true }),
-    };
+    return new DisplayHandle(displayId, host);
   }
 
   function clearOutput(wait = false): void {

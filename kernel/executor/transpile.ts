@@ -254,7 +254,8 @@ export function rewriteTopLevel(js: string): { code: string; hasValue: boolean; 
   const last = program.body.at(-1);
   const hasValue = last?.type === 'ExpressionStatement';
   if (last?.type === 'ExpressionStatement') {
-    edits.push({ at: last.expression.start, end: last.expression.start, text: 'return (' }, { at: last.expression.end, end: last.expression.end, text: ')' });
+    // From the statement's start: a parenthesised expression starts after its '('.
+    edits.push({ at: last.start, end: last.start, text: 'return (' }, { at: last.expression.end, end: last.expression.end, text: ')' });
   }
 
   // Apply from the end so earlier offsets stay valid. At one offset, replace first, then insert in

@@ -13,7 +13,7 @@ import { connectComms, handleFrontendComm } from '../comms.js';
 import { mimeBundle, plainText } from '../display/index.js';
 import type { Description, HostToWorker, SerializedError, WorkerToHost } from './channel.js';
 import { importFromCwd } from './resolve.js';
-import { createScope } from './scope.js';
+import { createScope, DisplayHandle } from './scope.js';
 import { RUNTIME } from './transpile.js';
 
 const port = parentPort;
@@ -98,7 +98,7 @@ async function execute(message: Extract<HostToWorker, { type: 'execute' }>): Pro
     const running = vm.runInThisContext(message.code, { filename: message.filename }) as Promise<unknown>;
     const interrupted = new Promise<never>((_, reject) => (interruptCurrent = reject));
     const value = await Promise.race([running, interrupted]);
-    const show = message.hasValue && value !== undefined && !message.silent;
+    const show = message.hasValue && value !== undefined && !(value instanceof DisplayHandle) && !message.silent;
     outcome = { type: 'done', id: message.id, result: show ? mimeBundle(value) : null, error: null };
   } catch (error) {
     outcome = { type: 'done', id: message.id, result: null, error: serializeError(error) };
@@ -175,6 +175,8 @@ port.on('message', (message: HostToWorker) => {
       } catch (error) {
         post({ type: 'stream', name: 'stderr', text: `${(error as Error).message}\n` });
       }
+      // Acknowledged once its handlers ran, so their output comes before the request's idle status.
+      post({ type: 'answer', id: message.id });
   }
 });
 

@@ -335,14 +335,14 @@ export class Kernel {
     this.reply(message, 'shell', { status: 'ok', comms });
   }
 
-  private commFromFrontend(message: Message): void {
+  private async commFromFrontend(message: Message): Promise<void> {
     const type = message.header.msg_type as 'comm_open' | 'comm_msg' | 'comm_close';
     const commId = field<string>(message, 'comm_id', 'string');
     const data = field<Dict>(message, 'data', 'object', {});
     const payload = { commId, data, metadata: message.metadata, buffers: message.buffers.map((b) => new Uint8Array(b)) };
     this.parent = message;
-    if (type === 'comm_open') this.executor.comm({ type, targetName: field<string>(message, 'target_name', 'string'), ...payload });
-    else this.executor.comm({ type, ...payload });
+    if (type === 'comm_open') await this.executor.comm({ type, targetName: field<string>(message, 'target_name', 'string'), ...payload });
+    else await this.executor.comm({ type, ...payload });
   }
 
   /** SIGINT from a client using signal-mode interrupts. */
