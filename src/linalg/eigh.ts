@@ -40,10 +40,13 @@ export class HermitianEigensolver {
   private readonly phase: Float64Array;
   private readonly d: Float64Array;
   private readonly e: Float64Array;
-  /** Real eigenvectors of the tridiagonal form, one per row. */
+  /** Real eigenvectors of the tridiagonal form, one per column, and the QL rotations. */
   private readonly z: Float64Array;
-  /** Complex scratch vector. */
+  private readonly cs: Float64Array;
+  private readonly sn: Float64Array;
+  /** Complex scratch vector, and the eigenvectors (one per row) during the back-transformation. */
   private readonly p: Float64Array;
+  private readonly y: Float64Array;
   private readonly order: Int32Array;
 
   constructor(n: number) {
@@ -56,7 +59,10 @@ export class HermitianEigensolver {
     this.d = new Float64Array(n);
     this.e = new Float64Array(n);
     this.z = new Float64Array(n * n);
+    this.cs = new Float64Array(n);
+    this.sn = new Float64Array(n);
     this.p = new Float64Array(2 * n);
+    this.y = new Float64Array(2 * n * n);
     this.order = new Int32Array(n);
   }
 
@@ -209,7 +215,7 @@ export class HermitianEigensolver {
       z.fill(0);
       for (let i = 0; i < n; i++) z[i * n + i] = 1;
     }
-    if (!tridiagonalQL(n, d, e, z)) {
+    if (!tridiagonalQL(n, d, e, z, this.cs, this.sn)) {
       throw new RangeError(`eigensolver: the QL iteration did not converge (n = ${n}); is h finite and Hermitian?`);
     }
     // Ascending order by insertion sort (n is small, and QL leaves d nearly ordered in blocks).
@@ -339,48 +345,86 @@ export class HermitianEigensolver {
     }
   }
 
-  /** Eigenvector j of H = Q D z_j, Q = P_0 P_1 ... P_{n-3}; written to the columns of `vecs` in order. */
+  /**
+   * Eigenvector j of H = Q D z_j with Q = P_0 P_1 ... P_{n-3}, z_j column j of z. The vectors sit in
+   * the rows of `y` while the reflectors are applied (blocks of 16 vectors share each reflector
+   * while it is in cache; pairs share its loads), then go to the columns of `vecs` in order.
+   */
   private backTransform(vecs: CMatrix, vo: number): void {
     const n = this.n;
     const a = this.a;
     const z = this.z;
-    const y = this.p;
+    const y = this.y;
     const phase = this.phase;
     const betas = this.beta;
     const order = this.order;
     for (let col = 0; col < n; col++) {
-      const zr = order[col] * n;
+      const src = order[col];
+      const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
-        const zi = z[zr + i];
-        y[2 * i] = phase[2 * i] * zi;
-        y[2 * i + 1] = phase[2 * i + 1] * zi;
+        const zi = z[i * n + src];
+        y[row + 2 * i] = phase[2 * i] * zi;
+        y[row + 2 * i + 1] = phase[2 * i + 1] * zi;
       }
+    }
+    const end = 2 * n;
+    for (let c0 = 0; c0 < n; c0 += 16) {
+      const c1 = Math.min(n, c0 + 16);
       for (let k = n - 3; k >= 0; k--) {
         const beta = betas[k];
         if (beta === 0) continue;
         const base = 2 * k * n;
-        let sr = 0;
-        let si = 0;
-        for (let j = 2 * (k + 1); j < 2 * n; j += 2) {
-          const ur = a[base + j];
-          const ui = a[base + j + 1];
-          const yr = y[j];
-          const yi = y[j + 1];
-          sr += ur * yr + ui * yi;
-          si += ur * yi - ui * yr;
+        const from = 2 * (k + 1);
+        let c = c0;
+        for (; c + 1 < c1; c += 2) {
+          const ya = 2 * c * n;
+          const yb = ya + 2 * n;
+          let ar = 0, ai = 0, br = 0, bi = 0;
+          for (let j = from; j < end; j += 2) {
+            const ur = a[base + j], ui = a[base + j + 1];
+            const xr = y[ya + j], xi = y[ya + j + 1];
+            const wr = y[yb + j], wi = y[yb + j + 1];
+            ar += ur * xr + ui * xi;
+            ai += ur * xi - ui * xr;
+            br += ur * wr + ui * wi;
+            bi += ur * wi - ui * wr;
+          }
+          ar *= beta;
+          ai *= beta;
+          br *= beta;
+          bi *= beta;
+          for (let j = from; j < end; j += 2) {
+            const ur = a[base + j], ui = a[base + j + 1];
+            y[ya + j] -= ar * ur - ai * ui;
+            y[ya + j + 1] -= ar * ui + ai * ur;
+            y[yb + j] -= br * ur - bi * ui;
+            y[yb + j + 1] -= br * ui + bi * ur;
+          }
         }
-        sr *= beta;
-        si *= beta;
-        for (let j = 2 * (k + 1); j < 2 * n; j += 2) {
-          const ur = a[base + j];
-          const ui = a[base + j + 1];
-          y[j] -= sr * ur - si * ui;
-          y[j + 1] -= sr * ui + si * ur;
+        if (c < c1) {
+          const ya = 2 * c * n;
+          let ar = 0, ai = 0;
+          for (let j = from; j < end; j += 2) {
+            const ur = a[base + j], ui = a[base + j + 1];
+            const xr = y[ya + j], xi = y[ya + j + 1];
+            ar += ur * xr + ui * xi;
+            ai += ur * xi - ui * xr;
+          }
+          ar *= beta;
+          ai *= beta;
+          for (let j = from; j < end; j += 2) {
+            const ur = a[base + j], ui = a[base + j + 1];
+            y[ya + j] -= ar * ur - ai * ui;
+            y[ya + j + 1] -= ar * ui + ai * ur;
+          }
         }
       }
+    }
+    for (let col = 0; col < n; col++) {
+      const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
-        vecs[vo + 2 * (i * n + col)] = y[2 * i];
-        vecs[vo + 2 * (i * n + col) + 1] = y[2 * i + 1];
+        vecs[vo + 2 * (i * n + col)] = y[row + 2 * i];
+        vecs[vo + 2 * (i * n + col) + 1] = y[row + 2 * i + 1];
       }
     }
   }

@@ -1,16 +1,21 @@
 /**
  * Eigenvalues (and eigenvectors) of a real symmetric tridiagonal matrix by implicit QL with
  * Wilkinson shifts (Bowdler, Martin, Reinsch & Wilkinson, Numer. Math. 11, 293 (1968), "tql2").
+ * For larger n the rotations of each sweep are recorded and then applied to the eigenvector matrix
+ * in one pass per row, carrying one value in a register (as LAPACK's dsteqr/dlasr split the work).
  */
 
 const EPS = 2 ** -52;
+/** Up to this size the rotations are applied to z as they are made (measured: bench/linalg.ts). */
+const INLINE_ROTATIONS_UP_TO = 40;
 
 /**
  * Diagonalises the symmetric tridiagonal matrix with diagonal `d[0..n)` and off-diagonal
  * `e[0..n-1)` (e[i] couples i and i+1; e[n-1] is scratch). On return `d` holds the eigenvalues,
- * unsorted, and `e` is destroyed. With `z`, the rotations are applied to the rows of the n x n
- * row-major real matrix `z` (start from the identity to get the eigenvectors as rows: row j is
- * the eigenvector of d[j]). Returns false if it failed to converge.
+ * unsorted, and `e` is destroyed. With `z` (n x n, row-major), the rotations are applied to its
+ * columns: starting from the identity, column j becomes the eigenvector of d[j]. `cs` and `sn`
+ * (length n) are scratch for the rotations, needed only with `z`. Returns false if it failed to
+ * converge.
  *
  * Deflation is normwise (|e_i| <= eps ||T||): every eigenpair has a residual of order eps ||T||.
  */
@@ -19,6 +24,8 @@ export function tridiagonalQL(
   d: Float64Array,
   e: Float64Array,
   z: Float64Array | null,
+  cs: Float64Array,
+  sn: Float64Array,
 ): boolean {
   if (n === 0) return true;
   e[n - 1] = 0;
@@ -28,6 +35,8 @@ export function tridiagonalQL(
     if (t > norm) norm = t;
   }
   const tol = EPS * norm;
+  const inline = z !== null && n <= INLINE_ROTATIONS_UP_TO;
+  const nn = n * n;
   for (let l = 0; l < n; l++) {
     let iter = 0;
     for (;;) {
@@ -54,24 +63,28 @@ export function tridiagonalQL(
           e[m] = 0;
           break;
         }
-        s = f / r;
-        c = g / r;
+        const inv = 1 / r;
+        s = f * inv;
+        c = g * inv;
         g = d[i + 1] - p;
         r = (d[i] - g) * s + 2 * c * b;
         p = s * r;
         d[i + 1] = g + p;
         g = c * r - b;
-        if (z !== null) {
-          const ri = i * n;
-          const rj = ri + n;
-          for (let k = 0; k < n; k++) {
-            const zi = z[ri + k];
-            const zj = z[rj + k];
-            z[rj + k] = s * zi + c * zj;
-            z[ri + k] = c * zi - s * zj;
+        if (inline) {
+          // z is small: rotate now, in the shadow of this loop's sqrt/division latency.
+          for (let k = i; k < nn; k += n) {
+            const zi = z[k];
+            const zj = z[k + 1];
+            z[k + 1] = s * zi + c * zj;
+            z[k] = c * zi - s * zj;
           }
+        } else {
+          cs[i] = c;
+          sn[i] = s;
         }
       }
+      if (z !== null && !inline) applyRotations(n, z, cs, sn, i + 1, m);
       if (r === 0 && i >= l) continue;
       d[l] -= p;
       e[l] = g;
@@ -79,4 +92,56 @@ export function tridiagonalQL(
     }
   }
   return true;
+}
+
+/**
+ * Columns (i, i+1) of z rotated by (cs[i], sn[i]) for i = hi-1 down to lo: per row, the value
+ * passed down the chain stays in a register. Four rows at a time, so that four independent chains
+ * hide each other's latency.
+ */
+function applyRotations(n: number, z: Float64Array, cs: Float64Array, sn: Float64Array, lo: number, hi: number): void {
+  if (hi <= lo) return;
+  let k = 0;
+  for (; k + 3 < n; k += 4) {
+    const r0 = k * n;
+    const r1 = r0 + n;
+    const r2 = r1 + n;
+    const r3 = r2 + n;
+    let x0 = z[r0 + hi];
+    let x1 = z[r1 + hi];
+    let x2 = z[r2 + hi];
+    let x3 = z[r3 + hi];
+    for (let i = hi - 1; i >= lo; i--) {
+      const c = cs[i];
+      const s = sn[i];
+      const y0 = z[r0 + i];
+      const y1 = z[r1 + i];
+      const y2 = z[r2 + i];
+      const y3 = z[r3 + i];
+      z[r0 + i + 1] = s * y0 + c * x0;
+      z[r1 + i + 1] = s * y1 + c * x1;
+      z[r2 + i + 1] = s * y2 + c * x2;
+      z[r3 + i + 1] = s * y3 + c * x3;
+      x0 = c * y0 - s * x0;
+      x1 = c * y1 - s * x1;
+      x2 = c * y2 - s * x2;
+      x3 = c * y3 - s * x3;
+    }
+    z[r0 + lo] = x0;
+    z[r1 + lo] = x1;
+    z[r2 + lo] = x2;
+    z[r3 + lo] = x3;
+  }
+  for (; k < n; k++) {
+    const r0 = k * n;
+    let x0 = z[r0 + hi];
+    for (let i = hi - 1; i >= lo; i--) {
+      const c = cs[i];
+      const s = sn[i];
+      const y0 = z[r0 + i];
+      z[r0 + i + 1] = s * y0 + c * x0;
+      x0 = c * y0 - s * x0;
+    }
+    z[r0 + lo] = x0;
+  }
 }
