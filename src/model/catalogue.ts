@@ -198,14 +198,16 @@ export interface CoupledWireOptions {
 /**
  * A coupled-wire Chern insulator (a design of ours in the spirit of the wire construction of quantum
  * Hall states; common practice). Each wire is a two-site chain (a, b) with hoppings v = t + delta
- * (intracell) and w = t - delta (intercell): at delta = 0 it is critical, with a right mover
- * (a - i b)/sqrt2 and a left mover (a + i b)/sqrt2 at k = pi, delta dimerizes it (mass delta sx).
- * Neighbouring wires are coupled by T = g (sx - i sz), which takes exactly the right mover of wire n
- * to the left mover of wire n + 1 (T is rank one). Bulk:
- *   H(k, ky) = (v + w cos k + 2g cos ky) sx + w sin k sy + 2g sin ky sz.
+ * (intracell) and w = t - delta (intercell), H_ab(k) = v + w e^{ik}: at delta = 0 it is critical,
+ * with a right mover (a + i b)/sqrt2 and a left mover (a - i b)/sqrt2 at k = pi; delta dimerizes it
+ * (mass 2 delta sx at k = pi). Neighbouring wires are coupled by T = <n+1|H|n> = g (sx - i sz),
+ * which is rank one: it takes the left mover of wire n to the right mover of wire n + 1 and
+ * annihilates the right mover (so R_{n+1} pairs with L_n). Bulk:
+ *   H(k, ky) = (v + w cos k + 2g cos ky) sx - w sin k sy + 2g sin ky sz.
  * The sz part breaks the chain's chiral symmetry, so a Chern number is allowed. The gap closes with
  * one Dirac cone at |delta| = |g| (k = pi; ky = pi for delta = g, ky = 0 for delta = -g) and, outside
- * the default ranges, at |g| = |t| (k = 0). |C| = 1 for |delta| < |g| < |t|, C = 0 for |delta| > |g|.
+ * the parameter ranges, at |g| = |t| (k = 0). C(lower) = +1 for |delta| < |g| < |t| (references.md
+ * convention, either sign of g), 0 for |delta| > |g|.
  */
 export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
   const chain = lattice('dimerized wire', [[1]])
@@ -219,7 +221,7 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
     wires: options.wires,
     boundary: options.boundary,
     name: 'coupled-wire Chern insulator',
-    parameters: { g: { default: 0.3, range: [-0.5, 0.5], unit: E, doc: 'inter-wire coupling, right mover of wire n to left mover of wire n+1' } },
+    parameters: { g: { default: 0.3, range: [-0.5, 0.5], unit: E, doc: 'inter-wire coupling, left mover of wire n to right mover of wire n+1' } },
     // T = g (sx - i sz): <n+1, a|H|n, a> = -i g, <n+1, b|H|n, b> = i g, <n+1, b|H|n, a> = <n+1, a|H|n, b> = g.
     couplings: [
       { from: 'a', to: 'a', cell: [0, 1], amplitude: { re: 0, im: '-g' } },
@@ -228,7 +230,7 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
       { from: 'b', to: 'a', cell: [0, 1], amplitude: 'g' },
     ],
   });
-  return withDoc(stack, 'Coupled-wire Chern insulator (our design; the wire construction of quantum Hall states is common practice): dimerized wires (t, delta) coupled right mover to left mover by g. |C| = 1 for |delta| < |g|, 0 for |delta| > |g|.');
+  return withDoc(stack, 'Coupled-wire Chern insulator (our design; the wire construction of quantum Hall states is common practice): dimerized wires (t, delta) left mover of wire n coupled to right mover of wire n+1 by g. C = 1 for |delta| < |g|, 0 for |delta| > |g|.');
 }
 
 /**

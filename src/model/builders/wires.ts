@@ -39,7 +39,7 @@ export function wireStack(chain: ModelSpec, options: WireStackOptions): ModelSpe
   // Embed the chain in two dimensions: its own vector first, the stacking vector second.
   const a = spec.vectors[0];
   const along = a.length === 1 ? [a[0], 0] : a.slice(0, 2);
-  const spacing = options.spacing ?? (spec.vectors.length > 1 ? spec.vectors[1].slice(0, 2) : [-along[1] / Math.hypot(...along), along[0] / Math.hypot(...along)]);
+  const spacing = options.spacing ?? (spec.vectors.length > 1 ? spec.vectors[1].slice(0, 2) : [0 - along[1] / Math.hypot(...along), along[0] / Math.hypot(...along)] /* 0 - x: no -0 in saved models */);
   if (spec.vectors.length > 2 || !Array.isArray(spacing) || spacing.length !== 2) {
     throw new ModelError('wires.spacing', `expected a 2-component vector (the chain must live in 1 or 2 dimensions). Value: ${show(spacing)}`);
   }
