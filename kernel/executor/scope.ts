@@ -61,7 +61,8 @@ export function createScope(host: ScopeHost): Record<string, unknown> {
 
   function progress(label = '', total?: number): ProgressBar {
     const displayId = randomUUID();
-    const state: ProgressState = { label, done: 0, total: total ?? null, finished: false };
+    // Without a total, numbers are fractions of the work (what the engine's onProgress reports).
+    const state: ProgressState = { label, done: 0, total: total ?? 1, finished: false };
     let lastSent = 0;
     const show = (update: boolean): void => {
       lastSent = Date.now();

@@ -74,14 +74,29 @@ const runtime = {
 };
 define(RUNTIME, runtime, false);
 
-let engine: Record<string, unknown> = {};
-let engineError: string | null = null;
-try {
-  engine = (await import(new URL('../../src/index.js', import.meta.url).href)) as Record<string, unknown>;
-} catch (error) {
-  engineError = `the engine (src/index.js) failed to load: ${(error as Error).stack ?? String(error)}`;
+/**
+ * Modules whose exports are in cell scope, all of them, so new exports appear without changes
+ * here: the engine's public API, then kernel-side modules for cells (the widgets).
+ */
+const SCOPE_MODULES = ['../../src/index.js', '../widgets.js'];
+
+async function load(relative: string): Promise<Record<string, unknown>> {
+  return (await import(new URL(relative, import.meta.url).href)) as Record<string, unknown>;
 }
-for (const [name, value] of Object.entries(engine)) if (name !== 'default') define(name, value, false);
+
+let engine: Record<string, unknown> = {};
+const loadErrors: string[] = [];
+for (const [i, relative] of SCOPE_MODULES.entries()) {
+  let exports: Record<string, unknown> = {};
+  try {
+    exports = await load(relative);
+  } catch (error) {
+    loadErrors.push(`${relative} failed to load: ${(error as Error).stack ?? String(error)}`);
+  }
+  if (i === 0) engine = exports;
+  for (const [name, value] of Object.entries(exports)) if (name !== 'default') define(name, value, false);
+}
+const engineError = loadErrors.length ? loadErrors.join('\n') : null;
 for (const [name, value] of Object.entries(helpers)) define(name, value, false);
 
 // --- execution ------------------------------------------------------------------------------------
