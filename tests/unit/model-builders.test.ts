@@ -81,6 +81,14 @@ describe('ribbon and flake', () => {
     // Open along a1 instead: the remaining periodic direction is a2, listed first.
     const s = ribbon(qwz(), 0, 2);
     expect(s.vectors).toEqual([[0, 1], [1, 0]]);
+    // A slab of a 3D model: 2 periodic directions left. At kx = ky = 0 only d_z = t (cos kz - cos k0)
+    // remains; opening z replaces cos kz by the open-chain levels cos(pi n/(W+1)), one per sz sector.
+    const slab = ribbon(weyl2band(), 2, 6);
+    expect(slab.periodic).toBe(2);
+    expect(slab.orbitals).toHaveLength(12);
+    const e = energies(slab, { t: 1, m: 1, k0: 1.1 }, [0, 0]);
+    const dz = [1, 2, 3, 4, 5, 6].flatMap((n) => { const d = -Math.cos(1.1) + Math.cos((Math.PI * n) / 7); return [d, -d]; }).sort((a, b) => a - b);
+    dz.forEach((x, i) => expect(e[i]).toBeCloseTo(x, 12));
   });
 
   it('a square-lattice flake has the particle-in-a-box spectrum -2t[cos(pi m/(L+1)) + cos(pi n/(L+1))] (common practice)', () => {
