@@ -19,3 +19,4 @@ layer engine npx vitest run
 # Real Chromium against the lab (lab/) and real kernels; ~1-2 min, most of it builds and start-ups.
 layer lab-typecheck npx tsc -p lab/tsconfig.json
 layer browser npx vitest run -c vitest.browser.config.ts
+layer kernel /usr/bin/python3 -m unittest discover -s tests/kernel -p 'test_*.py'

@@ -1,0 +1,50 @@
+"""Every notebook in notebooks-demo/ (whatever is there) and the kernel's own fixture notebooks run
+top to bottom through Debian's nbclient with the chernel kernel, with no error output."""
+
+import unittest
+from pathlib import Path
+
+import harness
+import nbformat
+from nbclient import NotebookClient
+
+NOTEBOOKS = sorted((harness.ROOT / "notebooks-demo").glob("*.ipynb")) + sorted((Path(__file__).parent / "notebooks").glob("*.ipynb"))
+
+
+class Notebooks(unittest.TestCase):
+    def test_every_notebook_runs_without_error_output(self):
+        self.assertTrue(NOTEBOOKS, "no notebook found (the kernel's own fixture should always be there)")
+        for path in NOTEBOOKS:
+            with self.subTest(notebook=path.name):
+                nb = nbformat.read(path, as_version=4)
+                client = NotebookClient(nb, kernel_name=harness.KERNEL_NAME, timeout=600, resources={"metadata": {"path": str(path.parent)}})
+                client.execute()
+                errors = [
+                    (i, out.get("ename"), out.get("evalue"))
+                    for i, cell in enumerate(nb.cells)
+                    if cell.cell_type == "code"
+                    for out in cell.get("outputs", [])
+                    if out.get("output_type") == "error"
+                ]
+                self.assertEqual(errors, [], f"{path.name}: cells with errors")
+                code_cells = [c for c in nb.cells if c.cell_type == "code"]
+                self.assertTrue(all(c.get("execution_count") for c in code_cells), f"{path.name}: a cell did not run")
+                if path.name == "kernel-tour.ipynb":
+                    self.check_tour(code_cells)
+
+    def check_tour(self, cells):
+        """What the fixture shows: a model table, a plot, a progress bar finished by the result."""
+        self.assertIn("text/html", cells[0].outputs[0]["data"])
+        self.assertEqual(cells[1].outputs[0]["data"]["text/plain"], "[ true, true, true ]")
+        self.assertIn("application/vnd.plotly.v1+json", cells[2].outputs[0]["data"])
+        # nbclient applies update_display_data in place: the bar's output now holds the phase map.
+        final = cells[3].outputs[0]["data"]
+        self.assertIn("phase-map result", final["text/plain"])
+        self.assertIn("application/vnd.plotly.v1+json", final)
+        texts = [o["data"]["text/plain"] for o in cells[4].outputs if o.get("output_type") == "display_data"]
+        self.assertEqual(texts, ["'second version'"])
+        self.assertIn("printed 9", "".join(o.get("text", "") for o in cells[4].outputs if o.get("output_type") == "stream"))
+
+
+if __name__ == "__main__":
+    unittest.main()
