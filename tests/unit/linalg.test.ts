@@ -132,6 +132,25 @@ describe('HermitianEigensolver', () => {
     expectGoodEigensystem(n, h, r.w, r.v);
   });
 
+  it('open chain with complex (Peierls-phase) hoppings: eigenvalues 2t cos(pi k/(n+1)) (textbook tight-binding chain)', () => {
+    // Already tridiagonal: no reflector is needed; only the diagonal phase transform is exercised.
+    const t = 0.7;
+    for (const n of [3, 4, 7, 16, 50]) {
+      const h = new Float64Array(2 * n * n);
+      for (let i = 0; i + 1 < n; i++) {
+        const theta = 0.3 + 1.1 * i; // a gauge choice: the spectrum of an open chain does not depend on it
+        h[2 * (i * n + i + 1)] = t * Math.cos(theta);
+        h[2 * (i * n + i + 1) + 1] = t * Math.sin(theta);
+        h[2 * ((i + 1) * n + i)] = t * Math.cos(theta);
+        h[2 * ((i + 1) * n + i) + 1] = -t * Math.sin(theta);
+      }
+      const { w, v } = solvePadded(n, h);
+      expectGoodEigensystem(n, h, w, v);
+      const expected = Array.from({ length: n }, (_, k) => 2 * t * Math.cos((Math.PI * (k + 1)) / (n + 1))).sort((a, b) => a - b);
+      for (let k = 0; k < n; k++) expect(Math.abs(w[k] - expected[k])).toBeLessThan(16 * n * EPS);
+    }
+  });
+
   it('exactly degenerate spectra: Kramers pairs (Sakurai sec. 4.4) and projector-built flat bands', () => {
     const next = uniform(5);
     for (const half of [1, 2, 3, 4, 8, 16]) {
