@@ -58,13 +58,20 @@ function localExtensionDirs(pkg: LabPackage): string[] {
     .map(name => resolve(labDir, pkg.dependencies[name].slice('file:'.length)));
 }
 
-/** A hash of the paths, sizes and mtimes of every input of the bundle. */
-function inputFingerprint(pkg: LabPackage): string {
+/** Every file the bundle is made from: the lab's own, and local extensions with the engine they bundle. */
+function inputFiles(pkg: LabPackage): string[] {
   const skip = new Set(['node_modules', 'build']);
-  const files = [
+  const local = localExtensionDirs(pkg);
+  return [
     ...['package.json', 'package-lock.json', 'webpack.config.cjs', 'src'].flatMap(p => listFiles(join(labDir, p), skip)),
-    ...localExtensionDirs(pkg).flatMap(dir => listFiles(dir, skip)),
+    ...local.flatMap(dir => listFiles(dir, skip)),
+    // chernel-widgets bundles the engine into its Web Worker.
+    ...(local.length > 0 ? listFiles(join(projectDir, 'src'), skip) : []),
   ].sort();
+}
+
+/** A hash of the paths, sizes and mtimes of the inputs: catches edits, additions and deletions. */
+function fingerprint(files: string[]): string {
   const hash = createHash('sha256');
   for (const file of files) {
     const { size, mtimeMs } = statSync(file);
@@ -74,8 +81,8 @@ function inputFingerprint(pkg: LabPackage): string {
 }
 
 /**
- * Installs lab/node_modules when absent or older than the lockfile, rebuilds local extensions
- * (their own `npm run build`) and the lab bundle when any input changed since the last build.
+ * Installs lab/node_modules when absent or older than the lockfile; when any input changed since
+ * the last build, rebuilds local extensions (their `build:lib` or `build` script) and the bundle.
  */
 export function ensureLabBuilt(log: Log = console.log): void {
   const installed = join(labDir, 'node_modules', '.package-lock.json');
@@ -83,15 +90,29 @@ export function ensureLabBuilt(log: Log = console.log): void {
     run('npm', ['ci', '--no-audit', '--no-fund'], labDir, log);
   }
   const pkg = readLabPackage();
-  if (existsSync(stampFile) && readFileSync(stampFile, 'utf8') === inputFingerprint(pkg)) return;
+  const files = inputFiles(pkg);
+  const bundle = join(labDir, 'build', 'bundle.js');
+  if (existsSync(stampFile) ? readFileSync(stampFile, 'utf8') === fingerprint(files) : builtAfter(bundle, files)) {
+    // Up to date (without a stamp, e.g. after `npm run build` in setup: when newer than every input).
+    if (!existsSync(stampFile)) writeFileSync(stampFile, fingerprint(files));
+    return;
+  }
 
   for (const dir of localExtensionDirs(pkg)) {
     if (!existsSync(join(dir, 'node_modules'))) run('npm', ['ci', '--no-audit', '--no-fund'], dir, log);
-    run('npm', ['run', 'build', '--silent'], dir, log);
+    // `build:lib` when the package has it: the lab needs only the module it imports.
+    const scripts = (JSON.parse(readFileSync(join(dir, 'package.json'), 'utf8')) as { scripts?: Record<string, string> }).scripts ?? {};
+    run('npm', ['run', scripts['build:lib'] ? 'build:lib' : 'build', '--silent'], dir, log);
   }
   run('npm', ['run', 'build', '--silent'], labDir, log);
   // Taken after the builds, so that their own outputs count as seen.
-  writeFileSync(stampFile, inputFingerprint(pkg));
+  writeFileSync(stampFile, fingerprint(inputFiles(pkg)));
+}
+
+function builtAfter(output: string, inputs: string[]): boolean {
+  if (!existsSync(output)) return false;
+  const built = statSync(output).mtimeMs;
+  return inputs.every(file => statSync(file).mtimeMs < built);
 }
 
 export interface KernelRegistration {

@@ -1,13 +1,18 @@
 // `npm start`: the chernel lab on the demo notebooks. Installs and builds what is missing or
 // stale, registers the chernel kernel, starts the server on 127.0.0.1 and prints its URL.
-// Options: --port N (default 8888, or the next free one), --root DIR (default notebooks-demo/).
+// Options: --port N (default 8888, or the next free one), --root DIR (default notebooks-demo/),
+// --prepare (install, build and register only; what CI runs before the browser tests).
 // Run: node --import ./scripts/register-ts.js lab/start.ts
 import { parseArgs } from 'node:util';
 import { join, resolve } from 'node:path';
 import { ensureLabBuilt, projectDir, registerChernelKernel, startLabServer } from './launch.js';
 
 const { values } = parseArgs({
-  options: { port: { type: 'string', default: '8888' }, root: { type: 'string', default: join(projectDir, 'notebooks-demo') } },
+  options: {
+    port: { type: 'string', default: '8888' },
+    root: { type: 'string', default: join(projectDir, 'notebooks-demo') },
+    prepare: { type: 'boolean', default: false },
+  },
 });
 const port = Number(values.port);
 if (!Number.isInteger(port) || port < 0 || port > 65535) {
@@ -17,6 +22,7 @@ if (!Number.isInteger(port) || port < 0 || port > 65535) {
 
 ensureLabBuilt();
 registerChernelKernel();
+if (values.prepare) process.exit(0);
 const server = await startLabServer({ rootDir: resolve(values.root), port, onOutput: text => process.stderr.write(text) });
 console.log(`\nchernel lab is running on ${resolve(values.root)}\n\n    ${server.labUrl}\n\nPress Ctrl-C to stop.`);
 

@@ -46,6 +46,23 @@ ${loaders(mimeRenderers)}
 }
 writeExtensionLoaders();
 
+/**
+ * Packages that must exist once in the page: a second copy of @jupyterlab/services or
+ * @jupyter-widgets/base brings its own plugin tokens and classes, and plugins silently fail to
+ * meet. An extension linked from this repository (file:../widgets) has its own node_modules that
+ * its imports would otherwise reach first, so these all resolve to lab/node_modules.
+ */
+function singletonAliases() {
+  const modules = path.join(__dirname, 'node_modules');
+  const scopes = ['@jupyterlab', '@jupyter-widgets', '@jupyter', '@lumino', '@codemirror', '@lezer'];
+  const names = ['react', 'react-dom', 'yjs'];
+  for (const scope of scopes) {
+    if (!fs.existsSync(path.join(modules, scope))) continue;
+    for (const entry of fs.readdirSync(path.join(modules, scope))) names.push(`${scope}/${entry}`);
+  }
+  return Object.fromEntries(names.filter(name => fs.existsSync(path.join(modules, name))).map(name => [name, path.join(modules, name)]));
+}
+
 module.exports = (env, argv) => {
   const production = argv.mode === 'production';
   const app = {
@@ -63,6 +80,7 @@ module.exports = (env, argv) => {
     bail: true,
     devtool: production ? false : 'cheap-module-source-map',
     resolve: {
+      alias: singletonAliases(),
       fallback: { path: require.resolve('path-browserify'), url: false, fs: false, crypto: false }
     },
     module: {

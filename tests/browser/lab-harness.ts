@@ -72,6 +72,7 @@ interface PageNotebookPanel {
   content: { widgets: ReadonlyArray<{ model: PageCellModel }>; activeCellIndex: number };
 }
 interface PageLab {
+  isPluginActivated(id: string): boolean;
   commands: { execute(id: string, args?: Record<string, unknown>): Promise<unknown> };
   shell: { widgets(area: string): Iterable<{ id: string }>; activateById(id: string): void };
 }
@@ -158,6 +159,11 @@ export class LabSession {
   /** Console errors and page errors not in the list of known harmless noise. */
   unexpectedErrors(): string[] {
     return this.console.filter(line => /^(error|pageerror):/.test(line) && !knownNoise.some(pattern => pattern.test(line)));
+  }
+
+  /** The ids among `ids` of plugins that are not activated. */
+  inactivePlugins(ids: string[]): Promise<string[]> {
+    return this.page.evaluate(ids => ids.filter(id => !window.chernelLab!.isPluginActivated(id)), ids);
   }
 
   /** Runs a command of the app's command registry (the same ones menus and shortcuts run). */

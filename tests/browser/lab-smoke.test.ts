@@ -8,6 +8,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { projectDir } from '../../lab/launch.js';
 import { openLab, type CellOutput, type LabSession } from './lab-harness.js';
 
+const labExtensions = (JSON.parse(readFileSync(join(projectDir, 'lab', 'package.json'), 'utf8')) as { jupyterlab: { extensions: string[] } })
+  .jupyterlab.extensions;
 const useChernel = existsSync(join(projectDir, 'bin', 'chernel.js'));
 const kernel = useChernel ? 'chernel' : 'python3';
 // 6 * 7 = 42 in either language (arithmetic; common practice). The second cell reads state the
@@ -43,6 +45,9 @@ describe(`lab smoke test with the ${kernel} kernel`, () => {
   it('starts with every plugin activated and no unexpected errors', async () => {
     const shown = await lab.page.locator('#jp-main-dock-panel').isVisible();
     expect(shown).toBe(true);
+    const wanted = ['@jupyterlab/notebook-extension:tracker', '@jupyter-widgets/jupyterlab-manager:plugin'];
+    if (labExtensions.includes('chernel-widgets')) wanted.push('chernel-widgets:plugin');
+    expect(await lab.inactivePlugins(wanted)).toEqual([]);
     expect(lab.unexpectedErrors()).toEqual([]);
   });
 
