@@ -3,7 +3,7 @@
  * eigenphases of a Wilson loop). Frames are stored as in FrameSampler: m vectors of n complex
  * entries, one after another. All outputs and scratch belong to the caller.
  */
-import { HermitianEigensolver } from '../linalg/eigh.js';
+import { UnitaryEigenphases } from '../linalg/eigphases.js';
 
 /**
  * out (m x m) = A^dagger E B, the overlap matrix <u_i(k)| E |u_j(k')>; E is the diagonal embedding
@@ -125,88 +125,28 @@ export function multiplySmall(m: number, a: Float64Array, b: Float64Array, out: 
 }
 
 /**
- * Eigenphases (radians, in (-pi, pi]) of an m x m matrix that is unitary up to discretisation
- * error, such as a Wilson loop. m = 1, 2 in closed form; larger m through a Hermitian combination
- * (W e^{-i phi} + h.c.)/2 that shares W's eigenvectors, with phases read from Rayleigh quotients.
+ * Eigenphases (radians, in (-pi, pi]) of an m x m Wilson loop, unitary up to discretisation error:
+ * the linalg Schur solver, plus the smallest |eigenvalue| as a check of how unitary it was.
  */
 export class UnitaryPhases {
   readonly m: number;
-  private readonly herm: Float64Array;
-  private readonly vecs: Float64Array;
-  private readonly vals: Float64Array;
-  private readonly solver: HermitianEigensolver | null;
+  private readonly solver: UnitaryEigenphases;
 
   constructor(m: number) {
     this.m = m;
-    this.herm = new Float64Array(2 * m * m);
-    this.vecs = new Float64Array(2 * m * m);
-    this.vals = new Float64Array(m);
-    this.solver = m > 2 ? new HermitianEigensolver(m) : null;
+    this.solver = new UnitaryEigenphases(m);
   }
 
-  /** Phases of `w` into `out` (unsorted) ; returns the smallest |eigenvalue| as a unitarity check. */
+  /** Phases of `w` into `out`; returns the smallest |eigenvalue|. */
   solve(w: Float64Array, out: Float64Array): number {
-    const m = this.m;
-    if (m === 1) {
+    if (this.m === 1) {
       out[0] = Math.atan2(w[1], w[0]);
       return Math.hypot(w[0], w[1]);
     }
-    if (m === 2) {
-      // lambda = tr/2 ± sqrt(tr^2/4 - det)
-      const tr = w[0] + w[6], ti = w[1] + w[7];
-      const detr = w[0] * w[6] - w[1] * w[7] - (w[2] * w[4] - w[3] * w[5]);
-      const deti = w[0] * w[7] + w[1] * w[6] - (w[2] * w[5] + w[3] * w[4]);
-      const hr = tr / 2, hi = ti / 2;
-      const dr = hr * hr - hi * hi - detr, di = 2 * hr * hi - deti;
-      const mod = Math.hypot(dr, di);
-      const sr = Math.sqrt(Math.max(0, (mod + dr) / 2));
-      const si = (di < 0 ? -1 : 1) * Math.sqrt(Math.max(0, (mod - dr) / 2));
-      out[0] = Math.atan2(hi + si, hr + sr);
-      out[1] = Math.atan2(hi - si, hr - sr);
-      return Math.min(Math.hypot(hr + sr, hi + si), Math.hypot(hr - sr, hi - si));
-    }
-    let worst = 0;
-    // Two angles: a collision of distinct phases in one combination is lifted in the other.
-    for (const phi of [0.6180339887498949, 2.2360679774997896]) {
-      worst = this.viaHermitian(w, phi, out);
-      if (worst > 0.5) return worst;
-    }
-    return worst;
-  }
-
-  private viaHermitian(w: Float64Array, phi: number, out: Float64Array): number {
-    const m = this.m;
-    const c = Math.cos(phi), s = Math.sin(phi);
-    const h = this.herm;
-    for (let i = 0; i < m; i++) {
-      for (let j = 0; j < m; j++) {
-        // (e^{-i phi} W + e^{i phi} W^dagger)/2, element (i, j)
-        const wr = w[2 * (i * m + j)], wi = w[2 * (i * m + j) + 1];
-        const vr = w[2 * (j * m + i)], vi = -w[2 * (j * m + i) + 1];
-        h[2 * (i * m + j)] = (c * wr + s * wi + c * vr - s * vi) / 2;
-        h[2 * (i * m + j) + 1] = (c * wi - s * wr + c * vi + s * vr) / 2;
-      }
-    }
-    this.solver!.solve(h, this.vals, this.vecs);
-    const v = this.vecs;
+    this.solver.solve(w, out);
+    const ev = this.solver.eigenvalues;
     let worst = Infinity;
-    for (let col = 0; col < m; col++) {
-      let qr = 0, qi = 0;
-      for (let i = 0; i < m; i++) {
-        const xr = v[2 * (i * m + col)], xi = v[2 * (i * m + col) + 1];
-        let yr = 0, yi = 0;
-        for (let j = 0; j < m; j++) {
-          const ar = w[2 * (i * m + j)], ai = w[2 * (i * m + j) + 1];
-          const br = v[2 * (j * m + col)], bi = v[2 * (j * m + col) + 1];
-          yr += ar * br - ai * bi;
-          yi += ar * bi + ai * br;
-        }
-        qr += xr * yr + xi * yi;
-        qi += xr * yi - xi * yr;
-      }
-      out[col] = Math.atan2(qi, qr);
-      worst = Math.min(worst, Math.hypot(qr, qi));
-    }
+    for (let i = 0; i < this.m; i++) worst = Math.min(worst, Math.hypot(ev[2 * i], ev[2 * i + 1]));
     return worst;
   }
 }
