@@ -4,11 +4,11 @@
  * n = 1 and n = 2 in closed form. Larger n: Householder reduction to tridiagonal form, a diagonal
  * phase transform that makes the off-diagonal real, implicit QL with Wilkinson shifts on the real
  * tridiagonal (rotations accumulated in a real matrix), then the phases and reflectors applied to
- * each eigenvector. Normwise backward stable: residuals and orthonormality are of order eps ||H||,
+ * each eigenvector. Eigenvalues only: the root-free QR sweep on the squared off-diagonal instead. Normwise backward stable: residuals and orthonormality are of order eps ||H||,
  * also on clustered and exactly degenerate spectra.
  */
 import type { CMatrix } from './cmatrix.js';
-import { tridiagonalQL } from './tridiagonal.js';
+import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
 const SAFE_MIN = 2 ** -300;
@@ -207,16 +207,20 @@ export class HermitianEigensolver {
         for (let j = 2 * (i * n + i); j < 2 * (i * n + n); j++) a[j] *= inv;
       }
     }
-    this.reduce();
+    this.reduce(vecs !== null);
     const d = this.d;
     const e = this.e;
-    const z = vecs === null ? null : this.z;
-    if (z !== null) {
+    let converged: boolean;
+    if (vecs === null) {
+      converged = tridiagonalEigenvalues(n, d, e);
+    } else {
+      const z = this.z;
       z.fill(0);
       for (let i = 0; i < n; i++) z[i * n + i] = 1;
+      converged = tridiagonalQL(n, d, e, z, this.cs, this.sn);
     }
-    if (!tridiagonalQL(n, d, e, z, this.cs, this.sn)) {
-      throw new RangeError(`eigensolver: the QL iteration did not converge (n = ${n}); is h finite and Hermitian?`);
+    if (!converged) {
+      throw new RangeError(`eigensolver: the tridiagonal iteration did not converge (n = ${n}); is h finite and Hermitian?`);
     }
     // Ascending order by insertion sort (n is small, and QL leaves d nearly ordered in blocks).
     const order = this.order;
@@ -235,10 +239,10 @@ export class HermitianEigensolver {
 
   /**
    * Householder reduction of the Hermitian matrix in `a` (upper triangle) to tridiagonal form:
-   * fills d (diagonal), e (|subdiagonal|), phase (D with T = D T_real D^dagger), and leaves the
-   * reflectors in the rows of `a`.
+   * fills d (diagonal) and leaves the reflectors in the rows of `a`. With `forVectors`, e gets
+   * |subdiagonal| and `phase` the D of T = D T_real D^dagger; without, e gets |subdiagonal|^2.
    */
-  private reduce(): void {
+  private reduce(forVectors: boolean): void {
     const n = this.n;
     const a = this.a;
     const p = this.p;
@@ -326,6 +330,10 @@ export class HermitianEigensolver {
     phase[0] = 1;
     phase[1] = 0;
     for (let i = 0; i < n; i++) d[i] = a[2 * (i * n + i)];
+    if (!forVectors) {
+      for (let i = 0; i < n - 1; i++) e[i] = off[2 * i] * off[2 * i] + off[2 * i + 1] * off[2 * i + 1];
+      return;
+    }
     for (let i = 0; i < n - 1; i++) {
       const xr = off[2 * i];
       const xi = off[2 * i + 1];

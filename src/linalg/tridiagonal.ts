@@ -146,3 +146,56 @@ function applyRotations(n: number, z: Float64Array, cs: Float64Array, sn: Float6
     z[r0 + lo] = x0;
   }
 }
+
+/**
+ * Eigenvalues only, without square roots: the Pal–Walker–Kahan implicit QR sweep on the squared
+ * off-diagonal (B. N. Parlett, The Symmetric Eigenvalue Problem, sec. 8-15), Wilkinson shift from
+ * the trailing 2x2 block, normwise deflation at the bottom. `d[0..n)` is the diagonal and
+ * `e2[0..n-1)` the squares of the off-diagonal; on return `d` holds the eigenvalues, unsorted, and
+ * `e2` is destroyed. Returns false if it failed to converge.
+ */
+export function tridiagonalEigenvalues(n: number, d: Float64Array, e2: Float64Array): boolean {
+  let norm = 0;
+  for (let i = 0; i < n; i++) {
+    const t = Math.abs(d[i]) + (i < n - 1 ? Math.sqrt(e2[i]) : 0);
+    if (t > norm) norm = t;
+  }
+  const tol2 = (EPS * norm) ** 2;
+  let hi = n - 1;
+  let iter = 0;
+  while (hi > 0) {
+    if (e2[hi - 1] <= tol2) {
+      hi--;
+      iter = 0;
+      continue;
+    }
+    let lo = hi - 1;
+    while (lo > 0 && e2[lo - 1] > tol2) lo--;
+    if (++iter > 60) return false;
+    // Wilkinson shift: the eigenvalue of the trailing 2x2 block closer to d[hi].
+    const b2 = e2[hi - 1];
+    const delta = 0.5 * (d[hi - 1] - d[hi]);
+    const root = Math.sqrt(delta * delta + b2);
+    const sigma = d[hi] - b2 / (delta + (delta >= 0 ? root : -root));
+    let c2 = 1;
+    let s2 = 0;
+    let gamma = d[lo] - sigma;
+    let pi = gamma * gamma;
+    for (let i = lo; i < hi; i++) {
+      const beta2 = e2[i];
+      const rho = pi + beta2;
+      if (i > lo) e2[i - 1] = s2 * rho;
+      const oldC2 = c2;
+      c2 = pi / rho;
+      s2 = beta2 / rho;
+      const oldGamma = gamma;
+      const alpha = d[i + 1];
+      gamma = c2 * (alpha - sigma) - s2 * oldGamma;
+      d[i] = oldGamma + alpha - gamma;
+      pi = c2 !== 0 ? (gamma * gamma) / c2 : oldC2 * beta2;
+    }
+    e2[hi - 1] = s2 * pi;
+    d[hi] = gamma + sigma;
+  }
+  return true;
+}
