@@ -7,7 +7,9 @@
  * (`w.setValues({...})`).
  */
 
-import { compute, resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
+import { resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
+import { diagnose } from '../widgets/src/diagnose.js';
+import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { MIME_BUNDLE } from './display/index.js';
 import { packArrays, putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
@@ -212,8 +214,8 @@ export class TopologyWidget {
   }
 
   private computeNow(values: Values): Result {
-    const request = { ...this.options, kind: this.kind, model: this.spec, params: values };
-    return compute(request as Parameters<typeof compute>[0]) as unknown as Result;
+    const request = { ...this.options, kind: this.kind, model: this.spec, params: values } as unknown as DiagnosticRequest;
+    return diagnose(request) as Result;
   }
 
   /** The full synced state (typed arrays packed, not yet lifted out as buffers). */

@@ -7,7 +7,9 @@ import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { exportHtmlCommand, WIDGET_STATE_MIME } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widgets.js';
-import { compute, haldane, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
+import { haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
+import { diagnose } from '../../widgets/src/diagnose.js';
+import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
 
 export const projectDir = resolve(import.meta.dirname, '../..');
 export const artifactsDir = resolve(process.env.CHERNEL_ARTIFACTS ?? join(projectDir, 'test-artifacts'));
@@ -32,6 +34,21 @@ export function fragileQwz(): ModelSpec {
   };
 }
 
+/** Widgets of every other kind: bands, ribbon, a phase map, a flow with Z2. */
+export function moreWidgets(): DemoWidget[] {
+  return [
+    { id: 'c0ffee0000000000000000000000b001', kind: 'bands', spec: haldane(), options: { bands: 1, pointsPerSegment: 40 } },
+    { id: 'c0ffee0000000000000000000000b002', kind: 'ribbon', spec: qwz(), options: { direction: 1, width: 16, nk: 61 } },
+    {
+      id: 'c0ffee0000000000000000000000b003',
+      kind: 'phase-map',
+      spec: haldane(),
+      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 13 }, { param: 'M', from: -1, to: 1, count: 13 }], invariant: 'chern', grid: 12, bands: 1 },
+    },
+    { id: 'c0ffee0000000000000000000000b004', kind: 'wannier-flow', spec: kaneMele(), values: { lambda_R: 0 }, options: { grid: [48, 32], bands: 2, invariant: 'z2' } },
+  ];
+}
+
 /** The demo widgets: the state each one's kernel object would send, as saved in a notebook. */
 export function demoWidgets(): DemoWidget[] {
   return [
@@ -48,8 +65,8 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
   ];
   widgets.forEach((w, i) => {
     const values = resolveParameters(w.spec, w.values ?? {});
-    const request = { ...w.options, kind: w.kind, model: w.spec, params: values };
-    const result = compute(request as Parameters<typeof compute>[0]) as unknown as Record<string, unknown> & { kind: string };
+    const request = { ...w.options, kind: w.kind, model: w.spec, params: values } as unknown as DiagnosticRequest;
+    const result = diagnose(request);
     state[w.id] = savedStateEntry(
       widgetState({ kind: w.kind, spec: w.spec, options: w.options, values, result, error: '', title: w.title ?? '' }),
     );

@@ -10,7 +10,8 @@ import { createParameterControls, formatValue, type ParameterControls } from './
 import { spawnEngineWorker } from './engine-worker.js';
 import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
 import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
-import Plotly, { type Config } from './plotly.js';
+import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
+import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { ensureStyles } from './styles.js';
 import { packArrays, unpackArrays } from './wire.js';
@@ -60,6 +61,20 @@ export class DiagnosticModel extends DOMWidgetModel {
     result: { serialize: (value: unknown) => packArrays(value), deserialize: (value: unknown) => unpackArrays(value) },
   };
 
+  /** Parameters a phase map sweeps: moving them moves the marker, it does not recompute the map. */
+  sweptParameters(): string[] {
+    if (this.get('kind') !== 'phase-map') return [];
+    const axes = (this.get('options') as { axes?: { param?: unknown }[] }).axes;
+    return Array.isArray(axes) ? axes.map((a) => String(a?.param)) : [];
+  }
+
+  /** Whether a result computed for `computed` still answers `wanted` (swept parameters aside). */
+  answers(computed: Values | null | undefined, wanted: Values): boolean {
+    const swept = new Set(this.sweptParameters());
+    const strip = (v: Values) => Object.fromEntries(Object.entries(v).filter(([k]) => !swept.has(k)));
+    return computed != null && sameValues(strip(computed), strip(wanted));
+  }
+
   /** The request the current values describe. */
   request(values: Values = this.get('values')): DiagnosticRequest {
     return { ...(this.get('options') as Record<string, unknown>), kind: this.get('kind'), model: this.get('spec'), params: { ...values } };
@@ -80,6 +95,9 @@ export interface DrawnDetail {
   /** Milliseconds from the control moving to the plot drawn, or null for a draw from saved state. */
   latency: number | null;
   computeMs: number | null;
+  /** Milliseconds spent turning the result into traces, and drawing them. */
+  figureMs: number;
+  plotMs: number;
 }
 
 /** Creates the worker for a view; replaced in unit tests by a worker running in the test process. */
@@ -100,6 +118,7 @@ export class DiagnosticView extends DOMWidgetView {
   private client: LatestWinsClient | null = null;
   private attached = false;
   private figure: Figure | null = null;
+  private plotEventsBound = false;
   /** The values the controls show; ahead of the model's result while a recompute is pending. */
   private live: Values = {};
 
@@ -202,7 +221,7 @@ export class DiagnosticView extends DOMWidgetView {
     if (!this.attached) return;
     const result = this.model.get('result') as DiagnosticResult | null;
     const error = this.model.get('error') as string;
-    if (result && sameValues(this.model.get('result_values'), this.live)) {
+    if (result && this.model.answers(this.model.get('result_values'), this.live)) {
       this.draw(result, this.live, null);
       if (error) this.showMessage('error', error);
     } else if (this.spec) {
@@ -224,9 +243,55 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private controlMoved(name: string, value: number): void {
-    this.live = { ...this.live, [name]: value };
+    this.moveTo({ [name]: value });
+  }
+
+  /** New parameter values from a control or the phase-map marker. */
+  private moveTo(changes: Values): void {
+    this.live = { ...this.live, ...changes };
     this.model.set('values', { ...this.live }, { updated_view: this });
-    this.recompute();
+    const result = this.model.get('result') as DiagnosticResult | null;
+    if (result && this.model.answers(this.model.get('result_values'), this.live)) {
+      // Only swept parameters moved: same map, the marker moves.
+      this.sync();
+      this.draw(result, this.live, null);
+    } else {
+      this.recompute();
+    }
+  }
+
+  /** Dragging the phase-map marker (an editable shape) or clicking the map sets the swept values. */
+  private bindPlotEvents(): void {
+    if (this.plotEventsBound) return;
+    this.plotEventsBound = true;
+    const gd = this.plot as unknown as PlotlyHTMLElement;
+    gd.on('plotly_relayout', (update) => {
+      const swept = this.model.sweptParameters();
+      if (swept.length === 0) return;
+      const shapes = (gd as unknown as { layout: { shapes?: { name?: string; x0: number; x1: number; y0: number; y1: number }[] } }).layout.shapes ?? [];
+      const i = shapes.findIndex((sh) => sh.name === PHASE_POINT_SHAPE);
+      if (i < 0 || !Object.keys(update).some((key) => key.startsWith(`shapes[${i}]`))) return;
+      const sh = shapes[i];
+      const changes: Values = { [swept[0]]: (sh.x0 + sh.x1) / 2 };
+      if (swept[1] !== undefined) changes[swept[1]] = (sh.y0 + sh.y1) / 2;
+      this.pointChosen(changes);
+    });
+    gd.on('plotly_click', (event) => {
+      const swept = this.model.sweptParameters();
+      const point = event.points[0];
+      if (swept.length < 2 || point === undefined || typeof point.x !== 'number' || typeof point.y !== 'number') return;
+      this.pointChosen({ [swept[0]]: point.x, [swept[1]]: point.y });
+    });
+  }
+
+  private pointChosen(changes: Values): void {
+    const clamped: Values = {};
+    for (const [name, value] of Object.entries(changes)) {
+      const range = this.spec?.parameters[name]?.range;
+      clamped[name] = range ? Math.min(range[1], Math.max(range[0], value)) : value;
+    }
+    this.controls?.setValues(clamped);
+    this.moveTo(clamped);
   }
 
   private recompute(): void {
@@ -263,6 +328,7 @@ export class DiagnosticView extends DOMWidgetView {
   private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null): void {
     if (!this.attached) return;
     let figure: Figure;
+    const started = performance.now();
     try {
       figure = figureFor(result, this.context(values));
     } catch (err) {
@@ -282,8 +348,12 @@ export class DiagnosticView extends DOMWidgetView {
       this.showMessage(null, '');
     }
     const busy = this.client?.busy ?? false;
-    void Plotly.react(this.plot, figure.data, figure.layout, PLOT_CONFIG).then(() => {
+    const figureMs = performance.now() - started;
+    // A phase map's only shape is its current point: let the hand move it directly.
+    const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
+    void Plotly.react(this.plot, figure.data, figure.layout, config).then(() => {
       if (!this.attached) return;
+      this.bindPlotEvents();
       this.plot.classList.toggle('chernel-stale', busy);
       this.statusEl.textContent = outcome
         ? `${describeValues(values)} · engine ${outcome.computeMs.toFixed(0)} ms`
@@ -294,6 +364,8 @@ export class DiagnosticView extends DOMWidgetView {
         gapless: figure.gapless,
         latency: outcome ? outcome.latency : null,
         computeMs: outcome ? outcome.computeMs : null,
+        figureMs,
+        plotMs: performance.now() - started - figureMs,
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });

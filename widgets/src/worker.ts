@@ -3,7 +3,7 @@
  * the engine from ../../src and inlined into the widget bundle as a blob URL, so it also runs from
  * a file:// page.
  */
-import { compute } from '../../src/index.js';
+import { diagnose } from './diagnose.js';
 import type { ComputeMessage, ComputeReply, DiagnosticResult } from './protocol.js';
 import { transferablesOf } from './wire.js';
 
@@ -19,8 +19,7 @@ scope.onmessage = (event) => {
   const started = performance.now();
   let reply: ComputeReply;
   try {
-    // The request came from widget state: compute() validates it and names any bad field.
-    const result = compute(request as unknown as Parameters<typeof compute>[0]) as unknown as DiagnosticResult;
+    const result: DiagnosticResult = diagnose(request);
     reply = { id, ok: true, result, ms: performance.now() - started };
   } catch (err) {
     const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };

@@ -115,7 +115,7 @@ export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figur
       ...BASE_LAYOUT,
       title: { text: `Bands — ${summary}` },
       xaxis: {
-        title: { text: 'k along the path [Å⁻¹ if vectors in Å]' },
+        title: { text: `k along ${path.labels.map((l) => l.label).join('–') || 'the path'} (Cartesian |Δk|)` },
         tickmode: 'array',
         tickvals: path.labels.map((l) => l.distance),
         ticktext: path.labels.map((l) => l.label),

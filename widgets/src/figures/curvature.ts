@@ -66,15 +66,30 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   const corners = ctx.spec.vectors.length >= 2 && ctx.spec.periodic >= 2 ? boundaryReduced(ctx.spec.vectors) : null;
   const [t1, t2] = tiling(corners);
 
-  // Periodic copies of the torus so a hexagonal zone is covered; rows are k2, columns k1.
-  const x: number[] = [];
-  for (let s = t1.from; s < t1.to; s++) for (const v of x1) x.push(v + s);
-  const y: number[] = [];
-  for (let s = t2.from; s < t2.to; s++) for (const v of x2) y.push(v + s);
-  const z: number[][] = y.map((_, r) => {
-    const row = (r % n2) * n1;
-    return x.map((__, c) => omega[row + (c % n1)]);
-  });
+  // Periodic copies of the torus, cropped to the picture, so a hexagonal zone is covered.
+  const span = (axis: 0 | 1): [number, number] => {
+    if (corners === null) return [-0.5, 0.5];
+    const lo = Math.min(...corners.map((c) => c[axis]));
+    const hi = Math.max(...corners.map((c) => c[axis]));
+    const pad = 0.06 * (hi - lo);
+    return [lo - pad, hi + pad];
+  };
+  const xRange = span(0);
+  const yRange = span(1);
+  const cover = (base: number[], tiles: { from: number; to: number }, [lo, hi]: [number, number], step: number) => {
+    const out: { value: number; index: number }[] = [];
+    for (let s = tiles.from; s < tiles.to; s++) {
+      base.forEach((v, index) => {
+        if (v + s >= lo - step && v + s <= hi + step) out.push({ value: v + s, index });
+      });
+    }
+    return out;
+  };
+  const xs = cover(x1, t1, xRange, 1 / n1);
+  const ys = cover(x2, t2, yRange, 1 / n2);
+  const x = xs.map((p) => p.value);
+  const y = ys.map((p) => p.value);
+  const z: number[][] = ys.map((row) => xs.map((col) => omega[row.index * n1 + col.index]));
   let peak = 0;
   for (let i = 0; i < omega.length; i++) peak = Math.max(peak, Math.abs(omega[i]));
 
@@ -124,15 +139,6 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   const invariant = gapless ? null : chern;
   const head = invariant === null ? 'C withheld' : `C = ${fmt(invariant)}`;
   const summary = `${head} · ${gapText(result, unit)}`;
-  const span = (axis: 0 | 1): [number, number] => {
-    if (corners === null) return [-0.5, 0.5];
-    const lo = Math.min(...corners.map((c) => c[axis]));
-    const hi = Math.max(...corners.map((c) => c[axis]));
-    const pad = 0.06 * (hi - lo);
-    return [lo - pad, hi + pad];
-  };
-  const xRange = span(0);
-  const yRange = span(1);
   return {
     data,
     layout: {

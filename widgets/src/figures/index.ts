@@ -4,6 +4,8 @@ import type { Figure, FigureContext, Table } from './common.js';
 import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
 import { flowFigure, flowTable } from './flow.js';
+import { phaseMapFigure, phaseMapTable } from './phase-map.js';
+import { ribbonFigure, ribbonTable } from './ribbon.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -16,6 +18,8 @@ const RENDERERS: Record<string, Renderer> = {
   curvature: { figure: curvatureFigure, table: curvatureTable },
   'wannier-flow': { figure: flowFigure, table: flowTable },
   bands: { figure: bandsFigure, table: bandsTable },
+  ribbon: { figure: ribbonFigure, table: ribbonTable },
+  'phase-map': { figure: phaseMapFigure, table: phaseMapTable },
 };
 
 function rendererFor(kind: string): Renderer {

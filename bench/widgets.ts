@@ -1,0 +1,109 @@
+/**
+ * Widget recompute latency in headless Chromium: one control step (slider input -> engine in the
+ * page's Web Worker -> result back -> plotly redraw) of a 4-band model, 50 steps each, for a
+ * 100x100 Berry-curvature map and a 101x101 Wannier-centre flow. Target: p95 under 50 ms.
+ * Reference, same run: the same requests computed directly by the engine in Node (no worker, no
+ * drawing); the ratio is reference / ours (1 would mean the widget adds nothing to the engine).
+ *
+ *   npm run bench -- widgets          (needs `npm run build` in widgets/ first)
+ */
+import { compute, kaneMele } from '../src/index.js';
+import { exportDemo, openPage, type DemoWidget } from '../tests/browser/widgets-harness.js';
+import type { BenchRow } from './table.js';
+
+const STEPS = 50;
+const WARMUP = 3;
+const PARAMETER = 'lambda_v';
+/** Slider steps of lambda_v from its default: 0.005 apart, as a slow drag (range [-1, 1] / 400). */
+const values = (count: number, from = 0.1) => Array.from({ length: count }, (_, i) => Number((from + 0.005 * (i + 1)).toFixed(6)));
+
+function quantile(sorted: number[], q: number): number {
+  const pos = (sorted.length - 1) * q;
+  const lo = Math.floor(pos);
+  const hi = Math.ceil(pos);
+  return sorted[lo] + (sorted[hi] - sorted[lo]) * (pos - lo);
+}
+
+function median(xs: number[]): number {
+  return quantile([...xs].sort((a, b) => a - b), 0.5);
+}
+
+interface StepTiming {
+  total: number;
+  compute: number;
+  figure: number;
+  plot: number;
+}
+
+export async function benchWidgets(): Promise<BenchRow[]> {
+  const model = kaneMele();
+  const cases: { label: string; widget: DemoWidget }[] = [
+    { label: 'curvature map 100x100, 4 bands', widget: { id: 'bench0000000000000000000000000001', kind: 'curvature', spec: model, options: { grid: 100, bands: 2 } } },
+    { label: 'Wannier flow 101x101, 4 bands', widget: { id: 'bench0000000000000000000000000002', kind: 'wannier-flow', spec: model, options: { grid: [101, 101], bands: 2 } } },
+  ];
+  const { page: html } = exportDemo(
+    cases.map((c) => c.widget),
+    'widgets-bench',
+  );
+  const opened = await openPage(html);
+  const rows: BenchRow[] = [];
+  try {
+    for (const [index, c] of cases.entries()) {
+      const steps = values(WARMUP + STEPS);
+      const timings = await opened.page.evaluate(
+        async ({ index, name, steps }) => {
+          const w = document.querySelectorAll('.chernel-widget')[index];
+          const slider = w.querySelector(`.chernel-control[data-parameter="${name}"] input[type=range]`) as HTMLInputElement;
+          const out: StepTiming[] = [];
+          for (const v of steps) {
+            const done = new Promise<{ computeMs: number; figureMs: number; plotMs: number }>((resolve, reject) => {
+              w.addEventListener('chernel-drawn', (e) => resolve((e as CustomEvent).detail), { once: true });
+              w.addEventListener('chernel-error', (e) => reject(new Error((e as CustomEvent).detail.message)), { once: true });
+            });
+            const t0 = performance.now();
+            slider.value = String(v);
+            slider.dispatchEvent(new Event('input', { bubbles: true }));
+            const detail = await done;
+            out.push({ total: performance.now() - t0, compute: detail.computeMs, figure: detail.figureMs, plot: detail.plotMs });
+          }
+          return out;
+        },
+        { index, name: PARAMETER, steps },
+      );
+      const measured = timings.slice(WARMUP);
+      process.stderr.write(
+        `bench: widgets: ${c.label}: median engine ${median(measured.map((t) => t.compute)).toFixed(1)} ms, ` +
+          `traces ${median(measured.map((t) => t.figure)).toFixed(1)} ms, plotly ${median(measured.map((t) => t.plot)).toFixed(1)} ms\n`,
+      );
+      const totals = measured.map((t) => t.total).sort((a, b) => a - b);
+
+      // Reference: the engine alone, in Node, on the same requests.
+      const direct: number[] = [];
+      for (const v of steps.slice(WARMUP, WARMUP + 10)) {
+        const request = { ...c.widget.options, kind: c.widget.kind, model, params: { [PARAMETER]: v } };
+        const t0 = performance.now();
+        compute(request as Parameters<typeof compute>[0]);
+        direct.push(performance.now() - t0);
+      }
+      const reference = median(direct);
+      const med = quantile(totals, 0.5);
+      const p95 = quantile(totals, 0.95);
+      rows.push(
+        { name: `widget step, ${c.label}: median`, ours: med, reference, unit: 'ms', ratio: reference / med, target: 'p95 < 50 ms' },
+        { name: `widget step, ${c.label}: p95`, ours: p95, reference, unit: 'ms', ratio: reference / p95, target: 'p95 < 50 ms' },
+        {
+          name: `widget step, ${c.label}: engine in the worker (median)`,
+          ours: median(measured.map((t) => t.compute)),
+          reference,
+          unit: 'ms',
+          ratio: reference / median(measured.map((t) => t.compute)),
+          target: '-',
+        },
+      );
+    }
+  } finally {
+    await opened.close();
+  }
+  if (opened.errors.length > 0) throw new Error(`page errors during the widget bench: ${opened.errors.join('; ')}`);
+  return rows;
+}
