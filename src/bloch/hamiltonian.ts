@@ -2,6 +2,9 @@
  * A model compiled once into typed arrays, then H(k) and dH/dk_i at any reduced momentum k
  * (k_i = k·a_i, radians). New parameter values re-evaluate the amplitudes in place; the structure
  * (which orbitals, which phases) is never rebuilt.
+ *
+ * A term <R,b|H|0,a> = t in the basis |k,a> = sum_R e^{ik·R}|R,a> gives H_ba(k) += t e^{-ik·R}
+ * (and e^{-ik·(R + r_b - r_a)} in the 'orbital' convention, where |k,a> carries e^{ik·r_a}).
  */
 import type { CMatrix } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
@@ -114,7 +117,7 @@ export class BlochHamiltonian {
     const ph = this.phases;
     for (let p = 0; p < this.phaseCount; p++) {
       let phi = 0;
-      for (let j = 0; j < dim; j++) phi += k[j] * v[p * dim + j];
+      for (let j = 0; j < dim; j++) phi -= k[j] * v[p * dim + j];
       ph[2 * p] = Math.cos(phi);
       ph[2 * p + 1] = Math.sin(phi);
     }
@@ -133,7 +136,7 @@ export class BlochHamiltonian {
     return this.accumulate(out, dir);
   }
 
-  /** Sum the terms with their phases; with dir >= 0, each term is multiplied by i d_dir. */
+  /** Sum the terms with their phases; with dir >= 0, each term is multiplied by -i d_dir. */
   private accumulate(out: CMatrix, dir: number): CMatrix {
     const n = this.size;
     out.fill(0, 0, 2 * n * n);
@@ -148,8 +151,8 @@ export class BlochHamiltonian {
       let im = tr * ci + ti * cr;
       if (dir >= 0) {
         const d = this.phaseVectors[p * dim + dir];
-        const r = -im * d;
-        im = re * d;
+        const r = im * d;
+        im = -re * d;
         re = r;
       }
       const a = this.termFrom[t];

@@ -208,7 +208,8 @@ export class LatticeBuilder {
   /**
    * Adds M_cos cos(k·R) + M_sin sin(k·R) to the block of H(k), k·R = sum_i k_i R_i (reduced
    * momentum, the 'lattice' Bloch convention); both matrices must be Hermitian. The signs of the
-   * e^{±ik·R} terms are derived here: amplitude (M_cos - i M_sin)/2 on cell R, its partner on -R.
+   * e^{±ik·R} terms are derived here: H_ba(k) gets t e^{-ik·R} from a term on cell R, so the
+   * amplitude on cell R is (M_cos + i M_sin)/2 and its partner on -R supplies the conjugate.
    */
   harmonic(block: string, cell: number[], parts: Harmonic): this {
     const where = `harmonic(${show(block)}, ${show(cell)})`;
@@ -228,7 +229,7 @@ export class LatticeBuilder {
     const m: Dense = Array.from({ length: n }, (_, i) =>
       Array.from({ length: n }, (_, j) => {
         const fromCos = c?.[i][j] ? multiplyAmplitudes(c[i][j]!, 0.5) : null;
-        const fromSin = s?.[i][j] ? multiplyAmplitudes(s[i][j]!, { re: 0, im: -0.5 }) : null;
+        const fromSin = s?.[i][j] ? multiplyAmplitudes(s[i][j]!, { re: 0, im: 0.5 }) : null;
         return fromCos === null ? fromSin : fromSin === null ? fromCos : addAmplitudes(fromCos, fromSin);
       }),
     );

@@ -198,7 +198,7 @@ export interface CoupledWireOptions {
 /**
  * A coupled-wire Chern insulator (a design of ours in the spirit of the wire construction of quantum
  * Hall states; common practice). Each wire is a two-site chain (a, b) with hoppings v = t + delta
- * (intracell) and w = t - delta (intercell), H_ab(k) = v + w e^{ik}: at delta = 0 it is critical,
+ * (intracell) and w = t - delta (intercell), H_ab(k) = v + w e^{-ik}: at delta = 0 it is critical,
  * with a right mover (a + i b)/sqrt2 and a left mover (a - i b)/sqrt2 at k = pi; delta dimerizes it
  * (mass 2 delta sx at k = pi). Neighbouring wires are coupled by T = <n+1|H|n> = g (sx - i sz),
  * which is rank one: it takes the left mover of wire n to the right mover of wire n + 1 and

@@ -2,7 +2,7 @@
  * Berry (Zak) phase of a band group along a closed loop in k, non-Abelian: the Wilson loop
  * W = M(0,1) M(1,2) ... M(N-1,N) of overlap matrices, gamma = -Im ln det W (A = i<u|grad u>, so
  * gamma = loop integral of A). In the 'orbital' convention a loop that advances by a reciprocal
- * vector G closes through the embedding e^{iG·r} (see `embeddingFor`). The result names its
+ * vector G closes through the embedding e^{-iG·r} (see `embeddingFor`). The result names its
  * convention: the phase of the same loop differs between the two by 2pi times the orbital positions.
  */
 import { checkInterrupt } from '../interrupt.js';

@@ -2,9 +2,11 @@
  * Invariants of 1D chains: the winding number of a chiral-symmetric model and the Majorana number
  * of a Bogoliubov–de Gennes chain.
  *
- * Winding (stated once): with the orbitals split into sublattices A and B and H(k) = [[0, q], [q^dagger, 0]]
- * in the order (A, B), q = H_AB (rows A, columns B) in the 'lattice' convention, and
+ * Winding (stated once): with the orbitals split into sublattices A and B and H(k) = [[0, q^dagger], [q, 0]]
+ * in the order (A, B), q = H_BA (rows B, columns A) in the 'lattice' convention, and
  *   nu = (1/2pi i) loop integral of d ln det q(k),  k from -pi to pi.
+ * For a two-band chain H = dx sx + dy sy, q = dx + i dy: nu is the winding of the d-vector
+ * (Asbóth, Oroszlány, Pályi, Lect. Notes Phys. 919 (2016), ch. 1).
  * (The lattice convention keeps det q periodic; the orbital one would add a non-integer shift.)
  *
  * Majorana number (Kitaev, Physics-Uspekhi 44, 131 (2001)): M = sign Pf A(0) · sign Pf A(pi), where
@@ -30,7 +32,7 @@ export interface WindingResult {
   convention: 'lattice';
   /** The winding number, null when the spectrum touches zero energy. */
   winding: number | null;
-  /** Orbital labels of the two sublattices; q = H_AB. */
+  /** Orbital labels of the two sublattices; q = H_BA. */
   sublattices: [string[], string[]];
   points: number;
   checks: TopologyChecks & { maxStep: number };
@@ -88,7 +90,7 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
   } else inA = findSublattices(h);
   const A = labels.map((_, i) => i).filter((i) => inA[i]);
   const B = labels.map((_, i) => i).filter((i) => !inA[i]);
-  if (A.length !== B.length) throw new ModelError('sublattice', `the sublattices must hold equally many orbitals for a square q = H_AB; got ${A.length} and ${B.length}`);
+  if (A.length !== B.length) throw new ModelError('sublattice', `the sublattices must hold equally many orbitals for a square q = H_BA; got ${A.length} and ${B.length}`);
   const nA = A.length;
   const mat = new Float64Array(2 * n * n);
   const q = new Float64Array(2 * nA * nA);
@@ -123,8 +125,8 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
         minGapAt = k;
       }
       for (let r = 0; r < nA; r++) for (let c = 0; c < nA; c++) {
-        q[2 * (r * nA + c)] = mat[2 * (A[r] * n + B[c])];
-        q[2 * (r * nA + c) + 1] = mat[2 * (A[r] * n + B[c]) + 1];
+        q[2 * (r * nA + c)] = mat[2 * (B[r] * n + A[c])];
+        q[2 * (r * nA + c) + 1] = mat[2 * (B[r] * n + A[c]) + 1];
       }
       determinantInPlace(nA, q, det);
       const phase = Math.atan2(det[1], det[0]);

@@ -167,9 +167,9 @@ export function resolvePlane(dim: number, plane: PlaneSpec | undefined, field = 
 }
 
 /**
- * e^{i G·r_a} per orbital, as (cos, sin) pairs, for G = 2pi * turns (reduced): the embedding that
- * closes a loop across the zone in the 'orbital' convention, where u(k + G) = e^{iG·r} u(k) (from
- * H(k + G) = D H(k) D^dagger, D = diag e^{iG·r}, with H(k) as src/bloch builds it). In the
+ * e^{-i G·r_a} per orbital, as (cos, sin) pairs, for G = 2pi * turns (reduced): the embedding that
+ * closes a loop across the zone in the 'orbital' convention, where u(k + G) = e^{-iG·r} u(k) (from
+ * H(k + G) = D H(k) D^dagger, D = diag e^{-iG·r}, with H(k) as src/bloch builds it). In the
  * 'lattice' convention H is periodic and this returns null, as it does for G = 0.
  */
 export function embeddingFor(h: BlochHamiltonian, turns: ArrayLike<number>): Float64Array | null {
@@ -177,7 +177,7 @@ export function embeddingFor(h: BlochHamiltonian, turns: ArrayLike<number>): Flo
   const out = new Float64Array(2 * h.size);
   h.spec.orbitals.forEach((o, a) => {
     let phi = 0;
-    for (let i = 0; i < turns.length; i++) phi += 2 * Math.PI * turns[i] * o.position[i];
+    for (let i = 0; i < turns.length; i++) phi -= 2 * Math.PI * turns[i] * o.position[i];
     out[2 * a] = Math.cos(phi);
     out[2 * a + 1] = Math.sin(phi);
   });

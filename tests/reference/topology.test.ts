@@ -185,7 +185,8 @@ describe('Z2 indices', () => {
 
 describe('1D invariants', () => {
   it('SSH: winding 1 and Zak phase pi for |v| < |w|, 0 and 0 for |v| > |w|, null at v = w (Su, Schrieffer, Heeger, PRL 42, 1698 (1979))', () => {
-    // Convention: nu = winding of det H_AB (rows A, columns B), lattice Bloch convention.
+    // Convention: nu = winding of det H_BA (rows B, columns A), lattice Bloch convention: the winding
+    // of the d-vector (v + w cos k, w sin k), +1 for |v| < |w| (Asbóth et al. ch. 1).
     const top = windingNumber(ssh(), { params: { v: 0.5, w: 1 } });
     expect(top.winding).toBe(1);
     expect(top.sublattices).toEqual([['A'], ['B']]);

@@ -9,9 +9,10 @@ function qwz() {
     .onsite('a', 'u').onsite('b', '-u')
     .hop('a', 'a', [1, 0], 0.5).hop('b', 'b', [1, 0], -0.5)
     .hop('a', 'a', [0, 1], 0.5).hop('b', 'b', [0, 1], -0.5)
-    // H_ab = sin kx - i sin ky = -i/2 e^{ikx} + i/2 e^{-ikx} - 1/2 e^{iky} + 1/2 e^{-iky}
-    .hop('b', 'a', [1, 0], { re: 0, im: -0.5 }).hop('a', 'b', [1, 0], { re: 0, im: -0.5 })
-    .hop('b', 'a', [0, 1], -0.5).hop('a', 'b', [0, 1], 0.5)
+    // H_ab = sin kx - i sin ky = i/2 e^{-ikx} - i/2 e^{ikx} + 1/2 e^{-iky} - 1/2 e^{iky}. A term on
+    // cell R adds t e^{-ik·R} to H_{to,from} and its partner t* e^{+ik·R} to H_{from,to}.
+    .hop('b', 'a', [1, 0], { re: 0, im: 0.5 }).hop('a', 'b', [1, 0], { re: 0, im: 0.5 })
+    .hop('b', 'a', [0, 1], 0.5).hop('a', 'b', [0, 1], -0.5)
     .build();
 }
 

@@ -39,8 +39,8 @@ describe('builder: Pauli-string blocks and harmonics', () => {
       .hopMatrix('a', 'b', [1], [[{ re: 0, im: 2 }]]).build();
     const k = 0.4;
     const h = hAt(m, {}, [k]);
-    // H_ba(k) = 2i e^{ik}
-    expect(h[2 * (1 * 3 + 0)]).toBeCloseTo(-2 * Math.sin(k), 14);
+    // H_ba(k) = 2i e^{-ik}
+    expect(h[2 * (1 * 3 + 0)]).toBeCloseTo(2 * Math.sin(k), 14);
     expect(h[2 * (1 * 3 + 0) + 1]).toBeCloseTo(2 * Math.cos(k), 14);
   });
 
@@ -54,8 +54,8 @@ describe('builder: Pauli-string blocks and harmonics', () => {
     const h = hAt(m, { u: 0.5 }, k);
     expect(h[0]).toBeCloseTo(1.5, 14);
     expect(h[6]).toBeCloseTo(-1, 14);
-    // H_ba = 0.3 e^{ik1} + conj(0.2i e^{-ik1}) = (0.3 - 0.2i) e^{ik1}
-    const re = 0.3 * Math.cos(0.9) + 0.2 * Math.sin(0.9), im = 0.3 * Math.sin(0.9) - 0.2 * Math.cos(0.9);
+    // H_ba = 0.3 e^{-ik1} + conj(0.2i e^{ik1}) = (0.3 - 0.2i) e^{-ik1}
+    const re = 0.3 * Math.cos(0.9) - 0.2 * Math.sin(0.9), im = -0.3 * Math.sin(0.9) - 0.2 * Math.cos(0.9);
     expect(h[4]).toBeCloseTo(re, 14);
     expect(h[5]).toBeCloseTo(im, 14);
   });

@@ -12,7 +12,7 @@
  * A pairing term {from: a, to: b, cell: R, amplitude: Delta} is the many-body term
  *   Delta c^dagger_{R,b} c^dagger_{0,a} + h.c.,
  * which puts D_{b a}(R) = Delta and, by Fermi statistics, D_{a b}(-R) = -Delta (both are added).
- * In k: D(k)_{ba} += Delta e^{ik·R}, D(k)_{ab} -= Delta e^{-ik·R}; so D(k)^T = -D(-k). A pairing
+ * In k: D(k)_{ba} += Delta e^{-ik·R}, D(k)_{ab} -= Delta e^{ik·R}; so D(k)^T = -D(-k). A pairing
  * term on one orbital in one cell (a == b, R == 0) vanishes and is refused. Spin is not rotated:
  * the hole of `A.up` is the hole of that same orbital (no (c_dn^dagger, -c_up^dagger) reordering).
  */
