@@ -35,6 +35,28 @@ interface StepTiming {
   plot: number;
 }
 
+/**
+ * Runs in the page (as text: this file is compiled without the DOM library): moves one widget's
+ * slider through `steps`, one at a time, each time waiting for the redraw it causes.
+ */
+const stepScript = `async ({ index, name, steps }) => {
+  const w = document.querySelectorAll('.chernel-widget')[index];
+  const slider = w.querySelector('.chernel-control[data-parameter="' + name + '"] input[type=range]');
+  const out = [];
+  for (const v of steps) {
+    const done = new Promise((resolve, reject) => {
+      w.addEventListener('chernel-drawn', (e) => resolve(e.detail), { once: true });
+      w.addEventListener('chernel-error', (e) => reject(new Error(e.detail.message)), { once: true });
+    });
+    const t0 = performance.now();
+    slider.value = String(v);
+    slider.dispatchEvent(new Event('input', { bubbles: true }));
+    const d = await done;
+    out.push({ total: performance.now() - t0, compute: d.computeMs, figure: d.figureMs, plot: d.plotMs });
+  }
+  return out;
+}`;
+
 export async function benchWidgets(): Promise<BenchRow[]> {
   const model = kaneMele();
   const cases: { label: string; widget: DemoWidget }[] = [
@@ -50,26 +72,8 @@ export async function benchWidgets(): Promise<BenchRow[]> {
   try {
     for (const [index, c] of cases.entries()) {
       const steps = values(WARMUP + STEPS);
-      const timings = await opened.page.evaluate(
-        async ({ index, name, steps }) => {
-          const w = document.querySelectorAll('.chernel-widget')[index];
-          const slider = w.querySelector(`.chernel-control[data-parameter="${name}"] input[type=range]`) as HTMLInputElement;
-          const out: StepTiming[] = [];
-          for (const v of steps) {
-            const done = new Promise<{ computeMs: number; figureMs: number; plotMs: number }>((resolve, reject) => {
-              w.addEventListener('chernel-drawn', (e) => resolve((e as CustomEvent).detail), { once: true });
-              w.addEventListener('chernel-error', (e) => reject(new Error((e as CustomEvent).detail.message)), { once: true });
-            });
-            const t0 = performance.now();
-            slider.value = String(v);
-            slider.dispatchEvent(new Event('input', { bubbles: true }));
-            const detail = await done;
-            out.push({ total: performance.now() - t0, compute: detail.computeMs, figure: detail.figureMs, plot: detail.plotMs });
-          }
-          return out;
-        },
-        { index, name: PARAMETER, steps },
-      );
+      const call = `(${stepScript})(${JSON.stringify({ index, name: PARAMETER, steps })})`;
+      const timings = (await opened.page.evaluate(call)) as StepTiming[];
       const measured = timings.slice(WARMUP);
       process.stderr.write(
         `bench: widgets: ${c.label}: median engine ${median(measured.map((t) => t.compute)).toFixed(1)} ms, ` +

@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { exportHtmlCommand, WIDGET_STATE_MIME } from '../../kernel/export-html.js';
-import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widgets.js';
+import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widget-state.js';
 import { haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
 import { diagnose } from '../../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
@@ -142,18 +142,13 @@ export async function openPage(path: string): Promise<OpenedPage> {
     if (m.type() === 'error') errors.push(`console: ${m.text()}`);
   });
   await page.goto(`file://${path}`);
-  await page.waitForFunction(() => window.chernelWidgets !== undefined);
-  await page.evaluate(() => window.chernelWidgets!.ready);
+  // Expressions as text: this file is also compiled without the DOM library (bench/).
+  await page.waitForFunction('window.chernelWidgets !== undefined');
+  await page.evaluate('window.chernelWidgets.ready');
   return { context, page, errors, close: () => context.close() };
 }
 
 export function artifactPath(name: string): string {
   mkdirSync(artifactsDir, { recursive: true });
   return join(artifactsDir, name);
-}
-
-declare global {
-  interface Window {
-    chernelWidgets?: { ready: Promise<number> };
-  }
 }

@@ -1,0 +1,112 @@
+/**
+ * The synced state of chernel's widgets as the kernel writes it: the `jupyter.widget` comm's state
+ * (model description, parameter values, options, result with typed arrays packed for binary
+ * buffers), and the same state as a notebook saves it. Kept apart from kernel/widgets.ts, whose
+ * exports are what a cell sees.
+ */
+
+import type { ModelSpec } from '../src/index.js';
+import { packArrays, removeBuffers } from '../widgets/src/wire.js';
+
+export const WIDGET_MODULE = 'chernel-widgets';
+/** The semver range of the front-end module the state is written for. */
+export const WIDGET_MODULE_VERSION = '^0.1.0';
+export const WIDGET_PROTOCOL_VERSION = '2.1.0';
+export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+
+export type WidgetKind = 'curvature' | 'wannier-flow' | 'bands' | 'ribbon' | 'phase-map';
+export const WIDGET_KINDS: readonly WidgetKind[] = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map'];
+
+export type Values = Record<string, number>;
+export type Result = Record<string, unknown> & { kind: string };
+
+export interface WidgetOptions {
+  /** What to draw (default 'curvature'). */
+  kind?: WidgetKind;
+  /** Starting parameter values (defaults from the model for the rest). */
+  values?: Values;
+  title?: string;
+  /** Everything else is passed to the engine with the request: grid, bands, path, axes, ... */
+  [option: string]: unknown;
+}
+
+export class WidgetOptionError extends Error {
+  constructor(field: string, message: string) {
+    super(`${field}: ${message}`);
+    this.name = 'WidgetOptionError';
+  }
+}
+
+/** The widget's synced state before buffers are lifted out. */
+export function widgetState(fields: {
+  kind: WidgetKind;
+  spec: ModelSpec;
+  options: Record<string, unknown>;
+  values: Values;
+  result: Result | null;
+  error: string;
+  title: string;
+}): Record<string, unknown> {
+  return {
+    _model_name: 'DiagnosticModel',
+    _model_module: WIDGET_MODULE,
+    _model_module_version: WIDGET_MODULE_VERSION,
+    _view_name: 'DiagnosticView',
+    _view_module: WIDGET_MODULE,
+    _view_module_version: WIDGET_MODULE_VERSION,
+    _view_count: null,
+    _dom_classes: [],
+    tabbable: null,
+    tooltip: null,
+    title: fields.title,
+    kind: fields.kind,
+    spec: fields.spec,
+    options: fields.options,
+    values: fields.values,
+    result: fields.result === null ? null : packArrays(fields.result),
+    result_values: fields.result === null ? null : fields.values,
+    error: fields.error,
+  };
+}
+
+/**
+ * A widget's entry in a notebook's saved widget state (`metadata.widgets[WIDGET_STATE_MIME].state`),
+ * as JupyterLab writes it: binary buffers inline as base64 beside their paths.
+ */
+export function savedStateEntry(state: Record<string, unknown>): Record<string, unknown> {
+  const split = removeBuffers(state);
+  return {
+    model_name: state._model_name,
+    model_module: state._model_module,
+    model_module_version: state._model_module_version,
+    state: split.state,
+    buffers: split.buffers.map((b, i) => ({
+      path: split.buffer_paths[i],
+      encoding: 'base64',
+      data: Buffer.from(b.buffer, b.byteOffset, b.byteLength).toString('base64'),
+    })),
+  };
+}
+
+/** Checks a parameter update against the model: known names, finite numbers, declared ranges. */
+export function checkValues(spec: ModelSpec, values: unknown, field = 'values'): Values {
+  if (values === null || typeof values !== 'object' || Array.isArray(values)) {
+    throw new WidgetOptionError(field, `expected an object of parameter values. Value: ${JSON.stringify(values)}`);
+  }
+  const out: Values = {};
+  for (const [name, value] of Object.entries(values)) {
+    const decl = spec.parameters[name];
+    if (decl === undefined) {
+      const known = Object.keys(spec.parameters).join(', ') || 'none';
+      throw new WidgetOptionError(`${field}.${name}`, `not a parameter of model "${spec.name}" (parameters: ${known})`);
+    }
+    if (typeof value !== 'number' || !Number.isFinite(value)) {
+      throw new WidgetOptionError(`${field}.${name}`, `expected a finite number. Value: ${JSON.stringify(value)}`);
+    }
+    if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
+      throw new WidgetOptionError(`${field}.${name}`, `outside its range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`);
+    }
+    out[name] = value;
+  }
+  return out;
+}
