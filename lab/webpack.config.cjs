@@ -1,7 +1,7 @@
 // Builds the chernel lab: one bundle with every extension listed under `jupyterlab.extensions`
 // in package.json, plus the schemas, themes and style imports @jupyterlab/builder collects.
-// `webpack --mode=development` (default, fast: what tests and `npm start` use) or
-// `--mode=production` (minified, about five times slower to build).
+// `npm run build` (development mode, fast: what tests and `npm start` use) or `npm run build:prod`
+// (minified, about five times slower to build). No source maps: they would double the output.
 const fs = require('fs');
 const path = require('path');
 const webpack = require('webpack');
@@ -78,7 +78,7 @@ module.exports = (env, argv) => {
       clean: { keep: /^(schemas|themes|style\.js|extensions\.js)/ }
     },
     bail: true,
-    devtool: production ? false : 'cheap-module-source-map',
+    devtool: false,
     resolve: {
       alias: singletonAliases(),
       fallback: { path: require.resolve('path-browserify'), url: false, fs: false, crypto: false }

@@ -133,7 +133,11 @@ export class LabSession {
     readonly chernelKernel: KernelRegistration,
     private readonly cleanup: () => void,
   ) {
-    page.on('console', message => this.console.push(`${message.type()}: ${message.text()}`));
+    page.on('console', message => {
+      const { url, lineNumber } = message.location();
+      const where = message.type() === 'error' && url ? ` (${url.replace(/^.*\//, '')}:${lineNumber})` : '';
+      this.console.push(`${message.type()}: ${message.text()}${where}`);
+    });
     page.on('pageerror', error => this.console.push(`pageerror: ${error.stack ?? error.message}`));
   }
 
