@@ -17,7 +17,7 @@ import { InterruptedError } from '../src/interrupt.js';
 import { catalogueModel } from '../src/model/catalogue.js';
 import { ModelError, show } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
-import { NodeWorkerExecutor, writeFileAtomic } from '../src/scan/node-workers.js';
+import { NodeWorkerExecutor, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
 import { pointTarget, validatePhaseMapRequest, type PhaseMapRequest } from '../src/scan/sweep.js';
@@ -188,7 +188,8 @@ async function cmdRun(p: Parsed, out: (s: string) => void): Promise<number> {
       previous,
       signal: controller.signal,
       saveEvery: intFlag(p, 'save-every') ?? 16,
-      onSave: (output) => writeFileAtomic(file, JSON.stringify(output) + '\n'),
+      // Synchronous, so the checkpoint is on disk before the next point starts.
+      onSave: (output) => writeFileAtomicSync(file, JSON.stringify(output) + '\n'),
     });
     if (r.restartedBecause !== null) process.stderr.write(`sweep run: shard ${shard}/${shards}: ignored its earlier output (${r.restartedBecause})\n`);
     const failed = r.output.failures.length;

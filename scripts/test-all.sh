@@ -20,3 +20,5 @@ layer engine npx vitest run
 layer lab-typecheck npx tsc -p lab/tsconfig.json
 layer browser npx vitest run -c vitest.browser.config.ts
 layer kernel /usr/bin/python3 -m unittest discover -s tests/kernel -p 'test_*.py'
+# A real single-node Slurm cluster (root; munge + slurm-wlm): sweep job arrays, merges, a killed shard; ~2-3 min.
+layer cluster bash tests/cluster/run.sh

@@ -3,7 +3,7 @@
  * This file is also the worker's entry point. Not part of the pure engine (excluded from
  * tsconfig.engine.json): it imports node:*.
  */
-import { existsSync } from 'node:fs';
+import { existsSync, renameSync, writeFileSync } from 'node:fs';
 import { readFile, rename, writeFile } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -70,6 +70,13 @@ export async function writeFileAtomic(path: string, text: string): Promise<void>
   const temporary = `${path}.${process.pid}.tmp`;
   await writeFile(temporary, text);
   await rename(temporary, path);
+}
+
+/** The same, synchronously: lands even when the caller's loop keeps the event loop busy. */
+export function writeFileAtomicSync(path: string, text: string): void {
+  const temporary = `${path}.${process.pid}.tmp`;
+  writeFileSync(temporary, text);
+  renameSync(temporary, path);
 }
 
 /** The checkpoint saved at `path`, or undefined when there is none yet. */

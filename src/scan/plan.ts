@@ -252,8 +252,11 @@ export interface RunShardOptions {
   executor: SweepExecutor;
   /** This shard's earlier output (a checkpoint): its points are not computed again. */
   previous?: unknown;
-  /** Receives the output to save: every `saveEvery` points, and at the end. */
-  onSave: (output: ShardOutput) => void | Promise<void>;
+  /**
+   * Receives the output to save: every `saveEvery` points, and at the end. Called synchronously
+   * from the loop, so a synchronous write is on disk before the next point starts.
+   */
+  onSave: (output: ShardOutput) => void;
   saveEvery?: number;
   signal?: { readonly aborted: boolean };
 }
@@ -284,11 +287,9 @@ export async function runShard(
   let computed = 0;
   let unsaved = 0;
   const output = () => makeShardOutput(plan, shard, shards, pointsToRecords(records), failures);
-  let saving: Promise<void> = Promise.resolve();
   const save = () => {
     unsaved = 0;
-    const snapshot = output();
-    saving = saving.then(() => options.onSave(snapshot));
+    options.onSave(output());
   };
   const target = pointTarget(plan.request);
   // A failing point is recorded and the shard goes on; the merge reports it by point.
@@ -308,7 +309,6 @@ export async function runShard(
     } catch (err) {
       if (!(err instanceof PointError)) {
         save();
-        await saving;
         throw err;
       }
       failedAt = batch.findIndex((c) => canonicalJson(sweptParams(plan.request.axes, c)) === canonicalJson(err.params));
@@ -319,6 +319,5 @@ export async function runShard(
     }
   }
   save();
-  await saving;
   return { output: output(), computed, reused, restartedBecause };
 }

@@ -1,0 +1,111 @@
+// Sweeps on a real Slurm cluster (started by tests/cluster/run.sh; SLURM_CONF points at it):
+// job arrays of shards, merged rounds of boundary refinement, and a shard killed with SIGKILL.
+import { spawn, type ChildProcess } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { sweepPaths } from '../../cluster/sweep-cli.js';
+import { haldane } from '../../src/model/catalogue.js';
+import { InProcessExecutor } from '../../src/scan/executor.js';
+import { runShard, validatePlan, type ShardOutput } from '../../src/scan/plan.js';
+import { pointFunction } from '../../src/scan/point.js';
+import { phaseMapSync } from '../../src/scan/run.js';
+import type { PhaseMapRequest } from '../../src/scan/sweep.js';
+
+const ROOT = resolve(import.meta.dirname, '../..');
+const CLI = [process.execPath, '--import', join(ROOT, 'scripts/register-ts.js'), join(ROOT, 'cluster/sweep-cli.ts')];
+const work = mkdtempSync(join(tmpdir(), 'chernel-cluster-'));
+afterAll(() => rmSync(work, { recursive: true, force: true }));
+
+function start(args: string[], env: Record<string, string> = {}): { child: ChildProcess; done: Promise<{ code: number | null; signal: NodeJS.Signals | null; stdout: string; stderr: string }> } {
+  const child = spawn(CLI[0], [...CLI.slice(1), ...args], { cwd: work, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  let stdout = '';
+  let stderr = '';
+  child.stdout!.on('data', (d) => (stdout += d));
+  child.stderr!.on('data', (d) => (stderr += d));
+  const done = new Promise<{ code: number | null; signal: NodeJS.Signals | null; stdout: string; stderr: string }>((res) =>
+    child.on('close', (code, signal) => res({ code, signal, stdout, stderr })),
+  );
+  return { child, done };
+}
+const cli = (...args: string[]) => start(args).done;
+
+describe('phase diagram on Slurm', () => {
+  it('4-task job arrays, rounds merged, equal to the same sweep in one process at every point', async () => {
+    expect(process.env.SLURM_CONF, 'run through tests/cluster/run.sh').toBeTruthy();
+    // Haldane (PRL 61, 2015 (1988)): one grid round and one bisection round along phi.
+    const request = {
+      kind: 'phase-map', model: 'haldane', invariant: 'chern', grid: 12, params: { t2: 0.1 },
+      axes: [{ param: 'phi', from: -3, to: 3, count: 8 }, { param: 'M', from: -0.7, to: 0.7, count: 6 }],
+      refine: { tolerance: 0.45 },
+    };
+    writeFileSync(join(work, 'haldane.request.json'), JSON.stringify(request));
+    const planned = await cli('plan', 'haldane.request.json');
+    expect(planned.code, planned.stderr).toBe(0);
+    const planPath = planned.stdout.trim();
+
+    const submitted = await cli('submit', planPath, '--shards', '4', '--time', '00:05:00', '--cpus-per-task', '1', '--mem', '400M', '--wait');
+    expect(submitted.code, submitted.stderr).toBe(0);
+    expect(submitted.stderr).toMatch(/round 0, 48 points, 4 array tasks/);
+    expect(submitted.stderr).toMatch(/round 1, \d+ points, 4 array tasks/);
+    const resultPath = submitted.stdout.trim();
+    expect(resultPath).toBe(sweepPaths(planPath).result);
+
+    // Every array task of both rounds ran under Slurm and left its log and its shard output.
+    for (const plan of [planPath, sweepPaths(planPath).nextPlan(1)]) {
+      const files = readdirSync(sweepPaths(plan).shardDir);
+      expect(files.filter((f) => /^shard-\d-of-4\.json$/.test(f))).toHaveLength(4);
+      expect(files.filter((f) => /^slurm-\d+_\d\.log$/.test(f)).sort().map((f) => f.slice(-6))).toEqual(['_0.log', '_1.log', '_2.log', '_3.log']);
+    }
+
+    const merged = JSON.parse(readFileSync(resultPath, 'utf8'));
+    const oneProcess = phaseMapSync({ ...request, model: haldane() } as PhaseMapRequest, pointFunction);
+    expect(merged.values).toEqual(oneProcess.values);
+    expect(merged.boundaries).toEqual(oneProcess.boundaries);
+    expect(merged).toEqual(JSON.parse(JSON.stringify(oneProcess)));
+    expect(merged.refinement.rounds).toBe(1);
+    expect(merged.values.filter((v: number | null) => v !== 0).length).toBeGreaterThan(0);
+  });
+});
+
+describe('a shard killed with SIGKILL', () => {
+  it('reruns to the same output without recomputing its saved points', async () => {
+    const request = {
+      kind: 'phase-map', model: 'haldane', invariant: 'chern', grid: 12, params: { t2: 0.1 },
+      axes: [{ param: 'phi', from: -3, to: 3, count: 6 }, { param: 'M', from: -0.7, to: 0.7, count: 5 }],
+    };
+    writeFileSync(join(work, 'kill.request.json'), JSON.stringify(request));
+    const planned = await cli('plan', 'kill.request.json');
+    expect(planned.code, planned.stderr).toBe(0);
+    const planPath = planned.stdout.trim();
+    const file = sweepPaths(planPath).shardFile(1, 2);
+    const module = join(ROOT, 'tests/cluster/fixtures/counting-points.ts');
+    const args = ['run', planPath, '--shard', '1', '--shards', '2', '--save-every', '1', '--point-module', module];
+
+    // The first run computes 6 points, then hangs inside the 7th until it is killed.
+    const first = start(args, { CHERNEL_COUNT_FILE: join(work, 'count-1.txt'), CHERNEL_HANG_AFTER: '6' });
+    const counted = () => (existsSync(join(work, 'count-1.txt')) ? readFileSync(join(work, 'count-1.txt'), 'utf8').trim().split('\n').length : 0);
+    while (counted() < 6) await new Promise((r) => setTimeout(r, 100));
+    first.child.kill('SIGKILL');
+    const killed = await first.done;
+    expect(killed.signal).toBe('SIGKILL');
+    const saved = JSON.parse(readFileSync(file, 'utf8')) as ShardOutput; // the last complete write before the kill
+    expect(saved.complete).toBe(false);
+    const savedKeys = new Set(saved.records.map((r) => JSON.stringify(r[0])));
+    expect(savedKeys.size).toBe(6); // saved after every point (--save-every 1), before the next starts
+
+    const second = await start(args, { CHERNEL_COUNT_FILE: join(work, 'count-2.txt') }).done;
+    expect(second.code, second.stderr).toBe(0);
+    expect(second.stderr).toMatch(new RegExp(`15 points, ${savedKeys.size} reused from its checkpoint, ${15 - savedKeys.size} computed, 0 failed`));
+    // Counted independently of the shard's own report: the rerun computed exactly the unsaved points.
+    const recomputed = readFileSync(join(work, 'count-2.txt'), 'utf8').trim().split('\n').map((l) => JSON.parse(l) as { phi: number; M: number });
+    expect(recomputed).toHaveLength(15 - savedKeys.size);
+    for (const p of recomputed) expect(savedKeys.has(JSON.stringify([p.phi, p.M]))).toBe(false);
+
+    // Same output as the shard computed without interruption.
+    const plan = validatePlan(JSON.parse(readFileSync(planPath, 'utf8')));
+    const uninterrupted = await runShard(plan, 1, 2, { executor: new InProcessExecutor(pointFunction), onSave: () => {} });
+    expect(JSON.parse(readFileSync(file, 'utf8'))).toEqual(JSON.parse(JSON.stringify(uninterrupted.output)));
+  });
+});
