@@ -51,7 +51,8 @@ export class UnitaryEigenphases {
   /**
    * Phases of the eigenvalues of the (unitary) matrix `w` into `phases`, ascending in (-pi, pi]
    * (a phase within 64 eps of -pi is reported as +pi);
-   * with `vecs`, the matching orthonormal eigenvectors into its columns. `w` is not modified.
+   * with `vecs`, the matching orthonormal eigenvectors into its columns (for a matrix that is not
+   * normal these are its Schur vectors, not eigenvectors). `w` is not modified.
    * Returns `phases`.
    */
   solve(w: CMatrix, phases: Float64Array, vecs?: CMatrix): Float64Array {
