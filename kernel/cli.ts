@@ -5,6 +5,7 @@
  *   chernel start <connection-file>        (also: chernel -f <connection-file>)
  *   chernel install [--user | --prefix DIR | --sys-prefix]
  *   chernel remove  [--user | --prefix DIR | --sys-prefix]
+ *   chernel sweep plan|run|merge|status|submit ...   (cluster/sweep-cli.ts)
  */
 
 import { install, remove, type InstallTarget } from './kernelspec.js';
@@ -17,6 +18,8 @@ const USAGE = `usage:
                                        install the kernelspec "chernel" (default: for this user)
   chernel remove [--user | --prefix DIR | --sys-prefix]
                                        remove it
+  chernel sweep plan|run|merge|status|submit ...
+                                       phase-map sweeps as files, shards and Slurm job arrays
   chernel --version`;
 
 class UsageError extends Error {}
@@ -55,6 +58,11 @@ async function main(argv: string[]): Promise<void> {
     case 'uninstall': {
       const dir = remove(parseTarget(rest));
       console.log(dir ? `removed ${dir}` : 'no kernelspec "chernel" was installed there');
+      return;
+    }
+    case 'sweep': {
+      const { runSweepCli } = await import('../cluster/sweep-cli.js');
+      process.exitCode = await runSweepCli(rest);
       return;
     }
     case '--version':
