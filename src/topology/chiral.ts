@@ -16,9 +16,10 @@
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
+import { ComplexPfaffian } from '../linalg/pfaffian.js';
 import { ModelError, show } from '../model/errors.js';
 import { compileSource, formatK, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
-import { determinantInPlace, pfaffianSign, wrapAngle } from './links.js';
+import { determinantInPlace, wrapAngle } from './links.js';
 
 export interface WindingOptions extends Omit<TopologyOptions, 'bands'> {
   /** Orbital labels of sublattice A; default: found by two-colouring the hopping graph (orbital 0 in A). */
@@ -203,7 +204,9 @@ export function majoranaNumber(source: TopologySource, options: Omit<TopologyOpt
   const mat = new Float64Array(2 * n * n);
   const e = new Float64Array(n);
   const solver = new HermitianEigensolver(n);
-  const a = new Float64Array(n * n);
+  const a = new Float64Array(2 * n * n); // A, real, in the complex layout the Pfaffian reads
+  const pfaffian = new ComplexPfaffian(n);
+  const pf = new Float64Array(2);
   const warnings: string[] = [];
   const signs: number[] = [];
   let minGap = Infinity, minGapAt = 0, energyScale = 0;
@@ -245,14 +248,15 @@ export function majoranaNumber(source: TopologySource, options: Omit<TopologyOpt
             im += tr * vi + ti * vr;
           }
         }
-        a[x * n + y] = im;
+        a[2 * (x * n + y)] = im;
         worstReal = Math.max(worstReal, Math.abs(re));
       }
     }
     if (worstReal > 1e-9 * hScale) {
       throw new ModelError('model', `H_BdG at k = ${k === 0 ? '0' : 'pi'} is not particle–hole symmetric in the Majorana basis (real part ${worstReal.toExponential(2)}): not a BdG model in the builder's Nambu convention`);
     }
-    signs.push(pfaffianSign(n, a));
+    // Pf of a real antisymmetric matrix is real; an exact zero means a zero mode at this k.
+    signs.push(Math.sign(pfaffian.compute(a, pf)[0]));
   }
   const tol = options.gapTolerance ?? 1e-9 * Math.max(energyScale, 1e-300);
   const checks: TopologyChecks = { minGap, minGapAt: [minGapAt / (2 * Math.PI)], grid: [2], warnings };

@@ -3,6 +3,7 @@
  * eigenphases of a Wilson loop). Frames are stored as in FrameSampler: m vectors of n complex
  * entries, one after another. All outputs and scratch belong to the caller.
  */
+import { ComplexDeterminant } from '../linalg/determinant.js';
 import { UnitaryEigenphases } from '../linalg/eigphases.js';
 
 /**
@@ -45,9 +46,11 @@ export function overlapMatrix(
   return out;
 }
 
+const luBySize = new Map<number, ComplexDeterminant>();
+
 /**
- * Determinant of an m x m complex matrix by LU with partial pivoting; `a` is overwritten.
- * Writes (re, im) into out[0], out[1] and returns out.
+ * Determinant of an m x m complex matrix, (re, im) into out[0], out[1]; returns out. Closed forms
+ * for the sizes that dominate (one or two bands), LU with partial pivoting (src/linalg) beyond.
  */
 export function determinantInPlace(m: number, a: Float64Array, out: Float64Array): Float64Array {
   if (m === 1) {
@@ -60,49 +63,9 @@ export function determinantInPlace(m: number, a: Float64Array, out: Float64Array
     out[1] = a[0] * a[7] + a[1] * a[6] - (a[2] * a[5] + a[3] * a[4]);
     return out;
   }
-  let dr = 1, di = 0;
-  for (let c = 0; c < m; c++) {
-    let p = c;
-    let best = -1;
-    for (let r = c; r < m; r++) {
-      const mag = a[2 * (r * m + c)] ** 2 + a[2 * (r * m + c) + 1] ** 2;
-      if (mag > best) {
-        best = mag;
-        p = r;
-      }
-    }
-    if (best === 0) {
-      out[0] = 0;
-      out[1] = 0;
-      return out;
-    }
-    if (p !== c) {
-      for (let j = 0; j < 2 * m; j++) {
-        const t = a[2 * c * m + j];
-        a[2 * c * m + j] = a[2 * p * m + j];
-        a[2 * p * m + j] = t;
-      }
-      dr = -dr;
-      di = -di;
-    }
-    const pr = a[2 * (c * m + c)], pi = a[2 * (c * m + c) + 1];
-    const nr = dr * pr - di * pi;
-    di = dr * pi + di * pr;
-    dr = nr;
-    const inv = 1 / (pr * pr + pi * pi);
-    for (let r = c + 1; r < m; r++) {
-      const xr = a[2 * (r * m + c)], xi = a[2 * (r * m + c) + 1];
-      const fr = (xr * pr + xi * pi) * inv, fi = (xi * pr - xr * pi) * inv;
-      for (let j = c + 1; j < m; j++) {
-        const yr = a[2 * (c * m + j)], yi = a[2 * (c * m + j) + 1];
-        a[2 * (r * m + j)] -= fr * yr - fi * yi;
-        a[2 * (r * m + j) + 1] -= fr * yi + fi * yr;
-      }
-    }
-  }
-  out[0] = dr;
-  out[1] = di;
-  return out;
+  let lu = luBySize.get(m);
+  if (lu === undefined) luBySize.set(m, (lu = new ComplexDeterminant(m)));
+  return lu.compute(a, out);
 }
 
 /** out = A B for m x m complex matrices (out must not alias a or b). */
@@ -161,44 +124,4 @@ export function wrapAngle(x: number): number {
 export function fraction(x: number): number {
   const y = x - Math.floor(x);
   return y >= 1 ? 0 : y;
-}
-
-/**
- * Sign of the Pfaffian of a real antisymmetric n x n matrix (row-major, overwritten), by
- * Parlett–Reid elimination with pivoting: -1, +1, or 0 when it vanishes (odd n gives 0).
- */
-export function pfaffianSign(n: number, a: Float64Array): number {
-  if (n % 2 === 1) return 0;
-  let sign = 1;
-  for (let k = 0; k < n - 1; k += 2) {
-    let p = k + 1;
-    for (let j = k + 2; j < n; j++) if (Math.abs(a[k * n + j]) > Math.abs(a[k * n + p])) p = j;
-    if (p !== k + 1) {
-      // Swap index k+1 with p in rows and columns: a congruence that flips the Pfaffian's sign.
-      for (let j = 0; j < n; j++) {
-        const t = a[(k + 1) * n + j]; a[(k + 1) * n + j] = a[p * n + j]; a[p * n + j] = t;
-      }
-      for (let i = 0; i < n; i++) {
-        const t = a[i * n + k + 1]; a[i * n + k + 1] = a[i * n + p]; a[i * n + p] = t;
-      }
-      sign = -sign;
-    }
-    const pivot = a[k * n + k + 1];
-    if (pivot === 0) return 0;
-    if (pivot < 0) sign = -sign;
-    // Eliminate row k beyond k+1: R_i -= tau_i R_{k+1}, C_i -= tau_i C_{k+1} (determinant-one congruence).
-    for (let i = k + 2; i < n; i++) {
-      const tau = a[k * n + i] / pivot;
-      if (tau === 0) continue;
-      for (let j = k + 2; j < n; j++) {
-        a[i * n + j] -= tau * a[(k + 1) * n + j];
-        a[j * n + i] -= tau * a[j * n + k + 1];
-      }
-    }
-    for (let i = k + 2; i < n; i++) {
-      a[k * n + i] = 0;
-      a[i * n + k] = 0;
-    }
-  }
-  return sign;
 }
