@@ -4,17 +4,18 @@
  * parameter values, then runs the same diagnostic `compute` would.
  */
 import { BlochHamiltonian, type BlochConvention } from '../bloch/hamiltonian.js';
-import { compute, type DiagnosticRequest } from '../diagnostics.js';
-import { ModelError, show } from '../model/errors.js';
 import type { ParameterValues } from '../model/spec.js';
 import { directGap } from '../spectra/gap.js';
 import { chernNumber } from '../topology/chern.js';
+import { majoranaNumber, windingNumber } from '../topology/chiral.js';
+import { z2Index } from '../topology/z2.js';
 import type { PointFunction, PointOutcome, PointTarget } from './sweep.js';
 
 interface Checked {
   checks: { minGap: number | null; coarse?: boolean; converged?: boolean };
 }
 
+/** The point's outcome; a result its diagnostic flagged (coarse grid, no convergence) is marked doubtful. */
 function outcome(value: number | null, result: Checked): PointOutcome {
   const gap = result.checks.minGap ?? Number.NaN;
   const doubtful = result.checks.coarse === true || result.checks.converged === false;
@@ -24,32 +25,33 @@ function outcome(value: number | null, result: Checked): PointOutcome {
 /** Build the point function for a target (a diagnostic request without the swept values). */
 export function pointFunction(target: PointTarget): PointFunction {
   const { kind, model, params: fixed = {}, convention, ...options } = target as PointTarget & { convention?: BlochConvention };
-  const merged = (swept: ParameterValues): ParameterValues => ({ ...fixed, ...swept });
+  const h = new BlochHamiltonian(model, fixed, { convention: convention ?? 'lattice' });
+  const at = (swept: ParameterValues) => ({ ...options, params: { ...fixed, ...swept } });
   switch (kind) {
-    case 'chern': {
-      const h = new BlochHamiltonian(model, fixed, { convention: convention ?? 'lattice' });
+    case 'chern':
       return (swept) => {
-        const r = chernNumber(h, { ...options, params: merged(swept) });
+        const r = chernNumber(h, at(swept));
         return outcome(r.chern, r);
       };
-    }
-    case 'gap': {
-      const h = new BlochHamiltonian(model, fixed, { convention: convention ?? 'lattice' });
+    case 'z2':
       return (swept) => {
-        const r = directGap(h, { ...options, params: merged(swept) });
-        return { value: r.minGap, gap: r.minGap };
+        const r = z2Index(h, at(swept));
+        return outcome(r.z2, r as Checked);
       };
-    }
-    default:
-      // Any other invariant: the diagnostic of that kind, whose result names the value after it.
+    case 'winding':
       return (swept) => {
-        const request = { ...options, kind, model, convention, params: merged(swept) } as unknown as DiagnosticRequest;
-        const r = compute(request) as unknown as Record<string, unknown> & Checked;
-        const value = r[kind];
-        if (value !== null && typeof value !== 'number') {
-          throw new ModelError('invariant', `the "${kind}" diagnostic gave no number in its field "${kind}". Value: ${show(value)}`);
-        }
-        return outcome(value, r);
+        const r = windingNumber(h, at(swept));
+        return outcome(r.winding, r);
+      };
+    case 'majorana':
+      return (swept) => {
+        const r = majoranaNumber(h, at(swept));
+        return outcome(r.majorana, r);
+      };
+    case 'gap':
+      return (swept) => {
+        const r = directGap(h, at(swept));
+        return { value: r.minGap, gap: r.minGap };
       };
   }
 }

@@ -1,6 +1,6 @@
 // Phase boundaries located by the sweep's bisection, against published phase diagrams.
 import { describe, expect, it } from 'vitest';
-import { haldane, qwz } from '../../src/model/catalogue.js';
+import { haldane, kitaevChain, qwz } from '../../src/model/catalogue.js';
 import { pointFunction } from '../../src/scan/point.js';
 import { phaseMapSync } from '../../src/scan/run.js';
 
@@ -75,6 +75,32 @@ describe('Haldane phase diagram (Haldane, PRL 61, 2015 (1988), Fig. 2)', () => {
       const end = (x: number) => ({ ...b.at, [b.along]: x });
       const f = (p: Record<string, number>) => Math.abs(p.M) - critical(p.phi);
       expect(f(end(b.lower)) * f(end(b.upper)), JSON.stringify(b)).toBeLessThanOrEqual(0);
+    }
+  });
+});
+
+describe('Kitaev chain (Kitaev, Physics-Uspekhi 44, 131 (2001))', () => {
+  it('the Majorana number changes at |mu| = 2|t|, located to 1e-3 in a 2D (mu, t) map', () => {
+    const map = phaseMapSync(
+      {
+        kind: 'phase-map', model: kitaevChain(), invariant: 'majorana', params: { Delta: 1 },
+        axes: [{ param: 'mu', from: -3.25, to: 3.15, count: 9 }, { param: 't', from: 0.55, to: 1.45, count: 4 }],
+        refine: { tolerance: 1e-3 },
+      },
+      pointFunction,
+    );
+    // Topological (Majorana number -1) for |mu| < 2|t|, trivial (+1) outside (no grid point on |mu| = 2t).
+    map.axes[1].values.forEach((t, j) =>
+      map.axes[0].values.forEach((mu, i) => expect(map.values[j * 9 + i], `mu=${mu}, t=${t}`).toBe(Math.abs(mu) < 2 * t ? -1 : 1)),
+    );
+    expect(map.boundaries.length).toBeGreaterThanOrEqual(8);
+    for (const b of map.boundaries) {
+      expect(b.upper - b.lower).toBeLessThanOrEqual(1e-3);
+      const f = (x: number) => {
+        const p = { ...b.at, [b.along]: x };
+        return Math.abs(p.mu) - 2 * Math.abs(p.t);
+      };
+      expect(f(b.lower) * f(b.upper), JSON.stringify(b)).toBeLessThanOrEqual(0);
     }
   });
 });
