@@ -39,3 +39,9 @@ export { z2Index, spinChern, type MatrixEntry, type SpinChernResult, type Z2Chec
 export { windingNumber, majoranaNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';
 export { weylPoints, type WeylOptions, type WeylPoint, type WeylResult } from './topology/weyl.js';
 export { hallConductivity, ELEMENTARY_CHARGE, PLANCK_CONSTANT, HALL_CONDUCTANCE_QUANTUM, type HallOptions, type HallResult } from './topology/hall.js';
+export { runPhaseMap, phaseMapSync, makeCheckpoint, CHECKPOINT_FORMAT, type RunPhaseMapOptions, type SweepCheckpoint, type SweepProgress, type PointRecord } from './scan/run.js';
+export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointOutcome, type PointTarget } from './scan/sweep.js';
+export { InProcessExecutor, PointError, type SweepExecutor, type StopSignal, type EvaluateHooks, type PointFunctionFactory } from './scan/executor.js';
+export { WorkerPoolExecutor, serveSweepWorker, type WorkerPort } from './scan/pool.js';
+export { pointFunction } from './scan/point.js';
+export { sweepPlan, validatePlan, shardPoints, runShard, mergeShards, PLAN_FORMAT, SHARD_FORMAT, type SweepPlan, type ShardOutput, type MergeReport } from './scan/plan.js';
