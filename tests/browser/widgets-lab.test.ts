@@ -1,0 +1,107 @@
+// A chernel widget live in the real lab with the real kernel: a cell shows it, dragging a control
+// recomputes in the browser and syncs the value back (a cell reads it), a cell moves the control,
+// and the saved notebook carries the state, so its HTML export draws with no kernel.
+// Physics: Haldane, PRL 61, 2015 (1988): C(lower) = -sign(sin phi) for |M| < 3 sqrt3 t2 |sin phi|,
+// else 0 (sign convention of /work/shared/references.md).
+import { existsSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Locator } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { openLab, type CellOutput, type LabSession, type NotebookHandle } from './lab-harness.js';
+import { openPage, projectDir } from './widgets-harness.js';
+import { exportHtmlCommand } from '../../kernel/export-html.js';
+
+const haldaneChern = (M: number) => (Math.abs(M) < 3 * Math.sqrt(3) * 0.1 ? -1 : 0);
+const kernelReady = existsSync(join(projectDir, 'bin', 'chernel.js')) && existsSync(join(projectDir, 'dist', 'kernel', 'cli.js'));
+
+function text(outputs: CellOutput[]): string {
+  const result = outputs.find((o) => o.output_type === 'execute_result' || o.output_type === 'error');
+  if (result?.output_type === 'error') return `${result.ename}: ${result.evalue}`;
+  const plain = result?.data?.['text/plain'];
+  return Array.isArray(plain) ? plain.join('') : String(plain);
+}
+
+describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel', () => {
+  let lab: LabSession;
+  let notebook: NotebookHandle;
+  let view: Locator;
+
+  beforeAll(async () => {
+    lab = await openLab();
+    // Save widget state with the notebook (the widget manager's own toggle, off by default).
+    await lab.command('@jupyter-widgets/jupyterlab-manager:saveWidgetState');
+    notebook = await lab.newNotebook('chernel');
+  });
+
+  afterAll(async () => {
+    await lab?.close();
+  });
+
+  it('one call shows the widget for a model', async () => {
+    const outputs = await notebook.runCell(0, "const w = show(haldane(), { kind: 'curvature', grid: 24, bands: 1 });\nw");
+    const data = outputs.find((o) => o.output_type === 'execute_result')?.data ?? {};
+    expect(Object.keys(data)).toContain('application/vnd.jupyter.widget-view+json');
+    view = notebook.cell(0).locator('.chernel-widget');
+    await view.locator('.chernel-plot .main-svg').first().waitFor();
+    expect(await view.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.2)));
+  });
+
+  it('dragging a control recomputes in the browser and the kernel sees the new value', async () => {
+    const slider = view.locator('.chernel-control[data-parameter="M"] input[type=range]');
+    const box = view.locator('.chernel-control[data-parameter="M"] input.chernel-control-value');
+    await slider.scrollIntoViewIfNeeded();
+    const b = (await slider.boundingBox())!;
+    const at = (v: number) => b.x + 8 + ((v + 2) / 4) * (b.width - 16); // range [-2, 2], 8 px half thumb
+    await lab.page.mouse.move(at(0.2), b.y + b.height / 2);
+    await lab.page.mouse.down();
+    await lab.page.mouse.move(at(1.2), b.y + b.height / 2, { steps: 10 });
+    await lab.page.mouse.up();
+    const shown = await box.inputValue();
+    await view.locator('.chernel-status', { hasText: `M = ${shown}` }).waitFor();
+    const M = Number(shown);
+    expect(Math.abs(M)).toBeGreaterThan(0.6);
+    expect(await view.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(M)));
+
+    await expect.poll(async () => Number(text(await notebook.runCell(1, 'w.values.M'))), { timeout: 30_000 }).toBeCloseTo(M, 10);
+    // The result computed in the browser came back too.
+    // (the lattice total is an integer up to rounding)
+    expect(Number(text(await notebook.runCell(2, 'w.result?.total')))).toBeCloseTo(haldaneChern(M), 9);
+  });
+
+  it('a cell moves the control; the widget recomputes for the pushed value', async () => {
+    expect(text(await notebook.runCell(3, "w.setValues({ M: 0.1 }); 'sent'"))).toBe("'sent'");
+    const box = view.locator('.chernel-control[data-parameter="M"] input.chernel-control-value');
+    await expect.poll(() => box.inputValue()).toBe('0.1');
+    await view.locator('.chernel-status', { hasText: 'M = 0.1 · engine' }).waitFor();
+    expect(await view.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.1)));
+  });
+
+  it('a value the model refuses is an error naming the parameter, and the kernel lives on', async () => {
+    expect(text(await notebook.runCell(4, 'w.setValues({ M: 9 })'))).toMatch(/setValues\.M: outside its range \[-2, 2\]\. Value: 9/);
+    expect(text(await notebook.runCell(5, 'w.values.M'))).toBe('0.1');
+  });
+
+  it('the saved notebook carries the widget state; its HTML export draws it with no kernel', async () => {
+    await notebook.save();
+    await lab.screenshot('widgets-lab');
+    const path = join(lab.rootDir, notebook.path);
+    const saved = JSON.parse(readFileSync(path, 'utf8')) as { metadata: { widgets?: Record<string, { state: Record<string, { model_name: string; state: Record<string, unknown> }> }> } };
+    const states = Object.values(saved.metadata.widgets?.['application/vnd.jupyter.widget-state+json']?.state ?? {});
+    const ours = states.find((s) => s.model_name === 'DiagnosticModel');
+    expect(ours?.state.values).toMatchObject({ M: 0.1 });
+    expect(ours?.state.result_values).toMatchObject({ M: 0.1 });
+
+    const out = join(lab.rootDir, 'exported.html');
+    expect(exportHtmlCommand([path, '-o', out], () => undefined)).toBe(0);
+    const page = await openPage(out);
+    try {
+      const exported = page.page.locator('.chernel-widget');
+      await exported.locator('.chernel-plot .main-svg').first().waitFor();
+      expect(await exported.locator('.chernel-status').textContent()).toContain('saved result');
+      expect(await exported.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.1)));
+      expect(page.errors).toEqual([]);
+    } finally {
+      await page.close();
+    }
+  });
+});
