@@ -5,8 +5,12 @@ cd "$(dirname "$0")/.."
 export CHERNEL_ARTIFACTS="${CHERNEL_ARTIFACTS:-$PWD/test-artifacts}"
 mkdir -p "$CHERNEL_ARTIFACTS"
 
+# CHERNEL_LAYERS=engine,browser runs only the named layers (default: all).
+ran=0
 layer() {
   local name="$1"; shift
+  [[ -z "${CHERNEL_LAYERS:-}" || ",$CHERNEL_LAYERS," == *",$name,"* ]] || return 0
+  ran=$((ran + 1))
   echo "=== $name: $*"
   local start=$SECONDS
   "$@"
@@ -22,3 +26,5 @@ layer browser npx vitest run -c vitest.browser.config.ts
 layer kernel /usr/bin/python3 -m unittest discover -s tests/kernel -p 'test_*.py'
 # A real single-node Slurm cluster (root; munge + slurm-wlm): sweep job arrays, merges, a killed shard; ~2-3 min.
 layer cluster bash tests/cluster/run.sh
+# Keep last: a CHERNEL_LAYERS naming no layer is a mistake, not a pass.
+[[ $ran -gt 0 ]] || { echo "test-all: CHERNEL_LAYERS=$CHERNEL_LAYERS names no layer" >&2; exit 1; }

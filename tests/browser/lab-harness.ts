@@ -60,6 +60,7 @@ export interface CellOutput {
 // Just the parts of the JupyterLab objects the page-side functions below touch.
 interface PageCellModel {
   type: string;
+  /** Absent on markdown cells. */
   executionCount: number | null;
   executionState?: 'idle' | 'running';
   sharedModel: { getSource(): string; setSource(source: string): void };
@@ -68,7 +69,13 @@ interface PageCellModel {
 interface PageNotebookPanel {
   id: string;
   context: { path: string; save(): Promise<void>; model: { dirty: boolean } };
-  sessionContext: { ready: Promise<void>; kernelDisplayName: string; session: { kernel: { name: string; status: string } | null } | null };
+  sessionContext: {
+    ready: Promise<void>;
+    kernelDisplayName: string;
+    session: { kernel: { name: string; status: string } | null } | null;
+    shutdown(): Promise<void>;
+  };
+  dispose(): void;
   content: { widgets: ReadonlyArray<{ model: PageCellModel }>; activeCellIndex: number };
 }
 interface PageLab {
@@ -210,11 +217,11 @@ export class LabSession {
     return notebook;
   }
 
-  /** Saves a full-page screenshot to test-artifacts/NAME.png and returns its path. */
-  async screenshot(name: string): Promise<string> {
+  /** Saves a screenshot of the page, or of `element` when given, to test-artifacts/NAME.png and returns its path. */
+  async screenshot(name: string, element?: Locator): Promise<string> {
     mkdirSync(artifactsDir, { recursive: true });
     const path = join(artifactsDir, `${name}.png`);
-    await this.page.screenshot({ path });
+    await (element ?? this.page).screenshot({ path });
     return path;
   }
 
@@ -370,6 +377,56 @@ export class NotebookHandle {
   /** The number of cells. */
   cellCount(): Promise<number> {
     return this.locator.locator('.jp-Notebook .jp-Cell').count();
+  }
+
+  /**
+   * Runs every cell with `notebook:run-all-cells` (the Run menu's command) and waits for the run to
+   * end; it ends early when a cell fails and the kernel skips the rest. Returns each cell's outputs
+   * (an empty list for a markdown cell).
+   */
+  async runAll(): Promise<CellOutput[][]> {
+    await this.lab.page.evaluate(async id => {
+      await window.chernelLab!.commands.execute('notebook:run-all-cells', { widgetId: id, activate: true });
+    }, this.panelId);
+    await this.lab.page.waitForFunction(
+      id => {
+        for (const widget of window.chernelLab!.shell.widgets('main')) {
+          if (widget.id === id) return (widget as unknown as PageNotebookPanel).content.widgets.every(cell => cell.model.executionState !== 'running');
+        }
+        return false;
+      },
+      this.panelId,
+      { timeout: 60_000 },
+    );
+    return this.lab.page.evaluate(id => {
+      for (const widget of window.chernelLab!.shell.widgets('main')) {
+        if (widget.id === id) return (widget as unknown as PageNotebookPanel).content.widgets.map(cell => cell.model.outputs?.toJSON() ?? []);
+      }
+      throw new Error(`lab: no notebook panel with id ${id}`);
+    }, this.panelId);
+  }
+
+  /** Each cell's execution count (null for markdown cells and code cells not run). */
+  executionCounts(): Promise<Array<number | null>> {
+    return this.lab.page.evaluate(id => {
+      for (const widget of window.chernelLab!.shell.widgets('main')) {
+        if (widget.id === id) return (widget as unknown as PageNotebookPanel).content.widgets.map(cell => cell.model.executionCount ?? null);
+      }
+      throw new Error(`lab: no notebook panel with id ${id}`);
+    }, this.panelId);
+  }
+
+  /** Shuts the notebook's kernel down and closes its panel (save first: unsaved changes are dropped). */
+  async close(): Promise<void> {
+    await this.lab.page.evaluate(async id => {
+      for (const widget of window.chernelLab!.shell.widgets('main')) {
+        if (widget.id !== id) continue;
+        const panel = widget as unknown as PageNotebookPanel;
+        await panel.sessionContext.shutdown();
+        panel.context.model.dirty = false;
+        panel.dispose();
+      }
+    }, this.panelId);
   }
 
   /** Saves through the document context and waits until the model is clean. */
