@@ -153,7 +153,8 @@ export async function runPhaseMap(request: PhaseMapRequest, options: RunPhaseMap
       if (options.onCheckpoint !== undefined && sinceCheckpoint > 0) checkpoint();
     }
   } catch (err) {
-    if ((err instanceof InterruptedError || err instanceof PointError) && sinceCheckpoint > 0) checkpoint();
+    // Stopped, a failed point, a crashed worker: what finished is kept either way.
+    if (sinceCheckpoint > 0) checkpoint();
     throw err;
   } finally {
     if (options.executor === undefined) await executor.close();

@@ -96,6 +96,13 @@ describe('phase-map schedule and refinement', () => {
     }
   });
 
+  it('warns about points whose diagnostic flagged its own result (doubtful), keeping the values', () => {
+    const fn: PointFunction = ({ x }) => (x > 2 ? { value: 0, gap: 1, doubtful: true } : { value: 0, gap: 1 });
+    const result = phaseMapSync(request({}), () => fn);
+    expect(result.values.every((v) => v === 0)).toBe(true);
+    expect(result.checks.warnings).toEqual([expect.stringMatching(/^2 of 13 grid points were flagged by the chern diagnostic .* first at \{"x":2.5\}/)]);
+  });
+
   it('lists pending points in a fixed order: grid row-major with x fastest, then one round at a time', () => {
     const req = request({ axes: [{ param: 'x', from: 0, to: 1, count: 3 }, { param: 'y', from: 5, to: 6, count: 2 }], refine: { tolerance: 0.1 } });
     const first = advanceSweep(req, new Map());
