@@ -11,6 +11,7 @@ import { fileURLToPath } from 'node:url';
 
 export const WIDGET_STATE_MIME = 'application/vnd.jupyter.widget-state+json';
 export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+export const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {
@@ -78,17 +79,38 @@ export function markdownToHtml(source: string): string {
       .replace(/\*\*([^*]+)\*\*/g, '<strong>$1</strong>')
       .replace(/(^|[^*])\*([^*]+)\*/g, '$1<em>$2</em>');
   const out: string[] = [];
-  const blocks = source.split(/\n{2,}/);
-  for (const block of blocks) {
+  for (const block of source.split(/\n{2,}/)) {
     const trimmed = block.trim();
     if (!trimmed) continue;
     const fence = /^```[^\n]*\n([\s\S]*?)\n?```$/.exec(trimmed);
-    const heading = /^(#{1,6})\s+(.*)$/.exec(trimmed);
-    if (fence) out.push(`<pre><code>${escapeHtml(fence[1])}</code></pre>`);
-    else if (heading && !trimmed.includes('\n')) out.push(`<h${heading[1].length}>${inline(heading[2])}</h${heading[1].length}>`);
-    else if (trimmed.split('\n').every((l) => /^\s*[-*]\s+/.test(l))) {
-      out.push(`<ul>${trimmed.split('\n').map((l) => `<li>${inline(l.replace(/^\s*[-*]\s+/, ''))}</li>`).join('')}</ul>`);
-    } else out.push(`<p>${trimmed.split('\n').map(inline).join('<br>')}</p>`);
+    if (fence) {
+      out.push(`<pre><code>${escapeHtml(fence[1])}</code></pre>`);
+      continue;
+    }
+    // Line by line: headings stand alone, list items group into a list, the rest into paragraphs.
+    let paragraph: string[] = [];
+    let items: string[] = [];
+    const flush = () => {
+      if (paragraph.length) out.push(`<p>${paragraph.map(inline).join('<br>')}</p>`);
+      if (items.length) out.push(`<ul>${items.map((i) => `<li>${inline(i)}</li>`).join('')}</ul>`);
+      paragraph = [];
+      items = [];
+    };
+    for (const line of trimmed.split('\n')) {
+      const heading = /^(#{1,6})\s+(.*)$/.exec(line);
+      const item = /^\s*[-*]\s+(.*)$/.exec(line);
+      if (heading) {
+        flush();
+        out.push(`<h${heading[1].length}>${inline(heading[2])}</h${heading[1].length}>`);
+      } else if (item) {
+        if (paragraph.length) flush();
+        items.push(item[1]);
+      } else {
+        if (items.length) flush();
+        paragraph.push(line);
+      }
+    }
+    flush();
   }
   return out.join('\n');
 }
@@ -108,10 +130,20 @@ function outputHtml(output: Json): string {
     const fallback = data['text/plain'] ? `<noscript><pre>${escapeHtml(text(data['text/plain']))}</pre></noscript>` : '';
     return `<div class="output widget">${fallback}<script type="${WIDGET_VIEW_MIME}">${scriptSafe(JSON.stringify(data[WIDGET_VIEW_MIME]))}</script></div>`;
   }
+  const image = data['image/svg+xml']
+    ? `<div class="output svg">${text(data['image/svg+xml'])}</div>`
+    : data['image/png']
+      ? `<div class="output image"><img alt="figure" src="data:image/png;base64,${text(data['image/png']).trim()}"></div>`
+      : '';
   // Notebook outputs are the author's own HTML, shown as JupyterLab shows a trusted notebook.
-  if (data['text/html']) return `<div class="output html">${text(data['text/html'])}</div>`;
-  if (data['image/svg+xml']) return `<div class="output svg">${text(data['image/svg+xml'])}</div>`;
-  if (data['image/png']) return `<div class="output image"><img alt="figure" src="data:image/png;base64,${text(data['image/png']).trim()}"></div>`;
+  const html = data['text/html'] ? `<div class="output html">${text(data['text/html'])}</div>` : '';
+  if (data[PLOTLY_MIME]) {
+    // Drawn by the page runtime's plotly; the static picture (or HTML) stays if it cannot be.
+    const figure = `<script type="${PLOTLY_MIME}">${scriptSafe(JSON.stringify(data[PLOTLY_MIME]))}</script>`;
+    return `<div class="output plotly">${figure}<div class="plotly-fallback">${image || html}</div></div>`;
+  }
+  if (html) return html;
+  if (image) return image;
   if (data['text/plain']) return `<pre class="output text">${escapeHtml(stripAnsi(text(data['text/plain'])))}</pre>`;
   return '';
 }

@@ -163,6 +163,13 @@ describe('exported notebook page', () => {
     expect(png.suggestedFilename()).toMatch(/\.png$/);
   });
 
+  it('draws the static plot of an engine result a cell displayed', async () => {
+    const plot = page.locator('.chernel-saved-plot');
+    await plot.locator('.main-svg').first().waitFor();
+    expect(await page.evaluate('window.chernelWidgets.plots')).toBe(1);
+    expect(await page.locator('.plotly-fallback').count()).toBe(0);
+  });
+
   it('ran without page errors', () => {
     expect(opened.errors).toEqual([]);
   });

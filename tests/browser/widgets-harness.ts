@@ -5,9 +5,10 @@ import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { mimeBundle } from '../../kernel/display/index.js';
 import { exportHtmlCommand, WIDGET_STATE_MIME } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widget-state.js';
-import { haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
+import { compute, haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
 import { diagnose } from '../../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
 
@@ -83,6 +84,15 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
         },
       ],
     });
+  });
+  // An engine result a cell displayed (the kernel's own rich display): a static plot in the page.
+  const shown = mimeBundle(compute({ kind: 'bands', model: qwz(), params: { u: -1 } }));
+  cells.push({
+    cell_type: 'code',
+    metadata: {},
+    execution_count: widgets.length + 1,
+    source: "compute({ kind: 'bands', model: qwz() })",
+    outputs: [{ output_type: 'execute_result', execution_count: widgets.length + 1, metadata: shown.metadata, data: shown.data }],
   });
   return {
     nbformat: 4,

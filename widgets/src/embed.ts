@@ -4,10 +4,12 @@
  * controls keep recomputing in the page's own engine worker. No kernel, works from file://.
  */
 import { HTMLManager } from '@jupyter-widgets/html-manager/lib/htmlmanager.js';
+import Plotly, { TRACE_TYPES, type Data, type Layout } from './plotly.js';
 import { DiagnosticModel, DiagnosticView, MODULE_NAME } from './widget.js';
 
 const STATE_MIME = 'application/vnd.jupyter.widget-state+json';
 const VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
 
 function failure(where: Element, message: string): void {
   const box = document.createElement('div');
@@ -49,10 +51,33 @@ export async function renderSavedWidgets(root: ParentNode = document): Promise<n
   return shown;
 }
 
+/** Static plotly outputs of the notebook (engine results a cell displayed): drawn, not live. */
+export async function renderSavedPlots(root: ParentNode = document): Promise<number> {
+  let drawn = 0;
+  for (const tag of Array.from(root.querySelectorAll(`script[type="${PLOTLY_MIME}"]`))) {
+    const host = document.createElement('div');
+    host.className = 'chernel-saved-plot';
+    tag.before(host);
+    try {
+      const figure = JSON.parse(tag.textContent ?? '{}') as { data?: Data[]; layout?: Partial<Layout> };
+      const missing = (figure.data ?? []).map((t) => (t as { type?: string }).type ?? 'scatter').filter((t) => !TRACE_TYPES.has(t));
+      if (missing.length > 0) throw new Error(`trace types not in this page's plotly: ${missing.join(', ')}`);
+      await Plotly.newPlot(host, figure.data ?? [], figure.layout ?? {}, { displaylogo: false, responsive: true });
+      tag.parentElement?.querySelector('.plotly-fallback')?.remove();
+      drawn++;
+    } catch {
+      // A trace type this lean plotly lacks: the static fallback beside it stays.
+      Plotly.purge(host);
+      host.remove();
+    }
+  }
+  return drawn;
+}
+
 declare global {
   interface Window {
-    chernelWidgets?: { ready: Promise<number> };
+    chernelWidgets?: { ready: Promise<number>; plots: Promise<number> };
   }
 }
 
-window.chernelWidgets = { ready: renderSavedWidgets() };
+window.chernelWidgets = { ready: renderSavedWidgets(), plots: renderSavedPlots() };

@@ -8,5 +8,8 @@ import contour from 'plotly.js/lib/contour';
 
 Plotly.register([heatmap, contour]);
 
+/** The trace types this build draws (scatter comes with the core). */
+export const TRACE_TYPES: ReadonlySet<string> = new Set(['scatter', 'heatmap', 'contour']);
+
 export default Plotly;
 export type { Data, Layout, Config, PlotlyHTMLElement } from 'plotly.js';

@@ -1,0 +1,141 @@
+// Result -> plotly figure, for each widget kind, on real engine results (small grids).
+// Physics references as in tests/browser: Haldane, PRL 61, 2015 (1988); Qi, Wu, Zhang, PRB 74,
+// 085308 (2006); Kane & Mele, PRL 95, 226801 (2005).
+import { describe, expect, it } from 'vitest';
+import { haldane, kaneMele, qwz } from '../../src/index.js';
+import { diagnose } from '../../widgets/src/diagnose.js';
+import { gapAbove } from '../../widgets/src/figures/bands.js';
+import { integerOrValue } from '../../widgets/src/figures/curvature.js';
+import { wrapBreaks } from '../../widgets/src/figures/flow.js';
+import { figureFor, tableFor, toCsv, type FigureContext } from '../../widgets/src/figures/index.js';
+import { phaseColours } from '../../widgets/src/figures/phase-map.js';
+import type { DiagnosticRequest, DiagnosticResult, ModelSpecView } from '../../widgets/src/protocol.js';
+
+type Trace = Record<string, unknown> & { name?: string; type?: string };
+
+function run(spec: ModelSpecView, kind: DiagnosticRequest['kind'], options: Record<string, unknown>, params: Record<string, number> = {}) {
+  const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
+  const result = diagnose({ ...options, kind, model: spec, params: values });
+  const ctx: FigureContext = { spec, values, options };
+  return { result, ctx, figure: figureFor(result, ctx), traces: figureFor(result, ctx).data as Trace[] };
+}
+
+describe('curvature figure', () => {
+  it('QWZ (square lattice): one heatmap over the reduced zone, centred on zero, no extra boundary', () => {
+    const { figure, traces, result } = run(qwz(), 'curvature', { grid: 16, bands: 1 }, { u: -1 });
+    expect(traces.map((t) => t.type)).toEqual(['heatmap']);
+    const heat = traces[0] as { x: number[]; y: number[]; z: ArrayLike<number>[]; zmid: number; zmin: number; zmax: number };
+    expect(heat.x).toHaveLength(16);
+    expect(heat.z).toHaveLength(16);
+    expect(heat.zmid).toBe(0);
+    expect(heat.zmin).toBe(-heat.zmax);
+    // Row b, column a is values[b * n1 + a] (engine layout, src/topology/curvature.ts).
+    const values = result.values as Float64Array;
+    expect(heat.z[3][5]).toBe(values[3 * 16 + 5]);
+    expect(Math.min(...heat.x)).toBeGreaterThanOrEqual(-0.5);
+    expect(Math.max(...heat.x)).toBeLessThan(0.5);
+    // QWZ, -2 < u < 0: C(lower) = +1.
+    expect(figure.invariant).toBe(1);
+    expect(figure.summary).toMatch(/^C = 1 · min gap/);
+  });
+
+  it('Haldane (hexagonal lattice): the zone boundary is drawn and the map covers it', () => {
+    const { figure, traces } = run(haldane(), 'curvature', { grid: 12, bands: 1 });
+    const zone = traces.find((t) => t.name === 'Brillouin zone') as { x: number[]; y: number[] };
+    expect(zone.x).toHaveLength(7); // six corners, closed
+    const heat = traces[0] as { x: number[]; y: number[] };
+    expect(Math.min(...heat.x)).toBeLessThan(Math.min(...zone.x));
+    expect(Math.max(...heat.x)).toBeGreaterThan(Math.max(...zone.x));
+    expect(figure.invariant).toBe(-1); // M = 0.2 < 3 sqrt3 t2: C = -sign(sin phi)
+  });
+
+  it('gapless: invariant withheld, summary says so, the closing point is marked', () => {
+    const M = 3 * Math.sqrt(3) * 0.1;
+    const { figure, traces } = run(haldane(), 'curvature', { grid: 12, bands: 1 }, { M });
+    expect(figure.gapless).toBe(true);
+    expect(figure.invariant).toBeNull();
+    expect(figure.summary).toMatch(/^C withheld · gapless at k = /);
+    expect(traces.map((t) => t.name)).toContain('gap closes');
+  });
+
+  it('CSV table: one row per sample with k in units of b_i', () => {
+    const { result, ctx } = run(qwz(), 'curvature', { grid: 8, bands: 1 });
+    const csv = toCsv(tableFor(result, ctx)).trim().split('\n');
+    expect(csv[0]).toBe('"k1 [b1]","k2 [b2]","curvature [rad^-2]"');
+    expect(csv).toHaveLength(65);
+  });
+
+  it('integerOrValue rounds only what is an integer up to rounding', () => {
+    expect(integerOrValue(0.9999999999)).toBe(1);
+    expect(integerOrValue(0.5)).toBe(0.5);
+    expect(integerOrValue(null)).toBeNull();
+  });
+});
+
+describe('Wannier-flow figure', () => {
+  it('QWZ: centres and the largest-gap line, winding shown (= C = +1 at u = -1)', () => {
+    const { figure, traces } = run(qwz(), 'wannier-flow', { grid: [24, 16], bands: 1 });
+    expect(traces.map((t) => t.name)).toEqual(['Wannier centres', 'largest gap']);
+    const centres = traces[0] as { y: number[] };
+    expect(centres.y.every((c) => c >= 0 && c < 1)).toBe(true);
+    expect(figure.invariant).toBe(1);
+  });
+
+  it('Kane–Mele with invariant z2: Z2 = 1 below |lambda_v| = 3 sqrt3 lambda_SO, 0 above', () => {
+    const below = run(kaneMele(), 'wannier-flow', { grid: [32, 16], bands: 2, invariant: 'z2' }, { lambda_R: 0, lambda_v: 0.1 });
+    const above = run(kaneMele(), 'wannier-flow', { grid: [32, 16], bands: 2, invariant: 'z2' }, { lambda_R: 0, lambda_v: 0.5 });
+    expect(below.figure.summary).toMatch(/^Z₂ = 1/);
+    expect(below.figure.invariant).toBe(1);
+    expect(above.figure.invariant).toBe(0);
+  });
+
+  it('wrapBreaks breaks a periodic line where it wraps', () => {
+    expect(wrapBreaks([0, 1, 2, 3], [0.8, 0.95, 0.05, 0.2])).toEqual({ x: [0, 1, null, 2, 3], y: [0.8, 0.95, null, 0.05, 0.2] });
+  });
+});
+
+describe('bands, ribbon and phase-map figures', () => {
+  it('bands: a line per band, the chosen group highlighted, the gap above it shaded', () => {
+    const { figure, traces, result } = run(haldane(), 'bands', { bands: 1, pointsPerSegment: 10 });
+    expect(traces).toHaveLength(2);
+    const widths = traces.map((t) => (t.line as { width: number }).width);
+    expect(widths[0]).toBeGreaterThan(widths[1]);
+    const gap = gapAbove(result.energies as Float64Array, (result.path as { count: number }).count, 2, 0)!;
+    expect(gap[1]).toBeGreaterThan(gap[0]);
+    expect(figure.summary).toContain('gap above band 0');
+  });
+
+  it('ribbon: one marker per state, coloured by first minus last edge weight', () => {
+    const { traces, result } = run(qwz(), 'ribbon', { direction: 1, width: 8, nk: 11 });
+    const marker = traces[0].marker as { color: number[] };
+    const edges = result.edges as { first: Float64Array; last: Float64Array };
+    expect(marker.color).toHaveLength(edges.first.length);
+    expect(marker.color[5]).toBeCloseTo(edges.first[5] - edges.last[5], 15);
+  });
+
+  it('phase map: discrete colours with legend entries, gap contours, the current point, the phase there', () => {
+    const { figure, traces } = run(haldane(), 'phase-map', {
+      axes: [{ param: 'phi', from: -3, to: 3, count: 7 }, { param: 'M', from: -1, to: 1, count: 5 }],
+      invariant: 'chern',
+      grid: 12,
+      bands: 1,
+    }, { phi: Math.PI / 2, M: 0 });
+    const names = traces.map((t) => t.name);
+    expect(names).toEqual(expect.arrayContaining(['C = -1', 'C = 0', 'C = 1', 'gap']));
+    expect((figure.layout.shapes ?? []).map((s) => (s as { name?: string }).name)).toContain('current-point');
+    expect(figure.invariant).toBe(-1);
+  });
+
+  it('phaseColours keeps the trivial phase light and the others distinct', () => {
+    const colours = phaseColours([-1, 0, 1, 2]);
+    expect(new Set(colours.values()).size).toBe(4);
+    expect(colours.get(0)).toBe('#e9e6df');
+  });
+
+  it('names the missing field of a malformed result', () => {
+    const broken = { kind: 'curvature', grid: [2, 2], k1: new Float64Array(2), k2: new Float64Array(2), checks: { minGap: 1, warnings: [] } } as DiagnosticResult;
+    const ctx = { spec: qwz(), values: {}, options: {} };
+    expect(() => figureFor(broken, ctx)).toThrow('curvature result: field "values" missing or malformed. Value: undefined');
+    expect(() => figureFor({ kind: 'nonsense', checks: { minGap: 1, warnings: [] } }, ctx)).toThrow('no figure for result kind "nonsense"');
+  });
+});
