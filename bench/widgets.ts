@@ -30,6 +30,8 @@ function median(xs: number[]): number {
 
 interface StepTiming {
   total: number;
+  /** Submit to reply, including the worker's queue and the message transfers. */
+  latency: number;
   compute: number;
   figure: number;
   plot: number;
@@ -52,7 +54,7 @@ const stepScript = `async ({ index, name, steps }) => {
     slider.value = String(v);
     slider.dispatchEvent(new Event('input', { bubbles: true }));
     const d = await done;
-    out.push({ total: performance.now() - t0, compute: d.computeMs, figure: d.figureMs, plot: d.plotMs });
+    out.push({ total: performance.now() - t0, latency: d.latency, compute: d.computeMs, figure: d.figureMs, plot: d.plotMs });
   }
   return out;
 }`;
@@ -77,6 +79,7 @@ export async function benchWidgets(): Promise<BenchRow[]> {
       const measured = timings.slice(WARMUP);
       process.stderr.write(
         `bench: widgets: ${c.label}: median engine ${median(measured.map((t) => t.compute)).toFixed(1)} ms, ` +
+          `to the worker and back ${median(measured.map((t) => t.latency - t.compute)).toFixed(1)} ms, ` +
           `traces ${median(measured.map((t) => t.figure)).toFixed(1)} ms, plotly ${median(measured.map((t) => t.plot)).toFixed(1)} ms\n`,
       );
       const totals = measured.map((t) => t.total).sort((a, b) => a - b);

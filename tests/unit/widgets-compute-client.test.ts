@@ -55,6 +55,16 @@ describe('LatestWinsClient', () => {
     expect(client.busy).toBe(false);
   });
 
+  it('sends the waiting request before delivering the reply, so computing overlaps drawing', () => {
+    const worker = new HeldWorker();
+    const sentAtDelivery: number[] = [];
+    const client = new LatestWinsClient(() => worker, () => sentAtDelivery.push(worker.received.length));
+    client.submit(request(1));
+    client.submit(request(2));
+    worker.reply(ok(worker.received[0].id, 1));
+    expect(sentAtDelivery).toEqual([2]);
+  });
+
   it('ignores a reply that is not for the request in flight', () => {
     const worker = new HeldWorker();
     const outcomes: Outcome[] = [];

@@ -87,8 +87,9 @@ export class LatestWinsClient {
     const outcome: Outcome = reply.ok
       ? { request: current.request, latency, computeMs: reply.ms, result: reply.result }
       : { request: current.request, latency, computeMs: 0, error: reply.error };
-    this.deliver(outcome);
+    // Start the next computation before drawing this one: the worker computes while the page draws.
     this.sendWaiting();
+    this.deliver(outcome);
   }
 
   /** A worker that dies (bad bundle, out of memory) is replaced on the next request. */

@@ -296,9 +296,12 @@ export class DiagnosticView extends DOMWidgetView {
 
   private recompute(): void {
     this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome));
-    this.plot.classList.add('chernel-stale');
-    this.statusEl.textContent = 'computing…';
     this.client.submit(this.model.request(this.live));
+    // Mark the plot stale once per burst of moves, not on every input event.
+    if (!this.plot.classList.contains('chernel-stale')) {
+      this.plot.classList.add('chernel-stale');
+      this.statusEl.textContent = 'computing…';
+    }
   }
 
   private computed(outcome: Outcome): void {

@@ -98,6 +98,8 @@ export const BASE_LAYOUT: Partial<Layout> = {
   paper_bgcolor: 'rgba(0,0,0,0)',
   plot_bgcolor: '#ffffff',
   hovermode: 'closest',
+  // Keep the user's zoom and pan while a drag redraws the figure.
+  uirevision: 'chernel',
 };
 
 /** A diverging scale (blue, white, red) with zero pinned to white by `zmid: 0`. */
