@@ -158,15 +158,17 @@ function spectrumPlot(result: ResultLike, title: string): Plot | null {
   let data: Record<string, unknown>[];
   if (edgeColour && points > 1) {
     // Ribbon: every state a dot coloured by which edge holds it (first edge +1, last edge -1).
+    // Rounded to what a screen resolves: a wide ribbon has tens of thousands of states.
+    const round = (v: number, scale: number): number => Math.round(v * scale) / scale;
     const x: number[] = [];
     const y: number[] = [];
     const c: number[] = [];
     for (let p = 0; p < points; p++) {
       for (let b = 0; b < count; b++) {
         const i = p * count + b;
-        x.push(path.distance[p]);
-        y.push(energies[i]);
-        c.push(edgeColour.first[i] - edgeColour.last[i]);
+        x.push(round(path.distance[p], 1e5));
+        y.push(round(energies[i], 1e5));
+        c.push(round(edgeColour.first[i] - edgeColour.last[i], 100));
       }
     }
     data = [{ type: 'scattergl', mode: 'markers', x, y, marker: { size: 3, color: c, cmin: -1, cmax: 1, colorscale: 'RdBu', colorbar: { title: 'edge' } }, hoverinfo: 'x+y' }];
@@ -175,7 +177,7 @@ function spectrumPlot(result: ResultLike, title: string): Plot | null {
   }
   return {
     figure: { data, layout: { ...LAYOUT, title: { text: title }, xaxis: axis, yaxis: { title: { text: 'energy' }, zeroline: false } } },
-    fallback: { mime: 'image/svg+xml', data: svgPlot(series, points > 1 && !edgeColour ? 'lines' : 'markers', title) },
+    fallback: { mime: 'image/svg+xml', data: svgPlot(series, points > 1 ? 'lines' : 'markers', title) },
   };
 }
 
