@@ -9,7 +9,7 @@ import { checkInterrupt, InterruptedError } from './interrupt.js';
 import { ModelError, show } from './model/errors.js';
 import type { ModelSpec, ParameterValues } from './model/spec.js';
 import { pointFunction } from './scan/point.js';
-import { phaseMapSync } from './scan/run.js';
+import { phaseMapSync, runPhaseMap } from './scan/run.js';
 import type { PhaseMapRequest, PhaseMapResult } from './scan/sweep.js';
 import { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
 import { directGap, findGapClosings, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
@@ -124,22 +124,32 @@ export function compute(request: DiagnosticRequest): DiagnosticResult {
 }
 
 export interface ComputeAsyncOptions {
-  /** Checked before the work starts; a started computation stops through the host's interrupt flag. */
+  /** Checked before the work starts and, for a phase map, between points. */
   signal?: { readonly aborted: boolean };
-  /** Called with 0 when the work starts and 1 when it ends. */
+  /** The fraction of the work done: 0 at the start, 1 at the end, and per point for a phase map. */
   onProgress?: (fraction: number) => void;
 }
 
 /**
- * `compute` after the current task, so a host can queue requests and cancel ones that
- * have not started. Long loops inside still stop through `checkInterrupt` (src/interrupt.ts).
+ * `compute` after the current task, so a host can queue requests and cancel ones that have not
+ * started. A phase map runs point by point, yielding to the host between batches, so progress
+ * shows and a stop takes effect between points; long loops inside still stop through
+ * `checkInterrupt` (src/interrupt.ts).
  */
 export async function computeAsync(request: DiagnosticRequest, options: ComputeAsyncOptions = {}): Promise<DiagnosticResult> {
   await Promise.resolve();
   if (options.signal?.aborted) throw new InterruptedError();
   checkInterrupt();
   options.onProgress?.(0);
-  const result = compute(request);
+  const result =
+    request.kind === 'phase-map'
+      ? await runPhaseMap(request, {
+          pointFunction,
+          signal: options.signal,
+          // Refinement schedules more points as it goes: the fraction is of those scheduled so far.
+          onProgress: (p) => options.onProgress?.(p.total > 0 ? Math.min(p.done / p.total, 0.99) : 0),
+        })
+      : compute(request);
   options.onProgress?.(1);
   return result;
 }
