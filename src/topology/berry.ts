@@ -6,12 +6,13 @@
  * convention: the phase of the same loop differs between the two by 2pi times the orbital positions.
  */
 import { checkInterrupt } from '../interrupt.js';
+import { multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
 import {
   bandGroup, compileSource, embeddingFor, formatK, FrameSampler,
   type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
-import { determinantInPlace, fraction, multiplySmall, overlapMatrix, UnitaryPhases, wrapAngle } from './links.js';
+import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases, wrapAngle } from './links.js';
 import { COARSE_LINK } from './wilson.js';
 
 export interface BerryPhaseOptions extends TopologyOptions {
@@ -94,7 +95,7 @@ function loopProduct(sampler: FrameSampler, points: Float64Array, count: number,
     tmp.set(link);
     determinantInPlace(m, tmp, det);
     minLink = Math.min(minLink, Math.hypot(det[0], det[1]));
-    multiplySmall(m, w, link, tmp);
+    multiply(m, w, link, tmp);
     w.set(tmp);
   }
   tmp.set(w);

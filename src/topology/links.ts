@@ -68,25 +68,6 @@ export function determinantInPlace(m: number, a: Float64Array, out: Float64Array
   return lu.compute(a, out);
 }
 
-/** out = A B for m x m complex matrices (out must not alias a or b). */
-export function multiplySmall(m: number, a: Float64Array, b: Float64Array, out: Float64Array): Float64Array {
-  for (let i = 0; i < m; i++) {
-    for (let j = 0; j < m; j++) {
-      let re = 0;
-      let im = 0;
-      for (let k = 0; k < m; k++) {
-        const ar = a[2 * (i * m + k)], ai = a[2 * (i * m + k) + 1];
-        const br = b[2 * (k * m + j)], bi = b[2 * (k * m + j) + 1];
-        re += ar * br - ai * bi;
-        im += ar * bi + ai * br;
-      }
-      out[2 * (i * m + j)] = re;
-      out[2 * (i * m + j) + 1] = im;
-    }
-  }
-  return out;
-}
-
 /**
  * Eigenphases (radians, in (-pi, pi]) of an m x m Wilson loop, unitary up to discretisation error:
  * the linalg Schur solver, plus the smallest |eigenvalue| as a check of how unitary it was.

@@ -7,12 +7,13 @@
  * Chern number as k1 goes once around the zone.
  */
 import { checkInterrupt } from '../interrupt.js';
+import { multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
 import {
   bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
-import { determinantInPlace, fraction, multiplySmall, overlapMatrix, UnitaryPhases } from './links.js';
+import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases } from './links.js';
 
 /** A link modulus (|det| of a normalised overlap) below this means neighbouring frames differ too much. */
 export const COARSE_LINK = 0.9;
@@ -97,7 +98,7 @@ export class WilsonColumns {
       determinantInPlace(m, this.tmp, this.det);
       const mod = Math.hypot(this.det[0], this.det[1]);
       if (mod < this.minLinkAlong) this.minLinkAlong = mod;
-      multiplySmall(m, w, this.link, this.tmp);
+      multiply(m, w, this.link, this.tmp);
       w.set(this.tmp);
     }
     if (this.hasPrev) {
