@@ -3,7 +3,7 @@
 // and the saved notebook carries the state, so its HTML export draws with no kernel.
 // Physics: Haldane, PRL 61, 2015 (1988): C(lower) = -sign(sin phi) for |M| < 3 sqrt3 t2 |sin phi|,
 // else 0 (sign convention of /work/shared/references.md).
-import { existsSync, readFileSync } from 'node:fs';
+import { copyFileSync, existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Locator } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -103,5 +103,22 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     } finally {
       await page.close();
     }
+  });
+
+  it('a collaborator opening the saved notebook sees the plot without running anything, and can still drag', async () => {
+    copyFileSync(join(lab.rootDir, notebook.path), join(lab.rootDir, 'shared.ipynb'));
+    const shared = await lab.openNotebook('shared.ipynb');
+    const restored = shared.cell(0).locator('.chernel-widget');
+    await restored.locator('.chernel-plot .main-svg').first().waitFor({ timeout: 60_000 });
+    expect(await restored.locator('.chernel-status').textContent()).toContain('saved result');
+    expect(await restored.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.1)));
+
+    const box = restored.locator('.chernel-control[data-parameter="M"] input.chernel-control-value');
+    await box.fill('1.5');
+    await box.press('Enter');
+    await restored.locator('.chernel-status', { hasText: 'M = 1.5 · engine' }).waitFor();
+    expect(await restored.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(1.5)));
+    await lab.screenshot('widgets-lab-restored');
+    expect(lab.unexpectedErrors()).toEqual([]);
   });
 });

@@ -43,7 +43,10 @@ export function createParameterControls(
 ): ParameterControls {
   const element = document.createElement('div');
   element.className = 'chernel-controls';
-  const rows = new Map<string, { slider: HTMLInputElement; box: HTMLInputElement }>();
+  const rows = new Map<string, { slider: HTMLInputElement; box: HTMLInputElement; committed: (text: string) => void }>();
+  // Keys typed into a control are the control's, not notebook shortcuts (Enter, digits, arrows):
+  // JupyterLab's key handler skips targets marked so (Lumino's data-lm-suppress-shortcuts).
+  element.addEventListener('keydown', (event) => event.stopPropagation());
 
   for (const [name, decl] of Object.entries(parameters)) {
     const [lo, hi] = sliderRange(decl);
@@ -63,6 +66,7 @@ export function createParameterControls(
     slider.step = String(sliderStep(lo, hi));
     slider.value = String(values[name] ?? decl.default);
     slider.setAttribute('aria-label', name);
+    slider.setAttribute('data-lm-suppress-shortcuts', 'true');
 
     const box = document.createElement('input');
     box.type = 'number';
@@ -70,13 +74,19 @@ export function createParameterControls(
     box.step = 'any';
     box.value = formatValue(values[name] ?? decl.default);
     box.setAttribute('aria-label', `${name} value`);
+    box.setAttribute('data-lm-suppress-shortcuts', 'true');
+    /** The box text last acted on, so Enter followed by blur commits once. */
+    let committed = box.value;
 
     slider.addEventListener('input', () => {
       const value = Number(slider.value);
       box.value = formatValue(value);
+      committed = box.value;
       onInput(name, value);
     });
-    box.addEventListener('change', () => {
+    const commit = () => {
+      if (box.value === committed) return; // Enter, then blur: one commit
+      committed = box.value;
       const value = Number(box.value);
       if (box.value.trim() === '' || !Number.isFinite(value)) {
         onInvalid(`${name}: not a number. Value: "${box.value}"`);
@@ -88,11 +98,19 @@ export function createParameterControls(
       }
       slider.value = String(value);
       onInput(name, value);
+    };
+    box.addEventListener('change', commit);
+    // Enter commits too, also where a host (JupyterLab) keeps it from becoming a change event.
+    box.addEventListener('keydown', (event) => {
+      if (event.key === 'Enter') {
+        event.preventDefault();
+        commit();
+      }
     });
 
     row.append(caption, slider, box);
     element.append(row);
-    rows.set(name, { slider, box });
+    rows.set(name, { slider, box, committed: (text) => (committed = text) });
   }
 
   return {
@@ -103,6 +121,7 @@ export function createParameterControls(
         if (row === undefined) continue;
         row.slider.value = String(value);
         row.box.value = formatValue(value);
+        row.committed(row.box.value);
       }
     },
     dispose() {
