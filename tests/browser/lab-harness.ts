@@ -167,9 +167,9 @@ export class LabSession {
     if (state !== 'ready') throw new Error(`lab: the app failed to start:\n${this.console.join('\n')}`);
   }
 
-  /** Console errors and page errors not in the list of known harmless noise. */
-  unexpectedErrors(): string[] {
-    return this.console.filter(line => /^(error|pageerror):/.test(line) && !knownNoise.some(pattern => pattern.test(line)));
+  /** Console errors and page errors not in the list of known harmless noise (from message `since` on). */
+  unexpectedErrors(since = 0): string[] {
+    return this.console.slice(since).filter(line => /^(error|pageerror):/.test(line) && !knownNoise.some(pattern => pattern.test(line)));
   }
 
   /** The ids among `ids` of plugins that are not activated. */
