@@ -61,6 +61,8 @@ export function widgetState(fields: {
     title: fields.title,
     kind: fields.kind,
     spec: fields.spec,
+    // A saved notebook's JSON has its keys sorted; this keeps the model's own parameter order.
+    parameter_order: Object.keys(fields.spec.parameters),
     options: fields.options,
     values: fields.values,
     result: fields.result === null ? null : packArrays(fields.result),

@@ -48,6 +48,8 @@ export class DiagnosticModel extends DOMWidgetModel {
       title: '',
       kind: 'curvature',
       spec: null,
+      /** The model's parameter order (a saved notebook sorts object keys). */
+      parameter_order: [],
       options: {},
       values: {},
       result: null,
@@ -192,6 +194,12 @@ export class DiagnosticView extends DOMWidgetView {
     return super.remove();
   }
 
+  private parameterOrder(): string[] {
+    const declared = Object.keys(this.spec?.parameters ?? {});
+    const saved = (this.model.get('parameter_order') as string[] | undefined) ?? [];
+    return [...saved.filter((k) => declared.includes(k)), ...declared.filter((k) => !saved.includes(k))];
+  }
+
   private get spec(): ModelSpecView {
     return this.model.get('spec') as ModelSpecView;
   }
@@ -207,8 +215,9 @@ export class DiagnosticView extends DOMWidgetView {
     this.titleEl.textContent = this.model.get('title') || `${KIND_TITLES[kind] ?? kind} · ${spec?.name ?? 'no model'}`;
     this.live = { ...(this.model.get('values') as Values) };
     if (!spec) return;
+    const ordered = Object.fromEntries(this.parameterOrder().map((k) => [k, spec.parameters[k]]));
     this.controls = createParameterControls(
-      spec.parameters,
+      ordered,
       this.live,
       (name, value) => this.controlMoved(name, value),
       (message) => this.showMessage('error', message),
@@ -312,7 +321,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.model.set({ error: message, values: { ...this.live } }, { updated_view: this });
       this.sync();
       this.showMessage('error', message);
-      this.statusEl.textContent = `failed for ${describeValues(values)}`;
+      this.statusEl.textContent = `failed for ${describeValues(values, this.parameterOrder())}`;
       this.plot.classList.toggle('chernel-stale', !this.client?.busy);
       this.el.dispatchEvent(new CustomEvent('chernel-error', { bubbles: true, detail: { message } }));
       return;
@@ -359,8 +368,8 @@ export class DiagnosticView extends DOMWidgetView {
       this.bindPlotEvents();
       this.plot.classList.toggle('chernel-stale', busy);
       this.statusEl.textContent = outcome
-        ? `${describeValues(values)} · engine ${outcome.computeMs.toFixed(0)} ms`
-        : `${describeValues(values)} · saved result`;
+        ? `${describeValues(values, this.parameterOrder())} · engine ${outcome.computeMs.toFixed(0)} ms`
+        : `${describeValues(values, this.parameterOrder())} · saved result`;
       const detail: DrawnDetail = {
         summary: figure.summary,
         invariant: figure.invariant,
@@ -401,8 +410,8 @@ export class DiagnosticView extends DOMWidgetView {
   }
 }
 
-function describeValues(values: Values): string {
-  return Object.entries(values)
-    .map(([k, v]) => `${k} = ${formatValue(v)}`)
-    .join(', ');
+/** "t1 = 1, M = 0.2", in the model's own parameter order (saved state may have sorted the keys). */
+function describeValues(values: Values, order: string[] = []): string {
+  const names = [...order.filter((k) => k in values), ...Object.keys(values).filter((k) => !order.includes(k))];
+  return names.map((k) => `${k} = ${formatValue(values[k])}`).join(', ');
 }
