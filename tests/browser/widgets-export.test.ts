@@ -161,6 +161,15 @@ describe('exported notebook page', () => {
     const bytes = readFileSync((await png.path())!);
     expect(bytes.subarray(1, 4).toString('latin1')).toBe('PNG');
     expect(png.suggestedFilename()).toMatch(/\.png$/);
+
+    const [svg] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="svg"]').click()]);
+    expect(readFileSync((await svg.path())!, 'utf8')).toMatch(/^<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+
+    const [json] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="json"]').click()]);
+    const saved = JSON.parse(readFileSync((await json.path())!, 'utf8')) as { request: { kind: string; params: Record<string, number> }; result: { values: number[]; grid: number[] } };
+    expect(saved.request.kind).toBe('curvature');
+    expect(saved.result.grid).toEqual([48, 48]);
+    expect(saved.result.values).toHaveLength(48 * 48);
   });
 
   it('draws the static plot of an engine result a cell displayed', async () => {
