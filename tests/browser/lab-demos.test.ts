@@ -75,6 +75,18 @@ async function drawnWidget(notebook: NotebookHandle, index: number): Promise<Loc
   return view;
 }
 
+/**
+ * Fails fast when the page no longer answers (a renderer stuck in a script), instead of letting each
+ * remaining test wait out its timeout; the console log in the artefacts says what it was doing.
+ */
+async function answering(lab: LabSession): Promise<void> {
+  const timeout = new Promise<false>(done => setTimeout(() => done(false), 15_000));
+  if (!(await Promise.race([lab.page.evaluate(() => true), timeout]))) {
+    const recent = lab.console.slice(-3).join('\n');
+    throw new Error(`lab: the page stopped answering (renderer busy); last console messages:\n${recent}`);
+  }
+}
+
 describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel', () => {
   let lab: LabSession;
   let rootDir: string;
@@ -110,6 +122,7 @@ describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel
     let consoleStart: number;
 
     it('runs every cell with no error output; the widget draws C = 1 at g = 0.3, delta = 0.1', async () => {
+      await answering(lab);
       consoleStart = lab.console.length;
       notebook = await lab.openNotebook(name, 'chernel');
       const outputs = await notebook.runAll();
@@ -179,6 +192,7 @@ describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel
 
   for (const name of demoNames.filter(n => n !== '01-coupled-wires.ipynb')) {
     it(`${name}: runs every cell with no error output, and every widget draws`, async () => {
+      await answering(lab);
       const consoleStart = lab.console.length;
       const notebook = await lab.openNotebook(name, 'chernel');
       const outputs = await notebook.runAll();
