@@ -20,6 +20,8 @@ const USAGE = `usage:
                                        remove it
   chernel sweep plan|run|merge|status|submit ...
                                        phase-map sweeps as files, shards and Slurm job arrays
+  chernel export-html <notebook.ipynb> [-o page.html]
+                                       a standalone page whose widgets recompute with no kernel
   chernel --version`;
 
 class UsageError extends Error {}
@@ -63,6 +65,11 @@ async function main(argv: string[]): Promise<void> {
     case 'sweep': {
       const { runSweepCli } = await import('../cluster/sweep-cli.js');
       process.exitCode = await runSweepCli(rest);
+      return;
+    }
+    case 'export-html': {
+      const { exportHtmlCommand } = await import('./export-html.js');
+      process.exitCode = exportHtmlCommand(rest);
       return;
     }
     case '--version':

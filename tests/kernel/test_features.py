@@ -249,6 +249,19 @@ class Features(unittest.TestCase):
         self.assertEqual(bad.returncode, 2)
         self.assertIn('unknown command "instal"', bad.stderr)
 
+    def test_export_html_of_a_notebook_with_widgets(self):
+        notebook = harness.ROOT / "notebooks-demo" / "01-coupled-wires.ipynb"
+        state = json.loads(notebook.read_text())["metadata"]["widgets"]["application/vnd.jupyter.widget-state+json"]["state"]
+        page = Path(tempfile.mkdtemp(prefix="chernel-export-")) / "wires.html"
+        subprocess.run(["node", str(harness.CLI), "export-html", str(notebook), "-o", str(page)], check=True, capture_output=True)
+        html = page.read_text()
+        self.assertIn("application/vnd.jupyter.widget-state+json", html)
+        for model_id in state:
+            self.assertIn(model_id, html)
+        missing = subprocess.run(["node", str(harness.CLI), "export-html", str(page.parent / "absent.ipynb")], capture_output=True, text=True)
+        self.assertNotEqual(missing.returncode, 0)
+        self.assertIn("absent.ipynb", missing.stderr)
+
 
 if __name__ == "__main__":
     unittest.main()
