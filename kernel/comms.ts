@@ -109,14 +109,16 @@ export function connectComms(sink: Post): void {
   post = sink;
 }
 
-/** @internal the host forwards front-end comm messages here; errors go to the caller (stderr). */
+/** @internal the host forwards front-end comm messages here; a handler's errors go to the caller (stderr). */
 export function handleFrontendComm(message: Extract<import('./executor/channel.js').HostToWorker, { type: `comm_${string}` }>): void {
   const msg: CommMessage = { data: message.data, metadata: message.metadata, buffers: message.buffers };
   if (message.type === 'comm_open') {
     const handler = targets.get(message.targetName);
     if (!handler) {
+      // The messaging spec's answer to an unknown target: close the comm, say nothing else (front
+      // ends probe targets, e.g. the widget manager's "jupyter.widget.control").
       post({ type: 'comm_close', commId: message.commId, data: {}, metadata: {}, buffers: [] });
-      throw new Error(`comm_open: no target registered under the name "${message.targetName}"`);
+      return;
     }
     const comm = new Comm(message.commId, message.targetName);
     comms.set(comm.id, comm);
@@ -124,7 +126,8 @@ export function handleFrontendComm(message: Extract<import('./executor/channel.j
     return;
   }
   const comm = comms.get(message.commId);
-  if (!comm) throw new Error(`${message.type}: unknown comm id "${message.commId}"`);
+  // Messages for a comm that is closed or never opened here are ignored, as the spec asks.
+  if (!comm) return;
   if (message.type === 'comm_msg') comm.deliver(msg);
   else comm.closed_(msg);
 }

@@ -216,10 +216,14 @@ class Features(unittest.TestCase):
         self.assertEqual(out[0][1]["data"], {"doubled": 42})
         buffers = out[0][2]["buffers"]
         self.assertEqual(struct.unpack("<2d", bytes(buffers[0])), (21.0, 1.5))
-        # Opening on an unknown target is refused with comm_close.
+        # Opening on an unknown target is refused with comm_close and nothing else (messaging spec):
+        # front ends probe targets, and a probe must not print into the user's cells.
         bad_id = self.shell("comm_open", {"comm_id": "b4d", "target_name": "no.such.target", "data": {}})
         out = harness.collect(self.kc, bad_id)
-        self.assertIn(("comm_close", "b4d"), [(m, c.get("comm_id")) for m, c, _ in out])
+        self.assertEqual([(m, c.get("comm_id")) for m, c, _ in out if m != "status"], [("comm_close", "b4d")])
+        # A message for that closed comm is ignored, quietly.
+        stray_id = self.shell("comm_msg", {"comm_id": "b4d", "data": {"n": 1}})
+        self.assertEqual([m for m, _, _ in harness.collect(self.kc, stray_id) if m != "status"], [])
         # The kernel side opens a comm.
         _, out = harness.run(self.kc, "const k = openComm('chernel.frontend', {state: 1}, {metadata: {version: '2.1.0'}}); k.id")
         opened = [(c, msg) for m, c, msg in out if m == "comm_open"]
