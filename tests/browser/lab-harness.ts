@@ -10,6 +10,7 @@ import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Locator, type Page } from 'playwright-core';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import {
   ensureLabBuilt,
   projectDir,
@@ -21,16 +22,6 @@ import {
 
 export const artifactsDir = resolve(process.env.CHERNEL_ARTIFACTS ?? join(projectDir, 'test-artifacts'));
 
-/** Chromium flags from the project rules: no sandbox (root in CI), no GPU, no network chatter. */
-const chromiumArgs = [
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
 
 /**
  * Console noise this server version is known to cause (lab/ README in /work/shared/JUPYTERLAB.md):
@@ -108,9 +99,9 @@ export async function openLab(options: OpenLabOptions = {}): Promise<LabSession>
   const profile = mkdtempSync(join(tmpdir(), 'chernel-chromium-'));
   try {
     const context = await chromium.launchPersistentContext(profile, {
-      executablePath: '/usr/bin/chromium',
+      executablePath: CHROMIUM_PATH,
       headless: true,
-      args: chromiumArgs,
+      args: CHROMIUM_ARGS,
       viewport: options.viewport ?? { width: 1400, height: 900 },
     });
     const page = context.pages()[0] ?? (await context.newPage());

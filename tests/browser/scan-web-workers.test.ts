@@ -7,6 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { build } from 'esbuild';
 import { chromium, type Browser } from 'playwright-core';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
 const dir = mkdtempSync(join(tmpdir(), 'chernel-scan-web-'));
@@ -41,8 +42,8 @@ beforeAll(async () => {
   const address = server.address();
   base = `http://127.0.0.1:${typeof address === 'object' && address ? address.port : 0}`;
   browser = await chromium.launch({
-    executablePath: '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    executablePath: CHROMIUM_PATH,
+    args: CHROMIUM_ARGS,
   });
 });
 

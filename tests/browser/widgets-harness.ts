@@ -5,6 +5,7 @@ import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { mimeBundle } from '../../kernel/display/index.js';
 import { exportHtmlCommand, WIDGET_STATE_MIME } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState, WIDGET_VIEW_MIME, type WidgetKind } from '../../kernel/widget-state.js';
@@ -117,15 +118,6 @@ export function exportDemo(widgets: DemoWidget[] = demoWidgets(), name = 'widget
   return { notebook, page };
 }
 
-const chromiumArgs = [
-  '--no-sandbox',
-  '--disable-gpu',
-  '--disable-quic',
-  '--no-first-run',
-  '--disable-background-networking',
-  '--disable-component-update',
-  '--disable-sync',
-];
 
 export interface OpenedPage {
   context: BrowserContext;
@@ -139,9 +131,9 @@ export interface OpenedPage {
 export async function openPage(path: string): Promise<OpenedPage> {
   const profile = mkdtempSync(join(tmpdir(), 'chernel-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
-    executablePath: '/usr/bin/chromium',
+    executablePath: CHROMIUM_PATH,
     headless: true,
-    args: chromiumArgs,
+    args: CHROMIUM_ARGS,
     viewport: { width: 1000, height: 900 },
     acceptDownloads: true,
   });
