@@ -44,7 +44,8 @@ n, terms = job["n"], job["terms"]
 def hamiltonians(K):
     H = np.zeros(K.shape[:-1] + (n, n), complex)
     for a, b, cell, re, im, onsite in terms:
-        ph = (re + 1j * im) * np.exp(1j * (K @ np.array(cell, float)))
+        # <R,b|H|0,a> = t gives H_ba(k) += t e^{-ik.R} (DEVELOPERS.md conventions)
+        ph = (re + 1j * im) * np.exp(-1j * (K @ np.array(cell, float)))
         H[..., b, a] += ph
         if not onsite:
             H[..., a, b] += ph.conj()
