@@ -1,35 +1,37 @@
 /**
  * chernel's public API: exactly what a notebook cell sees.
  */
+
+// Models: the description, validation, builder, builders, catalogue
 export { MODEL_FORMAT, MODEL_VERSION } from './model/spec.js';
 export type { Amplitude, ComplexAmplitude, ModelSpec, OrbitalSpec, ParameterSpec, ParameterValues, TermSpec } from './model/spec.js';
 export { ModelError } from './model/errors.js';
-export { validateModel } from './model/validate.js';
+export { validateModel, checkBandSelection } from './model/validate.js';
 export { resolveParameters } from './model/expressions.js';
-export { lattice, LatticeBuilder, type SpinMatrix } from './model/builder.js';
-export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
-export { type CMatrix, cmatrix } from './linalg/cmatrix.js';
-export { HermitianEigensolver, eigh } from './linalg/eigh.js';
-export { UnitaryEigenphases, eigenphases } from './linalg/eigphases.js';
-export { ComplexDeterminant, determinant } from './linalg/determinant.js';
-export { ComplexPfaffian, pfaffian } from './linalg/pfaffian.js';
-export { InterruptedError, checkInterrupt, installInterruptFlag } from './interrupt.js';
-export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
-export { reciprocalVectors, cartesianMomentum, highSymmetryPoints, type HighSymmetryPoints, type LatticeFamily } from './spectra/lattice.js';
-export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } from './spectra/path.js';
-export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
-export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
-export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
-export { type OrbitalMatrix, type Harmonic } from './model/builder.js';
-export { checkBandSelection } from './model/validate.js';
+export { lattice, LatticeBuilder, type Harmonic, type OrbitalMatrix, type SpinMatrix } from './model/builder.js';
 export { supercell, type SupercellOptions } from './model/builders/supercell.js';
 export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/builders/open.js';
 export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
 export { bogoliubov, type BdgOptions } from './model/builders/bdg.js';
 export { wireStack, type WireStackOptions } from './model/builders/wires.js';
 export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
-export { ribbonSpectrum, type RibbonSpectrumOptions, type RibbonSpectrumResult } from './spectra/ribbon.js';
+
+// Bloch Hamiltonians
+export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
+
+// One call for every diagnostic
 export { compute, computeAsync, DIAGNOSTIC_KINDS, type ComputeAsyncOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
+
+// Spectra
+export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
+export { reciprocalVectors, cartesianMomentum, highSymmetryPoints, type HighSymmetryPoints, type LatticeFamily } from './spectra/lattice.js';
+export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } from './spectra/path.js';
+export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
+export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
+export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
+export { ribbonSpectrum, type RibbonSpectrumOptions, type RibbonSpectrumResult } from './spectra/ribbon.js';
+
+// Topology
 export { FrameSampler, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource } from './topology/common.js';
 export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } from './topology/chern.js';
 export { curvatureMap, type CurvatureChecks, type CurvatureMethod, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
@@ -39,9 +41,21 @@ export { z2Index, spinChern, type MatrixEntry, type SpinChernResult, type Z2Chec
 export { windingNumber, majoranaNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';
 export { weylPoints, type WeylOptions, type WeylPoint, type WeylResult } from './topology/weyl.js';
 export { hallConductivity, ELEMENTARY_CHARGE, PLANCK_CONSTANT, HALL_CONDUCTANCE_QUANTUM, type HallOptions, type HallResult } from './topology/hall.js';
+
+// Sweeps, phase maps, cluster plans
 export { runPhaseMap, phaseMapSync, makeCheckpoint, CHECKPOINT_FORMAT, type RunPhaseMapOptions, type SweepCheckpoint, type SweepProgress, type PointRecord } from './scan/run.js';
 export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointOutcome, type PointTarget } from './scan/sweep.js';
 export { InProcessExecutor, PointError, type SweepExecutor, type StopSignal, type EvaluateHooks, type PointFunctionFactory } from './scan/executor.js';
 export { WorkerPoolExecutor, serveSweepWorker, type WorkerPort } from './scan/pool.js';
 export { pointFunction } from './scan/point.js';
 export { sweepPlan, validatePlan, shardPoints, runShard, mergeShards, PLAN_FORMAT, SHARD_FORMAT, type SweepPlan, type ShardOutput, type MergeReport } from './scan/plan.js';
+
+// Linear algebra
+export { type CMatrix, cmatrix } from './linalg/cmatrix.js';
+export { HermitianEigensolver, eigh } from './linalg/eigh.js';
+export { UnitaryEigenphases, eigenphases } from './linalg/eigphases.js';
+export { ComplexDeterminant, determinant } from './linalg/determinant.js';
+export { ComplexPfaffian, pfaffian } from './linalg/pfaffian.js';
+
+// Interruption of long loops
+export { InterruptedError, checkInterrupt, installInterruptFlag } from './interrupt.js';
