@@ -10,6 +10,7 @@ import { join } from 'node:path';
 import { createInterface } from 'node:readline';
 import { pathToFileURL } from 'node:url';
 import { HermitianEigensolver } from '../src/linalg/eigh.js';
+import { randomHermitian, uniform } from '../tests/unit/linalg-fixtures.js';
 import { formatTable, type BenchRow } from './table.js';
 
 const PYTHON = '/usr/bin/python3';
@@ -30,35 +31,11 @@ const CASES = [
 const ROUNDS = 7;
 const ROUND_SECONDS = 0.1;
 
-/** Deterministic uniform numbers in [-1, 1) (mulberry32). */
-function uniform(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 2 ** 31 - 1;
-  };
-}
-
 /** `batch` random Hermitian n x n matrices, back to back (the layout of numpy complex128). */
 function randomHermitianBatch(n: number, batch: number, seed: number): Float64Array {
   const next = uniform(seed);
   const out = new Float64Array(batch * 2 * n * n);
-  for (let b = 0; b < batch; b++) {
-    const o = b * 2 * n * n;
-    for (let i = 0; i < n; i++) {
-      for (let j = i; j < n; j++) {
-        const re = next();
-        const im = i === j ? 0 : next();
-        out[o + 2 * (i * n + j)] = re;
-        out[o + 2 * (i * n + j) + 1] = im;
-        out[o + 2 * (j * n + i)] = re;
-        out[o + 2 * (j * n + i) + 1] = -im;
-      }
-    }
-  }
+  for (let b = 0; b < batch; b++) out.set(randomHermitian(n, next), b * 2 * n * n);
   return out;
 }
 

@@ -15,6 +15,7 @@ import {
   randomHermitian,
   randomUnitary,
   residual,
+  randomSkew,
   uniform,
   withSpectrum,
 } from '../unit/linalg-fixtures.js';
@@ -106,19 +107,7 @@ describe('determinant, Pfaffian and eigenphases against numpy', () => {
   it('Pfaffian: Pf^2 = numpy det, and the 4x4 closed form a01 a23 - a02 a13 + a03 a12 evaluated in numpy', () => {
     const next = uniform(104);
     const sizes = [2, 4, 4, 6, 12, 30];
-    const mats = sizes.map((n) => {
-      const a = new Float64Array(2 * n * n);
-      for (let i = 0; i < n; i++) {
-        for (let j = i + 1; j < n; j++) {
-          const re = next(), im = next();
-          a[2 * (i * n + j)] = re;
-          a[2 * (i * n + j) + 1] = im;
-          a[2 * (j * n + i)] = -re;
-          a[2 * (j * n + i) + 1] = -im;
-        }
-      }
-      return a;
-    });
+    const mats = sizes.map((n) => randomSkew(n, next));
     const inputs = Object.fromEntries(mats.map((m, i) => [`m${i}`, { data: m, shape: [sizes[i], sizes[i]], complex: true }]));
     const theirs = numpy<{ det: [number, number][]; pf4: [number, number][] }>(
       [

@@ -36,6 +36,21 @@ export function randomHermitian(n: number, next: () => number): Float64Array {
   return h;
 }
 
+/** A random complex skew-symmetric n x n matrix (the input of a Pfaffian). */
+export function randomSkew(n: number, next: () => number): Float64Array {
+  const a = new Float64Array(2 * n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      const re = next(), im = next();
+      a[2 * (i * n + j)] = re;
+      a[2 * (i * n + j) + 1] = im;
+      a[2 * (j * n + i)] = -re;
+      a[2 * (j * n + i) + 1] = -im;
+    }
+  }
+  return a;
+}
+
 /** A random unitary: modified Gram–Schmidt (twice) on the columns of a random complex matrix. */
 export function randomUnitary(n: number, next: () => number): Float64Array {
   const u = new Float64Array(2 * n * n).map(() => next());

@@ -12,6 +12,7 @@ import {
   orthonormalityError,
   randomHermitian,
   randomUnitary,
+  randomSkew,
   residual,
   uniform,
   withSpectrum,
@@ -381,19 +382,6 @@ describe('ComplexDeterminant', () => {
 });
 
 describe('ComplexPfaffian', () => {
-  function randomSkew(n: number, next: () => number): Float64Array {
-    const a = new Float64Array(2 * n * n);
-    for (let i = 0; i < n; i++) {
-      for (let j = i + 1; j < n; j++) {
-        const re = next(), im = next();
-        a[2 * (i * n + j)] = re;
-        a[2 * (i * n + j) + 1] = im;
-        a[2 * (j * n + i)] = -re;
-        a[2 * (j * n + i) + 1] = -im;
-      }
-    }
-    return a;
-  }
   const at = (a: Float64Array, n: number, i: number, j: number): Complex => complex(a[2 * (i * n + j)], a[2 * (i * n + j) + 1]);
 
   it('2x2 and 4x4 closed forms: a01 and a01 a23 - a02 a13 + a03 a12 (Parlett & Reid 1970; textbook)', () => {
