@@ -9,6 +9,7 @@
  * and exactly degenerate spectra. Inputs of any magnitude are scaled by a power of two (exact).
  */
 import type { CMatrix } from './cmatrix.js';
+import { TridiagonalDivideConquer } from './divide-conquer.js';
 import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
@@ -19,6 +20,10 @@ const SAFE_MAX = 2 ** 300;
  * shifts: fewer sweeps, less work on the eigenvectors (a gain from about n = 32 on, measured).
  */
 const KNOWN_SHIFTS_FROM = 32;
+/** From this size on, the tridiagonal eigenvectors come from divide and conquer. */
+const DIVIDE_FROM = Number(globalThis.process?.env?.DIVIDE_FROM ?? 48);
+/** Eigenvectors per block in the back-transformation (the block stays in cache across reflectors). */
+const BACK_BLOCK = 16;
 
 /** A power of two near `big` (exact to scale by); clamped so that its reciprocal is finite. */
 function powerOfTwoNear(big: number): number {
@@ -57,6 +62,7 @@ export class HermitianEigensolver {
   /** Eigenvalue estimates used as QL shifts (n >= KNOWN_SHIFTS_FROM), and their scratch. */
   private readonly known: Float64Array;
   private readonly e2: Float64Array;
+  private readonly divide: TridiagonalDivideConquer | null;
 
   constructor(n: number) {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigensolver size must be a positive integer. Value: ${n}`);
@@ -75,6 +81,7 @@ export class HermitianEigensolver {
     this.order = new Int32Array(n);
     this.known = new Float64Array(n);
     this.e2 = new Float64Array(n);
+    this.divide = n >= DIVIDE_FROM ? new TridiagonalDivideConquer(n) : null;
   }
 
   /**
@@ -225,6 +232,8 @@ export class HermitianEigensolver {
     let converged: boolean;
     if (vecs === null) {
       converged = tridiagonalEigenvalues(n, d, e);
+    } else if (this.divide !== null) {
+      converged = this.divide.solve(d, e, this.z);
     } else {
       const z = this.z;
       z.fill(0);
@@ -397,11 +406,9 @@ export class HermitianEigensolver {
    */
   private backTransform(vecs: CMatrix, vo: number): void {
     const n = this.n;
-    const a = this.a;
     const z = this.z;
     const y = this.y;
     const phase = this.phase;
-    const betas = this.beta;
     const order = this.order;
     for (let col = 0; col < n; col++) {
       const src = order[col];
@@ -412,58 +419,11 @@ export class HermitianEigensolver {
         y[row + 2 * i + 1] = phase[2 * i + 1] * zi;
       }
     }
-    const end = 2 * n;
-    for (let c0 = 0; c0 < n; c0 += 16) {
-      const c1 = Math.min(n, c0 + 16);
-      for (let k = n - 3; k >= 0; k--) {
-        const beta = betas[k];
-        if (beta === 0) continue;
-        const base = 2 * k * n;
-        const from = 2 * (k + 1);
-        let c = c0;
-        for (; c + 1 < c1; c += 2) {
-          const ya = 2 * c * n;
-          const yb = ya + 2 * n;
-          let ar = 0, ai = 0, br = 0, bi = 0;
-          for (let j = from; j < end; j += 2) {
-            const ur = a[base + j], ui = a[base + j + 1];
-            const xr = y[ya + j], xi = y[ya + j + 1];
-            const wr = y[yb + j], wi = y[yb + j + 1];
-            ar += ur * xr + ui * xi;
-            ai += ur * xi - ui * xr;
-            br += ur * wr + ui * wi;
-            bi += ur * wi - ui * wr;
-          }
-          ar *= beta;
-          ai *= beta;
-          br *= beta;
-          bi *= beta;
-          for (let j = from; j < end; j += 2) {
-            const ur = a[base + j], ui = a[base + j + 1];
-            y[ya + j] -= ar * ur - ai * ui;
-            y[ya + j + 1] -= ar * ui + ai * ur;
-            y[yb + j] -= br * ur - bi * ui;
-            y[yb + j + 1] -= br * ui + bi * ur;
-          }
-        }
-        if (c < c1) {
-          const ya = 2 * c * n;
-          let ar = 0, ai = 0;
-          for (let j = from; j < end; j += 2) {
-            const ur = a[base + j], ui = a[base + j + 1];
-            const xr = y[ya + j], xi = y[ya + j + 1];
-            ar += ur * xr + ui * xi;
-            ai += ur * xi - ui * xr;
-          }
-          ar *= beta;
-          ai *= beta;
-          for (let j = from; j < end; j += 2) {
-            const ur = a[base + j], ui = a[base + j + 1];
-            y[ya + j] -= ar * ur - ai * ui;
-            y[ya + j + 1] -= ar * ui + ai * ur;
-          }
-        }
-      }
+    for (let c0 = 0; c0 < n; c0 += BACK_BLOCK) {
+      const c1 = Math.min(n, c0 + BACK_BLOCK);
+      let k = n - 3;
+      for (; k >= 1; k -= 2) this.applyReflectorPair(k, c0, c1);
+      if (k === 0) this.applyReflector(0, c0, c1);
     }
     for (let col = 0; col < n; col++) {
       const row = 2 * col * n;
@@ -471,6 +431,107 @@ export class HermitianEigensolver {
         vecs[vo + 2 * (i * n + col)] = y[row + 2 * i];
         vecs[vo + 2 * (i * n + col) + 1] = y[row + 2 * i + 1];
       }
+    }
+  }
+
+  /** Rows c0..c1 of y (eigenvectors) times reflector k: y -= beta u (u^dagger y). */
+  private applyReflector(k: number, c0: number, c1: number): void {
+    const beta = this.beta[k];
+    if (beta === 0) return;
+    const n = this.n;
+    const a = this.a;
+    const y = this.y;
+    const base = 2 * k * n;
+    const from = 2 * (k + 1);
+    const end = 2 * n;
+    for (let c = c0; c < c1; c++) {
+      const ya = 2 * c * n;
+      let ar = 0, ai = 0;
+      for (let j = from; j < end; j += 2) {
+        const ur = a[base + j], ui = a[base + j + 1];
+        const xr = y[ya + j], xi = y[ya + j + 1];
+        ar += ur * xr + ui * xi;
+        ai += ur * xi - ui * xr;
+      }
+      ar *= beta;
+      ai *= beta;
+      for (let j = from; j < end; j += 2) {
+        const ur = a[base + j], ui = a[base + j + 1];
+        y[ya + j] -= ar * ur - ai * ui;
+        y[ya + j + 1] -= ar * ui + ai * ur;
+      }
+    }
+  }
+
+  /**
+   * Rows c0..c1 of y times P_{k-1} P_k in one pass over each vector (two reflectors by two vectors,
+   * a register tile): with u = u_k, v = u_{k-1}, P_{k-1} P_k y = y - a u - b v where
+   * a = beta_k u^dagger y and b = beta_{k-1} (v^dagger y - a v^dagger u).
+   */
+  private applyReflectorPair(k: number, c0: number, c1: number): void {
+    const n = this.n;
+    const a = this.a;
+    const y = this.y;
+    const bu = this.beta[k];
+    const bv = this.beta[k - 1];
+    const ub = 2 * k * n;
+    const vb = ub - 2 * n;
+    const from = 2 * (k + 1);
+    const end = 2 * n;
+    // v^dagger u (both vanish before k + 1, except v_k).
+    let cr = 0, ci = 0;
+    for (let j = from; j < end; j += 2) {
+      const ur = a[ub + j], ui = a[ub + j + 1];
+      const vr = a[vb + j], vi = a[vb + j + 1];
+      cr += vr * ur + vi * ui;
+      ci += vr * ui - vi * ur;
+    }
+    const vkr = a[vb + from - 2], vki = a[vb + from - 1];
+    let c = c0;
+    for (; c + 1 < c1; c += 2) {
+      const ya = 2 * c * n;
+      const yb = ya + 2 * n;
+      let uar = 0, uai = 0, ubr = 0, ubi = 0;
+      // v_k y_k starts the v-dots.
+      let xr = y[ya + from - 2], xi = y[ya + from - 1];
+      let var_ = vkr * xr + vki * xi, vai = vkr * xi - vki * xr;
+      xr = y[yb + from - 2];
+      xi = y[yb + from - 1];
+      let vbr = vkr * xr + vki * xi, vbi = vkr * xi - vki * xr;
+      for (let j = from; j < end; j += 2) {
+        const ur = a[ub + j], ui = a[ub + j + 1];
+        const vr = a[vb + j], vi = a[vb + j + 1];
+        const pr = y[ya + j], pi = y[ya + j + 1];
+        const qr = y[yb + j], qi = y[yb + j + 1];
+        uar += ur * pr + ui * pi;
+        uai += ur * pi - ui * pr;
+        var_ += vr * pr + vi * pi;
+        vai += vr * pi - vi * pr;
+        ubr += ur * qr + ui * qi;
+        ubi += ur * qi - ui * qr;
+        vbr += vr * qr + vi * qi;
+        vbi += vr * qi - vi * qr;
+      }
+      const aar = bu * uar, aai = bu * uai;
+      const abr = bu * ubr, abi = bu * ubi;
+      const bar = bv * (var_ - (aar * cr - aai * ci)), bai = bv * (vai - (aar * ci + aai * cr));
+      const bbr = bv * (vbr - (abr * cr - abi * ci)), bbi = bv * (vbi - (abr * ci + abi * cr));
+      y[ya + from - 2] -= bar * vkr - bai * vki;
+      y[ya + from - 1] -= bar * vki + bai * vkr;
+      y[yb + from - 2] -= bbr * vkr - bbi * vki;
+      y[yb + from - 1] -= bbr * vki + bbi * vkr;
+      for (let j = from; j < end; j += 2) {
+        const ur = a[ub + j], ui = a[ub + j + 1];
+        const vr = a[vb + j], vi = a[vb + j + 1];
+        y[ya + j] -= aar * ur - aai * ui + bar * vr - bai * vi;
+        y[ya + j + 1] -= aar * ui + aai * ur + bar * vi + bai * vr;
+        y[yb + j] -= abr * ur - abi * ui + bbr * vr - bbi * vi;
+        y[yb + j + 1] -= abr * ui + abi * ur + bbr * vi + bbi * vr;
+      }
+    }
+    if (c < c1) {
+      this.applyReflector(k, c, c1);
+      this.applyReflector(k - 1, c, c1);
     }
   }
 }
