@@ -357,7 +357,6 @@ export class TridiagonalDivideConquer {
    * exact), times the halves' eigenvectors; results go to the columns pos[i] of the block of z.
    */
   private rootVectors(z: Float64Array, o: number, s: number, m: number, k: number): void {
-    const n = this.n;
     const dd = this.dd;
     const zz = this.zz;
     const zh = this.zh;

@@ -10,6 +10,7 @@
  */
 import type { CMatrix } from './cmatrix.js';
 import { TridiagonalDivideConquer } from './divide-conquer.js';
+import { simdKernels, type SimdKernels } from './simd.js';
 import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
@@ -21,7 +22,7 @@ const SAFE_MAX = 2 ** 300;
  */
 const KNOWN_SHIFTS_FROM = 32;
 /** From this size on, the tridiagonal eigenvectors come from divide and conquer. */
-const DIVIDE_FROM = Number(globalThis.process?.env?.DIVIDE_FROM ?? 48);
+const DIVIDE_FROM = 32;
 /** Eigenvectors per block in the back-transformation (the block stays in cache across reflectors). */
 const BACK_BLOCK = 16;
 
@@ -58,6 +59,10 @@ export class HermitianEigensolver {
   /** Complex scratch vector, and the eigenvectors (one per row) during the back-transformation. */
   private readonly p: Float64Array;
   private readonly y: Float64Array;
+  /** The WebAssembly SIMD kernels, and the byte offsets of y and p in their memory (a is at 0). */
+  private readonly simd: SimdKernels;
+  private readonly yAt: number;
+  private readonly pAt: number;
   private readonly order: Int32Array;
   /** Eigenvalue estimates used as QL shifts (n >= KNOWN_SHIFTS_FROM), and their scratch. */
   private readonly known: Float64Array;
@@ -67,7 +72,12 @@ export class HermitianEigensolver {
   constructor(n: number) {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigensolver size must be a positive integer. Value: ${n}`);
     this.n = n;
-    this.a = new Float64Array(2 * n * n);
+    // a, y and p live in the memory of the SIMD kernels: a at byte 0, y after it, then p.
+    const { memory, kernels } = simdKernels(32 * n * n + 16 * n);
+    this.simd = kernels;
+    this.yAt = 16 * n * n;
+    this.pAt = 32 * n * n;
+    this.a = new Float64Array(memory, 0, 2 * n * n);
     this.beta = new Float64Array(n);
     this.off = new Float64Array(2 * n);
     this.phase = new Float64Array(2 * n);
@@ -76,8 +86,8 @@ export class HermitianEigensolver {
     this.z = new Float64Array(n * n);
     this.cs = new Float64Array(n);
     this.sn = new Float64Array(n);
-    this.p = new Float64Array(2 * n);
-    this.y = new Float64Array(2 * n * n);
+    this.p = new Float64Array(memory, this.pAt, 2 * n);
+    this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     this.order = new Int32Array(n);
     this.known = new Float64Array(n);
     this.e2 = new Float64Array(n);
@@ -321,26 +331,10 @@ export class HermitianEigensolver {
       for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
       // p = beta B u, B the trailing block (upper triangle stored).
       for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] = 0;
-      for (let i = k + 1; i < n; i++) {
-        const ri = 2 * i * n;
-        const uir = a[base + 2 * i];
-        const uii = a[base + 2 * i + 1];
-        const bii = a[ri + 2 * i];
-        let sr = bii * uir;
-        let si = bii * uii;
-        for (let j = i + 1; j < n; j++) {
-          const br = a[ri + 2 * j];
-          const bi = a[ri + 2 * j + 1];
-          const ujr = a[base + 2 * j];
-          const uji = a[base + 2 * j + 1];
-          sr += br * ujr - bi * uji;
-          si += br * uji + bi * ujr;
-          p[2 * j] += br * uir + bi * uii;
-          p[2 * j + 1] += br * uii - bi * uir;
-        }
-        p[2 * i] += sr;
-        p[2 * i + 1] += si;
-      }
+      const block = 16 * ((k + 1) * n + k + 1);
+      const u = 16 * (k * n + k + 1);
+      const m = n - k - 1;
+      this.simd.hermitianTimes(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
       // q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger.
       let upr = 0;
       for (let j = 2 * (k + 1); j < 2 * n; j++) {
@@ -349,21 +343,7 @@ export class HermitianEigensolver {
       }
       const kk = 0.5 * beta * upr;
       for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] -= kk * a[base + j];
-      for (let i = k + 1; i < n; i++) {
-        const ri = 2 * i * n;
-        const uir = a[base + 2 * i];
-        const uii = a[base + 2 * i + 1];
-        const qir = p[2 * i];
-        const qii = p[2 * i + 1];
-        for (let j = i; j < n; j++) {
-          const ujr = a[base + 2 * j];
-          const uji = a[base + 2 * j + 1];
-          const qjr = p[2 * j];
-          const qji = p[2 * j + 1];
-          a[ri + 2 * j] -= uir * qjr + uii * qji + qir * ujr + qii * uji;
-          a[ri + 2 * j + 1] -= uii * qjr - uir * qji + qii * ujr - qir * uji;
-        }
-      }
+      this.simd.hermitianRank2(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
     }
     // The last subdiagonal entry needs no reflector.
     const last = 2 * ((n - 2) * n + n - 1);
@@ -419,11 +399,19 @@ export class HermitianEigensolver {
         y[row + 2 * i + 1] = phase[2 * i + 1] * zi;
       }
     }
+    // Reflector k is row k of a from column k + 1 on; with the diagonal zeroed, row k from column
+    // k is the same vector with a leading zero, aligned with reflector k - 1.
+    const a = this.a;
+    const betas = this.beta;
+    for (let i = 0; i < n; i++) a[2 * (i * n + i)] = a[2 * (i * n + i) + 1] = 0;
     for (let c0 = 0; c0 < n; c0 += BACK_BLOCK) {
-      const c1 = Math.min(n, c0 + BACK_BLOCK);
+      const count = Math.min(n, c0 + BACK_BLOCK) - c0;
       let k = n - 3;
-      for (; k >= 1; k -= 2) this.applyReflectorPair(k, c0, c1);
-      if (k === 0) this.applyReflector(0, c0, c1);
+      for (; k >= 1; k -= 2) {
+        const u = 16 * (k * n + k);
+        this.simd.reflectPair(u, u - 16 * n, this.yAt + 16 * (c0 * n + k), n - k, count, 16 * n, betas[k], betas[k - 1]);
+      }
+      if (k === 0) this.simd.reflectPair(16, 16, this.yAt + 16 * (c0 * n + 1), n - 1, count, 16 * n, betas[0], 0);
     }
     for (let col = 0; col < n; col++) {
       const row = 2 * col * n;
@@ -431,107 +419,6 @@ export class HermitianEigensolver {
         vecs[vo + 2 * (i * n + col)] = y[row + 2 * i];
         vecs[vo + 2 * (i * n + col) + 1] = y[row + 2 * i + 1];
       }
-    }
-  }
-
-  /** Rows c0..c1 of y (eigenvectors) times reflector k: y -= beta u (u^dagger y). */
-  private applyReflector(k: number, c0: number, c1: number): void {
-    const beta = this.beta[k];
-    if (beta === 0) return;
-    const n = this.n;
-    const a = this.a;
-    const y = this.y;
-    const base = 2 * k * n;
-    const from = 2 * (k + 1);
-    const end = 2 * n;
-    for (let c = c0; c < c1; c++) {
-      const ya = 2 * c * n;
-      let ar = 0, ai = 0;
-      for (let j = from; j < end; j += 2) {
-        const ur = a[base + j], ui = a[base + j + 1];
-        const xr = y[ya + j], xi = y[ya + j + 1];
-        ar += ur * xr + ui * xi;
-        ai += ur * xi - ui * xr;
-      }
-      ar *= beta;
-      ai *= beta;
-      for (let j = from; j < end; j += 2) {
-        const ur = a[base + j], ui = a[base + j + 1];
-        y[ya + j] -= ar * ur - ai * ui;
-        y[ya + j + 1] -= ar * ui + ai * ur;
-      }
-    }
-  }
-
-  /**
-   * Rows c0..c1 of y times P_{k-1} P_k in one pass over each vector (two reflectors by two vectors,
-   * a register tile): with u = u_k, v = u_{k-1}, P_{k-1} P_k y = y - a u - b v where
-   * a = beta_k u^dagger y and b = beta_{k-1} (v^dagger y - a v^dagger u).
-   */
-  private applyReflectorPair(k: number, c0: number, c1: number): void {
-    const n = this.n;
-    const a = this.a;
-    const y = this.y;
-    const bu = this.beta[k];
-    const bv = this.beta[k - 1];
-    const ub = 2 * k * n;
-    const vb = ub - 2 * n;
-    const from = 2 * (k + 1);
-    const end = 2 * n;
-    // v^dagger u (both vanish before k + 1, except v_k).
-    let cr = 0, ci = 0;
-    for (let j = from; j < end; j += 2) {
-      const ur = a[ub + j], ui = a[ub + j + 1];
-      const vr = a[vb + j], vi = a[vb + j + 1];
-      cr += vr * ur + vi * ui;
-      ci += vr * ui - vi * ur;
-    }
-    const vkr = a[vb + from - 2], vki = a[vb + from - 1];
-    let c = c0;
-    for (; c + 1 < c1; c += 2) {
-      const ya = 2 * c * n;
-      const yb = ya + 2 * n;
-      let uar = 0, uai = 0, ubr = 0, ubi = 0;
-      // v_k y_k starts the v-dots.
-      let xr = y[ya + from - 2], xi = y[ya + from - 1];
-      let var_ = vkr * xr + vki * xi, vai = vkr * xi - vki * xr;
-      xr = y[yb + from - 2];
-      xi = y[yb + from - 1];
-      let vbr = vkr * xr + vki * xi, vbi = vkr * xi - vki * xr;
-      for (let j = from; j < end; j += 2) {
-        const ur = a[ub + j], ui = a[ub + j + 1];
-        const vr = a[vb + j], vi = a[vb + j + 1];
-        const pr = y[ya + j], pi = y[ya + j + 1];
-        const qr = y[yb + j], qi = y[yb + j + 1];
-        uar += ur * pr + ui * pi;
-        uai += ur * pi - ui * pr;
-        var_ += vr * pr + vi * pi;
-        vai += vr * pi - vi * pr;
-        ubr += ur * qr + ui * qi;
-        ubi += ur * qi - ui * qr;
-        vbr += vr * qr + vi * qi;
-        vbi += vr * qi - vi * qr;
-      }
-      const aar = bu * uar, aai = bu * uai;
-      const abr = bu * ubr, abi = bu * ubi;
-      const bar = bv * (var_ - (aar * cr - aai * ci)), bai = bv * (vai - (aar * ci + aai * cr));
-      const bbr = bv * (vbr - (abr * cr - abi * ci)), bbi = bv * (vbi - (abr * ci + abi * cr));
-      y[ya + from - 2] -= bar * vkr - bai * vki;
-      y[ya + from - 1] -= bar * vki + bai * vkr;
-      y[yb + from - 2] -= bbr * vkr - bbi * vki;
-      y[yb + from - 1] -= bbr * vki + bbi * vkr;
-      for (let j = from; j < end; j += 2) {
-        const ur = a[ub + j], ui = a[ub + j + 1];
-        const vr = a[vb + j], vi = a[vb + j + 1];
-        y[ya + j] -= aar * ur - aai * ui + bar * vr - bai * vi;
-        y[ya + j + 1] -= aar * ui + aai * ur + bar * vi + bai * vr;
-        y[yb + j] -= abr * ur - abi * ui + bbr * vr - bbi * vi;
-        y[yb + j + 1] -= abr * ui + abi * ur + bbr * vi + bbi * vr;
-      }
-    }
-    if (c < c1) {
-      this.applyReflector(k, c, c1);
-      this.applyReflector(k - 1, c, c1);
     }
   }
 }
