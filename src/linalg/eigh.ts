@@ -16,11 +16,6 @@ import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
 const SAFE_MIN = 2 ** -300;
 const SAFE_MAX = 2 ** 300;
-/**
- * From this size on, the vector path first finds the eigenvalues without vectors and uses them as
- * shifts: fewer sweeps, less work on the eigenvectors (a gain from about n = 32 on, measured).
- */
-const KNOWN_SHIFTS_FROM = 32;
 /** From this size on, the tridiagonal eigenvectors come from divide and conquer. */
 const DIVIDE_FROM = 32;
 /** Eigenvectors per block in the back-transformation (the block stays in cache across reflectors). */
@@ -64,9 +59,6 @@ export class HermitianEigensolver {
   private readonly yAt: number;
   private readonly pAt: number;
   private readonly order: Int32Array;
-  /** Eigenvalue estimates used as QL shifts (n >= KNOWN_SHIFTS_FROM), and their scratch. */
-  private readonly known: Float64Array;
-  private readonly e2: Float64Array;
   private readonly divide: TridiagonalDivideConquer | null;
 
   constructor(n: number) {
@@ -89,8 +81,6 @@ export class HermitianEigensolver {
     this.p = new Float64Array(memory, this.pAt, 2 * n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     this.order = new Int32Array(n);
-    this.known = new Float64Array(n);
-    this.e2 = new Float64Array(n);
     this.divide = n >= DIVIDE_FROM ? new TridiagonalDivideConquer(n) : null;
   }
 
@@ -248,7 +238,7 @@ export class HermitianEigensolver {
       const z = this.z;
       z.fill(0);
       for (let i = 0; i < n; i++) z[i * n + i] = 1;
-      converged = tridiagonalQL(n, d, e, z, this.cs, this.sn, n >= KNOWN_SHIFTS_FROM ? this.knownEigenvalues() : null);
+      converged = tridiagonalQL(n, d, e, z, this.cs, this.sn);
     }
     if (!converged) {
       throw new RangeError(`eigensolver: the tridiagonal iteration did not converge (n = ${n}); is h finite and Hermitian?`);
@@ -266,31 +256,6 @@ export class HermitianEigensolver {
     }
     for (let i = 0; i < n; i++) w[wo + i] = d[order[i]] * scale;
     if (vecs !== null) this.backTransform(vecs, vo);
-  }
-
-  /**
-   * The eigenvalues of the real tridiagonal (d, e), sorted, from the cheap root-free iteration:
-   * shifts for the QL iteration with vectors. Null if that iteration failed.
-   */
-  private knownEigenvalues(): Float64Array | null {
-    const n = this.n;
-    const known = this.known;
-    const e2 = this.e2;
-    for (let i = 0; i < n; i++) {
-      known[i] = this.d[i];
-      e2[i] = this.e[i] * this.e[i];
-    }
-    if (!tridiagonalEigenvalues(n, known, e2)) return null;
-    for (let i = 1; i < n; i++) {
-      const x = known[i];
-      let j = i - 1;
-      while (j >= 0 && known[j] > x) {
-        known[j + 1] = known[j];
-        j--;
-      }
-      known[j + 1] = x;
-    }
-    return known;
   }
 
   /**
