@@ -10,7 +10,7 @@
  */
 import type { CMatrix } from './cmatrix.js';
 import { TridiagonalDivideConquer } from './divide-conquer.js';
-import { simdKernels, type SimdKernels } from './simd.js';
+import { simdKernels, simdMemory, type SimdKernels } from './simd.js';
 import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
@@ -38,8 +38,11 @@ function checkArray(name: string, x: ArrayLike<number>, offset: number, needed: 
 
 export class HermitianEigensolver {
   readonly n: number;
-  /** Working copy of the upper triangle; after the reduction, row k holds reflector k. */
-  private readonly a: Float64Array;
+  /**
+   * Working copy of the upper triangle; after the reduction, row k holds reflector k. It, p and y
+   * are views on the SIMD kernels' memory (shared in the thread, valid during a call of ours).
+   */
+  private a: Float64Array;
   /** Reflector k is I - beta[k] u u^dagger (beta 0: no reflector). */
   private readonly beta: Float64Array;
   /** Complex subdiagonal of the tridiagonal form, and the diagonal phases D. */
@@ -52,8 +55,8 @@ export class HermitianEigensolver {
   private readonly cs: Float64Array;
   private readonly sn: Float64Array;
   /** Complex scratch vector, and the eigenvectors (one per row) during the back-transformation. */
-  private readonly p: Float64Array;
-  private readonly y: Float64Array;
+  private p: Float64Array;
+  private y: Float64Array;
   /** The WebAssembly SIMD kernels, and the byte offsets of y and p in their memory (a is at 0). */
   private readonly simd: SimdKernels;
   private readonly yAt: number;
@@ -65,10 +68,10 @@ export class HermitianEigensolver {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigensolver size must be a positive integer. Value: ${n}`);
     this.n = n;
     // a, y and p live in the memory of the SIMD kernels: a at byte 0, y after it, then p.
-    const { memory, kernels } = simdKernels(32 * n * n + 16 * n);
-    this.simd = kernels;
+    this.simd = simdKernels();
     this.yAt = 16 * n * n;
     this.pAt = 32 * n * n;
+    const memory = simdMemory(this.pAt + 16 * n);
     this.a = new Float64Array(memory, 0, 2 * n * n);
     this.beta = new Float64Array(n);
     this.off = new Float64Array(2 * n);
@@ -188,6 +191,13 @@ export class HermitianEigensolver {
 
   private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
     const n = this.n;
+    if (this.a.length === 0) {
+      // Another solver grew the shared memory: views on the old buffer are detached (length 0).
+      const memory = simdMemory(this.pAt + 16 * n);
+      this.a = new Float64Array(memory, 0, 2 * n * n);
+      this.y = new Float64Array(memory, this.yAt, 2 * n * n);
+      this.p = new Float64Array(memory, this.pAt, 2 * n);
+    }
     const a = this.a;
     // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
     let big = 0;

@@ -7,14 +7,17 @@
  * small enough (< 1 kB) to compile synchronously anywhere (Node, a browser Web Worker, a cluster
  * shard). Only baseline SIMD128 is used (no relaxed SIMD, which Node 20 lacks).
  *
- * Memory: each user owns a WebAssembly.Memory of fixed size (never grown, so Float64Array views on
- * it stay valid). Complex arrays are interleaved (re, im) and 16-byte aligned; every address
- * passed to a kernel is a byte offset.
+ * Memory: one instance and one memory per thread, shared by every user. Calls are synchronous, so
+ * a user's data lives in the memory only during one of its own calls (copied in, worked on,
+ * copied out); the memory grows to the largest request, and a user remakes its views when the
+ * buffer changes (`simdMemory` returns a new one after growing). Complex arrays are interleaved
+ * (re, im) and 16-byte aligned; every address passed to a kernel is a byte offset.
  */
 
 /** The few WebAssembly declarations used here (the engine is compiled without DOM or Node types). */
 interface WasmMemory {
   readonly buffer: ArrayBuffer;
+  grow(pages: number): number;
 }
 interface WasmApi {
   Module: new (bytes: Uint8Array) => object;
@@ -347,12 +350,27 @@ function moduleBytes(): Uint8Array {
 }
 
 const wasm = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
-let compiled: object | null = null;
+const PAGE = 65536;
+let shared: { memory: WasmMemory; kernels: SimdKernels } | null = null;
 
-/** A fresh memory of at least `bytes` bytes and the kernels working on it. */
-export function simdKernels(bytes: number): { memory: ArrayBuffer; kernels: SimdKernels } {
-  compiled ??= new wasm.Module(moduleBytes());
-  const memory = new wasm.Memory({ initial: Math.max(1, Math.ceil(bytes / 65536)) });
-  const instance = new wasm.Instance(compiled, { m: { memory } });
-  return { memory: memory.buffer, kernels: instance.exports as unknown as SimdKernels };
+function instance(): { memory: WasmMemory; kernels: SimdKernels } {
+  if (shared === null) {
+    const memory = new wasm.Memory({ initial: 1 });
+    const exports = new wasm.Instance(new wasm.Module(moduleBytes()), { m: { memory } }).exports;
+    shared = { memory, kernels: exports as unknown as SimdKernels };
+  }
+  return shared;
+}
+
+/** The kernels (compiled on first use, once per thread). */
+export function simdKernels(): SimdKernels {
+  return instance().kernels;
+}
+
+/** The kernels' memory, grown to at least `bytes`; the same buffer until it grows again. */
+export function simdMemory(bytes: number): ArrayBuffer {
+  const memory = instance().memory;
+  const short = bytes - memory.buffer.byteLength;
+  if (short > 0) memory.grow(Math.ceil(short / PAGE));
+  return memory.buffer;
 }

@@ -240,6 +240,22 @@ describe('HermitianEigensolver', () => {
     }
   });
 
+  it('solvers share the kernels\' memory: a solver keeps working after a larger one grew it (common practice)', () => {
+    const next = uniform(26);
+    const small = new HermitianEigensolver(5);
+    const h = randomHermitian(5, next);
+    const before = small.solve(h, new Float64Array(5), new Float64Array(50)).slice();
+    // A size never used before in this file grows the shared memory and detaches the old views.
+    const big = new HermitianEigensolver(300);
+    const hb = randomHermitian(300, next);
+    const wb = big.solve(hb, new Float64Array(300));
+    const v = new Float64Array(50);
+    const after = small.solve(h, new Float64Array(5), v);
+    expect(Array.from(after)).toEqual(Array.from(before));
+    expectGoodEigensystem(5, h, after, v);
+    expect(Array.from(big.solve(hb, new Float64Array(300)))).toEqual(Array.from(wb));
+  });
+
   it('solves matrices stored at offsets in a batch', () => {
     const next = uniform(10);
     const n = 4;
