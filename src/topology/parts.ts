@@ -128,6 +128,7 @@ function orderParts<P extends DiagnosticPart>(
   parts.forEach((p, i) => {
     if (p === null || typeof p !== 'object' || p.kind !== kind) throw new ModelError(`parts[${i}].kind`, `expected "${kind}". Value: ${show(p?.kind ?? p)}`);
     if (p.part === null || typeof p.part !== 'object') throw new ModelError(`parts[${i}].part`, `expected {index, count}. Value: ${show(p.part)}`);
+    if (p.gap === null || typeof p.gap !== 'object' || typeof p.gap.minGap !== 'number') throw new ModelError(`parts[${i}].gap`, `expected a gap record. Value: ${show(p.gap)}`);
     for (const key of same) {
       if (describe(p[key]) !== describe(first[key])) {
         throw new ModelError(`parts[${i}].${key}`, `differs from parts[0].${key} = ${describe(first[key])}: not parts of one request. Value: ${describe(p[key])}`);

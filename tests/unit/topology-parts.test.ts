@@ -5,6 +5,7 @@
  * per-band maps and both Bloch conventions. Parts travel through structuredClone, as through
  * postMessage. Parts that do not fit together are refused with the field named.
  */
+import { build } from 'esbuild';
 import { describe, expect, it } from 'vitest';
 import {
   BlochHamiltonian, compute, curvatureMap, haldane, joinParts, kaneMele, lattice, ModelError, partBounds, qwz, wannierFlow, weyl2band,
@@ -216,6 +217,13 @@ describe('Wannier-centre flow in parts', () => {
     const split = [1, 0].map((index) => wannierFlow(h, { grid: [8, 6], part: { index, count: 2 } }));
     expect(split.map((p) => p.columns)).toEqual([[3, 7], [0, 3]]);
     expectIdentical(joinParts(split), whole);
+  });
+});
+
+describe('the join on a main thread', () => {
+  it('imports no model compilation, mathjs or linear algebra', async () => {
+    const out = await build({ entryPoints: ['src/topology/parts.ts'], bundle: true, format: 'esm', platform: 'browser', write: false, metafile: true, logLevel: 'silent' });
+    expect(Object.keys(out.metafile.inputs).sort()).toEqual(['src/model/errors.ts', 'src/topology/checks.ts', 'src/topology/parts.ts']);
   });
 });
 
