@@ -305,12 +305,12 @@ function directSum(b: Float64Array, n: number, copies: number): Float64Array {
   return h;
 }
 
-// From n = 32 on the tridiagonal eigenvectors come from divide and conquer (leaves of up to 24 by
+// From n = 25 on the tridiagonal eigenvectors come from divide and conquer (leaves of up to 24 by
 // QL): these sizes cover one, two and three levels of merging, odd splits and deflation.
-describe('HermitianEigensolver, divide-and-conquer sizes (n >= 32)', () => {
-  it('random matrices n = 32, 33, 49, 64, 100, 256: eps-level residual and orthonormality (common practice)', () => {
+describe('HermitianEigensolver, divide-and-conquer sizes (n >= 25)', () => {
+  it('random matrices n = 25, 31, 32, 33, 49, 64, 100, 256: eps-level residual and orthonormality (common practice)', () => {
     const next = uniform(21);
-    for (const n of [32, 33, 49, 64, 100, 256]) {
+    for (const n of [25, 31, 32, 33, 49, 64, 100, 256]) {
       const h = randomHermitian(n, next);
       const { w, v } = solvePadded(n, h);
       expectGoodEigensystem(n, h, w, v);
