@@ -142,6 +142,13 @@ describe('exported notebook page', () => {
     const after = await settled(flow, 'u');
     expect(after.value).toBeGreaterThan(0.2);
     expect(after.invariant).toBe(String(qwzChern(after.value)));
+    // During the drag a sketch stood in for the traces (widgets/src/picture.ts); at rest plotly
+    // draws the traces themselves again, visible, with no image left over them.
+    const shown = () => flow.locator('.chernel-plot').evaluate((el) => {
+      const gd = el as unknown as { data: { opacity?: number }[]; layout: { images?: unknown[] } };
+      return { opacity: gd.data.map((t) => t.opacity ?? 1), images: gd.layout.images?.length ?? 0 };
+    });
+    await expect.poll(shown).toEqual({ opacity: [1, 1], images: 0 });
   });
 
   it('a value that closes the gap is flagged gapless: no invariant, the closing k marked', async () => {

@@ -12,7 +12,7 @@ import { downloadFigure, downloadText, resultJson, safeFileName } from './export
 import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
 import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
 import Plotly, { type Config, type Layout, type PlotlyHTMLElement } from './plotly.js';
-import { rasterImage } from './raster.js';
+import { rasterImage, sketchImage } from './picture.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { ensureStyles } from './styles.js';
 import { packArrays, unpackArrays } from './wire.js';
@@ -132,6 +132,8 @@ export class DiagnosticView extends DOMWidgetView {
   /** The frame key of the figure plotly shows in full, and the pending full redraw after a drag. */
   private drawnFrameKey: string | null = null;
   private settleTimer: ReturnType<typeof setTimeout> | null = null;
+  /** True while a sketch stands in for the traces it names (they are hidden). */
+  private sketchShown = false;
   /** The values the controls show; ahead of the model's result while a recompute is pending. */
   private live: Values = {};
 
@@ -374,17 +376,16 @@ export class DiagnosticView extends DOMWidgetView {
     }
     const busy = this.client?.busy ?? false;
     const image = figure.raster ? rasterImage(figure.raster, this.el.ownerDocument) : null;
+    // A drag step whose figure keeps the frame of the one shown swaps in only its picture and
+    // title; the full redraw (hover values included) follows once the drag rests.
+    const swap = !full && outcome !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey;
+    const preview = swap ? (image ?? this.sketchImage(figure)) : null;
     const figureMs = performance.now() - started;
-    // A drag step that changes only the picture and the title swaps those two; the full redraw
-    // (hover values included) follows once the drag rests.
-    const swap = !full && outcome !== null && image !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey;
     if (this.settleTimer !== null) clearTimeout(this.settleTimer);
     this.settleTimer = null;
     let drawn: Promise<unknown>;
-    if (swap) {
-      const title = (figure.layout.title as { text?: string } | undefined)?.text ?? '';
-      // Attribute-path keys are plotly's documented relayout form; its types list only nested objects.
-      drawn = Plotly.relayout(this.plot, { 'images[0].source': image.source, 'title.text': title } as Partial<Layout>);
+    if (preview !== null) {
+      drawn = this.swapIn(figure, preview);
       this.settleTimer = setTimeout(() => {
         this.settleTimer = null;
         // Still computing: the drag goes on, and the next result re-arms this.
@@ -407,22 +408,46 @@ export class DiagnosticView extends DOMWidgetView {
         computeMs: outcome ? outcome.computeMs : null,
         figureMs,
         plotMs: performance.now() - started - figureMs,
-        swapped: swap,
+        swapped: preview !== null,
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });
   }
 
-  /** The whole figure through plotly (traces, axes, colour bar), with its picture if it has one. */
+  /** The whole figure through plotly (traces, axes, colour bar), with its raster if it has one. */
   private plotFull(figure: Figure, image: Partial<LayoutImage> | null): Promise<unknown> {
     // A phase map's only shape is its current point: let the hand move it directly.
     const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
-    const layout = image === null ? figure.layout : { ...figure.layout, images: [image] };
+    const layout = { ...figure.layout, images: image === null ? [] : [image] };
+    this.drawnFrameKey = null;
+    this.sketchShown = false;
     return Plotly.react(this.plot, figure.data, layout, config).then(() => {
       if (!this.attached) return;
       this.bindPlotEvents();
       this.drawnFrameKey = figure.frameKey ?? null;
     });
+  }
+
+  /** The figure's sketch over the plot area as plotly drew it, or null without one. */
+  private sketchImage(figure: Figure): Partial<LayoutImage> | null {
+    const area = this.plot.querySelector('.nsewdrag')?.getBoundingClientRect();
+    if (!figure.sketch || !area || area.width < 1 || area.height < 1) return null;
+    return sketchImage(figure.sketch, Math.round(area.width), Math.round(area.height));
+  }
+
+  /**
+   * Only the picture and the title, through plotly's cheap paths: a layout image is redrawn alone,
+   * and trace opacity (hiding the traces a sketch stands in for) is a style change.
+   */
+  private swapIn(figure: Figure, image: Partial<LayoutImage>): Promise<unknown> {
+    const title = (figure.layout.title as { text?: string } | undefined)?.text ?? '';
+    // Attribute-path keys are plotly's documented relayout form; its types list only nested objects.
+    const layout = { 'images[0].source': image.source, 'title.text': title } as Partial<Layout>;
+    if (figure.sketch && !this.sketchShown) {
+      this.sketchShown = true;
+      return Plotly.update(this.plot, { opacity: 0 }, { images: [image], 'title.text': title } as Partial<Layout>, figure.sketch.traces);
+    }
+    return Plotly.relayout(this.plot, layout);
   }
 
   private showMessage(level: 'error' | 'warning' | null, text: string): void {

@@ -1,7 +1,7 @@
 /** What every figure builder returns, and helpers for reading results defensively. */
 import type { Data, Layout } from '../plotly.js';
 import type { DiagnosticResult, ModelSpecView } from '../protocol.js';
-import type { Raster } from '../raster.js';
+import type { Raster, Sketch } from '../picture.js';
 import type { NumericArray } from '../wire.js';
 
 export interface FigureContext {
@@ -20,9 +20,11 @@ export interface Figure {
   gapless: boolean;
   /** A map drawn as an image under the traces (the view adds it to the layout's images). */
   raster?: Raster;
+  /** What a drag step draws instead of some scatter traces (picture.ts). */
+  sketch?: Sketch;
   /**
-   * Everything a redraw keeps besides the raster and the title text; when two successive figures
-   * share it, the view swaps only those two (a drag step) and redraws the rest once the drag rests.
+   * Everything a redraw keeps besides the picture and the title text; when two successive figures
+   * share it, a drag step swaps only those two, and the rest is redrawn once the drag rests.
    */
   frameKey?: string;
 }

@@ -6,7 +6,7 @@
 import { boundaryReduced } from '../geometry.js';
 import type { Data } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import type { Raster } from '../raster.js';
+import type { Raster } from '../picture.js';
 import {
   BASE_LAYOUT,
   CLOSING_MARKER,

@@ -2,7 +2,7 @@
 // a trace from the same scale (so the picture agrees with the colour bar plotly draws).
 import { describe, expect, it } from 'vitest';
 import { DIVERGING } from '../../widgets/src/figures/common.js';
-import { colourTable, rasterPixels, type Raster } from '../../widgets/src/raster.js';
+import { colourTable, rasterPixels, type Raster } from '../../widgets/src/picture.js';
 
 const rgb = (hex: string) => [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16));
 

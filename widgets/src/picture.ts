@@ -1,9 +1,12 @@
 /**
- * A map drawn as one image under the axes (a plotly layout image) instead of a heatmap trace: on a
- * drag step the view recolours the image and swaps it in (a few milliseconds), where changing a
- * heatmap trace's data makes plotly redraw the whole figure (axes, colour bar: ~25 ms for a
- * Brillouin-zone map). Colouring is linear in RGB between the stops, as plotly colours its traces,
- * so the image agrees with a colour bar drawn by plotly from the same scale.
+ * Pictures a view swaps into a plotly figure as a layout image on a drag step (a few milliseconds),
+ * where changing a trace's data makes plotly redraw the whole figure (axes, legend, colour bar:
+ * 15-25 ms). Two kinds:
+ * - a raster: a map of bricks, always drawn this way (the heatmap trace under it is invisible and
+ *   only answers hover). Colouring is linear in RGB between the stops, as plotly colours its
+ *   traces, so the image agrees with a colour bar plotly draws from the same scale;
+ * - a sketch: dots and lines standing in for scatter traces during a drag only; once the drag
+ *   rests, plotly draws the traces themselves again.
  */
 import type { Layout } from './plotly.js';
 
@@ -97,5 +100,64 @@ export function rasterImage(raster: Raster, doc: Document): Partial<LayoutImage>
     yanchor: 'top',
     sizing: 'stretch',
     layer: 'below',
+  };
+}
+
+export interface Sketch {
+  /** The axis ranges the sketch spans (the whole plot area): [left, right] and [bottom, top]. */
+  x: [number, number];
+  y: [number, number];
+  /** Indices of the traces it stands in for (hidden while it shows). */
+  traces: number[];
+  /** Round dots, `size` pixels across. */
+  dots: { x: ArrayLike<number>; y: ArrayLike<number>; colour: string; size: number }[];
+  /** Polylines, broken where a coordinate is null. */
+  lines: { x: ArrayLike<number | null>; y: ArrayLike<number | null>; colour: string; width: number; dashed?: boolean }[];
+}
+
+/**
+ * The sketch as an SVG layout image over a plot area of `width` x `height` pixels: one path for
+ * each series (dots are zero-length strokes with round caps), so the browser draws it at once.
+ */
+export function sketchImage(sketch: Sketch, width: number, height: number): Partial<LayoutImage> {
+  const [x0, x1] = sketch.x;
+  const [y0, y1] = sketch.y;
+  const px = (x: number) => (((x - x0) / (x1 - x0)) * width).toFixed(1);
+  const py = (y: number) => (((y1 - y) / (y1 - y0)) * height).toFixed(1);
+  const paths: string[] = [];
+  for (const line of sketch.lines) {
+    let d = '';
+    let pen = false;
+    for (let i = 0; i < line.x.length; i++) {
+      const x = line.x[i];
+      const y = line.y[i];
+      if (x === null || y === null) {
+        pen = false;
+        continue;
+      }
+      d += `${pen ? 'L' : 'M'}${px(x)} ${py(y)}`;
+      pen = true;
+    }
+    const dash = line.dashed ? ` stroke-dasharray="${3 * line.width} ${2 * line.width}"` : '';
+    paths.push(`<path d="${d}" fill="none" stroke="${line.colour}" stroke-width="${line.width}"${dash}/>`);
+  }
+  for (const dots of sketch.dots) {
+    let d = '';
+    for (let i = 0; i < dots.x.length; i++) d += `M${px(dots.x[i])} ${py(dots.y[i])}h0`;
+    paths.push(`<path d="${d}" stroke="${dots.colour}" stroke-width="${dots.size}" stroke-linecap="round"/>`);
+  }
+  const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}">${paths.join('')}</svg>`;
+  return {
+    source: `data:image/svg+xml;charset=utf-8,${encodeURIComponent(svg)}`,
+    xref: 'x',
+    yref: 'y',
+    x: x0,
+    y: y1,
+    sizex: x1 - x0,
+    sizey: y1 - y0,
+    xanchor: 'left',
+    yanchor: 'top',
+    sizing: 'stretch',
+    layer: 'above',
   };
 }
