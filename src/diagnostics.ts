@@ -20,6 +20,7 @@ import { majoranaNumber, windingNumber, type MajoranaResult, type WindingOptions
 import type { TopologyOptions } from './topology/common.js';
 import { curvatureMap, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
 import { hallConductivity, type HallOptions, type HallResult } from './topology/hall.js';
+import type { DiagnosticPart } from './topology/parts.js';
 import { weylPoints, type WeylOptions, type WeylResult } from './topology/weyl.js';
 import { wannierFlow, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
 import { spinChern, z2Index, type SpinChernResult, type Z2Options, type Z2Result } from './topology/z2.js';
@@ -65,7 +66,9 @@ export type DiagnosticResult =
   | WeylResult
   | HallResult
   | RibbonSpectrumResult
-  | PhaseMapResult;
+  | PhaseMapResult
+  /** A 'curvature' or 'wannier-flow' request with `part`: one part, for `joinParts` (topology/parts.ts). */
+  | DiagnosticPart;
 
 export type DiagnosticKind = DiagnosticRequest['kind'];
 
@@ -80,7 +83,11 @@ function optionsOf<T extends DiagnosticRequest>(request: T): Omit<T, 'kind' | 'm
   return rest;
 }
 
-/** Compute one diagnostic. Throws ModelError (naming the field and value) on a malformed request. */
+/**
+ * Compute one diagnostic. Throws ModelError (naming the field and value) on a malformed request.
+ * A 'curvature' or 'wannier-flow' request with `part: {index, count}` computes that part only;
+ * `joinParts` makes the result of the whole request from all of them.
+ */
 export function compute(request: DiagnosticRequest): DiagnosticResult {
   if (request === null || typeof request !== 'object') throw new ModelError('request', `expected a diagnostic request object. Value: ${show(request)}`);
   if (!DIAGNOSTIC_KINDS.includes(request.kind)) {

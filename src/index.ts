@@ -36,6 +36,7 @@ export { FrameSampler, type PlaneSpec, type TopologyChecks, type TopologyOptions
 export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } from './topology/chern.js';
 export { curvatureMap, type CurvatureChecks, type CurvatureMethod, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
 export { wannierFlow, type WannierFlowChecks, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
+export { joinParts, joinCurvatureParts, joinWannierFlowParts, partBounds, type CurvaturePart, type WannierFlowPart, type DiagnosticPart, type PartSpec, type GapRecord } from './topology/parts.js';
 export { berryPhase, type BerryPhaseChecks, type BerryPhaseOptions, type BerryPhaseResult } from './topology/berry.js';
 export { z2Index, spinChern, type MatrixEntry, type SpinChernResult, type Z2Checks, type Z2Method, type Z2Options, type Z2Plane, type Z2Result } from './topology/z2.js';
 export { windingNumber, majoranaNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';

@@ -15,9 +15,8 @@ const INLINE_ROTATIONS_UP_TO = 40;
  * `e[0..n-1)` (e[i] couples i and i+1; e[n-1] is scratch). On return `d` holds the eigenvalues,
  * unsorted, and `e` is destroyed. With `z` (n x n, row-major), the rotations are applied to its
  * columns: starting from the identity, column j becomes the eigenvector of d[j]. `cs` and `sn`
- * (length n) are scratch for the rotations, needed only with `z`. `known`, if given, holds the
- * eigenvalues sorted ascending (e.g. from `tridiagonalEigenvalues`): used as shifts, they cut the
- * number of sweeps, and so the work on z, about in half. Returns false if it failed to converge.
+ * (length n) are scratch for the rotations, needed only with `z`. Returns false if it failed to
+ * converge.
  *
  * Deflation is normwise (|e_i| <= eps ||T||): every eigenpair has a residual of order eps ||T||.
  */
@@ -28,7 +27,6 @@ export function tridiagonalQL(
   z: Float64Array | null,
   cs: Float64Array,
   sn: Float64Array,
-  known: Float64Array | null = null,
 ): boolean {
   if (n === 0) return true;
   e[n - 1] = 0;
@@ -47,13 +45,10 @@ export function tridiagonalQL(
       while (m < n - 1 && Math.abs(e[m]) > tol) m++;
       if (m === l) break;
       if (++iter > 60) return false;
-      // Wilkinson shift: the eigenvalue of the leading 2x2 block closer to d[l]; on the first tries
-      // replaced by the nearest known eigenvalue, which deflates the top in about one sweep.
+      // Wilkinson shift: the eigenvalue of the leading 2x2 block closer to d[l].
       let g = (d[l + 1] - d[l]) / (2 * e[l]);
       let r = Math.sqrt(g * g + 1);
-      let shift = d[l] - e[l] / (g + (g >= 0 ? r : -r));
-      if (known !== null && iter <= 2) shift = nearest(known, n, shift);
-      g = d[m] - shift;
+      g = d[m] - d[l] + e[l] / (g + (g >= 0 ? r : -r));
       let s = 1;
       let c = 1;
       let p = 0;
@@ -61,7 +56,8 @@ export function tridiagonalQL(
       for (; i >= l; i--) {
         const f = s * e[i];
         const b = c * e[i];
-        r = Math.sqrt(f * f + g * g);
+        const rr = f * f + g * g;
+        r = Math.sqrt(rr);
         e[i + 1] = r;
         if (r === 0) {
           // Underflow: the rotation is the identity; finish this sweep early.
@@ -69,7 +65,8 @@ export function tridiagonalQL(
           e[m] = 0;
           break;
         }
-        const inv = 1 / r;
+        // 1/r as sqrt(rr) / rr: the division runs alongside the square root, not after it.
+        const inv = r * (1 / rr);
         s = f * inv;
         c = g * inv;
         g = d[i + 1] - p;
@@ -98,18 +95,6 @@ export function tridiagonalQL(
     }
   }
   return true;
-}
-
-/** The entry of the ascending `sorted[0..n)` nearest to x. */
-function nearest(sorted: Float64Array, n: number, x: number): number {
-  let lo = 0;
-  let hi = n - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (sorted[mid] < x) lo = mid;
-    else hi = mid;
-  }
-  return Math.abs(sorted[lo] - x) <= Math.abs(sorted[hi] - x) ? sorted[lo] : sorted[hi];
 }
 
 /**

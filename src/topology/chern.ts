@@ -12,10 +12,10 @@ import {
   bandGroup, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
+import { COARSE_PLAQUETTE_PHASE } from './checks.js';
 import { determinantInPlace, overlapMatrix } from './links.js';
 
-/** Plaquette phases above this make a lattice Chern number untrustworthy: the grid is too coarse. */
-export const COARSE_PLAQUETTE_PHASE = Math.PI / 2;
+export { COARSE_PLAQUETTE_PHASE };
 
 export interface ChernChecks extends TopologyChecks {
   /** Largest |Berry flux| through one plaquette; near pi the integer cannot be trusted. */
@@ -58,22 +58,31 @@ export interface PlaneFlux {
 }
 
 /**
- * Flux of every plaquette of an n1 x n2 grid over `plane` (k_i = -pi + 2pi j/n_i). With `map`
- * (length n1*n2, row b = index along axis 2 major), each plaquette's flux is stored at its
- * lower-left corner. Two rows of frames live at a time; nothing is allocated per k.
+ * Flux of the plaquettes of an n1 x n2 grid over `plane` (k_i = -pi + 2pi j/n_i) whose lower edge
+ * lies on rows `rows[0]` to `rows[1] - 1` along axis 2 (default all). With `map` (row-major, one
+ * row of n1 per plaquette row, the first row at 0), each plaquette's flux is stored at its
+ * lower-left corner. Only the k-points of those rows count towards the sampler's gap: the row
+ * above the last one is sampled for its frames alone, so a split grid sees each k once. Two rows
+ * of frames live at a time; nothing is allocated per k.
  */
-export function planeFlux(sampler: FrameSampler, plane: Plane, n1: number, n2: number, map: Float64Array | null = null): PlaneFlux {
+export function planeFlux(
+  sampler: FrameSampler, plane: Plane, n1: number, n2: number,
+  map: Float64Array | null = null, rows: [number, number] = [0, n2],
+): PlaneFlux {
   const h = sampler.hamiltonian;
   const m = sampler.m;
   const n = sampler.n;
   const fl = sampler.frameLength;
   const [ax1, ax2] = plane.axes;
+  const [lo, hi] = rows;
   const embed1 = embedding(h, ax1);
   const embed2 = embedding(h, ax2);
-  const row0 = new Float64Array(n1 * fl);
+  // The whole grid closes on its own first row: keep it rather than sample it twice.
+  const closes = lo === 0 && hi === n2;
+  const row0 = closes ? new Float64Array(n1 * fl) : null;
+  const link1Row0 = closes ? new Float64Array(2 * n1) : null;
   let cur = new Float64Array(n1 * fl);
   let next = new Float64Array(n1 * fl);
-  const link1Row0 = new Float64Array(2 * n1);
   let link1Cur = new Float64Array(2 * n1);
   let link1Next = new Float64Array(2 * n1);
   const link2 = new Float64Array(2 * n1);
@@ -91,10 +100,11 @@ export function planeFlux(sampler: FrameSampler, plane: Plane, n1: number, n2: n
     if (mod < minLink) minLink = mod;
   };
   const fillRow = (b: number, frames: Float64Array, links: Float64Array): void => {
+    const own = b >= lo && b < hi;
     k[ax2] = -Math.PI + (2 * Math.PI * b) / n2;
     for (let a = 0; a < n1; a++) {
       k[ax1] = -Math.PI + (2 * Math.PI * a) / n1;
-      sampler.sample(k, frames, a * fl);
+      sampler.sample(k, frames, a * fl, own);
     }
     for (let a = 0; a < n1; a++) {
       const last = a === n1 - 1;
@@ -103,17 +113,20 @@ export function planeFlux(sampler: FrameSampler, plane: Plane, n1: number, n2: n
   };
 
   checkInterrupt();
-  fillRow(0, row0, link1Row0);
-  cur.set(row0);
-  link1Cur.set(link1Row0);
+  fillRow(lo, cur, link1Cur);
+  if (row0 !== null && link1Row0 !== null) {
+    row0.set(cur);
+    link1Row0.set(link1Cur);
+  }
   let total = 0;
   let maxPhase = 0;
-  for (let b = 0; b < n2; b++) {
+  for (let b = lo; b < hi; b++) {
     checkInterrupt();
     const wrap = b === n2 - 1;
-    const upper = wrap ? row0 : next;
-    const upperLinks = wrap ? link1Row0 : link1Next;
-    if (!wrap) fillRow(b + 1, next, link1Next);
+    const kept = wrap && row0 !== null && link1Row0 !== null;
+    const upper = kept ? row0 : next;
+    const upperLinks = kept ? link1Row0 : link1Next;
+    if (!kept) fillRow(wrap ? 0 : b + 1, next, link1Next);
     for (let a = 0; a < n1; a++) link(cur, a * fl, upper, a * fl, wrap ? embed2 : null, link2, 2 * a);
     for (let a = 0; a < n1; a++) {
       const a1 = a === n1 - 1 ? 0 : a + 1;
@@ -134,9 +147,9 @@ export function planeFlux(sampler: FrameSampler, plane: Plane, n1: number, n2: n
       total += flux;
       const mag = Math.abs(flux);
       if (mag > maxPhase) maxPhase = mag;
-      if (map !== null) map[b * n1 + a] = flux;
+      if (map !== null) map[(b - lo) * n1 + a] = flux;
     }
-    if (!wrap) {
+    if (!kept) {
       const t = cur;
       cur = next;
       next = t;

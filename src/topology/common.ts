@@ -8,8 +8,10 @@ import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { groupGap, type BandGroup, type BandSelection, type SpectrumChecks, type SpectrumSource } from '../spectra/common.js';
+import { gapChecks, gapTolerance, type GapRecord } from './checks.js';
 
 export { bandGroup, compileSource, type BandGroup, type BandSelection } from '../spectra/common.js';
+export { formatK } from './checks.js';
 
 /** A model description, or one already compiled (used as is; `params`, if given, are applied). */
 export type TopologySource = SpectrumSource;
@@ -29,11 +31,6 @@ export interface TopologyOptions {
    * |energy| sampled, which an exact crossing on the grid always falls below.
    */
   gapTolerance?: number;
-}
-
-/** "(0.25, 0.5)" for a reduced k in radians, as fractions of the reciprocal vectors. */
-export function formatK(k: ArrayLike<number>): string {
-  return '(' + Array.from(k, (x) => (x / (2 * Math.PI)).toFixed(4).replace(/\.?0+$/, '') || '0').join(', ') + ')';
 }
 
 /**
@@ -71,19 +68,24 @@ export class FrameSampler {
     this.minGapAt = new Float64Array(Math.max(hamiltonian.dim, 1));
   }
 
-  /** Diagonalise H(k); write the group's frame into `out` at `offset` (if given); track the gap. */
-  sample(k: ArrayLike<number>, out?: Float64Array, offset = 0): Float64Array {
+  /**
+   * Diagonalise H(k); write the group's frame into `out` at `offset` (if given); track the gap
+   * unless `track` is false (a k that another part of a split computation accounts for).
+   */
+  sample(k: ArrayLike<number>, out?: Float64Array, offset = 0, track = true): Float64Array {
     const n = this.n;
     this.hamiltonian.fill(k, this.matrix);
     this.solver.solve(this.matrix, this.energies, this.vectors);
     const e = this.energies;
-    const gap = groupGap(e, 0, this.group, n);
-    if (gap < this.minGap) {
-      this.minGap = gap;
-      for (let i = 0; i < this.minGapAt.length; i++) this.minGapAt[i] = k[i];
+    if (track) {
+      const gap = groupGap(e, 0, this.group, n);
+      if (gap < this.minGap) {
+        this.minGap = gap;
+        for (let i = 0; i < this.minGapAt.length; i++) this.minGapAt[i] = k[i];
+      }
+      const scale = Math.max(Math.abs(e[0]), Math.abs(e[n - 1]));
+      if (scale > this.energyScale) this.energyScale = scale;
     }
-    const scale = Math.max(Math.abs(e[0]), Math.abs(e[n - 1]));
-    if (scale > this.energyScale) this.energyScale = scale;
     if (out !== undefined) {
       const v = this.vectors;
       for (let j = 0; j < this.m; j++) {
@@ -110,11 +112,12 @@ export class FrameSampler {
 
   /** The gap tolerance in force (explicit, or relative to the energies seen). */
   tolerance(explicit?: number): number {
-    if (explicit !== undefined) {
-      if (!(explicit >= 0) || !Number.isFinite(explicit)) throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${show(explicit)}`);
-      return explicit;
-    }
-    return 1e-9 * Math.max(this.energyScale, 1e-300);
+    return gapTolerance(explicit, this.energyScale);
+  }
+
+  /** The gap statistics since `resetGap`, as plain data. */
+  gapRecord(): GapRecord {
+    return { minGap: this.minGap, minGapAt: Array.from(this.minGapAt), energyScale: this.energyScale };
   }
 
   /**
@@ -122,18 +125,7 @@ export class FrameSampler {
    * with a warning naming k and the gap.
    */
   gapChecks(grid: number[], explicitTolerance?: number, what = 'the invariant'): TopologyChecks {
-    const tol = this.tolerance(explicitTolerance);
-    const at = Array.from(this.minGapAt, (x) => x / (2 * Math.PI));
-    const checks: TopologyChecks = { minGap: this.minGap, minGapAt: at, grid: [...grid], warnings: [] };
-    if (this.minGap <= tol) {
-      checks.gapless = true;
-      const bands = this.m === 1 ? `band ${this.group.lo} touches` : `bands ${this.group.lo}-${this.group.hi} touch`;
-      checks.warnings.push(
-        `gapless: ${bands} the other bands at k = ${formatK(this.minGapAt)} (fractions of the reciprocal vectors), ` +
-          `gap ${this.minGap.toExponential(2)} <= tolerance ${tol.toExponential(2)}; ${what} is undefined`,
-      );
-    }
-    return checks;
+    return gapChecks(this.gapRecord(), this.group, grid, explicitTolerance, what);
   }
 }
 

@@ -14,11 +14,13 @@ import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { adjointTimes, multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
-import { planeFlux, COARSE_PLAQUETTE_PHASE } from './chern.js';
+import { planeFlux } from './chern.js';
+import { gapTolerance } from './checks.js';
 import {
   bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane,
   type BandGroup, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
+import { gridMomentum, joinCurvatureParts, resolvePart, type CurvaturePart, type PartSpec } from './parts.js';
 import { resolvePair } from './wilson.js';
 
 export type CurvatureMethod = 'lattice' | 'kubo';
@@ -30,6 +32,8 @@ export interface CurvatureOptions extends TopologyOptions {
   plane?: PlaneSpec;
   /** Also return each band of the group on its own. */
   perBand?: boolean;
+  /** Compute only this part of the map's rows (along the second axis); see parts.ts. */
+  part?: PartSpec;
 }
 
 export interface CurvatureChecks extends TopologyChecks {
@@ -125,83 +129,85 @@ export class KuboCurvature {
   }
 }
 
-/** A Berry-curvature map of a band group (and optionally of each band in it) over a plane. */
-export function curvatureMap(source: TopologySource, options: CurvatureOptions = {}): CurvatureResult {
+/**
+ * A Berry-curvature map of a band group (and optionally of each band in it) over a plane. With
+ * `part`, the rows of the map that part holds, to be joined with the other parts by `joinParts`
+ * (parts.ts) into exactly the map computed whole.
+ */
+export function curvatureMap(source: TopologySource, options: CurvatureOptions & { part: PartSpec }): CurvaturePart;
+export function curvatureMap(source: TopologySource, options?: CurvatureOptions & { part?: undefined }): CurvatureResult;
+export function curvatureMap(source: TopologySource, options?: CurvatureOptions): CurvatureResult | CurvaturePart;
+export function curvatureMap(source: TopologySource, options: CurvatureOptions = {}): CurvatureResult | CurvaturePart {
+  const part = curvaturePart(source, options);
+  return options.part === undefined ? joinCurvatureParts([part]) : part;
+}
+
+/** The rows of a curvature map one part holds, with the statistics its checks are built from. */
+function curvaturePart(source: TopologySource, options: CurvatureOptions): CurvaturePart {
   const h = compileSource(source, options);
   const plane = resolvePlane(h.dim, options.plane);
   const group = bandGroup(options.bands, h.size);
   const method = options.method ?? 'lattice';
   if (method !== 'lattice' && method !== 'kubo') throw new ModelError('method', `expected "lattice" or "kubo". Value: ${show(method)}`);
   const [n1, n2] = resolvePair(options.grid as [number, number] | number | undefined, [64, 64]);
+  gapTolerance(options.gapTolerance, 0); // a bad tolerance fails here, not in the join
+  const { index, count, lo, hi } = resolvePart(options.part, n2);
+  const rows = hi - lo;
   const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   const cell = ((2 * Math.PI) / n1) * ((2 * Math.PI) / n2);
   const sampler = new FrameSampler(h, group);
-  const values = new Float64Array(n1 * n2);
+  const values = new Float64Array(rows * n1);
   const m = group.hi - group.lo + 1;
-  const perBand = options.perBand ? new Float64Array(m * n1 * n2) : undefined;
-  const half = method === 'lattice' ? 0.5 : 0;
-  const k1 = Float64Array.from({ length: n1 }, (_, a) => -Math.PI + (2 * Math.PI * (a + half)) / n1);
-  const k2 = Float64Array.from({ length: n2 }, (_, b) => -Math.PI + (2 * Math.PI * (b + half)) / n2);
-  let checks: CurvatureChecks;
+  const perBand = options.perBand ? new Float64Array(m * rows * n1) : undefined;
+  const stats: Pick<CurvaturePart, 'maxPlaquettePhase' | 'bandGaps' | 'minSplitting'> = {};
 
   if (method === 'lattice') {
-    const flux = planeFlux(sampler, plane, n1, n2, values);
-    checks = sampler.gapChecks([n1, n2], options.gapTolerance, 'the curvature of the group');
-    checks.maxPlaquettePhase = flux.maxPhase;
+    stats.maxPlaquettePhase = planeFlux(sampler, plane, n1, n2, values, [lo, hi]).maxPhase;
     if (perBand !== undefined) {
-      const one = new Float64Array(n1 * n2);
+      const one = new Float64Array(rows * n1);
+      stats.bandGaps = [];
       for (let j = 0; j < m; j++) {
         const band = new FrameSampler(h, { lo: group.lo + j, hi: group.lo + j });
-        const f = planeFlux(band, plane, n1, n2, one);
-        perBand.set(one, j * n1 * n2);
-        checks.maxPlaquettePhase = Math.max(checks.maxPlaquettePhase, f.maxPhase);
-        const c = band.gapChecks([n1, n2], options.gapTolerance, `the curvature of band ${group.lo + j}`);
-        if (c.gapless) checks.warnings.push(...c.warnings);
+        const f = planeFlux(band, plane, n1, n2, one, [lo, hi]);
+        perBand.set(one, j * rows * n1);
+        stats.maxPlaquettePhase = Math.max(stats.maxPlaquettePhase, f.maxPhase);
+        stats.bandGaps.push(band.gapRecord());
       }
     }
   } else {
     const kubo = new KuboCurvature(sampler);
     const k = Float64Array.from(plane.origin);
     const [ax1, ax2] = plane.axes;
-    for (let b = 0; b < n2; b++) {
+    for (let b = lo; b < hi; b++) {
       checkInterrupt();
-      k[ax2] = k2[b];
+      k[ax2] = gridMomentum(b, n2, 0);
       for (let a = 0; a < n1; a++) {
-        k[ax1] = k1[a];
-        values[b * n1 + a] = kubo.at(k, ax1, ax2, group, perBand !== undefined ? group : null);
-        if (perBand !== undefined) for (let j = 0; j < m; j++) perBand[j * n1 * n2 + b * n1 + a] = kubo.perBand[group.lo + j];
+        k[ax1] = gridMomentum(a, n1, 0);
+        const at = (b - lo) * n1 + a;
+        values[at] = kubo.at(k, ax1, ax2, group, perBand !== undefined ? group : null);
+        if (perBand !== undefined) for (let j = 0; j < m; j++) perBand[j * rows * n1 + at] = kubo.perBand[group.lo + j];
       }
     }
-    checks = sampler.gapChecks([n1, n2], options.gapTolerance, 'the curvature of the group');
-    if (perBand !== undefined && m > 1 && kubo.minSplitting <= sampler.tolerance(options.gapTolerance)) {
-      checks.warnings.push(`bands inside the group touch (splitting ${kubo.minSplitting.toExponential(2)}): their separate curvatures diverge there; the group total is unaffected`);
-    }
+    if (perBand !== undefined) stats.minSplitting = kubo.minSplitting;
   }
-  let total = 0;
   for (let i = 0; i < values.length; i++) {
     if (method === 'lattice') values[i] /= cell;
     values[i] *= sign;
-    total += values[i];
   }
   if (perBand !== undefined) for (let i = 0; i < perBand.length; i++) perBand[i] *= (method === 'lattice' ? sign / cell : sign);
-  total *= cell / (2 * Math.PI);
-  if (!checks.gapless && (checks.maxPlaquettePhase ?? 0) > COARSE_PLAQUETTE_PHASE) {
-    checks.coarse = true;
-    checks.warnings.push(`grid ${n1}x${n2} is coarse: largest plaquette phase ${checks.maxPlaquettePhase!.toFixed(3)} rad (limit pi/2)`);
-  }
   return {
-    kind: 'curvature',
+    kind: 'curvature-part',
+    part: { index, count },
+    rows: [lo, hi],
     method,
     convention: h.convention,
     bands: [group.lo, group.hi],
     plane: h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at },
     grid: [n1, n2],
-    k1,
-    k2,
+    gapTolerance: options.gapTolerance ?? null,
     values,
     ...(perBand !== undefined ? { perBand } : {}),
-    total: checks.gapless ? null : total,
-    checks,
+    gap: sampler.gapRecord(),
+    ...stats,
   };
 }
-

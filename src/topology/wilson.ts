@@ -13,10 +13,11 @@ import {
   bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
+import { gapTolerance } from './checks.js';
 import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases } from './links.js';
+import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type WannierFlowPart } from './parts.js';
 
-/** A link modulus (|det| of a normalised overlap) below this means neighbouring frames differ too much. */
-export const COARSE_LINK = 0.9;
+export { COARSE_LINK } from './checks.js';
 
 /**
  * Wilson loops along one axis of a plane, one column (fixed across-momentum) at a time. Keeps the
@@ -76,18 +77,32 @@ export class WilsonColumns {
     return Math.hypot(this.det[0], this.det[1]);
   }
 
+  private frames(k1: number, out: Float64Array, track: boolean): void {
+    const fl = this.sampler.frameLength, N = this.nAlong;
+    const [ax1, ax2] = this.plane.axes;
+    const k = this.k;
+    k[ax1] = k1;
+    for (let j = 0; j < N; j++) {
+      k[ax2] = -Math.PI + (2 * Math.PI * j) / N;
+      this.sampler.sample(k, out, j * fl, track);
+    }
+  }
+
+  /**
+   * Take the column at k1 as the previous one, for its frames alone: no loop, no gap tracked
+   * (the left neighbour of a part, which the part before it accounts for).
+   */
+  seed(k1: number): void {
+    this.frames(k1, this.prev, false);
+    this.hasPrev = true;
+  }
+
   /** The Wilson loop at across-momentum k1 (radians), its phases and sorted centres. */
   column(k1: number): void {
     const s = this.sampler;
     const m = s.m, n = s.n, fl = s.frameLength, N = this.nAlong;
-    const [ax1, ax2] = this.plane.axes;
-    const k = this.k;
-    k[ax1] = k1;
     const cur = this.cur;
-    for (let j = 0; j < N; j++) {
-      k[ax2] = -Math.PI + (2 * Math.PI * j) / N;
-      s.sample(k, cur, j * fl);
-    }
+    this.frames(k1, cur, true);
     const w = this.w;
     w.fill(0);
     for (let i = 0; i < m; i++) w[2 * (i * m + i)] = 1;
@@ -164,6 +179,8 @@ export interface WannierFlowOptions extends TopologyOptions {
   grid?: [number, number] | number;
   /** For a 3D model: the slice k_normal = at (radians). */
   plane?: PlaneSpec;
+  /** Compute only this part of the nAcross + 1 across-points; see parts.ts. */
+  part?: PartSpec;
 }
 
 export interface WannierFlowChecks extends TopologyChecks {
@@ -205,61 +222,58 @@ export function resolvePair(grid: [number, number] | number | undefined, default
 
 /**
  * Hybrid Wannier centres of a band group along one reciprocal direction (Wilson loops along
- * plane.axes[1]) as a function of the other, with the winding of their sum counted.
+ * plane.axes[1]) as a function of the other, with the winding of their sum counted. With `part`,
+ * the across-points that part holds, to be joined with the other parts by `joinParts` (parts.ts)
+ * into exactly the flow computed whole.
  */
-export function wannierFlow(source: TopologySource, options: WannierFlowOptions = {}): WannierFlowResult {
+export function wannierFlow(source: TopologySource, options: WannierFlowOptions & { part: PartSpec }): WannierFlowPart;
+export function wannierFlow(source: TopologySource, options?: WannierFlowOptions & { part?: undefined }): WannierFlowResult;
+export function wannierFlow(source: TopologySource, options?: WannierFlowOptions): WannierFlowResult | WannierFlowPart;
+export function wannierFlow(source: TopologySource, options: WannierFlowOptions = {}): WannierFlowResult | WannierFlowPart {
+  const part = wannierFlowPart(source, options);
+  return options.part === undefined ? joinWannierFlowParts([part]) : part;
+}
+
+/** The Wilson loops of one part's across-points, with the statistics its checks are built from. */
+function wannierFlowPart(source: TopologySource, options: WannierFlowOptions): WannierFlowPart {
   const h = compileSource(source, options);
   const plane = resolvePlane(h.dim, options.plane);
   const group = bandGroup(options.bands, h.size);
   const [nAlong, nAcross] = resolvePair(options.grid, [64, 64]);
+  gapTolerance(options.gapTolerance, 0); // a bad tolerance fails here, not in the join
+  const { index, count, lo, hi } = resolvePart(options.part, nAcross + 1);
   const sampler = new FrameSampler(h, group);
   const cols = new WilsonColumns(sampler, plane, nAlong);
   const m = sampler.m;
-  const across = new Float64Array(nAcross + 1);
-  const centres = new Float64Array((nAcross + 1) * m);
-  const sum = new Float64Array(nAcross + 1);
-  const gapMidpoint = new Float64Array(nAcross + 1);
-  let maxStep = 0;
-  for (let i = 0; i <= nAcross; i++) {
+  const centres = new Float64Array((hi - lo) * m);
+  const centreSums = new Float64Array(hi - lo);
+  const gapMidpoint = new Float64Array(hi - lo);
+  // The across links into this part's first column start from the column before it.
+  if (lo > 0) cols.seed(acrossMomentum(lo - 1, nAcross));
+  for (let i = lo; i < hi; i++) {
     checkInterrupt();
-    const k1 = -Math.PI + (2 * Math.PI * i) / nAcross;
-    across[i] = k1;
-    cols.column(k1);
-    centres.set(cols.centres, i * m);
+    cols.column(acrossMomentum(i, nAcross));
+    centres.set(cols.centres, (i - lo) * m);
     let s = 0;
     for (let j = 0; j < m; j++) s += cols.centres[j];
-    if (i === 0) sum[0] = s;
-    else {
-      const prevWrapped = sum[i - 1] - Math.floor(sum[i - 1]);
-      let d = s - Math.floor(s) - prevWrapped;
-      d -= Math.round(d);
-      sum[i] = sum[i - 1] + d;
-      maxStep = Math.max(maxStep, Math.abs(d));
-    }
-    gapMidpoint[i] = largestGap(cols.centres).mid;
+    centreSums[i - lo] = s;
+    gapMidpoint[i - lo] = largestGap(cols.centres).mid;
   }
-  const checks = sampler.gapChecks([nAlong, nAcross], options.gapTolerance, 'the Wannier-centre winding') as WannierFlowChecks;
-  checks.minLinkAlong = Math.min(1, cols.minLinkAlong);
-  checks.minLinkAcross = Math.min(1, cols.minLinkAcross);
-  checks.maxStep = maxStep;
-  if (!checks.gapless && (checks.minLinkAlong < COARSE_LINK || checks.minLinkAcross < COARSE_LINK || maxStep > 0.25)) {
-    checks.coarse = true;
-    checks.warnings.push(
-      `grid ${nAlong}x${nAcross} is too coarse to trust the flow: smallest link modulus along ${checks.minLinkAlong.toFixed(3)}, ` +
-        `across ${checks.minLinkAcross.toFixed(3)} (limit ${COARSE_LINK}), largest step of the summed centres ${maxStep.toFixed(3)} (limit 0.25)`,
-    );
-  }
-  const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   return {
-    kind: 'wannier-flow',
+    kind: 'wannier-flow-part',
+    part: { index, count },
+    columns: [lo, hi],
     convention: h.convention,
     bands: [group.lo, group.hi],
     plane: h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at },
-    across,
+    grid: [nAlong, nAcross],
+    orientation: h.dim === 2 ? orientation2D(h.spec) : 1,
+    gapTolerance: options.gapTolerance ?? null,
     centres,
-    sum,
+    centreSums,
     gapMidpoint,
-    winding: checks.gapless ? null : sign * Math.round(sum[nAcross] - sum[0]) + 0,
-    checks,
+    minLinkAlong: cols.minLinkAlong,
+    minLinkAcross: cols.minLinkAcross,
+    gap: sampler.gapRecord(),
   };
 }

@@ -8,7 +8,9 @@ import { eigh, HermitianEigensolver } from '../../src/linalg/eigh.js';
 import { ComplexPfaffian, pfaffian } from '../../src/linalg/pfaffian.js';
 import {
   EPS,
+  HAVE_NUMPY,
   kramersHermitian,
+  numpy,
   orthonormalityError,
   randomHermitian,
   randomUnitary,
@@ -143,7 +145,7 @@ describe('HermitianEigensolver', () => {
   it('open chain with complex (Peierls-phase) hoppings: eigenvalues 2t cos(pi k/(n+1)) (textbook tight-binding chain)', () => {
     // Already tridiagonal: no reflector is needed; only the diagonal phase transform is exercised.
     const t = 0.7;
-    for (const n of [3, 4, 7, 16, 50]) {
+    for (const n of [3, 4, 7, 16, 50, 100, 256]) {
       const h = new Float64Array(2 * n * n);
       for (let i = 0; i + 1 < n; i++) {
         const theta = 0.3 + 1.1 * i; // a gauge choice: the spectrum of an open chain does not depend on it
@@ -238,6 +240,22 @@ describe('HermitianEigensolver', () => {
     }
   });
 
+  it('solvers share the kernels\' memory: a solver keeps working after a larger one grew it (common practice)', () => {
+    const next = uniform(26);
+    const small = new HermitianEigensolver(5);
+    const h = randomHermitian(5, next);
+    const before = small.solve(h, new Float64Array(5), new Float64Array(50)).slice();
+    // A size never used before in this file grows the shared memory and detaches the old views.
+    const big = new HermitianEigensolver(300);
+    const hb = randomHermitian(300, next);
+    const wb = big.solve(hb, new Float64Array(300));
+    const v = new Float64Array(50);
+    const after = small.solve(h, new Float64Array(5), v);
+    expect(Array.from(after)).toEqual(Array.from(before));
+    expectGoodEigensystem(5, h, after, v);
+    expect(Array.from(big.solve(hb, new Float64Array(300)))).toEqual(Array.from(wb));
+  });
+
   it('solves matrices stored at offsets in a batch', () => {
     const next = uniform(10);
     const n = 4;
@@ -267,6 +285,104 @@ describe('HermitianEigensolver', () => {
       expect(() => new HermitianEigensolver(n).solve(h, new Float64Array(n))).toThrow(new RegExp(`h\\[0\\]\\[${n - 1}\\] is not finite`));
       h[2 * (n - 1)] = Infinity;
       expect(() => new HermitianEigensolver(n).solve(h, new Float64Array(n))).toThrow(/not finite/);
+    }
+  });
+});
+
+/** Block-diagonal direct sum of `copies` copies of the n x n matrix b. */
+function directSum(b: Float64Array, n: number, copies: number): Float64Array {
+  const size = n * copies;
+  const h = new Float64Array(2 * size * size);
+  for (let c = 0; c < copies; c++) {
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        const to = 2 * ((c * n + i) * size + c * n + j);
+        h[to] = b[2 * (i * n + j)];
+        h[to + 1] = b[2 * (i * n + j) + 1];
+      }
+    }
+  }
+  return h;
+}
+
+// From n = 25 on the tridiagonal eigenvectors come from divide and conquer (leaves of up to 24 by
+// QL): these sizes cover one, two and three levels of merging, odd splits and deflation.
+describe('HermitianEigensolver, divide-and-conquer sizes (n >= 25)', () => {
+  it('random matrices n = 25, 31, 32, 33, 49, 64, 100, 256: eps-level residual and orthonormality (common practice)', () => {
+    const next = uniform(21);
+    for (const n of [25, 31, 32, 33, 49, 64, 100, 256]) {
+      const h = randomHermitian(n, next);
+      const { w, v } = solvePadded(n, h);
+      expectGoodEigensystem(n, h, w, v);
+    }
+  });
+
+  it.skipIf(!HAVE_NUMPY)('eigenvalues agree with numpy eigvalsh (Debian numpy) for n = 64, 100, 256', () => {
+    const next = uniform(22);
+    for (const n of [64, 100, 256]) {
+      const h = randomHermitian(n, next);
+      const w = new HermitianEigensolver(n).solve(h, new Float64Array(n), new Float64Array(2 * n * n));
+      const theirs = numpy<number[]>('out = np.linalg.eigvalsh(inp["h"]).tolist()', { h: { data: h, shape: [n, n], complex: true } });
+      for (let i = 0; i < n; i++) expect(Math.abs(w[i] - theirs[i])).toBeLessThan(64 * n * EPS);
+    }
+  });
+
+  it('exact degeneracies: a direct sum of copies, a 50-fold eigenvalue, Kramers pairs (Sakurai sec. 4.4)', () => {
+    const next = uniform(23);
+    // Four copies of one 16 x 16 block (n = 64) and three of one 33 x 33 block (n = 99): every
+    // eigenvalue 4- or 3-fold, and the tridiagonal form splits into decoupled pieces.
+    for (const [m, copies] of [[16, 4], [33, 3]]) {
+      const n = m * copies;
+      const block = randomHermitian(m, next);
+      const h = directSum(block, m, copies);
+      const { w, v } = solvePadded(n, h);
+      expectGoodEigensystem(n, h, w, v);
+      const wb = new HermitianEigensolver(m).solve(block, new Float64Array(m));
+      for (let i = 0; i < n; i++) expect(Math.abs(w[i] - wb[Math.floor(i / copies)])).toBeLessThan(64 * n * EPS);
+    }
+    // U diag(d) U^dagger with d = -1 fifty times and fifty spread values (n = 100).
+    const n = 100;
+    const d = Array.from({ length: n }, (_, i) => (i < 50 ? -1 : next()));
+    const h = withSpectrum(randomUnitary(n, next), n, d);
+    const { w, v } = solvePadded(n, h);
+    expectGoodEigensystem(n, h, w, v);
+    const sorted = [...d].sort((a, b) => a - b);
+    for (let i = 0; i < n; i++) expect(Math.abs(w[i] - sorted[i])).toBeLessThan(64 * n * EPS);
+    for (const half of [32, 50, 128]) {
+      const k = kramersHermitian(half, next);
+      const r = solvePadded(2 * half, k);
+      expectGoodEigensystem(2 * half, k, r.w, r.v);
+      for (let i = 0; i < 2 * half; i += 2) expect(Math.abs(r.w[i + 1] - r.w[i])).toBeLessThan(64 * 2 * half * EPS);
+    }
+  });
+
+  it('clusters within 1e-10 and flat bands at n = 64 and 100 (common practice)', () => {
+    const next = uniform(24);
+    for (const n of [64, 100]) {
+      const d = Array.from({ length: n }, (_, i) => Math.floor(i / 5) + (i % 5) * 1e-10 * next());
+      const h = withSpectrum(randomUnitary(n, next), n, d);
+      const { w, v } = solvePadded(n, h);
+      expectGoodEigensystem(n, h, w, v);
+      const flat = Array.from({ length: n }, (_, i) => (i < n / 3 ? -1 : i < (2 * n) / 3 ? 0 : 2));
+      const hf = withSpectrum(randomUnitary(n, next), n, flat);
+      const r = solvePadded(n, hf);
+      expectGoodEigensystem(n, hf, r.w, r.v);
+      const sorted = [...flat].sort((a, b) => a - b);
+      for (let i = 0; i < n; i++) expect(Math.abs(r.w[i] - sorted[i])).toBeLessThan(64 * n * EPS);
+    }
+  });
+
+  it('scaled inputs (1e-300, 1e300) at n = 64: eigenvalues scale, residuals stay relative', () => {
+    const next = uniform(25);
+    const n = 64;
+    const h = randomHermitian(n, next);
+    const w1 = new HermitianEigensolver(n).solve(h, new Float64Array(n), new Float64Array(2 * n * n));
+    const wmax = Math.max(...w1.map(Math.abs));
+    for (const scale of [1e-300, 1e300]) {
+      const hs = h.map((x) => x * scale);
+      const { w, v } = solvePadded(n, hs);
+      expectGoodEigensystem(n, hs, w, v);
+      for (let i = 0; i < n; i++) expect(Math.abs(w[i] / scale - w1[i])).toBeLessThan(64 * n * EPS * wmax);
     }
   });
 });
