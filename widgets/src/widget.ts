@@ -14,6 +14,7 @@ import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
 import Plotly, { type Config, type Layout, type PlotlyHTMLElement } from './plotly.js';
 import { rasterImage, sketchImage } from './picture.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
+import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
 import { packArrays, unpackArrays } from './wire.js';
 
@@ -318,7 +319,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private recompute(): void {
-    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome));
+    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
     this.client.submit(this.model.request(this.live));
     // Mark the plot stale once per burst of moves, not on every input event.
     if (!this.plot.classList.contains('chernel-stale')) {
