@@ -78,7 +78,8 @@ describe('exported notebook page', () => {
   it('draws the saved curvature map and flow plot without computing', async () => {
     await expect.poll(() => page.locator('.chernel-widget').count()).toBe(3);
     const haldane = widget(0);
-    await haldane.locator('.chernel-plot .heatmaplayer image, .chernel-plot .hm image').first().waitFor();
+    // The map is a picture under the axes (widgets/src/raster.ts).
+    await haldane.locator('.chernel-plot .imagelayer image').first().waitFor();
     expect(await haldane.locator('.chernel-status').textContent()).toContain('saved result');
     expect(await haldane.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.2)));
     // Hexagonal lattice: the zone boundary is drawn over the map.
@@ -107,12 +108,47 @@ describe('exported notebook page', () => {
     await page.screenshot({ path: artifactPath('widgets-export-haldane.png'), fullPage: true });
   });
 
+  it('a drag step swaps only the picture and title; at rest the full figure returns, hover values included', async () => {
+    const haldane = widget(0);
+    const picture = haldane.locator('.chernel-plot .imagelayer image').first();
+    const before = await picture.getAttribute('href');
+    const steps = (await haldane.evaluate(async (w) => {
+      const slider = w.querySelector('.chernel-control[data-parameter="M"] input[type=range]') as unknown as { value: string; dispatchEvent(e: unknown): void };
+      const out: unknown[] = [];
+      for (const v of ['0.11', '0.12', '0.13']) {
+        const drawn = new Promise((resolve) => w.addEventListener('chernel-drawn', (e) => resolve((e as unknown as { detail: unknown }).detail), { once: true }));
+        slider.value = v;
+        slider.dispatchEvent(new Event('input', { bubbles: true }));
+        out.push(await drawn);
+      }
+      return out;
+    })) as { swapped: boolean }[];
+    // The first step may redraw in full (the previous draw may have been a swap that settled); the
+    // steps after it follow a full draw of the same frame and swap.
+    expect(steps.slice(1).map((d) => d.swapped)).toEqual([true, true]);
+    expect(await picture.getAttribute('href')).not.toBe(before);
+    // At rest (250 ms, widget.ts) the full redraw gives the invisible heatmap the new values: hover
+    // over the map shows the curvature there.
+    await haldane.evaluate((w) => new Promise((resolve) => w.addEventListener('chernel-drawn', resolve, { once: true })));
+    const plotArea = (await haldane.locator('.chernel-plot .nsewdrag').first().boundingBox())!;
+    await page.mouse.move(plotArea.x + plotArea.width * 0.3, plotArea.y + plotArea.height * 0.4);
+    await expect.poll(() => haldane.locator('.hoverlayer .hovertext').textContent()).toMatch(/Ω = -?[0-9.e+-]+ rad⁻²/);
+    await page.mouse.move(0, 0);
+  });
+
   it('dragging u in the flow widget changes the winding across the QWZ transition at u = 0', async () => {
     const flow = widget(1);
     await drag(control(flow, 'u').slider, 1);
     const after = await settled(flow, 'u');
     expect(after.value).toBeGreaterThan(0.2);
     expect(after.invariant).toBe(String(qwzChern(after.value)));
+    // During the drag a sketch stood in for the traces (widgets/src/picture.ts); at rest plotly
+    // draws the traces themselves again, visible, with no image left over them.
+    const shown = () => flow.locator('.chernel-plot').evaluate((el) => {
+      const gd = el as unknown as { data: { opacity?: number }[]; layout: { images?: unknown[] } };
+      return { opacity: gd.data.map((t) => t.opacity ?? 1), images: gd.layout.images?.length ?? 0 };
+    });
+    await expect.poll(shown).toEqual({ opacity: [1, 1], images: 0 });
   });
 
   it('a value that closes the gap is flagged gapless: no invariant, the closing k marked', async () => {

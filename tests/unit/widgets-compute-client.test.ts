@@ -1,7 +1,7 @@
 // Latest-wins coalescing of slider drags (the behaviour ipywidgets uses for its own sync buffer:
 // while a message is pending, newer updates replace older ones; common practice).
 import { describe, expect, it } from 'vitest';
-import { LatestWinsClient, type Outcome, type WorkerLike } from '../../widgets/src/compute-client.js';
+import { LatestWinsClient, type Outcome, type SplitPlan, type WorkerLike } from '../../widgets/src/compute-client.js';
 import type { ComputeMessage, ComputeReply, DiagnosticRequest } from '../../widgets/src/protocol.js';
 
 /** A worker whose replies the test releases by hand, to order events exactly. */
@@ -112,6 +112,56 @@ describe('LatestWinsClient', () => {
     client.submit(request(2));
     client.dispose();
     expect(worker.terminated).toBe(true);
+    expect(client.busy).toBe(false);
+  });
+
+  it('splits a request into one part per worker, computed side by side, joined once all are in', () => {
+    const workers: HeldWorker[] = [];
+    const outcomes: Outcome[] = [];
+    const joined: unknown[][] = [];
+    // A plan of our own: three parts, each tagged; the join records what it was given.
+    const plan: SplitPlan = {
+      parts: () => 3,
+      partRequest: (r, index, count) => ({ ...r, part: { index, count } }),
+      join: (r, parts) => {
+        joined.push(parts.map((p) => p.checks.minGap));
+        return { kind: 'curvature', checks: { minGap: Math.min(...parts.map((p) => p.checks.minGap ?? Infinity)), warnings: [] } };
+      },
+    };
+    const client = new LatestWinsClient(() => {
+      const w = new HeldWorker();
+      workers.push(w);
+      return w;
+    }, (o) => outcomes.push(o), plan);
+    client.submit(request(1));
+    expect(workers).toHaveLength(3);
+    expect(workers.map((w) => w.received[0].request.part)).toEqual([0, 1, 2].map((index) => ({ index, count: 3 })));
+    // Replies arrive in any order; nothing is delivered until the last part is in.
+    workers[2].reply({ ...ok(workers[2].received[0].id, 0.3), ms: 7 });
+    workers[0].reply({ ...ok(workers[0].received[0].id, 0.1), ms: 5 });
+    expect(outcomes).toHaveLength(0);
+    workers[1].reply({ ...ok(workers[1].received[0].id, 0.2), ms: 6 });
+    expect(joined).toEqual([[0.1, 0.2, 0.3]]);
+    expect(outcomes[0].result?.checks.minGap).toBe(0.1);
+    expect(outcomes[0].computeMs).toBeGreaterThanOrEqual(7);
+    // The next request reuses the same three workers.
+    client.submit(request(2));
+    expect(workers).toHaveLength(3);
+  });
+
+  it('a failed part fails the whole request, with the engine error', () => {
+    const workers: HeldWorker[] = [];
+    const outcomes: Outcome[] = [];
+    const plan: SplitPlan = { parts: () => 2, partRequest: (r) => r, join: () => { throw new Error('not reached'); } };
+    const client = new LatestWinsClient(() => {
+      const w = new HeldWorker();
+      workers.push(w);
+      return w;
+    }, (o) => outcomes.push(o), plan);
+    client.submit(request(1));
+    workers[0].reply(ok(workers[0].received[0].id, 1));
+    workers[1].reply({ id: workers[1].received[0].id, ok: false, error: { name: 'ModelError', message: 'part: bad' } });
+    expect(outcomes[0].error).toEqual({ name: 'ModelError', message: 'part: bad' });
     expect(client.busy).toBe(false);
   });
 });

@@ -21,22 +21,41 @@ function run(spec: ModelSpecView, kind: DiagnosticRequest['kind'], options: Reco
 }
 
 describe('curvature figure', () => {
-  it('QWZ (square lattice): one heatmap over the reduced zone, centred on zero, no extra boundary', () => {
+  it('QWZ (square lattice): a picture of the reduced zone relative to max|Ω|, an invisible heatmap for hover, a colour bar centred on zero', () => {
     const { figure, traces, result } = run(qwz(), 'curvature', { grid: 16, bands: 1 }, { u: -1 });
-    expect(traces.map((t) => t.type)).toEqual(['heatmap']);
-    const heat = traces[0] as { x: number[]; y: number[]; z: ArrayLike<number>[]; zmid: number; zmin: number; zmax: number };
-    expect(heat.x).toHaveLength(16);
-    expect(heat.z).toHaveLength(16);
-    expect(heat.zmid).toBe(0);
-    expect(heat.zmin).toBe(-heat.zmax);
+    expect(traces.map((t) => t.name)).toEqual(['Berry curvature', 'colour scale']);
+    const hover = traces[0] as { x: number[]; y: number[]; z: ArrayLike<number>[]; opacity: number };
+    expect(hover.opacity).toBe(0);
+    expect(hover.x).toHaveLength(16);
+    expect(hover.z).toHaveLength(16);
     // Row b, column a is values[b * n1 + a] (engine layout, src/topology/curvature.ts).
     const values = result.values as Float64Array;
-    expect(heat.z[3][5]).toBe(values[3 * 16 + 5]);
-    expect(Math.min(...heat.x)).toBeGreaterThanOrEqual(-0.5);
-    expect(Math.max(...heat.x)).toBeLessThan(0.5);
+    expect(hover.z[3][5]).toBe(values[3 * 16 + 5]);
+    expect(Math.min(...hover.x)).toBeGreaterThanOrEqual(-0.5);
+    expect(Math.max(...hover.x)).toBeLessThan(0.5);
+    const scale = traces[1] as { zmin: number; zmax: number; colorscale: [number, string][] };
+    expect([scale.zmin, scale.zmax]).toEqual([-1, 1]);
+    // The picture: top row first (largest k2), each brick omega / max|omega|.
+    const raster = figure.raster!;
+    expect([raster.width, raster.height]).toEqual([16, 16]);
+    const peak = Math.max(...Array.from(values, Math.abs));
+    expect(raster.values[0 * 16 + 5]).toBeCloseTo(values[15 * 16 + 5] / peak, 6);
+    expect(Math.max(...Array.from(raster.values, Math.abs))).toBeCloseTo(1, 6);
+    expect(raster.x[0]).toBeCloseTo(-0.5, 12);
+    expect(raster.x[1]).toBeCloseTo(0.5, 12);
+    expect(raster.range).toEqual([-1, 1]);
+    expect(raster.colorscale).toBe(scale.colorscale);
     // QWZ, -2 < u < 0: C(lower) = +1.
     expect(figure.invariant).toBe(1);
-    expect(figure.summary).toMatch(/^C = 1 · min gap/);
+    expect(figure.summary).toMatch(/^C = 1 · min gap .* · max\|Ω\| /);
+  });
+
+  it('a drag step keeps the frame: same grid and zone give the same frame key; a gap closing changes it', () => {
+    const a = run(haldane(), 'curvature', { grid: 12, bands: 1 }, { M: 0.1 }).figure;
+    const b = run(haldane(), 'curvature', { grid: 12, bands: 1 }, { M: 0.2 }).figure;
+    const closed = run(haldane(), 'curvature', { grid: 12, bands: 1 }, { M: 3 * Math.sqrt(3) * 0.1 }).figure;
+    expect(a.frameKey).toBe(b.frameKey);
+    expect(closed.frameKey).not.toBe(a.frameKey);
   });
 
   it('Haldane (hexagonal lattice): the zone boundary is drawn and the map covers it', () => {
@@ -46,6 +65,9 @@ describe('curvature figure', () => {
     const heat = traces[0] as { x: number[]; y: number[] };
     expect(Math.min(...heat.x)).toBeLessThan(Math.min(...zone.x));
     expect(Math.max(...heat.x)).toBeGreaterThan(Math.max(...zone.x));
+    const raster = figure.raster!;
+    expect(raster.x[0]).toBeLessThan(Math.min(...zone.x));
+    expect(raster.y[1]).toBeGreaterThan(Math.max(...zone.y));
     expect(figure.invariant).toBe(-1); // M = 0.2 < 3 sqrt3 t2: C = -sign(sin phi)
   });
 

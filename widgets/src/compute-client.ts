@@ -1,7 +1,8 @@
 /**
- * A view's line to its engine worker. A drag fires many input events; only the newest matters.
+ * A view's line to its engine workers. A drag fires many input events; only the newest matters.
  * At most one request is in flight; a newer request waiting behind it replaces an older one (the
- * stale one is dropped, never sent), so the plot follows the hand instead of a queue.
+ * stale one is dropped, never sent), so the plot follows the hand instead of a queue. A request the
+ * split plan divides goes out in parts, one per worker, computed side by side and joined on return.
  */
 import type { ComputeMessage, ComputeReply, DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
@@ -9,7 +10,7 @@ export interface Outcome {
   request: DiagnosticRequest;
   /** Milliseconds from submit() to the reply, including time waiting behind an earlier request. */
   latency: number;
-  /** Milliseconds the engine spent. */
+  /** Milliseconds the engine spent: the slowest part, plus the join. */
   computeMs: number;
   result?: DiagnosticResult;
   error?: { name: string; message: string };
@@ -22,15 +23,35 @@ export interface WorkerLike {
   onerror: ((event: ErrorEvent) => void) | null;
 }
 
+/** How a request is shared among workers: into how many parts, the part requests, and the join. */
+export interface SplitPlan {
+  parts(request: DiagnosticRequest): number;
+  partRequest(request: DiagnosticRequest, index: number, count: number): DiagnosticRequest;
+  join(request: DiagnosticRequest, parts: DiagnosticResult[]): DiagnosticResult;
+}
+
+/** Every request whole, on one worker. */
+export const WHOLE: SplitPlan = {
+  parts: () => 1,
+  partRequest: (request) => request,
+  join: (_request, parts) => parts[0],
+};
+
 interface Pending {
-  id: number;
   request: DiagnosticRequest;
   submitted: number;
 }
 
+interface InFlight extends Pending {
+  /** Message id of each part (index = part = worker). */
+  ids: number[];
+  replies: (ComputeReply | undefined)[];
+  remaining: number;
+}
+
 export class LatestWinsClient {
-  private worker: WorkerLike | null = null;
-  private inFlight: Pending | null = null;
+  private workers: (WorkerLike | null)[] = [];
+  private inFlight: InFlight | null = null;
   private waiting: Pending | null = null;
   private nextId = 1;
   /** Requests replaced before they were sent (for tests and the bench). */
@@ -39,10 +60,11 @@ export class LatestWinsClient {
   constructor(
     private readonly spawn: () => WorkerLike,
     private readonly deliver: (outcome: Outcome) => void,
+    private readonly plan: SplitPlan = WHOLE,
   ) {}
 
   submit(request: DiagnosticRequest): void {
-    const pending = { id: this.nextId++, request, submitted: performance.now() };
+    const pending = { request, submitted: performance.now() };
     if (this.inFlight === null) {
       this.send(pending);
     } else {
@@ -57,46 +79,68 @@ export class LatestWinsClient {
   }
 
   dispose(): void {
-    this.worker?.terminate();
-    this.worker = null;
+    for (const worker of this.workers) worker?.terminate();
+    this.workers = [];
     this.inFlight = null;
     this.waiting = null;
   }
 
   private send(pending: Pending): void {
-    const worker = this.ensureWorker();
-    this.inFlight = pending;
-    worker.postMessage({ id: pending.id, request: pending.request });
+    const count = Math.max(1, this.plan.parts(pending.request));
+    const ids = Array.from({ length: count }, () => this.nextId++);
+    this.inFlight = { ...pending, ids, replies: new Array(count).fill(undefined), remaining: count };
+    ids.forEach((id, index) => {
+      const request = count === 1 ? pending.request : this.plan.partRequest(pending.request, index, count);
+      this.ensureWorker(index).postMessage({ id, request });
+    });
   }
 
-  private ensureWorker(): WorkerLike {
-    if (this.worker === null) {
-      const worker = this.spawn();
-      worker.onmessage = (event) => this.receive(event.data);
-      worker.onerror = (event) => this.crashed(event.message || 'the engine worker failed to start');
-      this.worker = worker;
-    }
-    return this.worker;
+  private ensureWorker(index: number): WorkerLike {
+    const existing = this.workers[index];
+    if (existing) return existing;
+    const worker = this.spawn();
+    worker.onmessage = (event) => this.receive(event.data);
+    worker.onerror = (event) => this.crashed(worker, event.message || 'the engine worker failed to start');
+    this.workers[index] = worker;
+    return worker;
   }
 
   private receive(reply: ComputeReply): void {
     const current = this.inFlight;
-    if (current === null || reply.id !== current.id) return;
+    const part = current === null ? -1 : current.ids.indexOf(reply.id);
+    if (current === null || part < 0 || current.replies[part] !== undefined) return;
+    current.replies[part] = reply;
+    if (--current.remaining > 0) return;
     this.inFlight = null;
-    const latency = performance.now() - current.submitted;
-    const outcome: Outcome = reply.ok
-      ? { request: current.request, latency, computeMs: reply.ms, result: reply.result }
-      : { request: current.request, latency, computeMs: 0, error: reply.error };
-    // Start the next computation before drawing this one: the worker computes while the page draws.
+    const outcome = this.finish(current, current.replies as ComputeReply[]);
+    // Start the next computation before drawing this one: the workers compute while the page draws.
     this.sendWaiting();
     this.deliver(outcome);
   }
 
+  private finish(current: InFlight, replies: ComputeReply[]): Outcome {
+    const latency = () => performance.now() - current.submitted;
+    const failed = replies.find((r) => !r.ok);
+    if (failed !== undefined && !failed.ok) return { request: current.request, latency: latency(), computeMs: 0, error: failed.error };
+    const results = replies.map((r) => (r.ok ? r.result : null)) as DiagnosticResult[];
+    const slowest = Math.max(...replies.map((r) => (r.ok ? r.ms : 0)));
+    const started = performance.now();
+    try {
+      const result = results.length === 1 ? results[0] : this.plan.join(current.request, results);
+      return { request: current.request, latency: latency(), computeMs: slowest + performance.now() - started, result };
+    } catch (err) {
+      const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };
+      return { request: current.request, latency: latency(), computeMs: 0, error };
+    }
+  }
+
   /** A worker that dies (bad bundle, out of memory) is replaced on the next request. */
-  private crashed(message: string): void {
+  private crashed(worker: WorkerLike, message: string): void {
+    const index = this.workers.indexOf(worker);
+    if (index < 0) return;
+    worker.terminate();
+    this.workers[index] = null;
     const current = this.inFlight;
-    this.worker?.terminate();
-    this.worker = null;
     this.inFlight = null;
     if (current !== null) {
       this.deliver({

@@ -11,8 +11,10 @@ import { spawnEngineWorker } from './engine-worker.js';
 import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
 import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
 import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
-import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
+import Plotly, { type Config, type Layout, type PlotlyHTMLElement } from './plotly.js';
+import { rasterImage, sketchImage } from './picture.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
+import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
 import { packArrays, unpackArrays } from './wire.js';
 
@@ -28,6 +30,8 @@ export const KIND_TITLES: Record<WidgetKind, string> = {
 };
 
 export type Values = Record<string, number>;
+
+type LayoutImage = NonNullable<Layout['images']>[number];
 
 export function sameValues(a: Values | null | undefined, b: Values | null | undefined): boolean {
   if (!a || !b) return false;
@@ -100,7 +104,12 @@ export interface DrawnDetail {
   /** Milliseconds spent turning the result into traces, and drawing them. */
   figureMs: number;
   plotMs: number;
+  /** True when only the picture and the title were swapped (a drag step; see `draw`). */
+  swapped: boolean;
 }
+
+/** How long the controls must rest before a swapped drawing is redrawn in full. */
+const SETTLE_MS = 250;
 
 /** Creates the worker for a view; replaced in unit tests by a worker running in the test process. */
 export let workerFactory: () => WorkerLike = spawnEngineWorker;
@@ -121,6 +130,11 @@ export class DiagnosticView extends DOMWidgetView {
   private attached = false;
   private figure: Figure | null = null;
   private plotEventsBound = false;
+  /** The frame key of the figure plotly shows in full, and the pending full redraw after a drag. */
+  private drawnFrameKey: string | null = null;
+  private settleTimer: ReturnType<typeof setTimeout> | null = null;
+  /** True while a sketch stands in for the traces it names (they are hidden). */
+  private sketchShown = false;
   /** The values the controls show; ahead of the model's result while a recompute is pending. */
   private live: Values = {};
 
@@ -187,6 +201,7 @@ export class DiagnosticView extends DOMWidgetView {
 
   override remove(): this {
     this.attached = false;
+    if (this.settleTimer !== null) clearTimeout(this.settleTimer);
     Plotly.purge(this.plot);
     this.client?.dispose();
     this.client = null;
@@ -304,7 +319,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private recompute(): void {
-    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome));
+    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
     this.client.submit(this.model.request(this.live));
     // Mark the plot stale once per burst of moves, not on every input event.
     if (!this.plot.classList.contains('chernel-stale')) {
@@ -337,7 +352,8 @@ export class DiagnosticView extends DOMWidgetView {
     if (this.model.comm_live) this.touch();
   }
 
-  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null): void {
+  /** `full`: redraw everything through plotly even where a swap would do (the drag has rested). */
+  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null, full = false): void {
     if (!this.attached) return;
     let figure: Figure;
     const started = performance.now();
@@ -360,12 +376,27 @@ export class DiagnosticView extends DOMWidgetView {
       this.showMessage(null, '');
     }
     const busy = this.client?.busy ?? false;
+    const image = figure.raster ? rasterImage(figure.raster, this.el.ownerDocument) : null;
+    // A drag step whose figure keeps the frame of the one shown swaps in only its picture and
+    // title; the full redraw (hover values included) follows once the drag rests.
+    const swap = !full && outcome !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey;
+    const preview = swap ? (image ?? this.sketchImage(figure)) : null;
     const figureMs = performance.now() - started;
-    // A phase map's only shape is its current point: let the hand move it directly.
-    const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
-    void Plotly.react(this.plot, figure.data, figure.layout, config).then(() => {
+    if (this.settleTimer !== null) clearTimeout(this.settleTimer);
+    this.settleTimer = null;
+    let drawn: Promise<unknown>;
+    if (preview !== null) {
+      drawn = this.swapIn(figure, preview);
+      this.settleTimer = setTimeout(() => {
+        this.settleTimer = null;
+        // Still computing: the drag goes on, and the next result re-arms this.
+        if (!(this.client?.busy ?? false)) this.draw(result, values, outcome, true);
+      }, SETTLE_MS);
+    } else {
+      drawn = this.plotFull(figure, image);
+    }
+    void drawn.then(() => {
       if (!this.attached) return;
-      this.bindPlotEvents();
       this.plot.classList.toggle('chernel-stale', busy);
       this.statusEl.textContent = outcome
         ? `${describeValues(values, this.parameterOrder())} · engine ${outcome.computeMs.toFixed(0)} ms`
@@ -378,9 +409,46 @@ export class DiagnosticView extends DOMWidgetView {
         computeMs: outcome ? outcome.computeMs : null,
         figureMs,
         plotMs: performance.now() - started - figureMs,
+        swapped: preview !== null,
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });
+  }
+
+  /** The whole figure through plotly (traces, axes, colour bar), with its raster if it has one. */
+  private plotFull(figure: Figure, image: Partial<LayoutImage> | null): Promise<unknown> {
+    // A phase map's only shape is its current point: let the hand move it directly.
+    const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
+    const layout = { ...figure.layout, images: image === null ? [] : [image] };
+    this.drawnFrameKey = null;
+    this.sketchShown = false;
+    return Plotly.react(this.plot, figure.data, layout, config).then(() => {
+      if (!this.attached) return;
+      this.bindPlotEvents();
+      this.drawnFrameKey = figure.frameKey ?? null;
+    });
+  }
+
+  /** The figure's sketch over the plot area as plotly drew it, or null without one. */
+  private sketchImage(figure: Figure): Partial<LayoutImage> | null {
+    const area = this.plot.querySelector('.nsewdrag')?.getBoundingClientRect();
+    if (!figure.sketch || !area || area.width < 1 || area.height < 1) return null;
+    return sketchImage(figure.sketch, Math.round(area.width), Math.round(area.height));
+  }
+
+  /**
+   * Only the picture and the title, through plotly's cheap paths: a layout image is redrawn alone,
+   * and trace opacity (hiding the traces a sketch stands in for) is a style change.
+   */
+  private swapIn(figure: Figure, image: Partial<LayoutImage>): Promise<unknown> {
+    const title = (figure.layout.title as { text?: string } | undefined)?.text ?? '';
+    // Attribute-path keys are plotly's documented relayout form; its types list only nested objects.
+    const layout = { 'images[0].source': image.source, 'title.text': title } as Partial<Layout>;
+    if (figure.sketch && !this.sketchShown) {
+      this.sketchShown = true;
+      return Plotly.update(this.plot, { opacity: 0 }, { images: [image], 'title.text': title } as Partial<Layout>, figure.sketch.traces);
+    }
+    return Plotly.relayout(this.plot, layout);
   }
 
   private showMessage(level: 'error' | 'warning' | null, text: string): void {

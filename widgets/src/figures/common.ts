@@ -1,6 +1,7 @@
 /** What every figure builder returns, and helpers for reading results defensively. */
 import type { Data, Layout } from '../plotly.js';
 import type { DiagnosticResult, ModelSpecView } from '../protocol.js';
+import type { Raster, Sketch } from '../picture.js';
 import type { NumericArray } from '../wire.js';
 
 export interface FigureContext {
@@ -17,6 +18,15 @@ export interface Figure {
   /** The invariant shown, or null when withheld (gapless) or not applicable. */
   invariant: number | null;
   gapless: boolean;
+  /** A map drawn as an image under the traces (the view adds it to the layout's images). */
+  raster?: Raster;
+  /** What a drag step draws instead of some scatter traces (picture.ts). */
+  sketch?: Sketch;
+  /**
+   * Everything a redraw keeps besides the picture and the title text; when two successive figures
+   * share it, a drag step swaps only those two, and the rest is redrawn once the drag rests.
+   */
+  frameKey?: string;
 }
 
 /** Data export: named columns of numbers (CSV) next to the raw result (JSON). */
@@ -100,6 +110,12 @@ export const BASE_LAYOUT: Partial<Layout> = {
   hovermode: 'closest',
   // Keep the user's zoom and pan while a drag redraws the figure.
   uirevision: 'chernel',
+  // Tick labels never reach past our fixed margins; plotly's default overflow check measures every
+  // label on every redraw (a fifth of a curvature map's redraw).
+  template: {
+    layout: { xaxis: { ticklabeloverflow: 'allow' }, yaxis: { ticklabeloverflow: 'allow' } },
+    data: { heatmap: [{ colorbar: { ticklabeloverflow: 'allow' } }], contour: [{ colorbar: { ticklabeloverflow: 'allow' } }] },
+  },
 };
 
 /** A diverging scale (blue, white, red) with zero pinned to white by `zmid: 0`. */

@@ -6,6 +6,7 @@
 import { boundaryReduced } from '../geometry.js';
 import type { Data } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
+import type { Raster } from '../picture.js';
 import {
   BASE_LAYOUT,
   CLOSING_MARKER,
@@ -43,6 +44,9 @@ function read(result: DiagnosticResult): CurvatureData {
   const turns = (k: ArrayLike<number>) => Array.from(k, (v) => v / (2 * Math.PI));
   return { n1, n2, x1: turns(k1), x2: turns(k2), omega, chern: integerOrValue(optionalNumber(result, 'total')) };
 }
+
+/** Where the colour-bar heatmap sits: far outside any reduced-momentum axis range. */
+const OUTSIDE = 1e6;
 
 /** A lattice Chern number is an integer up to rounding; show it as one. */
 export function integerOrValue(value: number | null): number | null {
@@ -89,16 +93,37 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   const ys = cover(x2, t2, yRange, 1 / n2);
   const x = xs.map((p) => p.value);
   const y = ys.map((p) => p.value);
-  // Typed rows: plotly takes them as they are (a third of the redraw time of nested arrays).
-  const columns = Int32Array.from(xs, (col) => col.index);
-  const z: Float64Array[] = ys.map((row) => {
-    const out = new Float64Array(columns.length);
-    const base = row.index * n1;
-    for (let c = 0; c < columns.length; c++) out[c] = omega[base + columns[c]];
-    return out;
-  });
   let peak = 0;
   for (let i = 0; i < omega.length; i++) peak = Math.max(peak, Math.abs(omega[i]));
+  // The picture: bricks coloured by omega / max|omega| (top row first), drawn by the view as an
+  // image, so a drag step recolours it without a plotly replot. The colour bar is relative for the
+  // same reason; the title states max|omega|.
+  const width = xs.length;
+  const height = ys.length;
+  const relative = new Float32Array(width * height);
+  const norm = peak > 0 ? 1 / peak : 0;
+  for (let r = 0; r < height; r++) {
+    const base = ys[height - 1 - r].index * n1;
+    for (let c = 0; c < width; c++) relative[r * width + c] = omega[base + xs[c].index] * norm;
+  }
+  const dx = 1 / n1;
+  const dy = 1 / n2;
+  const raster: Raster = {
+    width,
+    height,
+    values: relative,
+    x: [x[0] - dx / 2, x[width - 1] + dx / 2],
+    y: [y[0] - dy / 2, y[height - 1] + dy / 2],
+    range: [-1, 1],
+    colorscale: DIVERGING,
+  };
+  // Hover values: an invisible heatmap over the same bricks (typed rows: plotly reads them as is).
+  const z: Float64Array[] = ys.map((row) => {
+    const out = new Float64Array(width);
+    const base = row.index * n1;
+    for (let c = 0; c < width; c++) out[c] = omega[base + xs[c].index];
+    return out;
+  });
 
   const data: Data[] = [
     {
@@ -107,13 +132,23 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
       y,
       // plotly's types list only nested arrays; its heatmap reads typed rows the same way.
       z: z as unknown as number[][],
-      zmid: 0,
-      zmin: -peak || -1,
-      zmax: peak || 1,
-      colorscale: DIVERGING,
-      colorbar: { title: { text: 'Ω [rad⁻²]' } },
-      hovertemplate: 'k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>Ω = %{z:.4g}<extra></extra>',
+      opacity: 0,
+      showscale: false,
+      hovertemplate: 'k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>Ω = %{z:.4g} rad⁻²<extra></extra>',
       name: 'Berry curvature',
+    },
+    {
+      // The colour bar, for the picture: a two-brick heatmap far outside the axis ranges.
+      type: 'heatmap',
+      x: [OUTSIDE, OUTSIDE + 1],
+      y: [OUTSIDE],
+      z: [[-1, 1]],
+      zmin: -1,
+      zmax: 1,
+      colorscale: DIVERGING,
+      colorbar: { title: { text: 'Ω / max|Ω|' } },
+      hoverinfo: 'skip',
+      name: 'colour scale',
     },
   ];
   if (corners !== null) {
@@ -146,18 +181,21 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   const unit = energyUnit(ctx.spec);
   const invariant = gapless ? null : chern;
   const head = invariant === null ? 'C withheld' : `C = ${fmt(invariant)}`;
-  const summary = `${head} · ${gapText(result, unit)}`;
+  const summary = `${head} · ${gapText(result, unit)} · max|Ω| ${fmt(peak)} rad⁻²`;
   return {
     data,
     layout: {
       ...BASE_LAYOUT,
       title: { text: `Berry curvature — ${summary}` },
-      xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false, constrain: 'domain' },
-      yaxis: { title: { text: 'k₂ [b₂]' }, range: yRange, zeroline: false, scaleanchor: 'x', constrain: 'domain' },
+      // No grid lines: they would draw over the picture (a layout image sits under them).
+      xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false, showgrid: false, constrain: 'domain' },
+      yaxis: { title: { text: 'k₂ [b₂]' }, range: yRange, zeroline: false, showgrid: false, scaleanchor: 'x', constrain: 'domain' },
     },
     summary,
     invariant,
     gapless,
+    raster,
+    frameKey: JSON.stringify([n1, n2, width, height, raster.x, raster.y, xRange, yRange, corners, gapless ? at : null]),
   };
 }
 

@@ -7,6 +7,10 @@ import type { DiagnosticResult } from '../protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, gapText, numberArray, optionalNumber, type Figure, type FigureContext, type Table } from './common.js';
 import { integerOrValue } from './curvature.js';
 
+const CENTRE_COLOUR = '#1f4e9c';
+const CENTRE_SIZE = 4;
+const GAP_COLOUR = '#c0392b';
+
 interface FlowData {
   /** Transverse momenta in units of b1 (k1 / 2pi). */
   x: number[];
@@ -62,13 +66,15 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     }
   }
   const mid = wrapBreaks(x, gapMidpoint);
+  const xRange: [number, number] = [-0.5, 0.5];
+  const yRange: [number, number] = [0, 1];
   const data: Data[] = [
     {
       type: 'scatter',
       mode: 'markers',
       x: px,
       y: py,
-      marker: { size: 4, color: '#1f4e9c' },
+      marker: { size: CENTRE_SIZE, color: CENTRE_COLOUR },
       name: 'Wannier centres',
       hovertemplate: 'k₁ = %{x:.3f} b₁<br>x̄₂ = %{y:.4f} a₂<extra></extra>',
     },
@@ -77,7 +83,7 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
       mode: 'lines',
       x: mid.x,
       y: mid.y,
-      line: { color: '#c0392b', width: 2, dash: 'dash' },
+      line: { color: GAP_COLOUR, width: 2, dash: 'dash' },
       name: 'largest gap',
       connectgaps: false,
       hovertemplate: 'largest-gap midpoint<br>k₁ = %{x:.3f}, x̄₂ = %{y:.4f}<extra></extra>',
@@ -102,13 +108,21 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     layout: {
       ...BASE_LAYOUT,
       title: { text: `Wannier-centre flow — ${summary}` },
-      xaxis: { title: { text: 'k₁ [b₁]' }, range: [-0.5, 0.5], zeroline: false },
-      yaxis: { title: { text: 'Wannier centre x̄₂ [a₂]' }, range: [0, 1], zeroline: false },
+      xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false },
+      yaxis: { title: { text: 'Wannier centre x̄₂ [a₂]' }, range: yRange, zeroline: false },
       legend: { orientation: 'h', x: 0, y: -0.18 },
     },
     summary,
     invariant,
     gapless,
+    sketch: {
+      x: xRange,
+      y: yRange,
+      traces: [0, 1],
+      dots: [{ x: px, y: py, colour: CENTRE_COLOUR, size: CENTRE_SIZE }],
+      lines: [{ x: mid.x, y: mid.y, colour: GAP_COLOUR, width: 2, dashed: true }],
+    },
+    frameKey: JSON.stringify([x.length, m, z2 !== null || 'z2' in result]),
   };
 }
 

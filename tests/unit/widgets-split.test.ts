@@ -1,0 +1,50 @@
+// Sharing one widget request among engine workers: each part computed by the worker's own code path
+// (widgets/src/diagnose.ts), joined by the plan, must equal the request computed whole. Models:
+// Qi, Wu, Zhang, PRB 74, 085308 (2006) (C = +1 for -2 < u < 0); Kane & Mele, PRL 95, 226801 (2005).
+import { describe, expect, it } from 'vitest';
+import { kaneMele, qwz } from '../../src/index.js';
+import { diagnose } from '../../widgets/src/diagnose.js';
+import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
+import { engineWorkers, splitPlan } from '../../widgets/src/split.js';
+
+function request(kind: DiagnosticRequest['kind'], spec: ReturnType<typeof qwz>, options: Record<string, unknown>, values: Record<string, number> = {}): DiagnosticRequest {
+  const params = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...values };
+  return { ...options, kind, model: spec, params } as DiagnosticRequest;
+}
+
+function viaParts(r: DiagnosticRequest, workers: number) {
+  const plan = splitPlan(workers);
+  const count = plan.parts(r);
+  const parts = Array.from({ length: count }, (_, i) => structuredClone(diagnose(plan.partRequest(r, i, count))));
+  return { count, joined: count === 1 ? parts[0] : plan.join(r, parts) };
+}
+
+describe('split plan', () => {
+  it('a curvature map in parts joins into the whole map (values exactly, same Chern number)', () => {
+    const r = request('curvature', qwz(), { grid: 40, bands: 1 }, { u: -1 });
+    const { count, joined } = viaParts(r, 4);
+    expect(count).toBe(4);
+    const whole = diagnose(r);
+    expect(joined).toEqual(whole);
+    expect(whole.total).toBeCloseTo(1, 9);
+  });
+
+  it('a Wannier-centre flow in parts joins into the whole flow', () => {
+    const r = request('wannier-flow', kaneMele(), { grid: [33, 33], bands: 2 });
+    const { count, joined } = viaParts(r, 3);
+    expect(count).toBe(3);
+    expect(joined).toEqual(diagnose(r));
+  });
+
+  it('goes whole where splitting does not pay or does not apply', () => {
+    const plan = splitPlan(4);
+    expect(plan.parts(request('curvature', qwz(), { grid: 12 }))).toBe(1); // 12 rows: under 8 per part for two
+    expect(plan.parts(request('curvature', qwz(), { grid: 20 }))).toBe(2);
+    expect(plan.parts(request('curvature', qwz(), {}))).toBe(4); // default grid 64
+    expect(plan.parts(request('wannier-flow', kaneMele(), { grid: [101, 101], invariant: 'z2' }))).toBe(1);
+    expect(plan.parts(request('bands', qwz(), {}))).toBe(1);
+    expect(engineWorkers(1)).toBe(1);
+    expect(engineWorkers(2)).toBe(2);
+    expect(engineWorkers(16)).toBe(4);
+  });
+});

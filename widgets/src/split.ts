@@ -1,0 +1,37 @@
+/**
+ * How a view shares one request among several engine workers: a curvature map by rows, a
+ * Wannier-centre flow by across-momenta, each worker computing one part (the engine's `part`
+ * option), joined here by the engine's own join (src/topology/parts.ts: a light module, no model
+ * compilation), which reproduces the unsplit result exactly. Other requests go whole to one worker.
+ */
+import { joinParts, type DiagnosticPart } from '../../src/topology/parts.js';
+import type { SplitPlan } from './compute-client.js';
+import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
+
+/** The engine's default grid for these kinds (src/topology/curvature.ts, wilson.ts). */
+const DEFAULT_GRID = 64;
+/** Fewer rows per part than this: splitting costs more (the extra edge row, the messages) than it saves. */
+const MIN_ROWS_PER_PART = 8;
+
+/** Workers per view: the cores the browser reports, at most four. */
+export function engineWorkers(cores = globalThis.navigator?.hardwareConcurrency ?? 1): number {
+  return Math.min(4, Math.max(1, Math.floor(cores)));
+}
+
+function rowsOf(request: DiagnosticRequest): number {
+  const grid = request.grid;
+  if (typeof grid === 'number') return grid;
+  if (Array.isArray(grid) && grid.every((n) => typeof n === 'number')) return Math.min(...(grid as number[]));
+  return DEFAULT_GRID;
+}
+
+export function splitPlan(workers: number): SplitPlan {
+  return {
+    parts(request) {
+      const splittable = request.kind === 'curvature' || (request.kind === 'wannier-flow' && request.invariant !== 'z2');
+      return splittable ? Math.max(1, Math.min(workers, Math.floor(rowsOf(request) / MIN_ROWS_PER_PART))) : 1;
+    },
+    partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
+    join: (_request, parts) => joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult,
+  };
+}
