@@ -45,8 +45,8 @@ function checkArray(name: string, x: ArrayLike<number>, offset: number, needed: 
 export class HermitianEigensolver {
   readonly n: number;
   /**
-   * Working copy of the upper triangle; after the reduction, row k holds reflector k. It, p and y
-   * are views on the SIMD kernels' memory (shared in the thread, valid during a call of ours).
+   * Working copy of the upper triangle; after the reduction, row k holds reflector k. It and y are
+   * views on the SIMD kernels' memory (shared in the thread, valid during a call of ours).
    */
   private a: Float64Array;
   /** Reflector k is I - beta[k] u u^dagger (beta 0: no reflector). */
@@ -60,10 +60,12 @@ export class HermitianEigensolver {
   private readonly z: Float64Array;
   private readonly cs: Float64Array;
   private readonly sn: Float64Array;
-  /** Complex scratch vector, and the eigenvectors (one per row) during the back-transformation. */
-  private p: Float64Array;
+  /** The eigenvectors (one per row) during the back-transformation. */
   private y: Float64Array;
-  /** The WebAssembly SIMD kernels, and the byte offsets of y and p in their memory (a is at 0). */
+  /**
+   * The WebAssembly SIMD kernels, and the byte offsets in their memory of y and of p, the
+   * reduction's complex scratch vector (a is at 0).
+   */
   private readonly simd: SimdKernels;
   private readonly yAt: number;
   private readonly pAt: number;
@@ -87,7 +89,6 @@ export class HermitianEigensolver {
     this.z = new Float64Array(n * n);
     this.cs = new Float64Array(n);
     this.sn = new Float64Array(n);
-    this.p = new Float64Array(memory, this.pAt, 2 * n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     this.order = new Int32Array(n);
     this.divide = n > LEAF ? new TridiagonalDivideConquer(n) : null;
@@ -202,7 +203,6 @@ export class HermitianEigensolver {
       const memory = simdMemory(this.pAt + 16 * n);
       this.a = new Float64Array(memory, 0, 2 * n * n);
       this.y = new Float64Array(memory, this.yAt, 2 * n * n);
-      this.p = new Float64Array(memory, this.pAt, 2 * n);
     }
     const a = this.a;
     // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
@@ -282,7 +282,6 @@ export class HermitianEigensolver {
   private reduce(forVectors: boolean): void {
     const n = this.n;
     const a = this.a;
-    const p = this.p;
     const off = this.off;
     const betas = this.beta;
     for (let k = 0; k < n - 2; k++) {
@@ -310,21 +309,12 @@ export class HermitianEigensolver {
       a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
       a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
       for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
-      // p = beta B u, B the trailing block (upper triangle stored).
-      for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] = 0;
+      // p = B u, B the trailing block (upper triangle stored); then B <- P B P (SIMD kernels).
       const block = 16 * ((k + 1) * n + k + 1);
       const u = 16 * (k * n + k + 1);
       const m = n - k - 1;
       this.simd.hermitianTimes(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
-      // q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger.
-      let upr = 0;
-      for (let j = 2 * (k + 1); j < 2 * n; j++) {
-        p[j] *= beta;
-        upr += a[base + j] * p[j];
-      }
-      const kk = 0.5 * beta * upr;
-      for (let j = 2 * (k + 1); j < 2 * n; j++) p[j] -= kk * a[base + j];
-      this.simd.hermitianRank2(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
+      this.simd.householderUpdate(block, 16 * n, u, this.pAt + 16 * (k + 1), m, beta);
     }
     // The last subdiagonal entry needs no reflector.
     const last = 2 * ((n - 2) * n + n - 1);

@@ -30,10 +30,10 @@ interface WasmApi {
 export interface SimdKernels {
   /** Vectors y_c (count of them, stride bytes apart, len complex entries) times P_v P_u. */
   reflectPair(u: number, v: number, y: number, len: number, count: number, stride: number, betaU: number, betaV: number): void;
-  /** p += B w over an m x m Hermitian block B stored in its upper triangle (rows stride bytes apart). */
+  /** p = B w over an m x m Hermitian block B stored in its upper triangle (rows stride bytes apart). */
   hermitianTimes(b: number, stride: number, w: number, p: number, m: number): void;
-  /** B -= u q^dagger + q u^dagger on the upper triangle of the m x m block B. */
-  hermitianRank2(b: number, stride: number, u: number, q: number, m: number): void;
+  /** With p = beta B u on entry: q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger. */
+  householderUpdate(b: number, stride: number, u: number, p: number, m: number, beta: number): void;
 }
 
 // --- the emitter -------------------------------------------------------------------------------
@@ -249,7 +249,7 @@ function reflectPair(): Body {
 }
 
 /**
- * hermitianTimes(b, stride, w, p, m): p += B w, B the m x m Hermitian block at b (row i at
+ * hermitianTimes(b, stride, w, p, m): p = B w, B the m x m Hermitian block at b (row i at
  * b + i stride, entry j at +16 j), only its upper triangle and the real part of its diagonal read.
  */
 function hermitianTimes(): Body {
@@ -263,6 +263,10 @@ function hermitianTimes(): Body {
   const bii = f.local(F64);
   const wi = f.local(V128);
   f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
+  f.forBytes(i, iEnd, 16, () => {
+    f.get(p).get(i).add().vzero().vstore();
+  });
+  f.i32(0).set(i);
   f.get(b).set(row);
   f.forBytes(i, iEnd, 16, () => {
     // w_i, and (wr, -wr), (wi, wi) for conj(B_ij) w_i = B_ij (wr, -wr) + swap(B_ij) (wi, wi).
@@ -296,16 +300,35 @@ function hermitianTimes(): Body {
   return f;
 }
 
-/** hermitianRank2(b, stride, u, q, m): B_ij -= u_i conj(q_j) + q_i conj(u_j) for j >= i. */
-function hermitianRank2(): Body {
-  const [b, stride, u, q, m] = [0, 1, 2, 3, 4];
-  const f = new Body([I32, I32, I32, I32, I32]);
+/**
+ * householderUpdate(b, stride, u, q, m, beta): with q = beta B u on entry (B the block at b as in
+ * hermitianTimes, u the reflector), q -= (beta/2)(u^dagger q) u, then B_ij -= u_i conj(q_j) +
+ * q_i conj(u_j) for j >= i: B becomes P B P with P = I - beta u u^dagger.
+ */
+function householderUpdate(): Body {
+  const [b, stride, u, q, m, beta] = [0, 1, 2, 3, 4, 5];
+  const f = new Body([I32, I32, I32, I32, I32, F64]);
   const i = f.local(I32);
   const iEnd = f.local(I32);
   const row = f.local(I32);
   const j = f.local(I32);
   const [c1, c2, c3, c4, ui, qi, uu, qq] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
   f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
+  // q *= beta, and Re(u^dagger q) = sum of both lanes of u * q.
+  f.get(beta).splat().set(c1).vzero().set(c2);
+  f.forBytes(i, iEnd, 16, () => {
+    f.get(q).get(i).add().vload().get(c1).vmul().set(qq);
+    f.get(q).get(i).add().get(qq).vstore();
+    f.get(u).get(i).add().vload().get(qq).accumulate(c2);
+  });
+  f.get(c2).lane(0).get(c2).lane(1).fadd().get(beta).f64(0.5).fmul().fmul().splat().set(c1);
+  f.i32(0).set(i);
+  f.forBytes(i, iEnd, 16, () => {
+    f.get(q).get(i).add();
+    f.get(q).get(i).add().vload().get(u).get(i).add().vload().get(c1).vmul().vsub();
+    f.vstore();
+  });
+  f.i32(0).set(i);
   f.get(b).set(row);
   f.forBytes(i, iEnd, 16, () => {
     // u_i conj(q_j) = q_j (uir, -uir) + swap(q_j) (uii, uii); likewise q_i conj(u_j).
@@ -336,7 +359,7 @@ function moduleBytes(): Uint8Array {
   const kernels: [string, Body][] = [
     ['reflectPair', reflectPair()],
     ['hermitianTimes', hermitianTimes()],
-    ['hermitianRank2', hermitianRank2()],
+    ['householderUpdate', householderUpdate()],
   ];
   const types = kernels.map(([, f]) => [0x60, ...vec(f.params.map((t) => [t])), 0]);
   const bytes = [
