@@ -10,9 +10,10 @@
  * Working Note 89, 1994), safeguarded by bisection. Small blocks go to implicit QL.
  *
  * Most of the work is the product of the halves' eigenvectors with the merge's eigenvectors, a
- * real matrix product (about 4/3 n^3 flops in all, less after deflation), against about 3 n^3 for
- * QL with rotations accumulated.
+ * real matrix product (about 4/3 n^3 flops in all, less after deflation, against about 3 n^3 for
+ * QL with rotations accumulated), run by a WebAssembly SIMD kernel (`simd.ts`).
  */
+import { simdKernels, simdMemory, type SimdKernels } from './simd.js';
 import { tridiagonalQL } from './tridiagonal.js';
 
 const EPS = 2 ** -52;
@@ -30,9 +31,18 @@ export class TridiagonalDivideConquer {
   private readonly zs: Float64Array;
   private readonly perm: Int32Array;
   private readonly kind: Int8Array;
-  /** The merge's eigenvectors of the halves, sorted by pole (s x s), and the non-deflated ones compacted (s x k). */
+  /** The merge's eigenvectors of the halves, sorted by pole (s x s). */
   private readonly qc: Float64Array;
-  private readonly qk: Float64Array;
+  /**
+   * The product's operands in the SIMD kernels' memory (from byte `at`; views remade when that
+   * memory has grown): kept columns of the halves' eigenvectors (rows x kept), the matching rows
+   * of the merge's eigenvectors (kept x roots, padded to a multiple of 4), and their product.
+   */
+  private readonly simd: SimdKernels;
+  private readonly at: number;
+  private pa: Float64Array;
+  private pb: Float64Array;
+  private pc: Float64Array;
   /** Non-deflated poles: their column in qc, value, z and z-hat; deflated ones: column, sorted by value. */
   private readonly keep: Int32Array;
   private readonly dd: Float64Array;
@@ -56,14 +66,23 @@ export class TridiagonalDivideConquer {
   private readonly cs: Float64Array;
   private readonly sn: Float64Array;
 
-  constructor(n: number) {
+  /** The bytes of SIMD memory a solver of size n uses (from the `at` given to its constructor). */
+  static simdBytes(n: number): number {
+    return 3 * 8 * n * (n + 4);
+  }
+
+  /** `at`: a byte offset (a multiple of 16) in the SIMD kernels' memory, reserved for this solver. */
+  constructor(n: number, at: number) {
     this.n = n;
+    this.simd = simdKernels();
+    this.at = at;
+    this.pa = this.pb = this.pc = new Float64Array(0);
+    this.views();
     this.ds = new Float64Array(n);
     this.zs = new Float64Array(n);
     this.perm = new Int32Array(n);
     this.kind = new Int8Array(n);
     this.qc = new Float64Array(n * n);
-    this.qk = new Float64Array(n * n);
     this.keep = new Int32Array(n);
     this.dd = new Float64Array(n);
     this.zz = new Float64Array(n);
@@ -90,7 +109,16 @@ export class TridiagonalDivideConquer {
    * destroyed. Returns false if a QL block failed to converge.
    */
   solve(d: Float64Array, e: Float64Array, z: Float64Array): boolean {
+    if (this.pa.length === 0) this.views();
     return this.block(d, e, z, 0, this.n);
+  }
+
+  private views(): void {
+    const size = this.n * (this.n + 4);
+    const memory = simdMemory(this.at + 24 * size);
+    this.pa = new Float64Array(memory, this.at, size);
+    this.pb = new Float64Array(memory, this.at + 8 * size, size);
+    this.pc = new Float64Array(memory, this.at + 16 * size, size);
   }
 
   private block(d: Float64Array, e: Float64Array, z: Float64Array, o: number, s: number): boolean {
@@ -382,9 +410,8 @@ export class TridiagonalDivideConquer {
       const inv = 1 / Math.sqrt(norm);
       for (let j = 0; j < k; j++) uc[j * k + i] = dm[row + j] * inv;
     }
-    // Compact the kept columns; a column lives in the top rows, the bottom rows, or both.
-    const qc = this.qc;
-    const qk = this.qk;
+    // A kept column lives in the top rows, the bottom rows, or both: two products, each over the
+    // columns present in its rows.
     const keep = this.keep;
     const kind = this.kind;
     const top = this.top;
@@ -396,78 +423,40 @@ export class TridiagonalDivideConquer {
       if (t !== 3) top[nt++] = j;
       if (t !== 1) bottom[nb++] = j;
     }
-    for (let r = 0; r < s; r++) {
-      for (let j = 0; j < k; j++) qk[r * k + j] = qc[r * s + keep[j]];
-    }
-    this.product(z, o, 0, m, k, top, nt);
-    this.product(z, o, m, s, k, bottom, nb);
+    this.product(z, o, s, 0, m, k, top, nt);
+    this.product(z, o, s, m, s, k, bottom, nb);
   }
 
   /**
-   * z[o + r][o + pos[i]] = sum over j in list of qk[r][j] uc[j][i], rows r0..r1: 2 rows by 4 roots
-   * per register tile.
+   * z[o + r][o + pos[i]] = sum over j in list of qc[r][keep[j]] uc[j][i] for rows r0..r1: the
+   * operands gathered into the SIMD memory, multiplied there, the result scattered to z.
    */
-  private product(z: Float64Array, o: number, r0: number, r1: number, k: number, list: Int32Array, len: number): void {
+  private product(z: Float64Array, o: number, s: number, r0: number, r1: number, k: number, list: Int32Array, len: number): void {
     const n = this.n;
-    const qk = this.qk;
+    const qc = this.qc;
     const uc = this.uc;
+    const keep = this.keep;
     const pos = this.pos;
-    let r = r0;
-    for (; r + 1 < r1; r += 2) {
-      const a0 = r * k;
-      const a1 = a0 + k;
-      const z0 = (o + r) * n + o;
-      const z1 = z0 + n;
-      let i = 0;
-      for (; i + 3 < k; i += 4) {
-        let c00 = 0, c01 = 0, c02 = 0, c03 = 0, c10 = 0, c11 = 0, c12 = 0, c13 = 0;
-        for (let p = 0; p < len; p++) {
-          const j = list[p];
-          const x0 = qk[a0 + j];
-          const x1 = qk[a1 + j];
-          const b = j * k + i;
-          const u0 = uc[b], u1 = uc[b + 1], u2 = uc[b + 2], u3 = uc[b + 3];
-          c00 += x0 * u0;
-          c01 += x0 * u1;
-          c02 += x0 * u2;
-          c03 += x0 * u3;
-          c10 += x1 * u0;
-          c11 += x1 * u1;
-          c12 += x1 * u2;
-          c13 += x1 * u3;
-        }
-        z[z0 + pos[i]] = c00;
-        z[z0 + pos[i + 1]] = c01;
-        z[z0 + pos[i + 2]] = c02;
-        z[z0 + pos[i + 3]] = c03;
-        z[z1 + pos[i]] = c10;
-        z[z1 + pos[i + 1]] = c11;
-        z[z1 + pos[i + 2]] = c12;
-        z[z1 + pos[i + 3]] = c13;
-      }
-      for (; i < k; i++) {
-        let c0 = 0, c1 = 0;
-        for (let p = 0; p < len; p++) {
-          const j = list[p];
-          const u = uc[j * k + i];
-          c0 += qk[a0 + j] * u;
-          c1 += qk[a1 + j] * u;
-        }
-        z[z0 + pos[i]] = c0;
-        z[z1 + pos[i]] = c1;
-      }
+    const pa = this.pa;
+    const pb = this.pb;
+    const pc = this.pc;
+    const rows = r1 - r0;
+    const cols = (k + 3) & ~3;
+    for (let r = 0; r < rows; r++) {
+      const from = (r0 + r) * s;
+      for (let p = 0; p < len; p++) pa[r * len + p] = qc[from + keep[list[p]]];
     }
-    for (; r < r1; r++) {
-      const a0 = r * k;
-      const z0 = (o + r) * n + o;
-      for (let i = 0; i < k; i++) {
-        let c0 = 0;
-        for (let p = 0; p < len; p++) {
-          const j = list[p];
-          c0 += qk[a0 + j] * uc[j * k + i];
-        }
-        z[z0 + pos[i]] = c0;
-      }
+    for (let p = 0; p < len; p++) {
+      const from = list[p] * k;
+      const to = p * cols;
+      for (let i = 0; i < k; i++) pb[to + i] = uc[from + i];
+      for (let i = k; i < cols; i++) pb[to + i] = 0;
+    }
+    this.simd.realProduct(this.at, this.at + 8 * pa.length, this.at + 16 * pa.length, rows, len, cols);
+    for (let r = 0; r < rows; r++) {
+      const out = (o + r0 + r) * n + o;
+      const from = r * cols;
+      for (let i = 0; i < k; i++) z[out + pos[i]] = pc[from + i];
     }
   }
 }

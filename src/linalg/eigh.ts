@@ -67,6 +67,7 @@ export class HermitianEigensolver {
    * reduction's complex scratch vector (a is at 0).
    */
   private readonly simd: SimdKernels;
+  private readonly simdBytes: number;
   private readonly yAt: number;
   private readonly pAt: number;
   private readonly order: Int32Array;
@@ -79,7 +80,10 @@ export class HermitianEigensolver {
     this.simd = simdKernels();
     this.yAt = 16 * n * n;
     this.pAt = 32 * n * n;
-    const memory = simdMemory(this.pAt + 16 * n);
+    // Our part of the SIMD memory, then the divide and conquer's: all reserved now, so that the
+    // memory never grows in the middle of a solve (which would detach the views).
+    this.simdBytes = this.pAt + 16 * n + (n > LEAF ? TridiagonalDivideConquer.simdBytes(n) : 0);
+    const memory = simdMemory(this.simdBytes);
     this.a = new Float64Array(memory, 0, 2 * n * n);
     this.beta = new Float64Array(n);
     this.off = new Float64Array(2 * n);
@@ -91,7 +95,7 @@ export class HermitianEigensolver {
     this.sn = new Float64Array(n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     this.order = new Int32Array(n);
-    this.divide = n > LEAF ? new TridiagonalDivideConquer(n) : null;
+    this.divide = n > LEAF ? new TridiagonalDivideConquer(n, this.pAt + 16 * n) : null;
   }
 
   /**
@@ -200,7 +204,7 @@ export class HermitianEigensolver {
     const n = this.n;
     if (this.a.length === 0) {
       // Another solver grew the shared memory: views on the old buffer are detached (length 0).
-      const memory = simdMemory(this.pAt + 16 * n);
+      const memory = simdMemory(this.simdBytes);
       this.a = new Float64Array(memory, 0, 2 * n * n);
       this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     }

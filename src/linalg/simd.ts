@@ -34,6 +34,8 @@ export interface SimdKernels {
   hermitianTimes(b: number, stride: number, w: number, p: number, m: number): void;
   /** With p = beta B u on entry: q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger. */
   householderUpdate(b: number, stride: number, u: number, p: number, m: number, beta: number): void;
+  /** Real C = A B, row-major and contiguous: A m x k, B k x cols, C m x cols; cols a multiple of 4. */
+  realProduct(a: number, b: number, c: number, m: number, k: number, cols: number): void;
 }
 
 // --- the emitter -------------------------------------------------------------------------------
@@ -115,10 +117,10 @@ class Body {
   fadd(): this { return this.op(0xa0); }
   fsub(): this { return this.op(0xa1); }
   fmul(): this { return this.op(0xa2); }
-  fload(): this { return this.op(0x2b, 3, 0); }
+  fload(offset = 0): this { return this.op(0x2b, 3, ...uleb(offset)); }
   // v128 / f64x2
-  vload(): this { return this.simd(0x00, 4, 0); }
-  vstore(): this { return this.simd(0x0b, 4, 0); }
+  vload(offset = 0): this { return this.simd(0x00, 4, ...uleb(offset)); }
+  vstore(offset = 0): this { return this.simd(0x0b, 4, ...uleb(offset)); }
   /** The v128 local l with its lanes swapped (a shuffle of l with itself). */
   swapped(l: number): this { return this.get(l).get(l).simd(0x0d, ...SWAP); }
   splat(): this { return this.simd(0x14); }
@@ -355,11 +357,81 @@ function householderUpdate(): Body {
   return f;
 }
 
+/**
+ * realProduct(a, b, c, m, k, cols): C = A B for real row-major matrices (A m x k, B k x cols,
+ * C m x cols, cols a multiple of 4). Register tile: 4 rows of C by 4 columns (8 f64x2
+ * accumulators); leftover rows one at a time.
+ */
+function realProduct(): Body {
+  const [a, b, c, m, k, cols] = [0, 1, 2, 3, 4, 5];
+  const f = new Body([I32, I32, I32, I32, I32, I32]);
+  const rowA = f.local(I32);
+  const rowC = f.local(I32);
+  const row = f.local(I32);
+  const rowEnd = f.local(I32);
+  const col = f.local(I32);
+  const colEnd = f.local(I32);
+  const pa = f.local(I32);
+  const paEnd = f.local(I32);
+  const pb = f.local(I32);
+  const x = f.local(V128);
+  const b0 = f.local(V128);
+  const b1 = f.local(V128);
+  const acc = Array.from({ length: 8 }, () => f.local(V128));
+  f.get(k).i32(8).mul().set(rowA);
+  f.get(cols).i32(8).mul().set(rowC);
+  f.get(rowC).set(colEnd);
+  // Rows in fours while four remain: row counts rows of A (bytes of A walked: row * rowA).
+  const tile = (rows: number): void => {
+    f.i32(0).set(col);
+    f.forBytes(col, colEnd, 32, () => {
+      for (let t = 0; t < 2 * rows; t++) f.vzero().set(acc[t]);
+      f.get(a).get(row).get(rowA).mul().add().set(pa);
+      f.get(pa).get(rowA).add().set(paEnd);
+      f.get(b).get(col).add().set(pb);
+      f.forBytes(pa, paEnd, 8, () => {
+        f.get(pb).vload().set(b0);
+        f.get(pb).vload(16).set(b1);
+        for (let t = 0; t < rows; t++) {
+          // A[row + t][.] is rowA bytes below A[row][.]: address pa + t rowA.
+          f.get(pa);
+          if (t > 0) f.get(rowA).i32(t).mul().add();
+          f.fload().splat().set(x);
+          f.get(x).get(b0).accumulate(acc[2 * t]);
+          f.get(x).get(b1).accumulate(acc[2 * t + 1]);
+        }
+        f.get(pb).get(rowC).add().set(pb);
+      });
+      for (let t = 0; t < rows; t++) {
+        f.get(c).get(row).i32(t).add().get(rowC).mul().add().get(col).add().set(pb);
+        f.get(pb).get(acc[2 * t]).vstore();
+        f.get(pb).get(acc[2 * t + 1]).vstore(16);
+      }
+    });
+  };
+  f.i32(0).set(row);
+  f.get(m).i32(3).sub().set(rowEnd);
+  // while (row < m - 3): 4-row tiles (signed compare: m - 3 may be negative).
+  f.op(0x02, 0x40, 0x03, 0x40);
+  f.get(row).get(rowEnd).op(0x4e).op(0x0d, 1); // row >= m - 3 (signed): leave
+  tile(4);
+  f.get(row).i32(4).add().set(row);
+  f.op(0x0c, 0, 0x0b, 0x0b);
+  f.get(m).set(rowEnd);
+  f.op(0x02, 0x40, 0x03, 0x40);
+  f.get(row).get(rowEnd).op(0x4e).op(0x0d, 1);
+  tile(1);
+  f.get(row).i32(1).add().set(row);
+  f.op(0x0c, 0, 0x0b, 0x0b);
+  return f;
+}
+
 function moduleBytes(): Uint8Array {
   const kernels: [string, Body][] = [
     ['reflectPair', reflectPair()],
     ['hermitianTimes', hermitianTimes()],
     ['householderUpdate', householderUpdate()],
+    ['realProduct', realProduct()],
   ];
   const types = kernels.map(([, f]) => [0x60, ...vec(f.params.map((t) => [t])), 0]);
   const bytes = [
