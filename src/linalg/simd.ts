@@ -467,6 +467,12 @@ export function simdKernels(): SimdKernels {
 export function simdMemory(bytes: number): ArrayBuffer {
   const memory = instance().memory;
   const short = bytes - memory.buffer.byteLength;
-  if (short > 0) memory.grow(Math.ceil(short / PAGE));
+  if (short > 0) {
+    try {
+      memory.grow(Math.ceil(short / PAGE));
+    } catch {
+      throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
+    }
+  }
   return memory.buffer;
 }
