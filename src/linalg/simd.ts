@@ -189,64 +189,93 @@ function reflectPair(): Body {
   const jEnd = f.local(I32);
   const yEnd = f.local(I32);
   const row = f.local(I32);
-  const [pu, qu, pv, qv] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  const step = f.local(I32);
   const [cr, ci, ar, ai, br, bi] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
-  const [a1, a2, b1, b2] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
   const uu = f.local(V128);
   const vv = f.local(V128);
-  const yy = f.local(V128);
+  const su = f.local(V128);
+  const sv = f.local(V128);
+  const ys = [f.local(V128), f.local(V128)];
+  const sy = f.local(V128);
+  // Per vector t: the four dot accumulators, then the four update coefficients (same registers).
+  const acc = [0, 1].map(() => [f.local(V128), f.local(V128), f.local(V128), f.local(V128)]);
   // c = v^dagger u: accumulate v*u = (vr ur, vi ui) and v*swap(u) = (vr ui, vi ur).
-  f.vzero().set(pu).vzero().set(qu);
+  const [pc, qc] = acc[0];
+  f.vzero().set(pc).vzero().set(qc);
   f.i32(0).set(j).get(len).i32(16).mul().set(jEnd);
   f.forBytes(j, jEnd, 16, () => {
     f.get(v).get(j).add().vload().set(vv);
     f.get(u).get(j).add().vload().set(uu);
-    f.get(vv).get(uu).accumulate(pu);
-    f.get(vv).swapped(uu).accumulate(qu);
+    f.get(vv).get(uu).accumulate(pc);
+    f.get(vv).swapped(uu).accumulate(qc);
   });
-  f.get(pu).lane(0).get(pu).lane(1).fadd().set(cr);
-  f.get(qu).lane(0).get(qu).lane(1).fsub().set(ci);
-  // Loop over the vectors.
+  f.get(pc).lane(0).get(pc).lane(1).fadd().set(cr);
+  f.get(qc).lane(0).get(qc).lane(1).fsub().set(ci);
+  /** The vectors at row, row + stride, ... (nv of them): dots, coefficients, update. */
+  const group = (nv: number): void => {
+    for (let t = 0; t < nv; t++) for (const x of acc[t]) f.vzero().set(x);
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(v).get(j).add().vload().set(vv);
+      for (let t = 0; t < nv; t++) {
+        const [pu, qu, pv, qv] = acc[t];
+        f.get(row).get(j).add();
+        if (t > 0) f.get(stride).add();
+        f.vload().set(ys[t]);
+        f.get(uu).get(ys[t]).accumulate(pu);
+        f.get(vv).get(ys[t]).accumulate(pv);
+        f.swapped(ys[t]).set(sy);
+        f.get(uu).get(sy).accumulate(qu);
+        f.get(vv).get(sy).accumulate(qv);
+      }
+    });
+    for (let t = 0; t < nv; t++) {
+      const [pu, qu, pv, qv] = acc[t];
+      // a = bu u^dagger y; b = bv (v^dagger y - a c).
+      f.get(pu).lane(0).get(pu).lane(1).fadd().get(bu).fmul().set(ar);
+      f.get(qu).lane(0).get(qu).lane(1).fsub().get(bu).fmul().set(ai);
+      f.get(pv).lane(0).get(pv).lane(1).fadd();
+      f.get(ar).get(cr).fmul().get(ai).get(ci).fmul().fsub().fsub().get(bv).fmul().set(br);
+      f.get(qv).lane(0).get(qv).lane(1).fsub();
+      f.get(ar).get(ci).fmul().get(ai).get(cr).fmul().fadd().fsub().get(bv).fmul().set(bi);
+      // a u = ar (ur, ui) + (-ai, ai) (ui, ur), likewise b v: coefficients into the accumulators.
+      f.get(ar).splat().set(pu);
+      f.get(ai).op(0x9a).plusMinus().set(qu);
+      f.get(br).splat().set(pv);
+      f.get(bi).op(0x9a).plusMinus().set(qv);
+    }
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(v).get(j).add().vload().set(vv);
+      f.swapped(uu).set(su);
+      f.swapped(vv).set(sv);
+      for (let t = 0; t < nv; t++) {
+        const [a1, a2, b1, b2] = acc[t];
+        f.get(row).get(j).add();
+        if (t > 0) f.get(stride).add();
+        f.set(step); // the address, kept for the store
+        f.get(step);
+        f.get(step).vload();
+        f.get(a1).get(uu).vmul().vsub();
+        f.get(a2).get(su).vmul().vsub();
+        f.get(b1).get(vv).vmul().vsub();
+        f.get(b2).get(sv).vmul().vsub();
+        f.vstore();
+      }
+    });
+  };
+  // Pairs of vectors, then the odd one.
   f.get(y).set(row);
-  f.get(y).get(count).get(stride).mul().add().set(yEnd);
+  f.get(y).get(count).i32(-2).op(0x71).get(stride).mul().add().set(yEnd);
   f.forBytes(row, yEnd, [stride], () => {
-    f.vzero().set(pu).vzero().set(qu).vzero().set(pv).vzero().set(qv);
-    f.i32(0).set(j);
-    f.forBytes(j, jEnd, 16, () => {
-      f.get(row).get(j).add().vload().set(yy);
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(v).get(j).add().vload().set(vv);
-      f.get(uu).get(yy).accumulate(pu);
-      f.get(vv).get(yy).accumulate(pv);
-      f.swapped(yy).set(yy);
-      f.get(uu).get(yy).accumulate(qu);
-      f.get(vv).get(yy).accumulate(qv);
-    });
-    // a = bu u^dagger y; b = bv (v^dagger y - a c).
-    f.get(pu).lane(0).get(pu).lane(1).fadd().get(bu).fmul().set(ar);
-    f.get(qu).lane(0).get(qu).lane(1).fsub().get(bu).fmul().set(ai);
-    f.get(pv).lane(0).get(pv).lane(1).fadd();
-    f.get(ar).get(cr).fmul().get(ai).get(ci).fmul().fsub().fsub().get(bv).fmul().set(br);
-    f.get(qv).lane(0).get(qv).lane(1).fsub();
-    f.get(ar).get(ci).fmul().get(ai).get(cr).fmul().fadd().fsub().get(bv).fmul().set(bi);
-    // a u = ar (ur, ui) + (-ai, ai) (ui, ur).
-    f.get(ar).splat().set(a1);
-    f.get(ai).op(0x9a).plusMinus().set(a2);
-    f.get(br).splat().set(b1);
-    f.get(bi).op(0x9a).plusMinus().set(b2);
-    f.i32(0).set(j);
-    f.forBytes(j, jEnd, 16, () => {
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(v).get(j).add().vload().set(vv);
-      f.get(row).get(j).add(); // store address
-      f.get(row).get(j).add().vload();
-      f.get(a1).get(uu).vmul().vsub();
-      f.get(a2).swapped(uu).vmul().vsub();
-      f.get(b1).get(vv).vmul().vsub();
-      f.get(b2).swapped(vv).vmul().vsub();
-      f.vstore();
-    });
+    group(2);
+    f.get(row).get(stride).add().set(row);
   });
+  f.get(count).i32(1).op(0x71).op(0x04, 0x40);
+  group(1);
+  f.op(0x0b);
   return f;
 }
 
