@@ -49,11 +49,10 @@ export class TridiagonalDivideConquer {
   private readonly zz: Float64Array;
   private readonly zh: Float64Array;
   private readonly gone: Int32Array;
-  /** Roots: origin pole and offset; dm[i k + j] = dd[j] - lambda_i; uc[j k + i] the merge eigenvectors. */
+  /** Roots: origin pole and offset; dm[i k + j] = dd[j] - lambda_i, then the merge's eigenvectors (row i: root i). */
   private readonly org: Int32Array;
   private readonly tau: Float64Array;
   private readonly dm: Float64Array;
-  private readonly uc: Float64Array;
   /** Output column of each root and the rows lists for the product. */
   private readonly pos: Int32Array;
   private readonly top: Int32Array;
@@ -91,7 +90,6 @@ export class TridiagonalDivideConquer {
     this.org = new Int32Array(n);
     this.tau = new Float64Array(n);
     this.dm = new Float64Array(n * n);
-    this.uc = new Float64Array(n * n);
     this.pos = new Int32Array(n);
     this.top = new Int32Array(n);
     this.bottom = new Int32Array(n);
@@ -392,13 +390,20 @@ export class TridiagonalDivideConquer {
     const zz = this.zz;
     const zh = this.zh;
     const dm = this.dm;
-    const uc = this.uc;
+    // z-hat_j^2 = -(d_j - lambda_j) prod_{i != j} (d_j - lambda_i) / (d_j - d_i), as ratios (no
+    // over- or underflow), row by row of dm.
+    for (let j = 0; j < k; j++) zh[j] = dm[j * k + j];
+    for (let i = 0; i < k; i++) {
+      const row = i * k;
+      const di = dd[i];
+      for (let j = 0; j < i; j++) zh[j] *= dm[row + j] / (dd[j] - di);
+      for (let j = i + 1; j < k; j++) zh[j] *= dm[row + j] / (dd[j] - di);
+    }
     for (let j = 0; j < k; j++) {
-      let w = dm[j * k + j];
-      for (let i = 0; i < k; i++) if (i !== j) w *= dm[i * k + j] / (dd[j] - dd[i]);
-      const a = Math.sqrt(Math.max(0, -w));
+      const a = Math.sqrt(Math.max(0, -zh[j]));
       zh[j] = zz[j] >= 0 ? a : -a;
     }
+    // Row i of dm becomes the merge's eigenvector of root i: z-hat_j / (d_j - lambda_i), normalised.
     for (let i = 0; i < k; i++) {
       const row = i * k;
       let norm = 0;
@@ -408,7 +413,7 @@ export class TridiagonalDivideConquer {
         norm += u * u;
       }
       const inv = 1 / Math.sqrt(norm);
-      for (let j = 0; j < k; j++) uc[j * k + i] = dm[row + j] * inv;
+      for (let j = 0; j < k; j++) dm[row + j] *= inv;
     }
     // A kept column lives in the top rows, the bottom rows, or both: two products, each over the
     // columns present in its rows.
@@ -428,13 +433,13 @@ export class TridiagonalDivideConquer {
   }
 
   /**
-   * z[o + r][o + pos[i]] = sum over j in list of qc[r][keep[j]] uc[j][i] for rows r0..r1: the
+   * z[o + r][o + pos[i]] = sum over j in list of qc[r][keep[j]] dm[i][j] for rows r0..r1: the
    * operands gathered into the SIMD memory, multiplied there, the result scattered to z.
    */
   private product(z: Float64Array, o: number, s: number, r0: number, r1: number, k: number, list: Int32Array, len: number): void {
     const n = this.n;
     const qc = this.qc;
-    const uc = this.uc;
+    const dm = this.dm;
     const keep = this.keep;
     const pos = this.pos;
     const pa = this.pa;
@@ -447,9 +452,9 @@ export class TridiagonalDivideConquer {
       for (let p = 0; p < len; p++) pa[r * len + p] = qc[from + keep[list[p]]];
     }
     for (let p = 0; p < len; p++) {
-      const from = list[p] * k;
+      const j = list[p];
       const to = p * cols;
-      for (let i = 0; i < k; i++) pb[to + i] = uc[from + i];
+      for (let i = 0; i < k; i++) pb[to + i] = dm[i * k + j];
       for (let i = k; i < cols; i++) pb[to + i] = 0;
     }
     this.simd.realProduct(this.at, this.at + 8 * pa.length, this.at + 16 * pa.length, rows, len, cols);
