@@ -26,10 +26,12 @@ const CASES = [
 /**
  * Each timing is the best of ROUNDS rounds of about ROUND_SECONDS, ours and numpy's alternating.
  * Both sides count CPU time (process time), not wall time: on a shared machine, time spent waiting
- * for a core would otherwise land on whichever side happened to be running.
+ * for a core would otherwise land on whichever side happened to be running. Many short rounds
+ * rather than a few long ones: a burst of load on the other core (which slows CPU time too, through
+ * the shared cache) then spoils some rounds of a side, not all of them.
  */
-const ROUNDS = 7;
-const ROUND_SECONDS = 0.1;
+const ROUNDS = 12;
+const ROUND_SECONDS = 0.05;
 
 /** `batch` random Hermitian n x n matrices, back to back (the layout of numpy complex128). */
 function randomHermitianBatch(n: number, batch: number, seed: number): Float64Array {
