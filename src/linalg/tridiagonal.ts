@@ -6,6 +6,8 @@
  */
 
 const EPS = 2 ** -52;
+/** Below this, 1/x overflows or loses precision (subnormal x). */
+const TINY = 2 ** -1000;
 /** Up to this size the rotations are applied to z as they are made (the faster way below ~40-48,
  * measured on random tridiagonals n = 4..128); above, they are recorded and applied per sweep. */
 const INLINE_ROTATIONS_UP_TO = 40;
@@ -19,6 +21,8 @@ const INLINE_ROTATIONS_UP_TO = 40;
  * converge.
  *
  * Deflation is normwise (|e_i| <= eps ||T||): every eigenpair has a residual of order eps ||T||.
+ * Input range: ||T|| between about 2^-300 and 2^300 (HermitianEigensolver scales into it), so that
+ * squares of entries down to eps ||T|| stay normal numbers.
  */
 export function tridiagonalQL(
   n: number,
@@ -54,8 +58,9 @@ export function tridiagonalQL(
       let p = 0;
       let i = m - 1;
       for (; i >= l; i--) {
-        const f = s * e[i];
-        const b = c * e[i];
+        const ei = e[i];
+        const f = s * ei;
+        const b = c * ei;
         const rr = f * f + g * g;
         r = Math.sqrt(rr);
         e[i + 1] = r;
@@ -65,15 +70,27 @@ export function tridiagonalQL(
           e[m] = 0;
           break;
         }
-        // 1/r as sqrt(rr) / rr: the division runs alongside the square root, not after it.
-        const inv = r * (1 / rr);
-        s = f * inv;
-        c = g * inv;
-        g = d[i + 1] - p;
-        r = (d[i] - g) * s + 2 * c * b;
-        p = s * r;
-        d[i + 1] = g + p;
-        g = c * r - b;
+        const gp = d[i + 1] - p;
+        if (rr > TINY) {
+          // tql2's step (below) rewritten with t = 1/r^2: r2 = r t x, p = s r2 = f x t and
+          // c r2 = g x t. The next g and p then wait for the division only, not for the square
+          // root and the division after it (which only the rotation (s, c) needs).
+          const t = 1 / rr;
+          const x = (d[i] - gp) * f + 2 * g * b;
+          const inv = r * t;
+          p = f * x * t;
+          s = f * inv;
+          c = g * inv;
+          g = g * x * t - b;
+        } else {
+          // 1/r^2 would overflow: the plain step.
+          s = f / r;
+          c = g / r;
+          const r2 = (d[i] - gp) * s + 2 * c * b;
+          p = s * r2;
+          g = c * r2 - b;
+        }
+        d[i + 1] = gp + p;
         if (inline) {
           // z is small: rotate now, in the shadow of this loop's sqrt/division latency.
           for (let k = i; k < nn; k += n) {

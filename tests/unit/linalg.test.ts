@@ -6,6 +6,7 @@ import { ComplexDeterminant, determinant } from '../../src/linalg/determinant.js
 import { eigenphases, UnitaryEigenphases } from '../../src/linalg/eigphases.js';
 import { eigh, HermitianEigensolver } from '../../src/linalg/eigh.js';
 import { ComplexPfaffian, pfaffian } from '../../src/linalg/pfaffian.js';
+import { tridiagonalQL } from '../../src/linalg/tridiagonal.js';
 import {
   EPS,
   HAVE_NUMPY,
@@ -385,6 +386,29 @@ describe('HermitianEigensolver, divide-and-conquer sizes (n >= 25)', () => {
       const { w, v } = solvePadded(n, hs);
       expectGoodEigensystem(n, hs, w, v);
       for (let i = 0; i < n; i++) expect(Math.abs(w[i] / scale - w1[i])).toBeLessThan(64 * n * EPS * wmax);
+    }
+  });
+});
+
+describe('tridiagonalQL', () => {
+  it('the same eigenpairs at the ends of its input range, norms 2^-300 and 2^300 (exact power-of-two scaling; common practice)', () => {
+    const next = uniform(27);
+    const n = 12;
+    const d0 = Array.from({ length: n }, () => next());
+    const e0 = Array.from({ length: n }, () => next());
+    const solve = (scale: number): { d: Float64Array; z: Float64Array } => {
+      const d = Float64Array.from(d0, (x) => x * scale);
+      const e = Float64Array.from(e0, (x) => x * scale);
+      const z = new Float64Array(n * n);
+      for (let i = 0; i < n; i++) z[i * n + i] = 1;
+      expect(tridiagonalQL(n, d, e, z, new Float64Array(n), new Float64Array(n))).toBe(true);
+      return { d, z };
+    };
+    const ref = solve(1);
+    for (const scale of [2 ** -300, 2 ** 300]) {
+      const got = solve(scale);
+      for (let i = 0; i < n; i++) expect(Math.abs(got.d[i] / scale - ref.d[i])).toBeLessThan(64 * n * EPS);
+      for (let i = 0; i < n * n; i++) expect(Math.abs(got.z[i] - ref.z[i])).toBeLessThan(1e-12);
     }
   });
 });
