@@ -68,6 +68,13 @@ function sleb(x: number): number[] {
   }
 }
 
+/** The 8 bytes of x, little-endian (WebAssembly's byte order, whatever the platform's). */
+function f64Bytes(...xs: number[]): number[] {
+  const view = new DataView(new ArrayBuffer(8 * xs.length));
+  xs.forEach((x, i) => view.setFloat64(8 * i, x, true));
+  return Array.from(new Uint8Array(view.buffer));
+}
+
 /** Swap the two f64 lanes: (a, b) -> (b, a). */
 const SWAP = [8, 9, 10, 11, 12, 13, 14, 15, 0, 1, 2, 3, 4, 5, 6, 7];
 
@@ -96,7 +103,7 @@ class Body {
     return this;
   }
   f64(x: number): this {
-    this.code.push(0x44, ...new Uint8Array(Float64Array.of(x).buffer));
+    this.code.push(0x44, ...f64Bytes(x));
     return this;
   }
   op(...bytes: number[]): this {
@@ -112,11 +119,13 @@ class Body {
   add(): this { return this.op(0x6a); }
   sub(): this { return this.op(0x6b); }
   mul(): this { return this.op(0x6c); }
+  and(): this { return this.op(0x71); }
   ltU(): this { return this.op(0x49); }
   // f64 scalars
   fadd(): this { return this.op(0xa0); }
   fsub(): this { return this.op(0xa1); }
   fmul(): this { return this.op(0xa2); }
+  fneg(): this { return this.op(0x9a); }
   fload(offset = 0): this { return this.op(0x2b, 3, ...uleb(offset)); }
   // v128 / f64x2
   vload(offset = 0): this { return this.simd(0x00, 4, ...uleb(offset)); }
@@ -132,12 +141,28 @@ class Body {
   /** (x, -x) from the f64 on the stack. */
   plusMinus(): this {
     this.splat();
-    return this.simd(0x0c, ...new Uint8Array(Float64Array.of(1, -1).buffer)).vmul();
+    return this.simd(0x0c, ...f64Bytes(1, -1)).vmul();
   }
 
   /** acc += (stack top two v128 multiplied). */
   accumulate(acc: number): this {
     return this.vmul().get(acc).vadd().set(acc);
+  }
+
+  /** while (a < b) { body() } for the i32 locals a, b (signed), the body advancing a. */
+  whileLess(a: number, b: number, body: () => void): this {
+    this.op(0x02, 0x40, 0x03, 0x40); // block, loop
+    this.get(a).get(b).op(0x4e).op(0x0d, 1); // a >= b (signed): leave the block
+    body();
+    this.op(0x0c, 0, 0x0b, 0x0b); // continue the loop; end, end
+    return this;
+  }
+
+  /** if (the i32 on the stack is not 0) body() */
+  when(body: () => void): this {
+    this.op(0x04, 0x40);
+    body();
+    return this.op(0x0b);
   }
 
   /** while (ptr < end) { body(); ptr += step } (locals; `step` a constant, or a local as [index]). */
@@ -189,7 +214,7 @@ function reflectPair(): Body {
   const jEnd = f.local(I32);
   const yEnd = f.local(I32);
   const row = f.local(I32);
-  const step = f.local(I32);
+  const addr = f.local(I32);
   const [cr, ci, ar, ai, br, bi] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
   const uu = f.local(V128);
   const vv = f.local(V128);
@@ -241,9 +266,9 @@ function reflectPair(): Body {
       f.get(ar).get(ci).fmul().get(ai).get(cr).fmul().fadd().fsub().get(bv).fmul().set(bi);
       // a u = ar (ur, ui) + (-ai, ai) (ui, ur), likewise b v: coefficients into the accumulators.
       f.get(ar).splat().set(pu);
-      f.get(ai).op(0x9a).plusMinus().set(qu);
+      f.get(ai).fneg().plusMinus().set(qu);
       f.get(br).splat().set(pv);
-      f.get(bi).op(0x9a).plusMinus().set(qv);
+      f.get(bi).fneg().plusMinus().set(qv);
     }
     f.i32(0).set(j);
     f.forBytes(j, jEnd, 16, () => {
@@ -255,9 +280,9 @@ function reflectPair(): Body {
         const [a1, a2, b1, b2] = acc[t];
         f.get(row).get(j).add();
         if (t > 0) f.get(stride).add();
-        f.set(step); // the address, kept for the store
-        f.get(step);
-        f.get(step).vload();
+        f.set(addr); // kept for the store
+        f.get(addr);
+        f.get(addr).vload();
         f.get(a1).get(uu).vmul().vsub();
         f.get(a2).get(su).vmul().vsub();
         f.get(b1).get(vv).vmul().vsub();
@@ -268,14 +293,12 @@ function reflectPair(): Body {
   };
   // Pairs of vectors, then the odd one.
   f.get(y).set(row);
-  f.get(y).get(count).i32(-2).op(0x71).get(stride).mul().add().set(yEnd);
+  f.get(y).get(count).i32(-2).and().get(stride).mul().add().set(yEnd);
   f.forBytes(row, yEnd, [stride], () => {
     group(2);
     f.get(row).get(stride).add().set(row);
   });
-  f.get(count).i32(1).op(0x71).op(0x04, 0x40);
-  group(1);
-  f.op(0x0b);
+  f.get(count).i32(1).and().when(() => group(1));
   return f;
 }
 
@@ -410,7 +433,7 @@ function realProduct(): Body {
   f.get(k).i32(8).mul().set(rowA);
   f.get(cols).i32(8).mul().set(rowC);
   f.get(rowC).set(colEnd);
-  // Rows in fours while four remain: row counts rows of A (bytes of A walked: row * rowA).
+  // Rows of C four at a time while four remain, then one at a time.
   const tile = (rows: number): void => {
     f.i32(0).set(col);
     f.forBytes(col, colEnd, 32, () => {
@@ -440,18 +463,15 @@ function realProduct(): Body {
   };
   f.i32(0).set(row);
   f.get(m).i32(3).sub().set(rowEnd);
-  // while (row < m - 3): 4-row tiles (signed compare: m - 3 may be negative).
-  f.op(0x02, 0x40, 0x03, 0x40);
-  f.get(row).get(rowEnd).op(0x4e).op(0x0d, 1); // row >= m - 3 (signed): leave
-  tile(4);
-  f.get(row).i32(4).add().set(row);
-  f.op(0x0c, 0, 0x0b, 0x0b);
+  f.whileLess(row, rowEnd, () => {
+    tile(4);
+    f.get(row).i32(4).add().set(row);
+  });
   f.get(m).set(rowEnd);
-  f.op(0x02, 0x40, 0x03, 0x40);
-  f.get(row).get(rowEnd).op(0x4e).op(0x0d, 1);
-  tile(1);
-  f.get(row).i32(1).add().set(row);
-  f.op(0x0c, 0, 0x0b, 0x0b);
+  f.whileLess(row, rowEnd, () => {
+    tile(1);
+    f.get(row).i32(1).add().set(row);
+  });
   return f;
 }
 
