@@ -70,7 +70,11 @@ export class TridiagonalDivideConquer {
     return 3 * 8 * n * (n + 4);
   }
 
-  /** `at`: a byte offset (a multiple of 16) in the SIMD kernels' memory, reserved for this solver. */
+  /**
+   * `at`: where this solver's part of the SIMD kernels' memory starts (bytes, a multiple of 16),
+   * past whatever its caller keeps there during a solve. The memory must already hold
+   * `at + simdBytes(n)` bytes whenever `solve` runs, so that it never grows under the caller.
+   */
   constructor(n: number, at: number) {
     this.n = n;
     this.simd = simdKernels();
