@@ -13,7 +13,7 @@
  * real matrix product (about 4/3 n^3 flops in all, less after deflation, against about 3 n^3 for
  * QL with rotations accumulated), run by a WebAssembly SIMD kernel (`simd.ts`).
  */
-import { simdKernels, simdMemory, type SimdKernels } from './simd.js';
+import type { SimdKernels } from './simd.js';
 import { tridiagonalQL } from './tridiagonal.js';
 
 const EPS = 2 ** -52;
@@ -34,15 +34,14 @@ export class TridiagonalDivideConquer {
   /** The merge's eigenvectors of the halves, sorted by pole (s x s). */
   private readonly qc: Float64Array;
   /**
-   * The product's operands in the SIMD kernels' memory (from byte `at`; views remade when that
-   * memory has grown): kept columns of the halves' eigenvectors (rows x kept), the matching rows
+   * The product's operands in the SIMD kernels' memory (from byte `at`): kept columns of the halves' eigenvectors (rows x kept), the matching rows
    * of the merge's eigenvectors (kept x roots, padded to a multiple of 4), and their product.
    */
   private readonly simd: SimdKernels;
   private readonly at: number;
-  private pa: Float64Array;
-  private pb: Float64Array;
-  private pc: Float64Array;
+  private readonly pa: Float64Array;
+  private readonly pb: Float64Array;
+  private readonly pc: Float64Array;
   /** Non-deflated poles: their column in qc, value, z and z-hat; deflated ones: column, sorted by value. */
   private readonly keep: Int32Array;
   private readonly dd: Float64Array;
@@ -71,16 +70,18 @@ export class TridiagonalDivideConquer {
   }
 
   /**
-   * `at`: where this solver's part of the SIMD kernels' memory starts (bytes, a multiple of 16),
-   * past whatever its caller keeps there during a solve. The memory must already hold
-   * `at + simdBytes(n)` bytes whenever `solve` runs, so that it never grows under the caller.
+   * `kernels` and `memory` from `simdWorkspace`; `at`: where this solver's part of that memory
+   * starts (bytes, a multiple of 16), past whatever its caller keeps there during a solve, with
+   * `simdBytes(n)` bytes from there on.
    */
-  constructor(n: number, at: number) {
+  constructor(n: number, kernels: SimdKernels, memory: ArrayBuffer, at: number) {
     this.n = n;
-    this.simd = simdKernels();
+    this.simd = kernels;
     this.at = at;
-    this.pa = this.pb = this.pc = new Float64Array(0);
-    this.views();
+    const size = n * (n + 4);
+    this.pa = new Float64Array(memory, at, size);
+    this.pb = new Float64Array(memory, at + 8 * size, size);
+    this.pc = new Float64Array(memory, at + 16 * size, size);
     this.ds = new Float64Array(n);
     this.zs = new Float64Array(n);
     this.perm = new Int32Array(n);
@@ -111,16 +112,7 @@ export class TridiagonalDivideConquer {
    * destroyed. Returns false if a QL block failed to converge.
    */
   solve(d: Float64Array, e: Float64Array, z: Float64Array): boolean {
-    if (this.pa.length === 0) this.views();
     return this.block(d, e, z, 0, this.n);
-  }
-
-  private views(): void {
-    const size = this.n * (this.n + 4);
-    const memory = simdMemory(this.at + 24 * size);
-    this.pa = new Float64Array(memory, this.at, size);
-    this.pb = new Float64Array(memory, this.at + 8 * size, size);
-    this.pc = new Float64Array(memory, this.at + 16 * size, size);
   }
 
   private block(d: Float64Array, e: Float64Array, z: Float64Array, o: number, s: number): boolean {

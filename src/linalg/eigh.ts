@@ -15,7 +15,7 @@
  */
 import type { CMatrix } from './cmatrix.js';
 import { LEAF, TridiagonalDivideConquer } from './divide-conquer.js';
-import { simdKernels, simdMemory, type SimdKernels } from './simd.js';
+import { simdWorkspace, type SimdKernels } from './simd.js';
 import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
@@ -46,9 +46,9 @@ export class HermitianEigensolver {
   readonly n: number;
   /**
    * Working copy of the upper triangle; after the reduction, row k holds reflector k. It and y are
-   * views on the SIMD kernels' memory (shared in the thread, valid during a call of ours).
+   * views on the SIMD kernels' memory (shared with other users, ours during a call).
    */
-  private a: Float64Array;
+  private readonly a: Float64Array;
   /** Reflector k is I - beta[k] u u^dagger (beta 0: no reflector). */
   private readonly beta: Float64Array;
   /** Complex subdiagonal of the tridiagonal form, and the diagonal phases D. */
@@ -61,13 +61,12 @@ export class HermitianEigensolver {
   private readonly cs: Float64Array;
   private readonly sn: Float64Array;
   /** The eigenvectors (one per row) during the back-transformation. */
-  private y: Float64Array;
+  private readonly y: Float64Array;
   /**
    * The WebAssembly SIMD kernels, and the byte offsets in their memory of y and of p, the
    * reduction's complex scratch vector (a is at 0).
    */
   private readonly simd: SimdKernels;
-  private readonly simdBytes: number;
   private readonly yAt: number;
   private readonly pAt: number;
   private readonly order: Int32Array;
@@ -77,13 +76,12 @@ export class HermitianEigensolver {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigensolver size must be a positive integer. Value: ${n}`);
     this.n = n;
     // a, y and p live in the memory of the SIMD kernels: a at byte 0, y after it, then p.
-    this.simd = simdKernels();
     this.yAt = 16 * n * n;
     this.pAt = 32 * n * n;
-    // Our part of the SIMD memory, then the divide and conquer's: all reserved now, so that the
-    // memory never grows in the middle of a solve (which would detach the views).
-    this.simdBytes = this.pAt + 16 * n + (n > LEAF ? TridiagonalDivideConquer.simdBytes(n) : 0);
-    const memory = simdMemory(this.simdBytes);
+    // Our part of the SIMD memory, then the divide and conquer's (one instance for both).
+    const divideAt = this.pAt + 16 * n;
+    const { kernels, memory } = simdWorkspace(divideAt + (n > LEAF ? TridiagonalDivideConquer.simdBytes(n) : 0));
+    this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
     this.beta = new Float64Array(n);
     this.off = new Float64Array(2 * n);
@@ -95,7 +93,7 @@ export class HermitianEigensolver {
     this.sn = new Float64Array(n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
     this.order = new Int32Array(n);
-    this.divide = n > LEAF ? new TridiagonalDivideConquer(n, this.pAt + 16 * n) : null;
+    this.divide = n > LEAF ? new TridiagonalDivideConquer(n, kernels, memory, divideAt) : null;
   }
 
   /**
@@ -202,12 +200,6 @@ export class HermitianEigensolver {
 
   private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
     const n = this.n;
-    if (this.a.length === 0) {
-      // Another solver grew the shared memory: views on the old buffer are detached (length 0).
-      const memory = simdMemory(this.simdBytes);
-      this.a = new Float64Array(memory, 0, 2 * n * n);
-      this.y = new Float64Array(memory, this.yAt, 2 * n * n);
-    }
     const a = this.a;
     // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
     let big = 0;

@@ -241,12 +241,12 @@ describe('HermitianEigensolver', () => {
     }
   });
 
-  it('solvers share the kernels\' memory: a solver keeps working after a larger one grew it (common practice)', () => {
+  it('solvers share the kernels\' memory: a solver keeps working after a larger one needed a new one (common practice)', () => {
     const next = uniform(26);
     const small = new HermitianEigensolver(5);
     const h = randomHermitian(5, next);
     const before = small.solve(h, new Float64Array(5), new Float64Array(50)).slice();
-    // A size never used before in this file grows the shared memory and detaches the old views.
+    // A size never used before in this file needs more memory than the shared one holds.
     const big = new HermitianEigensolver(300);
     const hb = randomHermitian(300, next);
     const wb = big.solve(hb, new Float64Array(300));
