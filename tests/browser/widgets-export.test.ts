@@ -5,7 +5,7 @@
 //     0 outside; the gap closes at K or K' on the boundary (sign in the convention of
 //     /work/shared/references.md).
 //   Qi, Wu, Zhang, PRB 74, 085308 (2006): C(lower) = +1 for -2 < u < 0, -1 for 0 < u < 2.
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { artifactPath, exportDemo, openPage, type OpenedPage } from './widgets-harness.js';
@@ -197,9 +197,13 @@ describe('exported notebook page', () => {
     const bytes = readFileSync((await png.path())!);
     expect(bytes.subarray(1, 4).toString('latin1')).toBe('PNG');
     expect(png.suggestedFilename()).toMatch(/\.png$/);
+    writeFileSync(artifactPath('widgets-export-figure.png'), bytes);
 
     const [svg] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="svg"]').click()]);
-    expect(readFileSync((await svg.path())!, 'utf8')).toMatch(/^<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+    const svgText = readFileSync((await svg.path())!, 'utf8');
+    expect(svgText).toMatch(/^<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+    // The map travels inside the figure file (widgets/src/picture.ts), not as a link.
+    expect(svgText).toContain('data:image/bmp;base64,');
 
     const [json] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="json"]').click()]);
     const saved = JSON.parse(readFileSync((await json.path())!, 'utf8')) as { request: { kind: string; params: Record<string, number> }; result: { values: number[]; grid: number[] } };

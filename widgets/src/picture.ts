@@ -27,6 +27,7 @@ export interface Raster {
 type LayoutImage = NonNullable<Layout['images']>[number];
 
 const LUT_SIZE = 1024;
+const NAN_GREY = 0xbb;
 const luts = new Map<string, Uint8Array>();
 
 function rgbOf(colour: string): [number, number, number] {
@@ -56,40 +57,60 @@ export function colourTable(scale: [number, string][]): Uint8Array {
   return lut;
 }
 
-/** The raster's pixels, RGBA row-major (top row first); NaN bricks are transparent. */
-export function rasterPixels(raster: Raster, out = new Uint8ClampedArray(4 * raster.width * raster.height)): Uint8ClampedArray {
+/**
+ * The raster as a BMP file: 24-bit, rows stored top-down (negative height), each padded to four
+ * bytes. Uncompressed on purpose: building it takes a fraction of a millisecond where PNG encoding
+ * takes several, and every browser decodes it. NaN bricks are drawn grey.
+ */
+export function rasterBitmap(raster: Raster): Uint8Array {
+  const { width, height, values } = raster;
   const lut = colourTable(raster.colorscale);
   const [lo, hi] = raster.range;
   const scale = hi > lo ? (LUT_SIZE - 1) / (hi - lo) : 0;
-  const values = raster.values;
-  for (let i = 0; i < values.length; i++) {
-    const v = values[i];
-    const p = 4 * i;
-    if (Number.isNaN(v)) {
-      out[p + 3] = 0;
-      continue;
+  const rowBytes = (3 * width + 3) & ~3;
+  const header = 14 + 40;
+  const bytes = new Uint8Array(header + rowBytes * height);
+  const view = new DataView(bytes.buffer);
+  bytes[0] = 0x42; // 'BM'
+  bytes[1] = 0x4d;
+  view.setUint32(2, bytes.length, true);
+  view.setUint32(10, header, true);
+  view.setUint32(14, 40, true); // BITMAPINFOHEADER
+  view.setInt32(18, width, true);
+  view.setInt32(22, -height, true);
+  view.setUint16(26, 1, true); // planes
+  view.setUint16(28, 24, true); // bits per pixel
+  view.setUint32(34, rowBytes * height, true);
+  for (let r = 0; r < height; r++) {
+    let p = header + r * rowBytes;
+    for (let c = 0; c < width; c++) {
+      const v = values[r * width + c];
+      if (Number.isNaN(v)) {
+        bytes[p++] = NAN_GREY;
+        bytes[p++] = NAN_GREY;
+        bytes[p++] = NAN_GREY;
+        continue;
+      }
+      const j = 3 * Math.min(LUT_SIZE - 1, Math.max(0, Math.round((v - lo) * scale)));
+      bytes[p++] = lut[j + 2]; // BMP stores blue, green, red
+      bytes[p++] = lut[j + 1];
+      bytes[p++] = lut[j];
     }
-    const j = 3 * Math.min(LUT_SIZE - 1, Math.max(0, Math.round((v - lo) * scale)));
-    out[p] = lut[j];
-    out[p + 1] = lut[j + 1];
-    out[p + 2] = lut[j + 2];
-    out[p + 3] = 255;
   }
-  return out;
+  return bytes;
+}
+
+function base64(bytes: Uint8Array): string {
+  let binary = '';
+  const chunk = 0x8000;
+  for (let i = 0; i < bytes.length; i += chunk) binary += String.fromCharCode(...bytes.subarray(i, i + chunk));
+  return btoa(binary);
 }
 
 /** The raster as a plotly layout image in data coordinates, below the traces. */
-export function rasterImage(raster: Raster, doc: Document): Partial<LayoutImage> {
-  const canvas = doc.createElement('canvas');
-  canvas.width = raster.width;
-  canvas.height = raster.height;
-  const context = canvas.getContext('2d');
-  if (context === null) throw new Error('this browser cannot draw into a canvas');
-  const image = context.createImageData(raster.width, raster.height);
-  rasterPixels(raster, image.data);
-  context.putImageData(image, 0, 0);
+export function rasterImage(raster: Raster): Partial<LayoutImage> {
   return {
-    source: canvas.toDataURL('image/png'),
+    source: `data:image/bmp;base64,${base64(rasterBitmap(raster))}`,
     xref: 'x',
     yref: 'y',
     x: raster.x[0],

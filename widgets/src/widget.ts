@@ -376,7 +376,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.showMessage(null, '');
     }
     const busy = this.client?.busy ?? false;
-    const image = figure.raster ? rasterImage(figure.raster, this.el.ownerDocument) : null;
+    const image = figure.raster ? rasterImage(figure.raster) : null;
     // A drag step whose figure keeps the frame of the one shown swaps in only its picture and
     // title; the full redraw (hover values included) follows once the drag rests.
     const swap = !full && outcome !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey;
