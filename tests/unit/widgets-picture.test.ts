@@ -61,3 +61,13 @@ describe('raster picture', () => {
     expect(() => colourTable([[0, 'blue'], [1, '#ffffff']])).toThrow(/#rrggbb.*"blue"/);
   });
 });
+
+describe('picture data URL', () => {
+  it('base64 agrees with Node’s encoder for every tail length (reference: Buffer.toString("base64"))', () => {
+    for (const width of [1, 2, 3, 4, 5, 7]) {
+      const r = raster(Array.from({ length: width }, (_, i) => Math.sin(i)), width);
+      const source = String(rasterImage(r).source);
+      expect(source.slice('data:image/bmp;base64,'.length)).toBe(Buffer.from(rasterBitmap(r)).toString('base64'));
+    }
+  });
+});
