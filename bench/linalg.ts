@@ -1,9 +1,10 @@
 /**
  * Eigensolver throughput (solves per CPU second) against numpy's batched eigh/eigvalsh on the same
- * matrices, single-threaded (OPENBLAS_NUM_THREADS=1), measured in the same run, rounds alternating.
+ * matrices, single-threaded (OPENBLAS_NUM_THREADS=1), measured in the same run, rounds alternating,
+ * both sides on the same CPU (see `sameCpu`).
  * Standalone: `node --import ./scripts/register-ts.js bench/linalg.ts`.
  */
-import { spawn, type ChildProcessWithoutNullStreams } from 'node:child_process';
+import { spawn, spawnSync, type ChildProcessWithoutNullStreams } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -92,9 +93,10 @@ class NumpyWorker {
   private failure = '';
   private exited = false;
 
-  constructor() {
+  constructor(cpu: string | null) {
     const env = { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
-    this.proc = spawn(PYTHON, ['-c', NUMPY_WORKER], { env });
+    const command = [PYTHON, '-c', NUMPY_WORKER];
+    this.proc = cpu === null ? spawn(PYTHON, command.slice(1), { env }) : spawn(TASKSET, ['-c', cpu, ...command], { env });
     this.proc.stderr.on('data', (chunk: Buffer) => (this.failure += chunk.toString()));
     this.proc.on('exit', () => {
       this.exited = true;
@@ -121,6 +123,28 @@ class NumpyWorker {
   }
 }
 
+const TASKSET = '/usr/bin/taskset';
+
+/**
+ * Puts our main thread on one CPU (the first it may use) for the duration of `run`, and returns
+ * that CPU for the numpy worker. On a shared virtual machine one CPU can be much slower than the
+ * other for minutes (measured here: 1.6x, for plain JavaScript and numpy alike); with the two
+ * sides on different CPUs the ratio would measure that instead of the solvers. Without Linux's
+ * taskset, nothing is pinned.
+ */
+async function sameCpu<T>(run: (cpu: string | null) => Promise<T>): Promise<T> {
+  const pid = String(process.pid);
+  const current = existsSync(TASKSET) ? spawnSync(TASKSET, ['-pc', pid], { encoding: 'utf8' }) : null;
+  const allowed = current?.status === 0 ? current.stdout.split(':').pop()?.trim() ?? '' : '';
+  const cpu = allowed.split(/[,-]/)[0];
+  if (cpu === '' || spawnSync(TASKSET, ['-pc', cpu, pid]).status !== 0) return run(null);
+  try {
+    return await run(cpu);
+  } finally {
+    spawnSync(TASKSET, ['-pc', allowed, pid]);
+  }
+}
+
 /** Alternate rounds of ours and numpy's; best CPU time per solve of each, as solves per CPU second. */
 async function compare(
   ours: (reps: number) => number,
@@ -144,10 +168,14 @@ async function compare(
   return { ours: batch / oursBest, numpy: numpy === null ? null : batch / numpyBest };
 }
 
-export async function benchLinalg(): Promise<BenchRow[]> {
+export function benchLinalg(): Promise<BenchRow[]> {
+  return sameCpu(benchOnCpu);
+}
+
+async function benchOnCpu(cpu: string | null): Promise<BenchRow[]> {
   const rows: BenchRow[] = [];
   const dir = mkdtempSync(join(tmpdir(), 'chernel-bench-linalg-'));
-  const worker = existsSync(PYTHON) ? new NumpyWorker() : null;
+  const worker = existsSync(PYTHON) ? new NumpyWorker(cpu) : null;
   try {
     for (const { n, batch, min } of CASES) {
       const h = randomHermitianBatch(n, batch, 1000 + n);

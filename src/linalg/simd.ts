@@ -10,12 +10,10 @@
  *
  * Memory: users share one instance and its memory (calls are synchronous, so a user's data lives
  * there only during one of its own calls). A request for more than the current memory holds makes
- * a new instance with a larger memory, which later users share; earlier users keep theirs. A
- * memory is never grown, and is made with its maximum equal to its initial size: with a growable
- * memory anywhere in the process, V8 (Node 20) ran typed-array code, even plain JavaScript that
- * never touches the memory, up to 1.6x slower in some processes (measured on the eigensolver at
- * n = 2..16). Complex arrays are interleaved (re, im) and 16-byte aligned; every address passed to
- * a kernel is a byte offset.
+ * a new instance with a larger memory, which later users share; earlier users keep theirs (a
+ * memory is never grown: that would detach the buffer under their views, so its maximum is its
+ * initial size). Complex arrays are interleaved (re, im) and 16-byte aligned; every address passed
+ * to a kernel is a byte offset.
  */
 
 /** The few WebAssembly declarations used here (the engine is compiled without DOM or Node types). */
