@@ -108,7 +108,7 @@ describe('exported notebook page', () => {
     await page.screenshot({ path: artifactPath('widgets-export-haldane.png'), fullPage: true });
   });
 
-  it('a drag step swaps only the picture and title; at rest the full figure returns, hover values included', async () => {
+  it('a drag step draws only the picture and title; at rest plotly redraws in full, hover values included', async () => {
     const haldane = widget(0);
     const picture = haldane.locator('.chernel-plot .imagelayer image').first();
     const before = await picture.getAttribute('href');
@@ -122,14 +122,17 @@ describe('exported notebook page', () => {
         out.push(await drawn);
       }
       return out;
-    })) as { swapped: boolean }[];
-    // The first step may redraw in full (the previous draw may have been a swap that settled); the
-    // steps after it follow a full draw of the same frame and swap.
+    })) as { swapped: boolean; summary: string }[];
+    // The first step may redraw in full (the draw before it may have been a preview that settled);
+    // the steps after it follow a full draw of the same frame and are previews (widgets/src/preview.ts).
     expect(steps.slice(1).map((d) => d.swapped)).toEqual([true, true]);
-    expect(await picture.getAttribute('href')).not.toBe(before);
-    // At rest (250 ms, widget.ts) the full redraw gives the invisible heatmap the new values: hover
-    // over the map shows the curvature there.
+    expect(await haldane.locator('canvas.chernel-preview').count()).toBe(1);
+    expect(await haldane.locator('.gtitle').textContent()).toContain(steps[2].summary);
+    // At rest (250 ms, widget.ts) plotly redraws: the preview goes, the layout image is the new
+    // picture, and the invisible heatmap answers hover with the curvature there.
     await haldane.evaluate((w) => new Promise((resolve) => w.addEventListener('chernel-drawn', resolve, { once: true })));
+    expect(await haldane.locator('canvas.chernel-preview').count()).toBe(0);
+    expect(await picture.getAttribute('href')).not.toBe(before);
     const plotArea = (await haldane.locator('.chernel-plot .nsewdrag').first().boundingBox())!;
     await page.mouse.move(plotArea.x + plotArea.width * 0.3, plotArea.y + plotArea.height * 0.4);
     await expect.poll(() => haldane.locator('.hoverlayer .hovertext').textContent()).toMatch(/Ω = -?[0-9.e+-]+ rad⁻²/);
@@ -142,13 +145,11 @@ describe('exported notebook page', () => {
     const after = await settled(flow, 'u');
     expect(after.value).toBeGreaterThan(0.2);
     expect(after.invariant).toBe(String(qwzChern(after.value)));
-    // During the drag a sketch stood in for the traces (widgets/src/picture.ts); at rest plotly
-    // draws the traces themselves again, visible, with no image left over them.
-    const shown = () => flow.locator('.chernel-plot').evaluate((el) => {
-      const gd = el as unknown as { data: { opacity?: number }[]; layout: { images?: unknown[] } };
-      return { opacity: gd.data.map((t) => t.opacity ?? 1), images: gd.layout.images?.length ?? 0 };
-    });
-    await expect.poll(shown).toEqual({ opacity: [1, 1], images: 0 });
+    // During the drag a sketch on a canvas stood in for the traces (widgets/src/preview.ts); at rest
+    // plotly draws the traces themselves again, and the canvas is gone.
+    await expect.poll(() => flow.locator('canvas.chernel-preview').count()).toBe(0);
+    expect(await flow.locator('.chernel-plot').getAttribute('class')).not.toMatch(/chernel-preview/);
+    expect(await flow.locator('.chernel-plot .scatterlayer .point').first().isVisible()).toBe(true);
   });
 
   it('a value that closes the gap is flagged gapless: no invariant, the closing k marked', async () => {

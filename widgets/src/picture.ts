@@ -1,12 +1,12 @@
 /**
- * Pictures a view swaps into a plotly figure as a layout image on a drag step (a few milliseconds),
- * where changing a trace's data makes plotly redraw the whole figure (axes, legend, colour bar:
- * 15-25 ms). Two kinds:
- * - a raster: a map of bricks, always drawn this way (the heatmap trace under it is invisible and
- *   only answers hover). Colouring is linear in RGB between the stops, as plotly colours its
- *   traces, so the image agrees with a colour bar plotly draws from the same scale;
- * - a sketch: dots and lines standing in for scatter traces during a drag only; once the drag
- *   rests, plotly draws the traces themselves again.
+ * The pictures of a figure that a drag step can redraw without plotly (whose redraw of changed
+ * trace data is a full replot: axes, legend, colour bar, 15-25 ms):
+ * - a raster: a map of bricks. Always drawn as an image under the traces (a plotly layout image;
+ *   the heatmap trace over it is invisible and only answers hover). Colouring is linear in RGB
+ *   between the stops, as plotly colours its traces, so the picture agrees with a colour bar plotly
+ *   draws from the same scale;
+ * - a sketch: dots and lines that stand in for scatter traces while a drag goes on.
+ * Plain data and encoding here; preview.ts draws them in the page.
  */
 import type { Layout } from './plotly.js';
 
@@ -57,16 +57,41 @@ export function colourTable(scale: [number, string][]): Uint8Array {
   return lut;
 }
 
-/**
- * The raster as a BMP file: 24-bit, rows stored top-down (negative height), each padded to four
- * bytes. Uncompressed on purpose: building it takes a fraction of a millisecond where PNG encoding
- * takes several, and every browser decodes it. NaN bricks are drawn grey.
- */
-export function rasterBitmap(raster: Raster): Uint8Array {
-  const { width, height, values } = raster;
+/** Calls `put(i, r, g, b)` for brick i of the raster, in order; NaN bricks are grey. */
+function paint(raster: Raster, put: (i: number, r: number, g: number, b: number) => void): void {
   const lut = colourTable(raster.colorscale);
   const [lo, hi] = raster.range;
   const scale = hi > lo ? (LUT_SIZE - 1) / (hi - lo) : 0;
+  const values = raster.values;
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (Number.isNaN(v)) {
+      put(i, NAN_GREY, NAN_GREY, NAN_GREY);
+      continue;
+    }
+    const j = 3 * Math.min(LUT_SIZE - 1, Math.max(0, Math.round((v - lo) * scale)));
+    put(i, lut[j], lut[j + 1], lut[j + 2]);
+  }
+}
+
+/** The raster's pixels, RGBA row-major from the top row (as a canvas ImageData holds them). */
+export function rasterPixels(raster: Raster, out = new Uint8ClampedArray(4 * raster.values.length)): Uint8ClampedArray {
+  paint(raster, (i, r, g, b) => {
+    out[4 * i] = r;
+    out[4 * i + 1] = g;
+    out[4 * i + 2] = b;
+    out[4 * i + 3] = 255;
+  });
+  return out;
+}
+
+/**
+ * The raster as a BMP file: 24-bit, rows stored top-down (negative height), each padded to four
+ * bytes. Uncompressed on purpose: building it takes a fraction of a millisecond where PNG encoding
+ * takes several, and every browser decodes it.
+ */
+export function rasterBitmap(raster: Raster): Uint8Array {
+  const { width, height } = raster;
   const rowBytes = (3 * width + 3) & ~3;
   const header = 14 + 40;
   const bytes = new Uint8Array(header + rowBytes * height);
@@ -81,22 +106,12 @@ export function rasterBitmap(raster: Raster): Uint8Array {
   view.setUint16(26, 1, true); // planes
   view.setUint16(28, 24, true); // bits per pixel
   view.setUint32(34, rowBytes * height, true);
-  for (let r = 0; r < height; r++) {
-    let p = header + r * rowBytes;
-    for (let c = 0; c < width; c++) {
-      const v = values[r * width + c];
-      if (Number.isNaN(v)) {
-        bytes[p++] = NAN_GREY;
-        bytes[p++] = NAN_GREY;
-        bytes[p++] = NAN_GREY;
-        continue;
-      }
-      const j = 3 * Math.min(LUT_SIZE - 1, Math.max(0, Math.round((v - lo) * scale)));
-      bytes[p++] = lut[j + 2]; // BMP stores blue, green, red
-      bytes[p++] = lut[j + 1];
-      bytes[p++] = lut[j];
-    }
-  }
+  paint(raster, (i, r, g, b) => {
+    const p = header + Math.floor(i / width) * rowBytes + 3 * (i % width);
+    bytes[p] = b; // BMP stores blue, green, red
+    bytes[p + 1] = g;
+    bytes[p + 2] = r;
+  });
   return bytes;
 }
 
@@ -142,61 +157,10 @@ export function rasterImage(raster: Raster): Partial<LayoutImage> {
   };
 }
 
+/** What a figure's scatter traces show, in data units, for drawing without plotly. */
 export interface Sketch {
-  /** The axis ranges the sketch spans (the whole plot area): [left, right] and [bottom, top]. */
-  x: [number, number];
-  y: [number, number];
-  /** Indices of the traces it stands in for (hidden while it shows). */
-  traces: number[];
   /** Round dots, `size` pixels across. */
   dots: { x: ArrayLike<number>; y: ArrayLike<number>; colour: string; size: number }[];
   /** Polylines, broken where a coordinate is null. */
   lines: { x: ArrayLike<number | null>; y: ArrayLike<number | null>; colour: string; width: number; dashed?: boolean }[];
-}
-
-/**
- * The sketch as an SVG layout image over a plot area of `width` x `height` pixels: one path for
- * each series (dots are zero-length strokes with round caps), so the browser draws it at once.
- */
-export function sketchImage(sketch: Sketch, width: number, height: number): Partial<LayoutImage> {
-  const [x0, x1] = sketch.x;
-  const [y0, y1] = sketch.y;
-  const px = (x: number) => (((x - x0) / (x1 - x0)) * width).toFixed(1);
-  const py = (y: number) => (((y1 - y) / (y1 - y0)) * height).toFixed(1);
-  const paths: string[] = [];
-  for (const line of sketch.lines) {
-    let d = '';
-    let pen = false;
-    for (let i = 0; i < line.x.length; i++) {
-      const x = line.x[i];
-      const y = line.y[i];
-      if (x === null || y === null) {
-        pen = false;
-        continue;
-      }
-      d += `${pen ? 'L' : 'M'}${px(x)} ${py(y)}`;
-      pen = true;
-    }
-    const dash = line.dashed ? ` stroke-dasharray="${3 * line.width} ${2 * line.width}"` : '';
-    paths.push(`<path d="${d}" fill="none" stroke="${line.colour}" stroke-width="${line.width}"${dash}/>`);
-  }
-  for (const dots of sketch.dots) {
-    let d = '';
-    for (let i = 0; i < dots.x.length; i++) d += `M${px(dots.x[i])} ${py(dots.y[i])}h0`;
-    paths.push(`<path d="${d}" stroke="${dots.colour}" stroke-width="${dots.size}" stroke-linecap="round"/>`);
-  }
-  const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}">${paths.join('')}</svg>`;
-  return {
-    source: `data:image/svg+xml;charset=utf-8,${encodeURIComponent(svg)}`,
-    xref: 'x',
-    yref: 'y',
-    x: x0,
-    y: y1,
-    sizex: x1 - x0,
-    sizey: y1 - y0,
-    xanchor: 'left',
-    yanchor: 'top',
-    sizing: 'stretch',
-    layer: 'above',
-  };
 }

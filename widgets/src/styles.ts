@@ -12,7 +12,9 @@ const CSS = `
 .chernel-control-value { width: 100%; box-sizing: border-box; font: inherit; }
 .chernel-plot { width: 100%; height: 440px; }
 .chernel-plot.chernel-stale { opacity: 0.45; }
-.chernel-plot .imagelayer image { image-rendering: pixelated; }
+.chernel-plot .imagelayer image, .chernel-plot canvas.chernel-preview { image-rendering: pixelated; }
+.chernel-plot canvas.chernel-preview { position: absolute; pointer-events: none; }
+.chernel-plot.chernel-preview-raster .imagelayer, .chernel-plot.chernel-preview-sketch .scatterlayer { visibility: hidden; }
 .chernel-message { display: none; padding: 6px 8px; margin: 4px 0; border-radius: 3px; white-space: pre-wrap; }
 .chernel-message[data-level="error"] { display: block; background: #fdecea; color: #8a1c12; border: 1px solid #f5c2bc; }
 .chernel-message[data-level="warning"] { display: block; background: #fff6e0; color: #6b4a00; border: 1px solid #f0d9a0; }

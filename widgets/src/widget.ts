@@ -11,8 +11,9 @@ import { spawnEngineWorker } from './engine-worker.js';
 import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
 import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
 import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
-import Plotly, { type Config, type Layout, type PlotlyHTMLElement } from './plotly.js';
-import { rasterImage, sketchImage } from './picture.js';
+import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
+import { rasterImage } from './picture.js';
+import { DragPreview } from './preview.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
@@ -30,8 +31,6 @@ export const KIND_TITLES: Record<WidgetKind, string> = {
 };
 
 export type Values = Record<string, number>;
-
-type LayoutImage = NonNullable<Layout['images']>[number];
 
 export function sameValues(a: Values | null | undefined, b: Values | null | undefined): boolean {
   if (!a || !b) return false;
@@ -104,11 +103,11 @@ export interface DrawnDetail {
   /** Milliseconds spent turning the result into traces, and drawing them. */
   figureMs: number;
   plotMs: number;
-  /** True when only the picture and the title were swapped (a drag step; see `draw`). */
+  /** True when a drag step drew only the picture and the title, without plotly (see `draw`). */
   swapped: boolean;
 }
 
-/** How long the controls must rest before a swapped drawing is redrawn in full. */
+/** How long the controls must rest before a previewed drawing is redrawn in full. */
 const SETTLE_MS = 250;
 
 /** Creates the worker for a view; replaced in unit tests by a worker running in the test process. */
@@ -133,8 +132,7 @@ export class DiagnosticView extends DOMWidgetView {
   /** The frame key of the figure plotly shows in full, and the pending full redraw after a drag. */
   private drawnFrameKey: string | null = null;
   private settleTimer: ReturnType<typeof setTimeout> | null = null;
-  /** True while a sketch stands in for the traces it names (they are hidden). */
-  private sketchShown = false;
+  private preview!: DragPreview;
   /** The values the controls show; ahead of the model's result while a recompute is pending. */
   private live: Values = {};
 
@@ -157,6 +155,7 @@ export class DiagnosticView extends DOMWidgetView {
 
     this.plot = document.createElement('div');
     this.plot.className = 'chernel-plot';
+    this.preview = new DragPreview(this.plot);
 
     const footer = document.createElement('div');
     footer.className = 'chernel-footer';
@@ -376,24 +375,24 @@ export class DiagnosticView extends DOMWidgetView {
       this.showMessage(null, '');
     }
     const busy = this.client?.busy ?? false;
-    const image = figure.raster ? rasterImage(figure.raster) : null;
-    // A drag step whose figure keeps the frame of the one shown swaps in only its picture and
-    // title; the full redraw (hover values included) follows once the drag rests.
-    const swap = !full && outcome !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey;
-    const preview = swap ? (image ?? this.sketchImage(figure)) : null;
+    // A drag step whose figure keeps the frame of the one plotly shows draws only its picture and
+    // title, without plotly; the full redraw (hover values included) follows once the drag rests.
+    const title = (figure.layout.title as { text?: string } | undefined)?.text ?? '';
+    const previewed =
+      !full && outcome !== null && figure.frameKey !== undefined && figure.frameKey === this.drawnFrameKey && this.preview.show(figure, title);
     const figureMs = performance.now() - started;
     if (this.settleTimer !== null) clearTimeout(this.settleTimer);
     this.settleTimer = null;
     let drawn: Promise<unknown>;
-    if (preview !== null) {
-      drawn = this.swapIn(figure, preview);
+    if (previewed) {
+      drawn = Promise.resolve();
       this.settleTimer = setTimeout(() => {
         this.settleTimer = null;
         // Still computing: the drag goes on, and the next result re-arms this.
         if (!(this.client?.busy ?? false)) this.draw(result, values, outcome, true);
       }, SETTLE_MS);
     } else {
-      drawn = this.plotFull(figure, image);
+      drawn = this.plotFull(figure);
     }
     void drawn.then(() => {
       if (!this.attached) return;
@@ -409,46 +408,24 @@ export class DiagnosticView extends DOMWidgetView {
         computeMs: outcome ? outcome.computeMs : null,
         figureMs,
         plotMs: performance.now() - started - figureMs,
-        swapped: preview !== null,
+        swapped: previewed,
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });
   }
 
-  /** The whole figure through plotly (traces, axes, colour bar), with its raster if it has one. */
-  private plotFull(figure: Figure, image: Partial<LayoutImage> | null): Promise<unknown> {
+  /** The whole figure through plotly (traces, axes, colour bar), with its raster as an image. */
+  private plotFull(figure: Figure): Promise<unknown> {
     // A phase map's only shape is its current point: let the hand move it directly.
     const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
-    const layout = { ...figure.layout, images: image === null ? [] : [image] };
+    const layout = { ...figure.layout, images: figure.raster ? [rasterImage(figure.raster)] : [] };
     this.drawnFrameKey = null;
-    this.sketchShown = false;
     return Plotly.react(this.plot, figure.data, layout, config).then(() => {
+      this.preview.hide();
       if (!this.attached) return;
       this.bindPlotEvents();
       this.drawnFrameKey = figure.frameKey ?? null;
     });
-  }
-
-  /** The figure's sketch over the plot area as plotly drew it, or null without one. */
-  private sketchImage(figure: Figure): Partial<LayoutImage> | null {
-    const area = this.plot.querySelector('.nsewdrag')?.getBoundingClientRect();
-    if (!figure.sketch || !area || area.width < 1 || area.height < 1) return null;
-    return sketchImage(figure.sketch, Math.round(area.width), Math.round(area.height));
-  }
-
-  /**
-   * Only the picture and the title, through plotly's cheap paths: a layout image is redrawn alone,
-   * and trace opacity (hiding the traces a sketch stands in for) is a style change.
-   */
-  private swapIn(figure: Figure, image: Partial<LayoutImage>): Promise<unknown> {
-    const title = (figure.layout.title as { text?: string } | undefined)?.text ?? '';
-    // Attribute-path keys are plotly's documented relayout form; its types list only nested objects.
-    const layout = { 'images[0].source': image.source, 'title.text': title } as Partial<Layout>;
-    if (figure.sketch && !this.sketchShown) {
-      this.sketchShown = true;
-      return Plotly.update(this.plot, { opacity: 0 }, { images: [image], 'title.text': title } as Partial<Layout>, figure.sketch.traces);
-    }
-    return Plotly.relayout(this.plot, layout);
   }
 
   private showMessage(level: 'error' | 'warning' | null, text: string): void {

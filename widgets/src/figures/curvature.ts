@@ -186,6 +186,8 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
     data,
     layout: {
       ...BASE_LAYOUT,
+      // Transparent: a drag step draws the new picture under plotly's drawing (widgets/src/preview.ts).
+      plot_bgcolor: 'rgba(0,0,0,0)',
       title: { text: `Berry curvature — ${summary}` },
       // No grid lines: they would draw over the picture (a layout image sits under them).
       xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false, showgrid: false, constrain: 'domain' },

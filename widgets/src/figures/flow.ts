@@ -116,9 +116,6 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     invariant,
     gapless,
     sketch: {
-      x: xRange,
-      y: yRange,
-      traces: [0, 1],
       dots: [{ x: px, y: py, colour: CENTRE_COLOUR, size: CENTRE_SIZE }],
       lines: [{ x: mid.x, y: mid.y, colour: GAP_COLOUR, width: 2, dashed: true }],
     },
