@@ -34,10 +34,16 @@ export class DragPreview {
     canvas.style.top = `${area.top - box.top}px`;
     canvas.style.width = `${area.width}px`;
     canvas.style.height = `${area.height}px`;
-    canvas.width = Math.round(area.width * scale);
-    canvas.height = Math.round(area.height * scale);
+    const width = Math.round(area.width * scale);
+    const height = Math.round(area.height * scale);
+    // Resizing reallocates the canvas; on a drag the size stays, and clearing is enough.
+    if (canvas.width !== width || canvas.height !== height) {
+      canvas.width = width;
+      canvas.height = height;
+    }
     const context = canvas.getContext('2d');
     if (context === null) return false;
+    context.clearRect(0, 0, width, height);
     const toPixels = (x: number, y: number): [number, number] => [
       ((x - ranges.x[0]) / (ranges.x[1] - ranges.x[0])) * canvas.width,
       ((ranges.y[1] - y) / (ranges.y[1] - ranges.y[0])) * canvas.height,
