@@ -1,7 +1,7 @@
 /**
  * Widget recompute latency in headless Chromium: one control step (slider input -> engine in the
- * page's Web Workers, the request shared among them -> parts back and joined -> the picture swapped
- * in, or a plotly redraw) of a 4-band model, 50 steps each, for a 100x100 Berry-curvature map and a
+ * page's Web Workers, the request shared among them -> parts back and joined -> the new picture
+ * previewed on a canvas, or a plotly redraw) of a 4-band model, 50 steps each, for a 100x100 Berry-curvature map and a
  * 101x101 Wannier-centre flow. Target: p95 under 50 ms.
  * Reference, same run: the same requests computed directly by the engine in Node (no worker, no
  * drawing); the ratio is reference / ours (1 would mean the widget adds nothing to the engine).
@@ -42,8 +42,8 @@ interface StepTiming {
   compute: number;
   figure: number;
   plot: number;
-  /** Whether the step only swapped the picture in (widgets/src/widget.ts). */
-  swapped: boolean;
+  /** Whether the step was a preview, drawn without plotly (widgets/src/preview.ts). */
+  previewed: boolean;
 }
 
 /**
@@ -63,7 +63,7 @@ const stepScript = `async ({ index, name, steps }) => {
     slider.value = String(v);
     slider.dispatchEvent(new Event('input', { bubbles: true }));
     const d = await done;
-    out.push({ total: performance.now() - t0, latency: d.latency, compute: d.computeMs, figure: d.figureMs, plot: d.plotMs, swapped: d.swapped });
+    out.push({ total: performance.now() - t0, latency: d.latency, compute: d.computeMs, figure: d.figureMs, plot: d.plotMs, previewed: d.previewed });
   }
   return out;
 }`;
@@ -91,7 +91,7 @@ export async function benchWidgets(): Promise<BenchRow[]> {
         `bench: widgets: ${c.label}: median engine ${median(measured.map((t) => t.compute)).toFixed(1)} ms, ` +
           `to the worker and back ${median(measured.map((t) => t.latency - t.compute)).toFixed(1)} ms, ` +
           `figure ${median(measured.map((t) => t.figure)).toFixed(1)} ms, plotly ${median(measured.map((t) => t.plot)).toFixed(1)} ms, ` +
-          `${measured.filter((t) => t.swapped).length}/${measured.length} steps swapped the picture in\n`,
+          `${measured.filter((t) => t.previewed).length}/${measured.length} steps previewed\n`,
       );
       const totals = measured.map((t) => t.total).sort((a, b) => a - b);
 

@@ -122,10 +122,10 @@ describe('exported notebook page', () => {
         out.push(await drawn);
       }
       return out;
-    })) as { swapped: boolean; summary: string }[];
+    })) as { previewed: boolean; summary: string }[];
     // The first step may redraw in full (the draw before it may have been a preview that settled);
     // the steps after it follow a full draw of the same frame and are previews (widgets/src/preview.ts).
-    expect(steps.slice(1).map((d) => d.swapped)).toEqual([true, true]);
+    expect(steps.slice(1).map((d) => d.previewed)).toEqual([true, true]);
     expect(await haldane.locator('canvas.chernel-preview').count()).toBe(1);
     expect(await haldane.locator('.gtitle').textContent()).toContain(steps[2].summary);
     // At rest (250 ms, widget.ts) plotly redraws: the preview goes, the layout image is the new

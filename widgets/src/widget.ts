@@ -104,7 +104,7 @@ export interface DrawnDetail {
   figureMs: number;
   plotMs: number;
   /** True when a drag step drew only the picture and the title, without plotly (see `draw`). */
-  swapped: boolean;
+  previewed: boolean;
 }
 
 /** How long the controls must rest before a previewed drawing is redrawn in full. */
@@ -351,7 +351,7 @@ export class DiagnosticView extends DOMWidgetView {
     if (this.model.comm_live) this.touch();
   }
 
-  /** `full`: redraw everything through plotly even where a swap would do (the drag has rested). */
+  /** `full`: redraw everything through plotly even where a preview would do (the drag has rested). */
   private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null, full = false): void {
     if (!this.attached) return;
     let figure: Figure;
@@ -408,7 +408,7 @@ export class DiagnosticView extends DOMWidgetView {
         computeMs: outcome ? outcome.computeMs : null,
         figureMs,
         plotMs: performance.now() - started - figureMs,
-        swapped: previewed,
+        previewed,
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });

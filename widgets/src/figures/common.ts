@@ -24,7 +24,7 @@ export interface Figure {
   sketch?: Sketch;
   /**
    * Everything a redraw keeps besides the picture and the title text; when two successive figures
-   * share it, a drag step swaps only those two, and the rest is redrawn once the drag rests.
+   * share it, a drag step previews only those two (preview.ts), and plotly redraws the rest at rest.
    */
   frameKey?: string;
 }
