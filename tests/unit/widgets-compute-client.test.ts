@@ -24,6 +24,18 @@ class HeldWorker implements WorkerLike {
   }
 }
 
+/** A client whose workers (made on demand) the test holds, and the outcomes it delivered. */
+function heldClient(plan?: SplitPlan): { client: LatestWinsClient; workers: HeldWorker[]; outcomes: Outcome[] } {
+  const workers: HeldWorker[] = [];
+  const outcomes: Outcome[] = [];
+  const spawn = () => {
+    const w = new HeldWorker();
+    workers.push(w);
+    return w;
+  };
+  return { client: new LatestWinsClient(spawn, (o) => outcomes.push(o), plan), workers, outcomes };
+}
+
 function request(u: number): DiagnosticRequest {
   return { kind: 'curvature', model: { format: 'chernel.model', name: 'm', periodic: 2, vectors: [], orbitals: [], parameters: {} }, params: { u } };
 }
@@ -34,13 +46,7 @@ function ok(id: number, u: number): ComputeReply {
 
 describe('LatestWinsClient', () => {
   it('sends the first request at once, keeps only the newest while busy, and drops the rest', () => {
-    const workers: HeldWorker[] = [];
-    const outcomes: Outcome[] = [];
-    const client = new LatestWinsClient(() => {
-      const w = new HeldWorker();
-      workers.push(w);
-      return w;
-    }, (o) => outcomes.push(o));
+    const { client, workers, outcomes } = heldClient();
     for (const u of [1, 2, 3, 4, 5]) client.submit(request(u));
     expect(workers).toHaveLength(1);
     const worker = workers[0];
@@ -88,13 +94,7 @@ describe('LatestWinsClient', () => {
   });
 
   it('replaces a crashed worker on the next request and reports the crash', () => {
-    const workers: HeldWorker[] = [];
-    const outcomes: Outcome[] = [];
-    const client = new LatestWinsClient(() => {
-      const w = new HeldWorker();
-      workers.push(w);
-      return w;
-    }, (o) => outcomes.push(o));
+    const { client, workers, outcomes } = heldClient();
     client.submit(request(1));
     client.submit(request(2));
     workers[0].fail('out of memory');
@@ -116,8 +116,6 @@ describe('LatestWinsClient', () => {
   });
 
   it('splits a request into one part per worker, computed side by side, joined once all are in', () => {
-    const workers: HeldWorker[] = [];
-    const outcomes: Outcome[] = [];
     const joined: unknown[][] = [];
     // A plan of our own: three parts, each tagged; the join records what it was given.
     const plan: SplitPlan = {
@@ -128,11 +126,7 @@ describe('LatestWinsClient', () => {
         return { kind: 'curvature', checks: { minGap: Math.min(...parts.map((p) => p.checks.minGap ?? Infinity)), warnings: [] } };
       },
     };
-    const client = new LatestWinsClient(() => {
-      const w = new HeldWorker();
-      workers.push(w);
-      return w;
-    }, (o) => outcomes.push(o), plan);
+    const { client, workers, outcomes } = heldClient(plan);
     client.submit(request(1));
     expect(workers).toHaveLength(3);
     expect(workers.map((w) => w.received[0].request.part)).toEqual([0, 1, 2].map((index) => ({ index, count: 3 })));
@@ -150,14 +144,8 @@ describe('LatestWinsClient', () => {
   });
 
   it('a failed part fails the whole request, with the engine error', () => {
-    const workers: HeldWorker[] = [];
-    const outcomes: Outcome[] = [];
     const plan: SplitPlan = { parts: () => 2, partRequest: (r) => r, join: () => { throw new Error('not reached'); } };
-    const client = new LatestWinsClient(() => {
-      const w = new HeldWorker();
-      workers.push(w);
-      return w;
-    }, (o) => outcomes.push(o), plan);
+    const { client, workers, outcomes } = heldClient(plan);
     client.submit(request(1));
     workers[0].reply(ok(workers[0].received[0].id, 1));
     workers[1].reply({ id: workers[1].received[0].id, ok: false, error: { name: 'ModelError', message: 'part: bad' } });
