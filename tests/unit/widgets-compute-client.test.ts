@@ -152,4 +152,21 @@ describe('LatestWinsClient', () => {
     expect(outcomes[0].error).toEqual({ name: 'ModelError', message: 'part: bad' });
     expect(client.busy).toBe(false);
   });
+
+  it('a warm-up computes without delivering; a request made meanwhile goes out after it', () => {
+    const { client, workers, outcomes } = heldClient();
+    client.warm(request(0));
+    expect(workers[0].received.map((m) => m.request.params.u)).toEqual([0]);
+    client.submit(request(1));
+    expect(client.busy).toBe(true);
+    workers[0].reply(ok(workers[0].received[0].id, 0));
+    expect(outcomes).toHaveLength(0);
+    expect(workers[0].received.map((m) => m.request.params.u)).toEqual([0, 1]);
+    workers[0].reply(ok(workers[0].received[1].id, 1));
+    expect(outcomes.map((o) => o.result?.checks.minGap)).toEqual([1]);
+    // Nothing is warmed while work is pending.
+    client.submit(request(2));
+    client.warm(request(3));
+    expect(workers[0].received.map((m) => m.request.params.u)).toEqual([0, 1, 2]);
+  });
 });

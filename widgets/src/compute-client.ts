@@ -43,6 +43,8 @@ interface Pending {
 }
 
 interface InFlight extends Pending {
+  /** A warm-up: computed, never delivered. */
+  silent: boolean;
   /** Message id of each part (index = part = worker). */
   ids: number[];
   replies: (ComputeReply | undefined)[];
@@ -73,6 +75,14 @@ export class LatestWinsClient {
     }
   }
 
+  /**
+   * Computes `request` without delivering it, when nothing else is pending: the workers start and
+   * compile the model, and their JIT warms up, before the hand starts dragging.
+   */
+  warm(request: DiagnosticRequest): void {
+    if (this.inFlight === null && this.waiting === null) this.send({ request, submitted: performance.now() }, true);
+  }
+
   /** True while a request is computing or waiting. */
   get busy(): boolean {
     return this.inFlight !== null || this.waiting !== null;
@@ -85,10 +95,10 @@ export class LatestWinsClient {
     this.waiting = null;
   }
 
-  private send(pending: Pending): void {
+  private send(pending: Pending, silent = false): void {
     const count = Math.max(1, this.plan.parts(pending.request));
     const ids = Array.from({ length: count }, () => this.nextId++);
-    this.inFlight = { ...pending, ids, replies: new Array(count).fill(undefined), remaining: count };
+    this.inFlight = { ...pending, silent, ids, replies: new Array(count).fill(undefined), remaining: count };
     ids.forEach((id, index) => {
       const request = count === 1 ? pending.request : this.plan.partRequest(pending.request, index, count);
       this.ensureWorker(index).postMessage({ id, request });
@@ -112,10 +122,10 @@ export class LatestWinsClient {
     current.replies[part] = reply;
     if (--current.remaining > 0) return;
     this.inFlight = null;
-    const outcome = this.finish(current, current.replies as ComputeReply[]);
+    const outcome = current.silent ? null : this.finish(current, current.replies as ComputeReply[]);
     // Start the next computation before drawing this one: the workers compute while the page draws.
     this.sendWaiting();
-    this.deliver(outcome);
+    if (outcome !== null) this.deliver(outcome);
   }
 
   private finish(current: InFlight, replies: ComputeReply[]): Outcome {
@@ -142,7 +152,7 @@ export class LatestWinsClient {
     this.workers[index] = null;
     const current = this.inFlight;
     this.inFlight = null;
-    if (current !== null) {
+    if (current !== null && !current.silent) {
       this.deliver({
         request: current.request,
         latency: performance.now() - current.submitted,

@@ -178,6 +178,7 @@ export class DiagnosticView extends DOMWidgetView {
     footer.append(this.statusEl);
 
     this.controlsHost = document.createElement('div');
+    for (const approach of ['pointerenter', 'focusin']) this.controlsHost.addEventListener(approach, () => this.warmUp(), { once: true });
     this.el.append(header, this.messageEl, this.controlsHost, this.plot, footer);
     this.buildControls();
 
@@ -317,9 +318,18 @@ export class DiagnosticView extends DOMWidgetView {
     this.moveTo(clamped);
   }
 
-  private recompute(): void {
+  private engine(): LatestWinsClient {
     this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
-    this.client.submit(this.model.request(this.live));
+    return this.client;
+  }
+
+  /** The hand nears the controls: start the workers now, so the first drag steps are not cold. */
+  private warmUp(): void {
+    if (this.attached && this.spec) this.engine().warm(this.model.request(this.live));
+  }
+
+  private recompute(): void {
+    this.engine().submit(this.model.request(this.live));
     // Mark the plot stale once per burst of moves, not on every input event.
     if (!this.plot.classList.contains('chernel-stale')) {
       this.plot.classList.add('chernel-stale');
@@ -342,8 +352,9 @@ export class DiagnosticView extends DOMWidgetView {
     }
     const result = outcome.result as DiagnosticResult;
     this.model.set({ result, result_values: values, error: '', values: { ...this.live } }, { updated_view: this });
-    this.sync();
-    this.draw(result, values, outcome);
+    // During a drag the kernel hears once the drag rests (with the full redraw), not on every step:
+    // a result is tens of kilobytes, and the page would serialise each one while the hand moves.
+    if (!this.draw(result, values, outcome)) this.sync();
   }
 
   /** Send values and result to the kernel when one is connected (not in an exported page). */
@@ -351,16 +362,19 @@ export class DiagnosticView extends DOMWidgetView {
     if (this.model.comm_live) this.touch();
   }
 
-  /** `full`: redraw everything through plotly even where a preview would do (the drag has rested). */
-  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null, full = false): void {
-    if (!this.attached) return;
+  /**
+   * Draws a result; true when it was a drag preview (plotly and the kernel follow at rest). `full`:
+   * redraw everything through plotly even where a preview would do (the drag has rested).
+   */
+  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null, full = false): boolean {
+    if (!this.attached) return false;
     let figure: Figure;
     const started = performance.now();
     try {
       figure = figureFor(result, this.context(values));
     } catch (err) {
       this.showMessage('error', (err as Error).message);
-      return;
+      return false;
     }
     this.figure = figure;
     this.summaryEl.textContent = figure.summary;
@@ -389,7 +403,9 @@ export class DiagnosticView extends DOMWidgetView {
       this.settleTimer = setTimeout(() => {
         this.settleTimer = null;
         // Still computing: the drag goes on, and the next result re-arms this.
-        if (!(this.client?.busy ?? false)) this.draw(result, values, outcome, true);
+        if (this.client?.busy ?? false) return;
+        this.draw(result, values, outcome, true);
+        this.sync();
       }, SETTLE_MS);
     } else {
       drawn = this.plotFull(figure);
@@ -412,6 +428,7 @@ export class DiagnosticView extends DOMWidgetView {
       };
       this.el.dispatchEvent(new CustomEvent('chernel-drawn', { bubbles: true, detail }));
     });
+    return previewed;
   }
 
   /** The whole figure through plotly (traces, axes, colour bar), with its raster as an image. */
