@@ -77,10 +77,11 @@ function paint(raster: Raster, put: (i: number, r: number, g: number, b: number)
 /** The raster's pixels, RGBA row-major from the top row (as a canvas ImageData holds them). */
 export function rasterPixels(raster: Raster, out = new Uint8ClampedArray(4 * raster.values.length)): Uint8ClampedArray {
   paint(raster, (i, r, g, b) => {
-    out[4 * i] = r;
-    out[4 * i + 1] = g;
-    out[4 * i + 2] = b;
-    out[4 * i + 3] = 255;
+    const p = 4 * i;
+    out[p] = r;
+    out[p + 1] = g;
+    out[p + 2] = b;
+    out[p + 3] = 255;
   });
   return out;
 }

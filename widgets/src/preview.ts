@@ -3,13 +3,18 @@
  * plotly's plot area, with the plotly parts it replaces hidden, until the view redraws in full.
  * A raster goes under plotly's drawing (the plot background is transparent, the stale layout image
  * hidden), so the axes and zone boundary stay on top of it; a sketch goes over it, with plotly's
- * scatter traces hidden. Reads plotly's drawing only through its public layout (axis ranges) and
- * the class names of its plot area, plot layers and title.
+ * scatter traces hidden. Reads plotly's drawing only through its public layout (axis ranges), its
+ * 'plotly_afterplot' event and the class names of its plot area, plot layers and title.
  */
 import type { Figure } from './figures/index.js';
 import { rasterPixels, type Raster, type Sketch } from './picture.js';
 
-interface AxisRanges {
+/** Where plotly's plot area is (pixels, in its svg container) and the axis ranges it shows. */
+interface PlotGeometry {
+  left: number;
+  top: number;
+  width: number;
+  height: number;
   x: [number, number];
   y: [number, number];
 }
@@ -17,25 +22,41 @@ interface AxisRanges {
 export class DragPreview {
   private canvas: HTMLCanvasElement | null = null;
   private bricks: HTMLCanvasElement | null = null;
+  private geometry: PlotGeometry | null = null;
 
   constructor(private readonly plot: HTMLElement) {}
 
-  /** Draws the figure's picture and title; false when there is no plotly drawing to lay it in. */
-  show(figure: Figure, title: string): boolean {
-    if (!figure.raster && !figure.sketch) return false;
+  /**
+   * Reads the plot area and axis ranges after plotly draws (a redraw, a resize, a zoom), so that a
+   * drag step does not force the page to lay itself out again to find them.
+   */
+  measure(): void {
+    this.geometry = null;
     const container = this.plot.querySelector('.svg-container');
     const area = this.plot.querySelector('.nsewdrag')?.getBoundingClientRect();
-    const ranges = this.axisRanges();
-    if (!container || !area || area.width < 1 || area.height < 1 || ranges === null) return false;
+    const layout = (this.plot as unknown as { layout?: { xaxis?: { range?: unknown }; yaxis?: { range?: unknown } } }).layout;
+    const pair = (r: unknown): [number, number] | null =>
+      Array.isArray(r) && r.length === 2 && r.every((v) => typeof v === 'number' && Number.isFinite(v)) && r[0] !== r[1] ? [r[0], r[1]] : null;
+    const x = pair(layout?.xaxis?.range);
+    const y = pair(layout?.yaxis?.range);
+    if (!container || !area || area.width < 1 || area.height < 1 || x === null || y === null) return;
     const box = container.getBoundingClientRect();
+    this.geometry = { left: area.left - box.left, top: area.top - box.top, width: area.width, height: area.height, x, y };
+  }
+
+  /** Draws the figure's picture and title; false when there is no plotly drawing to lay it in. */
+  show(figure: Figure, title: string): boolean {
+    const geometry = this.geometry;
+    const container = this.plot.querySelector('.svg-container');
+    if ((!figure.raster && !figure.sketch) || geometry === null || container === null) return false;
     const canvas = this.canvasIn(container, figure.raster !== undefined);
     const scale = this.plot.ownerDocument.defaultView?.devicePixelRatio ?? 1;
-    canvas.style.left = `${area.left - box.left}px`;
-    canvas.style.top = `${area.top - box.top}px`;
-    canvas.style.width = `${area.width}px`;
-    canvas.style.height = `${area.height}px`;
-    const width = Math.round(area.width * scale);
-    const height = Math.round(area.height * scale);
+    canvas.style.left = `${geometry.left}px`;
+    canvas.style.top = `${geometry.top}px`;
+    canvas.style.width = `${geometry.width}px`;
+    canvas.style.height = `${geometry.height}px`;
+    const width = Math.round(geometry.width * scale);
+    const height = Math.round(geometry.height * scale);
     // Resizing reallocates the canvas; on a drag the size stays, and clearing is enough.
     if (canvas.width !== width || canvas.height !== height) {
       canvas.width = width;
@@ -44,9 +65,10 @@ export class DragPreview {
     const context = canvas.getContext('2d');
     if (context === null) return false;
     context.clearRect(0, 0, width, height);
+    const { x: xr, y: yr } = geometry;
     const toPixels = (x: number, y: number): [number, number] => [
-      ((x - ranges.x[0]) / (ranges.x[1] - ranges.x[0])) * canvas.width,
-      ((ranges.y[1] - y) / (ranges.y[1] - ranges.y[0])) * canvas.height,
+      ((x - xr[0]) / (xr[1] - xr[0])) * width,
+      ((yr[1] - y) / (yr[1] - yr[0])) * height,
     ];
     if (figure.raster) this.drawRaster(context, figure.raster, toPixels);
     if (figure.sketch) drawSketch(context, figure.sketch, toPixels, scale);
@@ -61,16 +83,6 @@ export class DragPreview {
     this.canvas?.remove();
     this.canvas = null;
     this.plot.classList.remove('chernel-preview-raster', 'chernel-preview-sketch');
-  }
-
-  /** The axis ranges plotly shows now (after any zoom), from its public layout. */
-  private axisRanges(): AxisRanges | null {
-    const layout = (this.plot as unknown as { layout?: { xaxis?: { range?: unknown }; yaxis?: { range?: unknown } } }).layout;
-    const pair = (r: unknown): [number, number] | null =>
-      Array.isArray(r) && r.length === 2 && r.every((v) => typeof v === 'number' && Number.isFinite(v)) && r[0] !== r[1] ? [r[0], r[1]] : null;
-    const x = pair(layout?.xaxis?.range);
-    const y = pair(layout?.yaxis?.range);
-    return x && y ? { x, y } : null;
   }
 
   private canvasIn(container: Element, under: boolean): HTMLCanvasElement {

@@ -109,6 +109,8 @@ export interface DrawnDetail {
 
 /** How long the controls must rest before a previewed drawing is redrawn in full. */
 const SETTLE_MS = 250;
+/** How long a computation may take before the plot is shown as stale. */
+const STALE_AFTER_MS = 150;
 
 /** Creates the worker for a view; replaced in unit tests by a worker running in the test process. */
 export let workerFactory: () => WorkerLike = spawnEngineWorker;
@@ -132,6 +134,7 @@ export class DiagnosticView extends DOMWidgetView {
   /** The frame key of the figure plotly shows in full, and the pending full redraw after a drag. */
   private drawnFrameKey: string | null = null;
   private settleTimer: ReturnType<typeof setTimeout> | null = null;
+  private staleTimer: ReturnType<typeof setTimeout> | null = null;
   private preview!: DragPreview;
   /** The values the controls show; ahead of the model's result while a recompute is pending. */
   private live: Values = {};
@@ -202,6 +205,7 @@ export class DiagnosticView extends DOMWidgetView {
   override remove(): this {
     this.attached = false;
     if (this.settleTimer !== null) clearTimeout(this.settleTimer);
+    if (this.staleTimer !== null) clearTimeout(this.staleTimer);
     Plotly.purge(this.plot);
     this.client?.dispose();
     this.client = null;
@@ -289,6 +293,7 @@ export class DiagnosticView extends DOMWidgetView {
     if (this.plotEventsBound) return;
     this.plotEventsBound = true;
     const gd = this.plot as unknown as PlotlyHTMLElement;
+    gd.on('plotly_afterplot', () => this.preview.measure());
     gd.on('plotly_relayout', (update) => {
       const swept = this.model.sweptParameters();
       if (swept.length === 0) return;
@@ -330,11 +335,29 @@ export class DiagnosticView extends DOMWidgetView {
 
   private recompute(): void {
     this.engine().submit(this.model.request(this.live));
-    // Mark the plot stale once per burst of moves, not on every input event.
-    if (!this.plot.classList.contains('chernel-stale')) {
+    this.markComputing();
+  }
+
+  /**
+   * Fades the plot as stale once a computation has taken STALE_AFTER_MS: a drag step's result comes
+   * sooner, and fading the whole plot in and out on every step would repaint all of it twice.
+   */
+  private markComputing(): void {
+    if (this.staleTimer !== null || this.plot.classList.contains('chernel-stale')) return;
+    this.staleTimer = setTimeout(() => {
+      this.staleTimer = null;
+      if (!(this.client?.busy ?? false)) return;
       this.plot.classList.add('chernel-stale');
       this.statusEl.textContent = 'computing…';
-    }
+    }, STALE_AFTER_MS);
+  }
+
+  /** A result is drawn: the plot is current unless a newer computation is still running. */
+  private computingDone(busy: boolean): void {
+    if (this.staleTimer !== null) clearTimeout(this.staleTimer);
+    this.staleTimer = null;
+    if (busy) this.markComputing();
+    else this.plot.classList.remove('chernel-stale');
   }
 
   private computed(outcome: Outcome): void {
@@ -412,7 +435,7 @@ export class DiagnosticView extends DOMWidgetView {
     }
     void drawn.then(() => {
       if (!this.attached) return;
-      this.plot.classList.toggle('chernel-stale', busy);
+      this.computingDone(busy);
       this.statusEl.textContent = outcome
         ? `${describeValues(values, this.parameterOrder())} · engine ${outcome.computeMs.toFixed(0)} ms`
         : `${describeValues(values, this.parameterOrder())} · saved result`;
@@ -441,6 +464,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.preview.hide();
       if (!this.attached) return;
       this.bindPlotEvents();
+      this.preview.measure();
       this.drawnFrameKey = figure.frameKey ?? null;
     });
   }

@@ -118,12 +118,15 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
     colorscale: DIVERGING,
   };
   // Hover values: an invisible heatmap over the same bricks (typed rows: plotly reads them as is).
-  const z: Float64Array[] = ys.map((row) => {
-    const out = new Float64Array(width);
-    const base = row.index * n1;
-    for (let c = 0; c < width; c++) out[c] = omega[base + xs[c].index];
-    return out;
-  });
+  // Built when first read: a drag step draws only the picture, and plotly reads z at rest.
+  let rows: Float64Array[] | null = null;
+  const hoverRows = (): Float64Array[] =>
+    (rows ??= ys.map((row) => {
+      const out = new Float64Array(width);
+      const base = row.index * n1;
+      for (let c = 0; c < width; c++) out[c] = omega[base + xs[c].index];
+      return out;
+    }));
 
   const data: Data[] = [
     {
@@ -131,7 +134,9 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
       x,
       y,
       // plotly's types list only nested arrays; its heatmap reads typed rows the same way.
-      z: z as unknown as number[][],
+      get z() {
+        return hoverRows() as unknown as number[][];
+      },
       opacity: 0,
       showscale: false,
       hovertemplate: 'k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>Ω = %{z:.4g} rad⁻²<extra></extra>',
