@@ -109,7 +109,7 @@ export class TridiagonalDivideConquer {
   /**
    * The tridiagonal with diagonal `d[0..n)` and off-diagonal `e[0..n-1)`: on return `d` holds the
    * eigenvalues ascending and column j of `z` (n x n, row-major) the eigenvector of d[j]; `e` is
-   * destroyed. Returns false if a QL block failed to converge.
+   * destroyed. Returns false if a QL block or a secular equation failed to converge.
    */
   solve(d: Float64Array, e: Float64Array, z: Float64Array): boolean {
     return this.block(d, e, z, 0, this.n);
@@ -123,8 +123,7 @@ export class TridiagonalDivideConquer {
     d[o + m - 1] -= Math.abs(b);
     d[o + m] -= Math.abs(b);
     if (!this.block(d, e, z, o, m) || !this.block(d, e, z, o + m, s - m)) return false;
-    this.merge(d, z, o, s, m, b);
-    return true;
+    return this.merge(d, z, o, s, m, b);
   }
 
   private leaf(d: Float64Array, e: Float64Array, z: Float64Array, o: number, s: number): boolean {
@@ -159,9 +158,9 @@ export class TridiagonalDivideConquer {
 
   /**
    * Merge of two solved halves (rows/columns o..o+m and o+m..o+s of z, eigenvalues ascending in
-   * each half of d) coupled by the off-diagonal b.
+   * each half of d) coupled by the off-diagonal b. False if a secular equation did not converge.
    */
-  private merge(d: Float64Array, z: Float64Array, o: number, s: number, m: number, b: number): void {
+  private merge(d: Float64Array, z: Float64Array, o: number, s: number, m: number, b: number): boolean {
     const n = this.n;
     const ds = this.ds;
     const zs = this.zs;
@@ -242,7 +241,7 @@ export class TridiagonalDivideConquer {
       dd[j] = ds[keep[j]];
       zz[j] = zs[keep[j]];
     }
-    this.secular(k, rho);
+    if (!this.secular(k, rho)) return false;
     // Output order: merge the ascending roots with the ascending deflated values.
     const pos = this.pos;
     const org = this.org;
@@ -257,6 +256,7 @@ export class TridiagonalDivideConquer {
     }
     while (gi < ngone) this.placeDeflated(d, z, o, s, gone[gi++], out++);
     if (k > 0) this.rootVectors(z, o, s, m, k);
+    return true;
   }
 
   /** Adds pole p to the deflated ones (kept sorted by value); returns their new count. */
@@ -279,8 +279,11 @@ export class TridiagonalDivideConquer {
     for (let r = 0; r < s; r++) z[(o + r) * n + o + out] = qc[r * s + p];
   }
 
-  /** Roots of 1 + rho sum_j zz_j^2 / (dd_j - x) (dd ascending, zz nonzero): origins, offsets and dm. */
-  private secular(k: number, rho: number): void {
+  /**
+   * Roots of 1 + rho sum_j zz_j^2 / (dd_j - x) (dd ascending, zz nonzero): origins, offsets and dm.
+   * False if a root was neither found to working accuracy nor pinned by its bracket.
+   */
+  private secular(k: number, rho: number): boolean {
     const dd = this.dd;
     const zz = this.zz;
     const org = this.org;
@@ -291,7 +294,7 @@ export class TridiagonalDivideConquer {
       org[0] = 0;
       tau[0] = rho * zz[0] * zz[0];
       dm[0] = -tau[0];
-      return;
+      return true;
     }
     let zsq = 0;
     for (let j = 0; j < k; j++) zsq += zz[j] * zz[j];
@@ -327,7 +330,8 @@ export class TridiagonalDivideConquer {
       // Poles a and b of the two-pole model: i and i + 1, or, for the last root, k - 2 and k - 1.
       const ia = last ? k - 2 : i;
       const ib = ia + 1;
-      for (let step = 0; step < MAX_SECULAR_STEPS; step++) {
+      let found = false;
+      for (let step = 0; step < MAX_SECULAR_STEPS && !found; step++) {
         let psi = 0, dpsi = 0, phi = 0, dphi = 0;
         for (let j = 0; j <= ia; j++) {
           const t = zz[j] / (dd[j] - base - x);
@@ -342,7 +346,10 @@ export class TridiagonalDivideConquer {
         const w = rinv + psi + phi;
         const dw = dpsi + dphi;
         const err = 8 * (Math.abs(phi) + Math.abs(psi)) + 2 * rinv + Math.abs(x) * dw;
-        if (Math.abs(w) <= EPS * err) break;
+        if (Math.abs(w) <= EPS * err) {
+          found = true;
+          break;
+        }
         if (w < 0) lo = x;
         else hi = x;
         const da = dd[ia] - base - x;
@@ -367,14 +374,16 @@ export class TridiagonalDivideConquer {
         if (w * eta >= 0 || !Number.isFinite(eta)) eta = -w / dw;
         let next = x + eta;
         if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-        if (next === x) break;
+        found = next === x || hi - lo <= 2 * EPS * Math.max(Math.abs(lo), Math.abs(hi));
         x = next;
       }
+      if (!found) return false;
       org[i] = o;
       tau[i] = x;
       const row = i * k;
       for (let j = 0; j < k; j++) dm[row + j] = dd[j] - base - x;
     }
+    return true;
   }
 
   /**
