@@ -109,7 +109,11 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     copyFileSync(join(lab.rootDir, notebook.path), join(lab.rootDir, 'shared.ipynb'));
     const shared = await lab.openNotebook('shared.ipynb');
     const restored = shared.cell(0).locator('.chernel-widget');
-    await restored.locator('.chernel-plot .main-svg').first().waitFor({ timeout: 60_000 });
+    await restored.locator('.chernel-plot .main-svg').first().waitFor({ timeout: 60_000 }).catch(async (err: Error) => {
+      // Say what the cell showed instead (a widget-manager message, an error, nothing).
+      await lab.screenshot('widgets-lab-collaborator-failed');
+      throw new Error(`${err.message}\ncell 0 shows: ${await shared.cell(0).textContent()}`);
+    });
     expect(await restored.locator('.chernel-status').textContent()).toContain('saved result');
     expect(await restored.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.1)));
     // The model's parameter order survives the notebook's sorted JSON.
