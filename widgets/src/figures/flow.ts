@@ -66,8 +66,6 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     }
   }
   const mid = wrapBreaks(x, gapMidpoint);
-  const xRange: [number, number] = [-0.5, 0.5];
-  const yRange: [number, number] = [0, 1];
   const data: Data[] = [
     {
       type: 'scatter',
@@ -108,8 +106,8 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     layout: {
       ...BASE_LAYOUT,
       title: { text: `Wannier-centre flow — ${summary}` },
-      xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false },
-      yaxis: { title: { text: 'Wannier centre x̄₂ [a₂]' }, range: yRange, zeroline: false },
+      xaxis: { title: { text: 'k₁ [b₁]' }, range: [-0.5, 0.5], zeroline: false },
+      yaxis: { title: { text: 'Wannier centre x̄₂ [a₂]' }, range: [0, 1], zeroline: false },
       legend: { orientation: 'h', x: 0, y: -0.18 },
     },
     summary,
