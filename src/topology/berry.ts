@@ -13,7 +13,7 @@ import {
   type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases, wrapAngle } from './links.js';
-import { COARSE_LINK } from './wilson.js';
+import { COARSE_LINK } from './checks.js';
 
 export interface BerryPhaseOptions extends TopologyOptions {
   /**

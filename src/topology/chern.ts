@@ -15,8 +15,6 @@ import {
 import { COARSE_PLAQUETTE_PHASE } from './checks.js';
 import { determinantInPlace, overlapMatrix } from './links.js';
 
-export { COARSE_PLAQUETTE_PHASE };
-
 export interface ChernChecks extends TopologyChecks {
   /** Largest |Berry flux| through one plaquette; near pi the integer cannot be trusted. */
   maxPlaquettePhase?: number;

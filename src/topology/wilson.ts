@@ -17,8 +17,6 @@ import { gapTolerance } from './checks.js';
 import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases } from './links.js';
 import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type WannierFlowPart } from './parts.js';
 
-export { COARSE_LINK } from './checks.js';
-
 /**
  * Wilson loops along one axis of a plane, one column (fixed across-momentum) at a time. Keeps the
  * previous column's frames to measure how far frames move across, so a coarse across-grid is seen.
