@@ -14,7 +14,7 @@
  * QL with rotations accumulated), run by a WebAssembly SIMD kernel (`simd.ts`).
  */
 import type { SimdKernels } from './simd.js';
-import { tridiagonalQL } from './tridiagonal.js';
+import { ascendingOrder, tridiagonalQL } from './tridiagonal.js';
 
 const EPS = 2 ** -52;
 /**
@@ -138,16 +138,7 @@ export class TridiagonalDivideConquer {
     lz.fill(0, 0, s * s);
     for (let i = 0; i < s; i++) lz[i * s + i] = 1;
     if (!tridiagonalQL(s, ld, le, lz, this.cs, this.sn)) return false;
-    const order = this.lorder;
-    for (let i = 0; i < s; i++) {
-      const x = ld[i];
-      let j = i - 1;
-      while (j >= 0 && ld[order[j]] > x) {
-        order[j + 1] = order[j];
-        j--;
-      }
-      order[j + 1] = i;
-    }
+    const order = ascendingOrder(ld, s, this.lorder);
     for (let c = 0; c < s; c++) d[o + c] = ld[order[c]];
     for (let r = 0; r < s; r++) {
       const row = (o + r) * n + o;

@@ -16,7 +16,7 @@
 import type { CMatrix } from './cmatrix.js';
 import { LEAF, TridiagonalDivideConquer } from './divide-conquer.js';
 import { simdWorkspace, type SimdKernels } from './simd.js';
-import { tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
+import { ascendingOrder, tridiagonalEigenvalues, tridiagonalQL } from './tridiagonal.js';
 
 /** Inside [SAFE_MIN, SAFE_MAX] no square or sum of squares over- or underflows harmfully. */
 const SAFE_MIN = 2 ** -300;
@@ -255,17 +255,7 @@ export class HermitianEigensolver {
     if (!converged) {
       throw new RangeError(`eigensolver: the tridiagonal iteration did not converge (n = ${n}); is h finite and Hermitian?`);
     }
-    // Ascending order by insertion sort (n is small, and QL leaves d nearly ordered in blocks).
-    const order = this.order;
-    for (let i = 0; i < n; i++) {
-      const x = d[i];
-      let j = i - 1;
-      while (j >= 0 && d[order[j]] > x) {
-        order[j + 1] = order[j];
-        j--;
-      }
-      order[j + 1] = i;
-    }
+    const order = ascendingOrder(d, n, this.order);
     for (let i = 0; i < n; i++) w[wo + i] = d[order[i]] * scale;
     if (vecs !== null) this.backTransform(vecs, vo);
   }

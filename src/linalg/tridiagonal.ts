@@ -218,3 +218,20 @@ export function tridiagonalEigenvalues(n: number, d: Float64Array, e2: Float64Ar
   }
   return true;
 }
+
+/**
+ * The permutation that sorts `values[0..count)` ascending, into `order` (insertion sort: the sizes
+ * are small, and QL leaves its eigenvalues nearly ordered in blocks).
+ */
+export function ascendingOrder(values: Float64Array, count: number, order: Int32Array): Int32Array {
+  for (let i = 0; i < count; i++) {
+    const x = values[i];
+    let j = i - 1;
+    while (j >= 0 && values[order[j]] > x) {
+      order[j + 1] = order[j];
+      j--;
+    }
+    order[j + 1] = i;
+  }
+  return order;
+}
