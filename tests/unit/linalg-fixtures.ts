@@ -126,16 +126,7 @@ export function withSpectrum(u: Float64Array, n: number, dRe: ArrayLike<number>,
 export function kramersHermitian(half: number, next: () => number): Float64Array {
   const n = 2 * half;
   const a = randomHermitian(half, next);
-  const b = new Float64Array(2 * half * half);
-  for (let i = 0; i < half; i++) {
-    for (let j = i + 1; j < half; j++) {
-      const re = next(), im = next();
-      b[2 * (i * half + j)] = re;
-      b[2 * (i * half + j) + 1] = im;
-      b[2 * (j * half + i)] = -re;
-      b[2 * (j * half + i) + 1] = -im;
-    }
-  }
+  const b = randomSkew(half, next);
   const h = new Float64Array(2 * n * n);
   const set = (i: number, j: number, re: number, im: number): void => {
     h[2 * (i * n + j)] = re;
