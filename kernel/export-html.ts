@@ -8,10 +8,7 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-
-export const WIDGET_STATE_MIME = 'application/vnd.jupyter.widget-state+json';
-export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
-export const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
+import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {

@@ -6,16 +6,13 @@
  */
 
 import type { ModelSpec } from '../src/index.js';
+import type { WidgetKind } from '../widgets/src/protocol.js';
 import { packArrays, removeBuffers } from '../widgets/src/wire.js';
 
 export const WIDGET_MODULE = 'chernel-widgets';
 /** The semver range of the front-end module the state is written for. */
 export const WIDGET_MODULE_VERSION = '^0.1.0';
 export const WIDGET_PROTOCOL_VERSION = '2.1.0';
-export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
-
-export type WidgetKind = 'curvature' | 'wannier-flow' | 'bands' | 'ribbon' | 'phase-map';
-export const WIDGET_KINDS: readonly WidgetKind[] = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map'];
 
 export type Values = Record<string, number>;
 export type Result = Record<string, unknown> & { kind: string };

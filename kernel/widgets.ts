@@ -12,17 +12,15 @@ import { diagnose } from '../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { MIME_BUNDLE } from './display/index.js';
+import { WIDGET_KINDS, WIDGET_VIEW_MIME, type WidgetKind } from '../widgets/src/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
 import {
   checkValues,
-  WIDGET_KINDS,
   WIDGET_PROTOCOL_VERSION,
-  WIDGET_VIEW_MIME,
   WidgetOptionError,
   widgetState,
   type Result,
   type Values,
-  type WidgetKind,
   type WidgetOptions,
 } from './widget-state.js';
 

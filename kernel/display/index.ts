@@ -11,11 +11,10 @@ import { inspect } from 'node:util';
 import type { DisplayOutput, MimeBundle } from '../executor/channel.js';
 import { plotFor } from './plots.js';
 import { isModelSpec, isResult, modelHtml, modelText, resultHtml, resultText } from './summary.js';
+import { PLOTLY_MIME } from '../../widgets/src/protocol.js';
 
 /** Objects with a method under this key display themselves: return a MIME bundle. */
 export const MIME_BUNDLE = Symbol.for('chernel.mimeBundle');
-
-export const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
 
 interface SelfDisplaying {
   [MIME_BUNDLE](): MimeBundle | DisplayOutput;

@@ -5,11 +5,9 @@
  */
 import { HTMLManager } from '@jupyter-widgets/html-manager/lib/htmlmanager.js';
 import Plotly, { TRACE_TYPES, type Data, type Layout } from './plotly.js';
+import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from './protocol.js';
 import { DiagnosticModel, DiagnosticView, MODULE_NAME } from './widget.js';
 
-const STATE_MIME = 'application/vnd.jupyter.widget-state+json';
-const VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
-const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
 
 function failure(where: Element, message: string): void {
   const box = document.createElement('div');
@@ -20,7 +18,7 @@ function failure(where: Element, message: string): void {
 }
 
 export async function renderSavedWidgets(root: ParentNode = document): Promise<number> {
-  const stateTag = root.querySelector(`script[type="${STATE_MIME}"]`);
+  const stateTag = root.querySelector(`script[type="${WIDGET_STATE_MIME}"]`);
   if (stateTag === null) return 0;
   const manager = new HTMLManager({
     loader: async (moduleName: string, moduleVersion: string) => {
@@ -30,7 +28,7 @@ export async function renderSavedWidgets(root: ParentNode = document): Promise<n
   });
   const models = await manager.set_state(JSON.parse(stateTag.textContent ?? '{}'));
   let shown = 0;
-  for (const tag of Array.from(root.querySelectorAll(`script[type="${VIEW_MIME}"]`))) {
+  for (const tag of Array.from(root.querySelectorAll(`script[type="${WIDGET_VIEW_MIME}"]`))) {
     const { model_id: modelId } = JSON.parse(tag.textContent ?? '{}') as { model_id?: string };
     const model = models.find((m) => m.model_id === modelId);
     if (model === undefined) {

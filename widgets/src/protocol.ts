@@ -4,7 +4,13 @@
  * figures draw, so a saved notebook from an older engine still opens.
  */
 
-export type WidgetKind = 'curvature' | 'wannier-flow' | 'bands' | 'ribbon' | 'phase-map';
+export const WIDGET_KINDS = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map'] as const;
+export type WidgetKind = (typeof WIDGET_KINDS)[number];
+
+/** MIME types the kernel writes and the pages read (Jupyter widgets' own, and plotly's figure JSON). */
+export const WIDGET_STATE_MIME = 'application/vnd.jupyter.widget-state+json';
+export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
+export const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
 
 export interface ParameterDecl {
   default: number;
