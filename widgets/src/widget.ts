@@ -293,7 +293,10 @@ export class DiagnosticView extends DOMWidgetView {
     if (this.plotEventsBound) return;
     this.plotEventsBound = true;
     const gd = this.plot as unknown as PlotlyHTMLElement;
+    // Where the plot area is after every plotly draw (a redraw, a resize, a zoom); this first
+    // draw's event has passed already.
     gd.on('plotly_afterplot', () => this.preview.measure());
+    this.preview.measure();
     gd.on('plotly_relayout', (update) => {
       const swept = this.model.sweptParameters();
       if (swept.length === 0) return;
@@ -464,7 +467,6 @@ export class DiagnosticView extends DOMWidgetView {
       this.preview.hide();
       if (!this.attached) return;
       this.bindPlotEvents();
-      this.preview.measure();
       this.drawnFrameKey = figure.frameKey ?? null;
     });
   }
