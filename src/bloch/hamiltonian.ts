@@ -136,6 +136,32 @@ export class BlochHamiltonian {
     return this.accumulate(out, dir);
   }
 
+  /**
+   * A bound on ||H(k + delta) - H(k)|| (spectral norm) valid at every k and every step with
+   * |delta_i| <= steps[i] (reduced radians). Each term changes its matrix element by
+   * |t| |e^{-i d·delta} - 1| <= |t| min(2, sum_i |d_i| steps_i), and the spectral norm of a
+   * Hermitian matrix is at most its largest absolute row sum. With `capped` false the min(2, ...)
+   * is dropped, so steps of 1 along one axis bound sup_k ||dH/dk_i||. By Weyl's inequality every
+   * eigenvalue moves by at most this much between k and k + delta.
+   */
+  variationBound(steps: ArrayLike<number>, capped = true): number {
+    const n = this.size, dim = this.dim;
+    const rows = new Float64Array(n);
+    const amps = this.amplitudes;
+    for (let t = 0; t < this.termFrom.length; t++) {
+      const p = this.termPhase[t];
+      let reach = 0;
+      for (let j = 0; j < dim; j++) reach += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
+      if (capped) reach = Math.min(2, reach);
+      const w = Math.hypot(amps[2 * t], amps[2 * t + 1]) * reach;
+      rows[this.termFrom[t]] += w;
+      rows[this.termTo[t]] += w;
+    }
+    let worst = 0;
+    for (let a = 0; a < n; a++) worst = Math.max(worst, rows[a]);
+    return worst;
+  }
+
   /** Sum the terms with their phases; with dir >= 0, each term is multiplied by -i d_dir. */
   private accumulate(out: CMatrix, dir: number): CMatrix {
     const n = this.size;

@@ -28,6 +28,26 @@ export interface SpectrumChecks {
   warnings: string[];
   /** True when the sampled gap fell below the stated tolerance. */
   gapless?: boolean;
+  /**
+   * Integer results: true when the gap was proven over the whole zone (or plane, or line) the
+   * integer is defined on, and the integer's own lattice condition held (README, "What a
+   * certified integer guarantees"). An integer is never given without a proven gap.
+   */
+  certified?: boolean;
+  /** What the gap certificate (spectra/certify.ts) found. */
+  gapProof?: GapProof;
+}
+
+/** The gap certificate of a result, as plain data. */
+export interface GapProof {
+  /** 'gapped': proven; 'gapless': a sample at or below the tolerance; 'unproven': neither within the budget. */
+  verdict: 'gapped' | 'gapless' | 'unproven';
+  /** Proven lower bound on the gap everywhere (0 unless gapped). */
+  lowerBound: number;
+  /** Eigenvalue solves the proof took, and its sample lines per direction. */
+  samples: number;
+  lines: number[];
+  reason?: string;
 }
 
 /** A momentum in the three forms results report. */

@@ -5,7 +5,8 @@
  * the unsplit computation uses.
  */
 import { ModelError, show } from '../model/errors.js';
-import type { BandGroup, SpectrumChecks } from '../spectra/common.js';
+import type { GapCertificate } from '../spectra/certify.js';
+import type { BandGroup, GapProof, SpectrumChecks } from '../spectra/common.js';
 
 /** Plaquette phases above this make a lattice Chern number untrustworthy: the grid is too coarse. */
 export const COARSE_PLAQUETTE_PHASE = Math.PI / 2;
@@ -66,6 +67,37 @@ export function gapChecks(gap: GapRecord, group: BandGroup, grid: number[], expl
     checks.warnings.push(
       `gapless: ${bands} the other bands at k = ${formatK(gap.minGapAt)} (fractions of the reciprocal vectors), ` +
         `gap ${gap.minGap.toExponential(2)} <= tolerance ${tol.toExponential(2)}; ${what} is undefined`,
+    );
+  }
+  return checks;
+}
+
+/** The certificate as a result's `checks.gapProof`. */
+export function gapProof(c: GapCertificate): GapProof {
+  const proof: GapProof = { verdict: c.verdict, lowerBound: c.lowerBound, samples: c.samples, lines: c.positions.map((p) => p.length) };
+  if (c.reason !== undefined) proof.reason = c.reason;
+  return proof;
+}
+
+/**
+ * The checks of an integer whose gap was certified (spectra/certify.ts): gapless, or a gap that
+ * could not be proven, make it undefined, with a warning naming where and how small the gap got.
+ * `certified` starts false: the caller sets it once the integer's own lattice condition holds.
+ */
+export function certificateChecks(cert: GapCertificate, group: BandGroup, grid: number[], what: string): SpectrumChecks {
+  const at = cert.minGapAt.map((x) => x / (2 * Math.PI));
+  const checks: SpectrumChecks = { minGap: cert.minGap, minGapAt: at, grid: [...grid], warnings: [], certified: false, gapProof: gapProof(cert) };
+  const bands = group.lo === group.hi ? `band ${group.lo} touches` : `bands ${group.lo}-${group.hi} touch`;
+  if (cert.verdict === 'gapless') {
+    checks.gapless = true;
+    checks.warnings.push(
+      `gapless: ${bands} the other bands at k = ${formatK(cert.minGapAt)} (fractions of the reciprocal vectors), ` +
+        `gap ${cert.minGap.toExponential(2)} <= tolerance ${cert.tolerance.toExponential(2)}; ${what} is undefined`,
+    );
+  } else if (cert.verdict === 'unproven') {
+    checks.warnings.push(
+      `gap not proven: ${cert.reason}; the smallest gap found is ${cert.minGap.toExponential(2)} at k = ${formatK(cert.minGapAt)}, ` +
+        `so ${what} is withheld`,
     );
   }
   return checks;

@@ -12,7 +12,8 @@ import {
   bandGroup, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
-import { COARSE_PLAQUETTE_PHASE } from './checks.js';
+import { certifyGap } from '../spectra/certify.js';
+import { certificateChecks, COARSE_PLAQUETTE_PHASE } from './checks.js';
 import { determinantInPlace, overlapMatrix } from './links.js';
 
 export interface ChernChecks extends TopologyChecks {
@@ -20,7 +21,7 @@ export interface ChernChecks extends TopologyChecks {
   maxPlaquettePhase?: number;
   /** True when the grid is too coarse (largest plaquette phase above pi/2, or a vanishing link). */
   coarse?: boolean;
-  /** Automatic grid: true when two successive grids agreed and neither flag was raised. */
+  /** Automatic grid: true when the refinement reached every plaquette phase below pi/4 on a proven gap. */
   converged?: boolean;
 }
 
@@ -29,7 +30,7 @@ export interface ChernOptions extends TopologyOptions {
   grid?: number | [number, number] | 'auto';
   /** For a 3D model: the slice k_normal = at (radians). */
   plane?: PlaneSpec;
-  /** Largest grid 'auto' may try (per direction). Default 512. */
+  /** Most lines per direction 'auto' may use, for the gap proof and the sum alike. Default 512. */
   maxGrid?: number;
 }
 
@@ -41,8 +42,8 @@ export interface ChernResult {
   bands: [number, number];
   /** Reduced axes of the plane (2D: [0, 1]) and, for a 3D slice, the fixed momentum. */
   plane: { axes: [number, number]; at?: number; normal?: number };
-  /** Total Berry flux / 2pi before rounding (an integer up to rounding error when the grid is sound). */
-  flux: number;
+  /** Total Berry flux / 2pi before rounding (an integer up to rounding error when the grid is sound); null when no sum was made (the gap was not proven). */
+  flux: number | null;
   checks: ChernChecks;
 }
 
@@ -55,8 +56,14 @@ export interface PlaneFlux {
   minLink: number;
 }
 
+/** The lines of a uniform n-point axis: k_j = -pi + 2pi j/n. */
+export function uniformLines(n: number): Float64Array {
+  return Float64Array.from({ length: n }, (_, j) => -Math.PI + (2 * Math.PI * j) / n);
+}
+
 /**
- * Flux of the plaquettes of an n1 x n2 grid over `plane` (k_i = -pi + 2pi j/n_i) whose lower edge
+ * Flux of the plaquettes of a grid over `plane` whose lines along each axis are `lines` (ascending,
+ * within [-pi, pi), the last plaquette closing across the zone edge), whose lower edge
  * lies on rows `rows[0]` to `rows[1] - 1` along axis 2 (default all). With `map` (row-major, one
  * row of n1 per plaquette row, the first row at 0), each plaquette's flux is stored at its
  * lower-left corner. Only the k-points of those rows count towards the sampler's gap: the row
@@ -64,9 +71,11 @@ export interface PlaneFlux {
  * of frames live at a time; nothing is allocated per k.
  */
 export function planeFlux(
-  sampler: FrameSampler, plane: Plane, n1: number, n2: number,
-  map: Float64Array | null = null, rows: [number, number] = [0, n2],
+  sampler: FrameSampler, plane: Plane, lines: [Float64Array, Float64Array],
+  map: Float64Array | null = null, rows: [number, number] = [0, lines[1].length],
 ): PlaneFlux {
+  const [xs, ys] = lines;
+  const n1 = xs.length, n2 = ys.length;
   const h = sampler.hamiltonian;
   const m = sampler.m;
   const n = sampler.n;
@@ -99,9 +108,9 @@ export function planeFlux(
   };
   const fillRow = (b: number, frames: Float64Array, links: Float64Array): void => {
     const own = b >= lo && b < hi;
-    k[ax2] = -Math.PI + (2 * Math.PI * b) / n2;
+    k[ax2] = ys[b];
     for (let a = 0; a < n1; a++) {
-      k[ax1] = -Math.PI + (2 * Math.PI * a) / n1;
+      k[ax1] = xs[a];
       sampler.sample(k, frames, a * fl, own);
     }
     for (let a = 0; a < n1; a++) {
@@ -173,10 +182,30 @@ function resolveGridOption(grid: ChernOptions['grid'], field = 'grid'): [number,
 const AUTO_START = 16;
 
 /**
- * Chern number of a band group of a 2D model, or of a 2D slice of a 3D model. Refuses (null with
- * checks.gapless and a warning naming k and the gap) when the group touches the other bands on the
- * grid; flags a grid whose plaquette phases approach pi; with grid 'auto' doubles the grid until two
- * successive grids give the same integer with every plaquette phase below pi/2.
+ * Largest plaquette phase accepted on an automatic grid: half the coarse limit, a margin for what
+ * the samples cannot see.
+ */
+export const CERTAIN_PLAQUETTE_PHASE = Math.PI / 4;
+
+/** Insert the midpoint of every marked interval of ascending `lines` (the last interval closes at `end`). */
+export function bisectLines(lines: Float64Array, marked: Uint8Array, end: number): Float64Array {
+  const out: number[] = [];
+  for (let a = 0; a < lines.length; a++) {
+    out.push(lines[a]);
+    if (marked[a]) out.push((lines[a] + (a + 1 < lines.length ? lines[a + 1] : end)) / 2);
+  }
+  return Float64Array.from(out);
+}
+
+/**
+ * Chern number of a band group of a 2D model, or of a 2D slice of a 3D model.
+ *
+ * The gap is proven over the whole plane first (spectra/certify.ts); without that proof the result
+ * is null, with checks.gapless and where the bands touch, or with the reason the proof failed. With
+ * grid 'auto' (default) the Fukui–Hatsugai–Suzuki sum then runs on the certificate's lines, which
+ * are dense where the gap is small, and plaquettes whose phase exceeds pi/4 are bisected until none
+ * does. An explicit grid is used as given (the gap is still proven; a plaquette phase above pi/2
+ * is flagged coarse).
  */
 export function chernNumber(source: TopologySource, options: ChernOptions = {}): ChernResult {
   const h = compileSource(source, options);
@@ -188,52 +217,65 @@ export function chernNumber(source: TopologySource, options: ChernOptions = {}):
   if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${show(maxGrid)}`);
   const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   const planeInfo = h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at };
-
-  const evaluate = (n1: number, n2: number) => {
-    sampler.resetGap();
-    const flux = planeFlux(sampler, plane, n1, n2);
-    const checks: ChernChecks = sampler.gapChecks([n1, n2], options.gapTolerance, 'the Chern number');
-    checks.maxPlaquettePhase = flux.maxPhase;
-    const c = (sign * flux.total) / (2 * Math.PI);
-    if (!checks.gapless && (flux.maxPhase > COARSE_PLAQUETTE_PHASE || flux.minLink < 1e-6)) {
-      checks.coarse = true;
-      checks.warnings.push(
-        `grid ${n1}x${n2} is too coarse to trust: largest plaquette phase ${flux.maxPhase.toFixed(3)} rad ` +
-          `(limit pi/2), smallest link modulus ${flux.minLink.toExponential(2)}; smallest gap ${sampler.minGap.toExponential(2)} at k = ${formatK(sampler.minGapAt)}`,
-      );
-    }
-    return { c, checks };
-  };
-  const result = (c: number, checks: ChernChecks): ChernResult => ({
-    kind: 'chern',
-    chern: checks.gapless || (grid === 'auto' && !checks.converged) ? null : Math.round(c) + 0,
-    bands: [group.lo, group.hi],
-    plane: planeInfo,
-    flux: c,
-    checks,
+  const what = 'the Chern number';
+  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin }, { tolerance: options.gapTolerance, start: AUTO_START, maxLines: maxGrid });
+  const result = (c: number | null, checks: ChernChecks, integer: boolean): ChernResult => ({
+    kind: 'chern', chern: integer && c !== null ? Math.round(c) + 0 : null, bands: [group.lo, group.hi], plane: planeInfo, flux: c, checks,
   });
 
   if (grid !== 'auto') {
-    const { c, checks } = evaluate(grid[0], grid[1]);
-    return result(c, checks);
-  }
-  let previous: number | null = null;
-  for (let size = AUTO_START; ; size *= 2) {
-    const { c, checks } = evaluate(size, size);
-    if (checks.gapless) return result(c, checks);
-    const sound = !checks.coarse;
-    if (sound && previous !== null && previous === Math.round(c)) {
-      checks.converged = true;
-      return result(c, checks);
+    const [n1, n2] = grid;
+    const flux = planeFlux(sampler, plane, [uniformLines(n1), uniformLines(n2)]);
+    const checks: ChernChecks = certificateChecks(cert, group, [n1, n2], what);
+    checks.maxPlaquettePhase = flux.maxPhase;
+    if (cert.verdict === 'gapped' && (flux.maxPhase > COARSE_PLAQUETTE_PHASE || flux.minLink < 1e-6)) {
+      checks.coarse = true;
+      checks.warnings.push(
+        `grid ${n1}x${n2} is too coarse to trust: largest plaquette phase ${flux.maxPhase.toFixed(3)} rad ` +
+          `(limit pi/2), smallest link modulus ${flux.minLink.toExponential(2)}; smallest gap ${cert.minGap.toExponential(2)} at k = ${formatK(cert.minGapAt)}`,
+      );
     }
-    previous = sound ? Math.round(c) : null;
-    if (size * 2 > maxGrid) {
+    return result((sign * flux.total) / (2 * Math.PI), checks, cert.verdict === 'gapped');
+  }
+  if (cert.verdict !== 'gapped') {
+    const checks: ChernChecks = certificateChecks(cert, group, cert.positions.map((p) => p.length - 1), what);
+    checks.converged = false;
+    return result(null, checks, false);
+  }
+  // The certificate's lines include both ends of [-pi, pi]; the plane closes on itself.
+  let xs = cert.positions[0].subarray(0, -1);
+  let ys = cert.positions[1].subarray(0, -1);
+  for (;;) {
+    const map = new Float64Array(xs.length * ys.length);
+    const flux = planeFlux(sampler, plane, [xs, ys], map);
+    const checks: ChernChecks = certificateChecks(cert, group, [xs.length, ys.length], what);
+    checks.maxPlaquettePhase = flux.maxPhase;
+    const c = (sign * flux.total) / (2 * Math.PI);
+    const markX = new Uint8Array(xs.length), markY = new Uint8Array(ys.length);
+    let bad = 0;
+    for (let b = 0; b < ys.length; b++) {
+      for (let a = 0; a < xs.length; a++) {
+        if (Math.abs(map[b * xs.length + a]) > CERTAIN_PLAQUETTE_PHASE) {
+          markX[a] = 1;
+          markY[b] = 1;
+          bad++;
+        }
+      }
+    }
+    if (bad === 0 && flux.minLink > 1e-6) {
+      checks.converged = true;
+      checks.certified = true;
+      return result(c, checks, true);
+    }
+    xs = bisectLines(xs, markX, Math.PI);
+    ys = bisectLines(ys, markY, Math.PI);
+    if (bad === 0 || xs.length > maxGrid || ys.length > maxGrid) {
       checks.converged = false;
       checks.warnings.push(
-        `no certain integer up to grid ${size}x${size} (maxGrid ${maxGrid}): last estimate ${c.toFixed(3)}; the smallest gap ` +
-          `${sampler.minGap.toExponential(2)} at k = ${formatK(sampler.minGapAt)} suggests a nearby gap closing`,
+        `no certain integer within ${maxGrid} lines per direction (maxGrid): ${bad} plaquettes still turn by more than pi/4 ` +
+          `(largest ${flux.maxPhase.toFixed(3)} rad), smallest link modulus ${flux.minLink.toExponential(2)}; last estimate ${c.toFixed(3)}`,
       );
-      return result(c, checks);
+      return result(c, checks, false);
     }
   }
 }

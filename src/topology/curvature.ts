@@ -14,7 +14,7 @@ import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { adjointTimes, multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
-import { planeFlux } from './chern.js';
+import { planeFlux, uniformLines } from './chern.js';
 import { gapTolerance } from './checks.js';
 import {
   bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane,
@@ -162,13 +162,14 @@ function curvaturePart(source: TopologySource, options: CurvatureOptions): Curva
   const stats: Pick<CurvaturePart, 'maxPlaquettePhase' | 'bandGaps' | 'minSplitting'> = {};
 
   if (method === 'lattice') {
-    stats.maxPlaquettePhase = planeFlux(sampler, plane, n1, n2, values, [lo, hi]).maxPhase;
+    const lines: [Float64Array, Float64Array] = [uniformLines(n1), uniformLines(n2)];
+    stats.maxPlaquettePhase = planeFlux(sampler, plane, lines, values, [lo, hi]).maxPhase;
     if (perBand !== undefined) {
       const one = new Float64Array(rows * n1);
       stats.bandGaps = [];
       for (let j = 0; j < m; j++) {
         const band = new FrameSampler(h, { lo: group.lo + j, hi: group.lo + j });
-        const f = planeFlux(band, plane, n1, n2, one, [lo, hi]);
+        const f = planeFlux(band, plane, lines, one, [lo, hi]);
         perBand.set(one, j * rows * n1);
         stats.maxPlaquettePhase = Math.max(stats.maxPlaquettePhase, f.maxPhase);
         stats.bandGaps.push(band.gapRecord());
