@@ -112,7 +112,7 @@ describe('Fukui–Hatsugai–Suzuki Chern number', () => {
     // A cap too low to resolve it yields null with the reason, never an unchecked integer.
     const capped = chernNumber(qwz(), { params: { u: -1.98 }, maxGrid: 16 });
     expect(capped.chern).toBeNull();
-    expect(capped.checks.warnings.join(' ')).toMatch(/no certain integer up to grid 16x16/);
+    expect(capped.checks.warnings.join(' ')).toMatch(/more than 16 lines per direction/);
   });
 
   it('does not depend on the Bloch convention (orbital positions only change the gauge)', () => {
