@@ -83,15 +83,16 @@ export function gapProof(c: GapCertificate): GapProof {
  * The checks of an integer whose gap was certified (spectra/certify.ts): gapless, or a gap that
  * could not be proven, make it undefined, with a warning naming where and how small the gap got.
  * `certified` starts false: the caller sets it once the integer's own lattice condition holds.
+ * `touching` words the closing (default: "band 0 touches the other bands").
  */
-export function certificateChecks(cert: GapCertificate, group: BandGroup, grid: number[], what: string): SpectrumChecks {
+export function certificateChecks(cert: GapCertificate, group: BandGroup, grid: number[], what: string, touching?: string): SpectrumChecks {
   const at = cert.minGapAt.map((x) => x / (2 * Math.PI));
   const checks: SpectrumChecks = { minGap: cert.minGap, minGapAt: at, grid: [...grid], warnings: [], certified: false, gapProof: gapProof(cert) };
-  const bands = group.lo === group.hi ? `band ${group.lo} touches` : `bands ${group.lo}-${group.hi} touch`;
+  const bands = touching ?? (group.lo === group.hi ? `band ${group.lo} touches the other bands` : `bands ${group.lo}-${group.hi} touch the other bands`);
   if (cert.verdict === 'gapless') {
     checks.gapless = true;
     checks.warnings.push(
-      `gapless: ${bands} the other bands at k = ${formatK(cert.minGapAt)} (fractions of the reciprocal vectors), ` +
+      `gapless: ${bands} at k = ${formatK(cert.minGapAt)} (fractions of the reciprocal vectors), ` +
         `gap ${cert.minGap.toExponential(2)} <= tolerance ${cert.tolerance.toExponential(2)}; ${what} is undefined`,
     );
   } else if (cert.verdict === 'unproven') {

@@ -9,7 +9,7 @@
 import { checkInterrupt } from '../interrupt.js';
 import { ModelError, show } from '../model/errors.js';
 import {
-  bandGroup, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane,
+  bandGroup, bisectLines, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane, uniformLines,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { certifyGap } from '../spectra/certify.js';
@@ -54,11 +54,6 @@ export interface PlaneFlux {
   maxPhase: number;
   /** Smallest |det| of a link (normalised overlaps): near zero the link phase is meaningless. */
   minLink: number;
-}
-
-/** The lines of a uniform n-point axis: k_j = -pi + 2pi j/n. */
-export function uniformLines(n: number): Float64Array {
-  return Float64Array.from({ length: n }, (_, j) => -Math.PI + (2 * Math.PI * j) / n);
 }
 
 /**
@@ -186,16 +181,6 @@ const AUTO_START = 16;
  * the samples cannot see.
  */
 export const CERTAIN_PLAQUETTE_PHASE = Math.PI / 4;
-
-/** Insert the midpoint of every marked interval of ascending `lines` (the last interval closes at `end`). */
-export function bisectLines(lines: Float64Array, marked: Uint8Array, end: number): Float64Array {
-  const out: number[] = [];
-  for (let a = 0; a < lines.length; a++) {
-    out.push(lines[a]);
-    if (marked[a]) out.push((lines[a] + (a + 1 < lines.length ? lines[a + 1] : end)) / 2);
-  }
-  return Float64Array.from(out);
-}
 
 /**
  * Chern number of a band group of a 2D model, or of a 2D slice of a 3D model.

@@ -15,9 +15,10 @@
  */
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
-import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ComplexPfaffian } from '../linalg/pfaffian.js';
 import { ModelError, show } from '../model/errors.js';
+import { certifyGap, derivativeBounds } from '../spectra/certify.js';
+import { certificateChecks } from './checks.js';
 import { compileSource, formatK, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
 import { determinantInPlace, wrapAngle } from './links.js';
 
@@ -40,6 +41,9 @@ export interface WindingResult {
 }
 
 const PROBES = [0.37, -1.91, 2.53];
+
+/** How a chiral or BdG chain's gap closes. */
+const ZERO_ENERGY = 'the spectrum reaches zero energy';
 
 /** Two-colour the orbitals so that every matrix element of H(k) joins different colours. */
 function findSublattices(h: BlochHamiltonian): boolean[] {
@@ -96,9 +100,7 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
   const mat = new Float64Array(2 * n * n);
   const q = new Float64Array(2 * nA * nA);
   const det = new Float64Array(2);
-  const e = new Float64Array(n);
-  const solver = new HermitianEigensolver(n);
-  const scaleCheck = (kk: number): number => {
+  const chiralCheck = (kk: number): void => {
     // Chiral symmetry means H_AA and H_BB vanish; check at this k.
     let worst = 0, scale = 0;
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
@@ -107,24 +109,14 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
       if (inA[i] === inA[j]) worst = Math.max(worst, v);
     }
     if (worst > 1e-10 * Math.max(scale, 1e-300)) throw new ModelError('sublattice', `H has a block within one sublattice (|H| = ${worst.toExponential(2)} at k = ${formatK([kk])}): no chiral symmetry for this split`);
-    return scale;
   };
-  let minGap = Infinity, minGapAt = 0, energyScale = 0;
-  const run = (N: number): { winding: number; maxStep: number } => {
+  /** The winding of arg det q over ascending momenta from -pi to pi (both ends included). */
+  const run = (ks: ArrayLike<number>): { winding: number; maxStep: number } => {
     let total = 0, maxStep = 0, prev = 0;
-    for (let j = 0; j <= N; j++) {
+    for (let j = 0; j < ks.length; j++) {
       if (j % 256 === 0) checkInterrupt();
-      const k = -Math.PI + (2 * Math.PI * j) / N;
-      h.fill([k], mat);
-      energyScale = Math.max(energyScale, scaleCheck(k));
-      solver.solve(mat, e);
-      // Chiral spectra are symmetric: the gap at zero energy is twice the smallest |E|.
-      let low = Infinity;
-      for (let i = 0; i < n; i++) low = Math.min(low, Math.abs(e[i]));
-      if (2 * low < minGap) {
-        minGap = 2 * low;
-        minGapAt = k;
-      }
+      h.fill([ks[j]], mat);
+      chiralCheck(ks[j]);
       for (let r = 0; r < nA; r++) for (let c = 0; c < nA; c++) {
         q[2 * (r * nA + c)] = mat[2 * (B[r] * n + A[c])];
         q[2 * (r * nA + c) + 1] = mat[2 * (B[r] * n + A[c]) + 1];
@@ -140,31 +132,31 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
     }
     return { winding: total / (2 * Math.PI), maxStep };
   };
+  // Across a segment of width w whose proven gap is g (so every singular value of q is at least
+  // g/2), |d arg det q / dk| = |Im tr(q^-1 dq/dk)| <= nA ||q^-1|| ||dq/dk|| <= 2 nA D / g, D the
+  // bound on ||dH/dk||. Keeping 2 nA D w / g below pi/2 proves that no step of the phase is
+  // mistaken for its wrapped value: the sum of wrapped steps is the exact winding.
+  const [D] = derivativeBounds(h, [0]);
   const requested = options.points ?? 'auto';
-  let N: number;
-  let out: { winding: number; maxStep: number };
-  if (requested === 'auto') {
-    N = 128;
-    out = run(N);
-    while (out.maxStep > 0.5 && N < 1 << 20) {
-      N *= 2;
-      out = run(N);
-    }
-  } else {
+  const cert = certifyGap(h, { lo: 0, hi: nA - 1 }, { axes: [0], origin: [0] }, {
+    tolerance: options.gapTolerance, start: 128,
+    cellCondition: requested === 'auto' ? (g, [w]) => (2 * nA * D * w) / g < Math.PI / 2 : undefined,
+  });
+  let ks: ArrayLike<number>;
+  if (requested === 'auto') ks = cert.positions[0];
+  else {
     if (!Number.isInteger(requested) || requested < 3 || requested > 1 << 22) throw new ModelError('points', `expected a whole number from 3 to ${1 << 22} or "auto". Value: ${show(requested)}`);
-    N = requested;
-    out = run(N);
+    ks = Float64Array.from({ length: requested + 1 }, (_, j) => -Math.PI + (2 * Math.PI * j) / requested);
   }
-  const tol = options.gapTolerance ?? 1e-9 * Math.max(energyScale, 1e-300);
-  const checks: WindingResult['checks'] = { minGap, minGapAt: [minGapAt / (2 * Math.PI)], grid: [N], warnings: [], maxStep: out.maxStep };
-  if (minGap <= tol) {
-    checks.gapless = true;
-    checks.warnings.push(`gapless: the spectrum reaches zero energy at k = ${formatK([minGapAt])}, gap ${minGap.toExponential(2)} <= tolerance ${tol.toExponential(2)}; the winding number is undefined`);
-  } else if (out.maxStep > 0.5) checks.warnings.push(`arg det q still jumps by ${out.maxStep.toFixed(3)} rad between neighbouring points at ${N} points`);
+  const N = ks.length - 1;
+  const out = run(ks);
+  const checks: WindingResult['checks'] = { ...certificateChecks(cert, { lo: 0, hi: nA - 1 }, [N], 'the winding number', ZERO_ENERGY), maxStep: out.maxStep };
+  checks.certified = cert.verdict === 'gapped' && requested === 'auto';
+  if (cert.verdict === 'gapped' && out.maxStep > 0.5) checks.warnings.push(`arg det q still jumps by ${out.maxStep.toFixed(3)} rad between neighbouring points at ${N} points`);
   return {
     kind: 'winding',
     convention: 'lattice',
-    winding: checks.gapless ? null : Math.round(out.winding) + 0,
+    winding: cert.verdict === 'gapped' ? Math.round(out.winding) + 0 : null,
     sublattices: [A.map((i) => labels[i]), B.map((i) => labels[i])],
     points: N,
     checks,
@@ -202,14 +194,11 @@ export function majoranaNumber(source: TopologySource, options: Omit<TopologyOpt
   const pairs = nambuPairs(h);
   const n = h.size;
   const mat = new Float64Array(2 * n * n);
-  const e = new Float64Array(n);
-  const solver = new HermitianEigensolver(n);
   const a = new Float64Array(2 * n * n); // A, real, in the complex layout the Pfaffian reads
   const pfaffian = new ComplexPfaffian(n);
   const pf = new Float64Array(2);
   const warnings: string[] = [];
   const signs: number[] = [];
-  let minGap = Infinity, minGapAt = 0, energyScale = 0;
   // Majorana basis: for each pair (p, h), (c, c^dagger) = U (g1, g2), U = [[1, i], [1, -i]]/sqrt2 (columns g1, g2).
   // Column index 2r is g1 of pair r, 2r + 1 is g2.
   const uRe = new Float64Array(n * n), uIm = new Float64Array(n * n);
@@ -226,11 +215,6 @@ export function majoranaNumber(source: TopologySource, options: Omit<TopologyOpt
   }
   for (const k of [0, Math.PI]) {
     h.fill([k], mat);
-    solver.solve(mat, e);
-    let low = Infinity;
-    for (let i = 0; i < n; i++) low = Math.min(low, Math.abs(e[i]));
-    energyScale = Math.max(energyScale, Math.abs(e[0]), Math.abs(e[n - 1]));
-    if (2 * low < minGap) { minGap = 2 * low; minGapAt = k; }
     // B = U^dagger H U must be i A with A real antisymmetric (particle–hole symmetry at k = 0, pi).
     let worstReal = 0;
     for (let x = 0; x < n; x++) {
@@ -258,11 +242,16 @@ export function majoranaNumber(source: TopologySource, options: Omit<TopologyOpt
     // Pf of a real antisymmetric matrix is real; an exact zero means a zero mode at this k.
     signs.push(Math.sign(pfaffian.compute(a, pf)[0]));
   }
-  const tol = options.gapTolerance ?? 1e-9 * Math.max(energyScale, 1e-300);
-  const checks: TopologyChecks = { minGap, minGapAt: [minGapAt / (2 * Math.PI)], grid: [2], warnings };
-  if (minGap <= tol || signs.includes(0)) {
+  // The signs at 0 and pi decide the phase only when the BdG gap at zero energy is open everywhere.
+  const half = { lo: 0, hi: n / 2 - 1 };
+  const cert = certifyGap(h, half, { axes: [0], origin: [0] }, { tolerance: options.gapTolerance });
+  const checks: TopologyChecks = certificateChecks(cert, half, [2], 'the Majorana number', ZERO_ENERGY);
+  checks.warnings.push(...warnings);
+  if (cert.verdict === 'gapped' && signs.includes(0)) {
     checks.gapless = true;
-    warnings.push(`gapless: the BdG spectrum reaches zero energy at k = ${minGapAt === 0 ? '0' : 'pi'}, gap ${minGap.toExponential(2)}; the Majorana number is undefined`);
+    checks.warnings.push('gapless: a Pfaffian at k = 0 or pi is exactly zero (a zero mode there); the Majorana number is undefined');
   }
-  return { kind: 'majorana', majorana: checks.gapless ? null : signs[0] * signs[1], pfaffianSigns: [signs[0], signs[1]], checks };
+  const defined = cert.verdict === 'gapped' && !signs.includes(0);
+  checks.certified = defined;
+  return { kind: 'majorana', majorana: defined ? signs[0] * signs[1] : null, pfaffianSigns: [signs[0], signs[1]], checks };
 }

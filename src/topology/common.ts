@@ -129,6 +129,21 @@ export class FrameSampler {
   }
 }
 
+/** The lines of a uniform n-point axis: k_j = -pi + 2pi j/n. */
+export function uniformLines(n: number): Float64Array {
+  return Float64Array.from({ length: n }, (_, j) => -Math.PI + (2 * Math.PI * j) / n);
+}
+
+/** Insert the midpoint of every marked interval of ascending `lines` (the last interval closes at `end`). */
+export function bisectLines(lines: Float64Array, marked: Uint8Array, end: number): Float64Array {
+  const out: number[] = [];
+  for (let a = 0; a < lines.length; a++) {
+    out.push(lines[a]);
+    if (marked[a]) out.push((lines[a] + (a + 1 < lines.length ? lines[a + 1] : end)) / 2);
+  }
+  return Float64Array.from(out);
+}
+
 /** The two in-plane axes and the fixed momentum of a 2D slice of the zone. */
 export interface Plane {
   /** Reduced axes spanning the slice, in right-handed (cyclic) order. */

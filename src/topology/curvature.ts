@@ -14,10 +14,10 @@ import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { adjointTimes, multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
-import { planeFlux, uniformLines } from './chern.js';
+import { planeFlux } from './chern.js';
 import { gapTolerance } from './checks.js';
 import {
-  bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane,
+  bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane, uniformLines,
   type BandGroup, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { gridMomentum, joinCurvatureParts, resolvePart, type CurvaturePart, type PartSpec } from './parts.js';

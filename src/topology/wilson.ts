@@ -10,7 +10,7 @@ import { checkInterrupt } from '../interrupt.js';
 import { multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
 import {
-  bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane,
+  bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane, uniformLines,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { gapTolerance } from './checks.js';
@@ -23,6 +23,8 @@ import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type 
  */
 export class WilsonColumns {
   readonly sampler: FrameSampler;
+  /** Momenta along the loop (radians, ascending within [-pi, pi)); the last link closes across the zone edge. */
+  readonly along: Float64Array;
   readonly nAlong: number;
   /** The latest Wilson loop, m x m. */
   readonly w: Float64Array;
@@ -31,6 +33,8 @@ export class WilsonColumns {
   readonly centres: Float64Array;
   /** Smallest link modulus along and across since construction; smallest |eigenvalue| of W. */
   minLinkAlong = Infinity;
+  /** Per link along the loop (link j joins along[j] to the next): its smallest modulus since construction. */
+  readonly linkAlong: Float64Array;
   minLinkAcross = Infinity;
   minUnitarity = Infinity;
   private readonly plane: Plane;
@@ -44,10 +48,13 @@ export class WilsonColumns {
   private readonly eig: UnitaryPhases;
   private readonly k: Float64Array;
 
-  constructor(sampler: FrameSampler, plane: Plane, nAlong: number) {
+  constructor(sampler: FrameSampler, plane: Plane, along: Float64Array) {
     this.sampler = sampler;
     this.plane = plane;
+    this.along = along;
+    const nAlong = along.length;
     this.nAlong = nAlong;
+    this.linkAlong = new Float64Array(nAlong).fill(Infinity);
     const m = sampler.m;
     this.w = new Float64Array(2 * m * m);
     this.phases = new Float64Array(m);
@@ -81,7 +88,7 @@ export class WilsonColumns {
     const k = this.k;
     k[ax1] = k1;
     for (let j = 0; j < N; j++) {
-      k[ax2] = -Math.PI + (2 * Math.PI * j) / N;
+      k[ax2] = this.along[j];
       this.sampler.sample(k, out, j * fl, track);
     }
   }
@@ -111,6 +118,7 @@ export class WilsonColumns {
       determinantInPlace(m, this.tmp, this.det);
       const mod = Math.hypot(this.det[0], this.det[1]);
       if (mod < this.minLinkAlong) this.minLinkAlong = mod;
+      if (mod < this.linkAlong[j]) this.linkAlong[j] = mod;
       multiply(m, w, this.link, this.tmp);
       w.set(this.tmp);
     }
@@ -241,7 +249,7 @@ function wannierFlowPart(source: TopologySource, options: WannierFlowOptions): W
   gapTolerance(options.gapTolerance, 0); // a bad tolerance fails here, not in the join
   const { index, count, lo, hi } = resolvePart(options.part, nAcross + 1);
   const sampler = new FrameSampler(h, group);
-  const cols = new WilsonColumns(sampler, plane, nAlong);
+  const cols = new WilsonColumns(sampler, plane, uniformLines(nAlong));
   const m = sampler.m;
   const centres = new Float64Array((hi - lo) * m);
   const centreSums = new Float64Array(hi - lo);

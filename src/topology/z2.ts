@@ -16,8 +16,10 @@ import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
 import { chernNumber, type ChernOptions, type ChernResult } from './chern.js';
+import { certifyGap, type GapCertificate } from '../spectra/certify.js';
+import { certificateChecks } from './checks.js';
 import {
-  bandGroup, compileSource, formatK, FrameSampler, resolvePlane,
+  bandGroup, bisectLines, compileSource, formatK, FrameSampler, resolvePlane, uniformLines,
   type BandGroup, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { crossingsBetween, largestGap, WilsonColumns } from './wilson.js';
@@ -86,9 +88,16 @@ interface FlowCount {
   unpaired: boolean;
 }
 
+/** Kramers partners at a time-reversal-invariant k1 are degenerate: true when the centres are not in pairs. */
+function unpairedCentres(c: Float64Array): boolean {
+  if (c.length % 2 === 1) return true;
+  for (let j = 0; j + 1 < c.length; j += 2) if (Math.min(Math.abs(c[j + 1] - c[j]), 1 - Math.abs(c[j + 1] - c[j])) > 1e-4) return true;
+  return false;
+}
+
 /** Crossings of the largest-gap line over k1 in [0, pi] (nHalf steps), loops along the plane's second axis. */
 function flowCrossings(sampler: FrameSampler, plane: ReturnType<typeof resolvePlane>, nAlong: number, nHalf: number): FlowCount {
-  const cols = new WilsonColumns(sampler, plane, nAlong);
+  const cols = new WilsonColumns(sampler, plane, uniformLines(nAlong));
   let crossings = 0;
   let zPrev = 0;
   let unpaired = false;
@@ -98,69 +107,140 @@ function flowCrossings(sampler: FrameSampler, plane: ReturnType<typeof resolvePl
     const z = largestGap(cols.centres).mid;
     if (i > 0) crossings += crossingsBetween(zPrev, z, cols.centres);
     zPrev = z;
-    if (i === 0 || i === nHalf) {
-      // At a time-reversal-invariant k1 the centres come in Kramers-degenerate pairs.
-      const c = cols.centres;
-      for (let j = 0; j + 1 < c.length; j += 2) if (Math.min(Math.abs(c[j + 1] - c[j]), 1 - Math.abs(c[j + 1] - c[j])) > 1e-4) unpaired = true;
-      if (c.length % 2 === 1) unpaired = true;
-    }
+    if ((i === 0 || i === nHalf) && unpairedCentres(cols.centres)) unpaired = true;
   }
   return { crossings, minLinkAlong: Math.min(1, cols.minLinkAlong), minLinkAcross: Math.min(1, cols.minLinkAcross), unpaired };
 }
 
-function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Result {
+/** Largest distance a centre moves between two sorted sets on the circle, under the best cyclic matching. */
+export function centreDisplacement(a: Float64Array, b: Float64Array): number {
+  const m = a.length;
+  let best = Infinity;
+  for (let s = 0; s < m; s++) {
+    let worst = 0;
+    for (let i = 0; i < m; i++) {
+      const d = Math.abs(a[i] - b[(i + s) % m]);
+      worst = Math.max(worst, Math.min(d, 1 - d));
+    }
+    best = Math.min(best, worst);
+  }
+  return best;
+}
+
+/**
+ * `lines` together with their mirror images k -> -k (within [-pi, pi)): a loop sampled symmetrically
+ * keeps the Kramers degeneracy of the discrete Wilson loop at time-reversal-invariant k1 exact.
+ */
+function mirrored(lines: Float64Array): Float64Array {
+  const all = [...lines, ...Array.from(lines, (y) => (y === -Math.PI ? -Math.PI : -y))].sort((a, b) => a - b);
+  return Float64Array.from(all.filter((y, i) => i === 0 || y - all[i - 1] > 1e-12));
+}
+
+/** Link modulus below which an automatic flow grid bisects that link: frames turning by more than about 45 degrees. */
+export const CERTAIN_LINK = 0.7;
+
+/**
+ * The flow of one time-reversal-invariant plane on an automatic grid. The gap is proven over the
+ * half plane k1 in [0, pi] first; the Wilson loops then run on the certificate's lines (dense where
+ * the gap is small), bisecting every link along a loop whose modulus is below CERTAIN_LINK and
+ * every step in k1 across which a centre moves more than a quarter of the largest gap between
+ * centres (the line the crossings are counted against stays clear of every centre), until none
+ * does. Null crossings with a reason when the gap is not proven or the refinement runs out.
+ */
+function certifiedFlow(
+  h: BlochHamiltonian, group: BandGroup, plane: ReturnType<typeof resolvePlane>, tolerance: number | undefined, maxGrid: number,
+): { cert: GapCertificate; count: FlowCount | null; lines: [number, number]; failure?: string } {
+  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, { tolerance, start: 16, maxLines: maxGrid });
+  let xs = cert.positions[0];
+  let ys = mirrored(cert.positions[1].subarray(0, -1));
+  const lines = (): [number, number] => [ys.length, xs.length - 1];
+  if (cert.verdict !== 'gapped') return { cert, count: null, lines: lines() };
   const sampler = new FrameSampler(h, group);
+  for (;;) {
+    const cols = new WilsonColumns(sampler, plane, ys);
+    const centres: Float64Array[] = [];
+    for (const x of xs) {
+      checkInterrupt();
+      cols.restart();
+      cols.column(x);
+      centres.push(Float64Array.from(cols.centres));
+    }
+    const badAlong = Uint8Array.from(cols.linkAlong, (mod) => (mod < CERTAIN_LINK ? 1 : 0));
+    const badAcross = new Uint8Array(xs.length);
+    let bad = badAlong.reduce((a, b) => a + b, 0);
+    for (let i = 0; i + 1 < xs.length; i++) {
+      const clear = Math.min(largestGap(centres[i]).gap, largestGap(centres[i + 1]).gap) / 4;
+      if (centreDisplacement(centres[i], centres[i + 1]) > clear) {
+        badAcross[i] = 1;
+        bad++;
+      }
+    }
+    if (bad === 0) {
+      let crossings = 0;
+      for (let i = 1; i < xs.length; i++) crossings += crossingsBetween(largestGap(centres[i - 1]).mid, largestGap(centres[i]).mid, centres[i]);
+      const unpaired = unpairedCentres(centres[0]) || unpairedCentres(centres[xs.length - 1]);
+      return { cert, count: { crossings, minLinkAlong: Math.min(1, cols.minLinkAlong), minLinkAcross: 1, unpaired }, lines: lines() };
+    }
+    ys = mirrored(bisectLines(ys, badAlong, Math.PI));
+    badAcross[xs.length - 1] = 0;
+    xs = bisectLines(xs, badAcross, Math.PI);
+    if (ys.length > maxGrid || xs.length > maxGrid + 1) {
+      return { cert, count: null, lines: lines(), failure: `more than ${maxGrid} lines (maxGrid) would be needed: ${bad} links or k1 steps still turn too far` };
+    }
+  }
+}
+
+function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Result {
   const planes = h.dim === 2 ? [undefined] : [0, 1, 2].flatMap((normal) => [{ normal, at: 0 }, { normal, at: Math.PI }]);
   const grid = options.grid ?? 'auto';
   const maxGrid = options.maxGrid ?? 512;
+  if (!Number.isInteger(maxGrid) || maxGrid < 16) throw new ModelError('maxGrid', `expected a whole number of at least 16. Value: ${show(maxGrid)}`);
   const results: Z2Plane[] = [];
   const warnings: string[] = [];
   let coarse = false;
   let converged = true;
   let unpaired = false;
+  const certs: GapCertificate[] = [];
   for (const spec of planes) {
     const plane = resolvePlane(h.dim, spec);
     const where = spec === undefined ? '' : ` (plane k${spec.normal + 1} = ${spec.at === 0 ? '0' : 'pi'})`;
-    let count: FlowCount;
+    let count: FlowCount | null;
     let used: [number, number];
+    let cert: GapCertificate;
     if (grid !== 'auto') {
       const [nAlong, nHalf] = typeof grid === 'number' ? [grid, Math.max(2, Math.round(grid / 2))] : grid;
       if (![nAlong, nHalf].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000, or "auto". Value: ${show(grid)}`);
-      count = flowCrossings(sampler, plane, nAlong, nHalf);
+      cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, { tolerance: options.gapTolerance });
+      count = cert.verdict === 'gapped' ? flowCrossings(new FrameSampler(h, group), plane, nAlong, nHalf) : null;
       used = [nAlong, nHalf];
-      if (count.minLinkAlong < Z2_LINK || count.minLinkAcross < Z2_LINK) {
+      if (count !== null && (count.minLinkAlong < Z2_LINK || count.minLinkAcross < Z2_LINK)) {
         coarse = true;
         warnings.push(`grid ${nAlong}x${nHalf}${where} is too coarse to trust: smallest link modulus along ${count.minLinkAlong.toFixed(3)}, across ${count.minLinkAcross.toFixed(3)} (limit ${Z2_LINK})`);
       }
     } else {
-      let previous: number | null = null;
-      let n = 16;
-      for (;;) {
-        count = flowCrossings(sampler, plane, n, n / 2);
-        used = [n, n / 2];
-        const sound = count.minLinkAlong >= Z2_LINK && count.minLinkAcross >= Z2_LINK;
-        const parity = count.crossings % 2;
-        if (sound && previous === parity) break;
-        previous = sound ? parity : null;
-        if (2 * n > maxGrid) {
-          converged = false;
-          warnings.push(`no certain Z2${where} up to grid ${n}x${n / 2} (maxGrid ${maxGrid}): smallest link modulus along ${count.minLinkAlong.toFixed(3)}, across ${count.minLinkAcross.toFixed(3)}; smallest gap ${sampler.minGap.toExponential(2)} at k = ${formatK(sampler.minGapAt)}`);
-          break;
-        }
-        n *= 2;
+      const flow = certifiedFlow(h, group, plane, options.gapTolerance, maxGrid);
+      ({ cert, count } = flow);
+      used = flow.lines;
+      if (flow.failure !== undefined) {
+        converged = false;
+        warnings.push(`no certain Z2${where}: ${flow.failure}`);
       }
     }
-    if (count.unpaired) {
+    certs.push(cert);
+    if (count?.unpaired) {
       unpaired = true;
       warnings.push(`Wannier centres at a time-reversal-invariant momentum${where} are not in Kramers pairs: the model does not look time-reversal symmetric, so Z2 is not defined by this count`);
     }
-    results.push({ ...(spec ?? {}), z2: count.crossings % 2, crossings: count.crossings, grid: used! });
+    results.push({ ...(spec ?? {}), z2: count === null ? null : count.crossings % 2, crossings: count?.crossings ?? 0, grid: used });
   }
-  const checks: Z2Checks = sampler.gapChecks(results[results.length - 1].grid, options.gapTolerance, 'the Z2 index');
+  // The plane whose gap failed, or else the one with the smallest gap, speaks for the checks.
+  const reported = certs.find((c) => c.verdict !== 'gapped') ?? certs.reduce((a, b) => (b.minGap < a.minGap ? b : a));
+  const checks: Z2Checks = certificateChecks(reported, group, results[results.length - 1].grid, 'the Z2 index');
   checks.warnings.push(...warnings);
   if (coarse) checks.coarse = true;
   if (grid === 'auto') checks.converged = converged;
-  const ok = !checks.gapless && converged && !unpaired;
+  const ok = reported.verdict === 'gapped' && converged && !unpaired && results.every((r) => r.z2 !== null);
+  checks.certified = ok && grid === 'auto';
   for (const r of results) if (!ok) r.z2 = null;
   const base = { kind: 'z2' as const, method: 'flow' as const, bands: [group.lo, group.hi] as [number, number], planes: results, checks };
   if (h.dim === 2) return { ...base, z2: results[0].z2 };
@@ -334,9 +414,11 @@ function z2Parity(source: BlochHamiltonian, group: BandGroup, options: Z2Options
     product *= delta;
     for (let i = 0; i < dim; i++) if ((t >> i) & 1) weakProducts[i] *= delta;
   }
-  const checks: Z2Checks = sampler.gapChecks([1 << dim], options.gapTolerance, 'the Z2 index');
+  const cert = certifyGap(h, group, { axes: Array.from({ length: dim }, (_, i) => i), origin: new Array<number>(dim).fill(0) }, { tolerance: options.gapTolerance });
+  const checks: Z2Checks = certificateChecks(cert, group, [1 << dim], 'the Z2 index');
   checks.warnings.push(...warnings);
-  const ok = !checks.gapless && warnings.length === 0;
+  const ok = cert.verdict === 'gapped' && warnings.length === 0;
+  checks.certified = ok;
   const nu = (x: number) => (ok ? (x < 0 ? 1 : 0) : null);
   const base = { kind: 'z2' as const, method: 'parity' as const, bands: [group.lo, group.hi] as [number, number], parities, inversion: origin, checks };
   if (dim === 2) return { ...base, z2: nu(product) };
