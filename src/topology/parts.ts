@@ -13,7 +13,7 @@
  * import it to join parts computed in workers.
  */
 import { ModelError, show } from '../model/errors.js';
-import { COARSE_LINK, COARSE_PLAQUETTE_PHASE, gapChecks, gapTolerance, mergeGaps, type GapRecord } from './checks.js';
+import { COARSE_LINK, COARSE_PLAQUETTE_PHASE, formatK, gapChecks, gapTolerance, mergeGaps, type GapRecord } from './checks.js';
 import type { CurvatureChecks, CurvatureMethod, CurvatureResult } from './curvature.js';
 import type { WannierFlowChecks, WannierFlowResult } from './wilson.js';
 
@@ -77,6 +77,17 @@ export interface WannierFlowPart {
   minLinkAlong: number;
   minLinkAcross: number;
   gap: GapRecord;
+  /** The gap certificate over the strip from the column before the first held to the last held. */
+  proof: StripProof;
+}
+
+/** What a part's gap certificate found over its strip of the plane. */
+export interface StripProof {
+  verdict: 'gapped' | 'gapless' | 'unproven';
+  minGap: number;
+  /** Reduced k (radians) of the smallest gap met. */
+  minGapAt: number[];
+  reason?: string;
 }
 
 export type DiagnosticPart = CurvaturePart | WannierFlowPart;
@@ -275,6 +286,17 @@ export function joinWannierFlowParts(parts: readonly WannierFlowPart[]): Wannier
 
   const gap = mergeGaps(ordered.map((p) => p.gap));
   const checks = gapChecks(gap, { lo, hi }, [nAlong, nAcross], first.gapTolerance ?? undefined, 'the Wannier-centre winding') as WannierFlowChecks;
+  // The winding needs the gap proven over the whole plane, strip by strip.
+  const failed = ordered.find((p) => p.proof.verdict !== 'gapped')?.proof;
+  if (failed !== undefined && !checks.gapless) {
+    const where = `k = ${formatK(failed.minGapAt)}, gap ${failed.minGap.toExponential(2)}`;
+    if (failed.verdict === 'gapless') checks.gapless = true;
+    checks.warnings.push(
+      failed.verdict === 'gapless'
+        ? `gapless: bands ${lo}-${hi} touch the other bands between the samples (${where}); the Wannier-centre winding is undefined`
+        : `gap not proven: ${failed.reason} (${where}); the Wannier-centre winding is withheld`,
+    );
+  }
   checks.minLinkAlong = Math.min(1, minLinkAlong);
   checks.minLinkAcross = Math.min(1, minLinkAcross);
   checks.maxStep = maxStep;
@@ -294,7 +316,7 @@ export function joinWannierFlowParts(parts: readonly WannierFlowPart[]): Wannier
     centres,
     sum,
     gapMidpoint,
-    winding: checks.gapless ? null : first.orientation * Math.round(sum[nAcross] - sum[0]) + 0,
+    winding: checks.gapless || failed !== undefined ? null : first.orientation * Math.round(sum[nAcross] - sum[0]) + 0,
     checks,
   };
 }
