@@ -45,11 +45,22 @@ export interface GapCertificate {
   reason?: string;
 }
 
-/** Where to certify: the model directions `axes` span `ranges` (default [-pi, pi] each); the others are fixed at `origin`. */
+/**
+ * Where to certify: coordinates u_i spanning `ranges` (default [-pi, pi] each). Without a `chart`,
+ * u_i is the momentum along model direction `axes[i]` and the other directions are fixed at
+ * `origin`; a chart maps u to k itself and bounds how far k can move.
+ */
 export interface CertifyRegion {
   axes: number[];
   origin: number[];
   ranges?: [number, number][];
+  chart?: Chart;
+}
+
+/** A curved region (a sphere around a node, say): k(u), and a bound on |k_j(u + du) - k_j(u)| for |du_i| <= half[i]. */
+export interface Chart {
+  place(u: ArrayLike<number>, k: Float64Array): void;
+  reach(half: ArrayLike<number>, steps: number[]): void;
 }
 
 /**
@@ -106,10 +117,15 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   let samples = 0;
   let minGap = Infinity;
   const minGapAt = Array.from(k);
+  const minGapU = new Array<number>(d).fill(0);
   let energyScale = 0;
 
+  const chart: Chart = region.chart ?? {
+    place: (u, out) => { for (let i = 0; i < d; i++) out[region.axes[i]] = u[i]; },
+    reach: (half, out) => { for (let i = 0; i < d; i++) out[region.axes[i]] = half[i]; },
+  };
   const gapAt = (point: number[]): number => {
-    for (let i = 0; i < d; i++) k[region.axes[i]] = point[i];
+    chart.place(point, k);
     const e = sampler.solve(k);
     samples++;
     energyScale = Math.max(energyScale, Math.abs(e[0]), Math.abs(e[nb - 1]));
@@ -117,6 +133,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     if (g < minGap) {
       minGap = g;
       for (let i = 0; i < h.dim; i++) minGapAt[i] = k[i];
+      for (let i = 0; i < d; i++) minGapU[i] = point[i];
     }
     return g;
   };
@@ -156,7 +173,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     const key = halfWidths.join(',');
     let v = variation.get(key);
     if (v === undefined) {
-      for (let i = 0; i < d; i++) steps[region.axes[i]] = halfWidths[i];
+      chart.reach(halfWidths, steps);
       v = h.variationBound(steps);
       variation.set(key, v);
     }
@@ -172,7 +189,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
 
   /** Minimise the gap from the smallest sample: a closing the boxes only bracket shows up here. */
   const polish = (reason: string): GapCertificate => {
-    const from = region.axes.map((a) => minGapAt[a]);
+    const from = [...minGapU];
     const widths = positions.map((p) => Math.max(MIN_WIDTH, Math.min(...p.slice(1).map((x, j) => x - p[j]))));
     const { x } = nelderMead((y) => {
       const g = gapAt(Array.from(y));

@@ -8,6 +8,7 @@
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { ModelError, show } from '../model/errors.js';
+import { certifyGap, type CertifyRegion } from '../spectra/certify.js';
 import { findGapClosings } from '../spectra/gap.js';
 import { bandGroup, compileSource, FrameSampler, orientation3D, type BandGroup, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
 import { determinantInPlace, overlapMatrix } from './links.js';
@@ -102,6 +103,27 @@ function distance(a: number[], b: number[]): number {
   return Math.sqrt(s);
 }
 
+/**
+ * The sphere of `radius` around `centre` for the gap certificate, in (theta, phi): a step of
+ * (dtheta, dphi) moves each Cartesian-reduced component of k by at most radius (|dtheta| + |dphi|).
+ */
+function sphereRegion(centre: ArrayLike<number>, radius: number): CertifyRegion {
+  return {
+    axes: [0, 1],
+    origin: [0, 0, 0],
+    ranges: [[0, Math.PI], [0, 2 * Math.PI]],
+    chart: {
+      place: (u, k) => {
+        const theta = u[0], phi = u[1];
+        k[0] = centre[0] + radius * Math.sin(theta) * Math.cos(phi);
+        k[1] = centre[1] + radius * Math.sin(theta) * Math.sin(phi);
+        k[2] = centre[2] + radius * Math.cos(theta);
+      },
+      reach: (half, steps) => steps.fill(radius * (half[0] + half[1])),
+    },
+  };
+}
+
 /** Weyl points of a 3D model between the group and the band above it, with chiralities. */
 export function weylPoints(source: TopologySource, options: WeylOptions = {}): WeylResult {
   const h: BlochHamiltonian = compileSource(source, options);
@@ -126,11 +148,12 @@ export function weylPoints(source: TopologySource, options: WeylOptions = {}): W
     const radius = options.radius ?? Math.min(0.1, nearest / 3);
     sampler.resetGap();
     const { flux, maxPhase } = sphereFlux(sampler, p.k, radius, nTheta, nPhi);
-    const tol = sampler.tolerance(options.gapTolerance);
+    const proof = certifyGap(h, { lo: 0, hi: group.hi }, sphereRegion(p.k, radius), { tolerance: options.gapTolerance });
     let chirality: number | null = sign * Math.round(flux) + 0;
-    if (sampler.minGap <= tol || maxPhase > Math.PI / 2 || Math.abs(flux - Math.round(flux)) > 1e-3) {
+    if (proof.verdict !== 'gapped' || maxPhase > Math.PI / 2 || Math.abs(flux - Math.round(flux)) > 1e-3) {
       chirality = null;
-      warnings.push(`Weyl point at k = (${p.fractions.map((x) => x.toFixed(4)).join(', ')}): the sphere of radius ${radius.toPrecision(3)} is not sound (smallest gap on it ${sampler.minGap.toExponential(2)}, largest plaquette phase ${maxPhase.toFixed(3)}, flux ${flux.toFixed(4)}); give a smaller radius or a finer sphere`);
+      const gap = proof.verdict === 'gapped' ? `gap proven above ${proof.lowerBound.toExponential(2)}` : `gap not proven on it, ${proof.minGap.toExponential(2)} at the smallest`;
+      warnings.push(`Weyl point at k = (${p.fractions.map((x) => x.toFixed(4)).join(', ')}): the sphere of radius ${radius.toPrecision(3)} is not sound (${gap}, largest plaquette phase ${maxPhase.toFixed(3)}, flux ${flux.toFixed(4)}); give a smaller radius or a finer sphere`);
     }
     if (nearest < 2 * radius) warnings.push(`Weyl point at k = (${p.fractions.map((x) => x.toFixed(4)).join(', ')}): another crossing lies within ${nearest.toPrecision(3)} rad`);
     return { k: [...p.k], fractions: [...p.fractions], gap: p.gap, chirality, flux: sign * flux, radius };
