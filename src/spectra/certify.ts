@@ -57,7 +57,11 @@ export interface CertifyRegion {
   chart?: Chart;
 }
 
-/** A curved region (a sphere around a node, say): k(u), and a bound on |k_j(u + du) - k_j(u)| for |du_i| <= half[i]. */
+/**
+ * A curved region (a sphere around a node, say): k(u), and a bound on |k_j(u + du) - k_j(u)| for
+ * |du_i| <= half[i], which must be additive over the axes (the bound for several axes at once is at
+ * most the sum of the bounds for each alone).
+ */
 export interface Chart {
   place(u: ArrayLike<number>, k: Float64Array): void;
   reach(half: ArrayLike<number>, steps: number[]): void;
@@ -112,8 +116,11 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   const sampler = new BandSampler(h);
   const k = new Float64Array(h.dim);
   for (let i = 0; i < h.dim; i++) k[i] = region.origin[i] ?? 0;
-  const positions = ranges.map(([a, b]) => linspace(a, b, start));
-  const gaps = new Map<string, number>();
+  let positions = ranges.map(([a, b]) => linspace(a, b, start));
+  /** Gaps at the lattice points, last axis fastest; NaN where not sampled yet. */
+  let gaps = new Float64Array(0);
+  let counts: number[] = [];
+  let strides: number[] = [];
   let samples = 0;
   let minGap = Infinity;
   const minGapAt = Array.from(k);
@@ -124,7 +131,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     place: (u, out) => { for (let i = 0; i < d; i++) out[region.axes[i]] = u[i]; },
     reach: (half, out) => { for (let i = 0; i < d; i++) out[region.axes[i]] = half[i]; },
   };
-  const gapAt = (point: number[]): number => {
+  const gapAt = (point: ArrayLike<number>): number => {
     chart.place(point, k);
     const e = sampler.solve(k);
     samples++;
@@ -139,45 +146,65 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   };
   const tolerance = () => options.tolerance ?? 1e-9 * Math.max(energyScale, 1e-300);
 
-  /** Visit every combination of one index per axis (`counts[i]` choices each). */
-  const odometer = (counts: number[], visit: (index: number[]) => void): void => {
-    if (counts.some((c) => c <= 0)) return;
-    const index = new Array<number>(d).fill(0);
-    for (;;) {
-      visit(index);
-      let i = d - 1;
-      while (i >= 0 && ++index[i] === counts[i]) index[i--] = 0;
-      if (i < 0) return;
-    }
-  };
-  const pointOf = (index: number[], shift?: number[]): number[] => index.map((j, i) => positions[i][j + (shift?.[i] ?? 0)]);
-  const keyOf = (point: number[]): string => point.join(',');
-
-  /** Sample every lattice point not yet known; false when the budget would be exceeded. */
-  const fill = (): boolean => {
-    const total = positions.reduce((a, p) => a * p.length, 1);
+  /**
+   * Lay the lattice of `next` positions, keeping the gaps known at the old points (every old line
+   * is still a line), then sample the new points; false when the budget would be exceeded.
+   */
+  const relay = (next: number[][]): boolean => {
+    const nextCounts = next.map((p) => p.length);
+    const total = nextCounts.reduce((a, n) => a * n, 1);
     if (total > maxSamples) return false;
-    let seen = 0;
-    odometer(positions.map((p) => p.length), (index) => {
-      if (++seen % 256 === 0) checkInterrupt();
-      const point = pointOf(index);
-      const key = keyOf(point);
-      if (!gaps.has(key)) gaps.set(key, gapAt(point));
-    });
+    const nextStrides = nextCounts.map((_, i) => nextCounts.slice(i + 1).reduce((a, n) => a * n, 1));
+    const nextGaps = new Float64Array(total).fill(NaN);
+    if (gaps.length > 0) {
+      // Old line j of axis i sits at new line where[i][j].
+      const where = positions.map((p, i) => {
+        const map = new Int32Array(p.length);
+        let at = 0;
+        for (let j = 0; j < p.length; j++) {
+          while (next[i][at] !== p[j]) at++;
+          map[j] = at;
+        }
+        return map;
+      });
+      for (let q = 0; q < gaps.length; q++) {
+        let rest = q, to = 0;
+        for (let i = 0; i < d; i++) {
+          const j = Math.floor(rest / strides[i]);
+          rest -= j * strides[i];
+          to += where[i][j] * nextStrides[i];
+        }
+        nextGaps[to] = gaps[q];
+      }
+    }
+    positions = next;
+    counts = nextCounts;
+    strides = nextStrides;
+    gaps = nextGaps;
+    const point = new Float64Array(d);
+    for (let q = 0; q < total; q++) {
+      if (!Number.isNaN(gaps[q])) continue;
+      if (samples % 256 === 0) checkInterrupt();
+      let rest = q;
+      for (let i = 0; i < d; i++) {
+        const j = Math.floor(rest / strides[i]);
+        rest -= j * strides[i];
+        point[i] = positions[i][j];
+      }
+      gaps[q] = gapAt(point);
+    }
     return true;
   };
 
+  // A box's corners move by at most V(half widths) <= sum over axes of V(one axis's half width)
+  // (min(2, a + b) <= min(2, a) + min(2, b), row sums add), so each interval's share is computed once.
   const steps = new Array<number>(h.dim).fill(0);
-  const variation = new Map<string, number>();
-  const boundOver = (halfWidths: number[]): number => {
-    const key = halfWidths.join(',');
-    let v = variation.get(key);
-    if (v === undefined) {
-      chart.reach(halfWidths, steps);
-      v = h.variationBound(steps);
-      variation.set(key, v);
-    }
-    return v;
+  const intervalBound = (axis: number, half: number): number => {
+    const one = new Array<number>(d).fill(0);
+    one[axis] = half;
+    steps.fill(0);
+    chart.reach(one, steps);
+    return h.variationBound(steps);
   };
   const corners = 1 << d;
 
@@ -199,55 +226,60 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     return minGap <= tolerance() ? gapless() : finish('unproven', 0, reason);
   };
 
-  if (!fill()) return finish('unproven', 0, `${positions.map((p) => p.length).join('x')} starting samples exceed the budget of ${maxSamples}`);
+  if (!relay(positions)) return finish('unproven', 0, `${positions.map((p) => p.length).join('x')} starting samples exceed the budget of ${maxSamples}`);
   for (let round = 1; ; round++) {
     if (minGap <= tolerance()) return gapless();
     // A true closing makes every round bracket it more tightly; minimising from the best sample
     // now and then reaches it in far fewer samples.
     if ((round & (round - 1)) === 0 && round >= 4 && polish('').verdict === 'gapless') return gapless();
     checkInterrupt();
+    const widths = positions.map((p) => Float64Array.from({ length: p.length - 1 }, (_, j) => p[j + 1] - p[j]));
+    const shares = widths.map((w, i) => Float64Array.from(w, (x) => intervalBound(i, x / 2)));
+    const cornerOffsets = Array.from({ length: corners }, (_, c) => strides.reduce((a, st, i) => a + ((c >> i) & 1) * st, 0));
     // Boxes: the proven gap of each, and which intervals to split where a box is not proven.
     const split = positions.map((p) => new Uint8Array(p.length - 1));
+    const boxCounts = counts.map((n) => n - 1);
+    const boxes = boxCounts.reduce((a, n) => a * n, 1);
+    const index = new Int32Array(d);
+    const boxWidths = new Array<number>(d);
     let lowerBound = Infinity;
     let failing = 0;
-    const half = new Array<number>(d);
-    const widths = new Array<number>(d);
-    const shift = new Array<number>(d);
-    odometer(positions.map((p) => p.length - 1), (index) => {
+    for (let box = 0; box < boxes; box++) {
+      let rest = box, base = 0, share = 0;
+      for (let i = d - 1; i >= 0; i--) {
+        const j = rest % boxCounts[i];
+        rest = (rest - j) / boxCounts[i];
+        index[i] = j;
+        base += j * strides[i];
+        share += shares[i][j];
+        boxWidths[i] = widths[i][j];
+      }
       let smallest = Infinity;
-      for (let c = 0; c < corners; c++) {
-        for (let i = 0; i < d; i++) shift[i] = (c >> i) & 1;
-        smallest = Math.min(smallest, gaps.get(keyOf(pointOf(index, shift)))!);
-      }
-      for (let i = 0; i < d; i++) {
-        widths[i] = positions[i][index[i] + 1] - positions[i][index[i]];
-        half[i] = widths[i] / 2;
-      }
-      const bound = smallest - 2 * boundOver(half);
-      const ok = bound > 0 && (options.cellCondition === undefined || options.cellCondition(bound, widths));
-      if (ok) {
-        lowerBound = Math.min(lowerBound, bound);
-        return;
+      for (let c = 0; c < corners; c++) smallest = Math.min(smallest, gaps[base + cornerOffsets[c]]);
+      const bound = smallest - 2 * share;
+      if (bound > 0 && (options.cellCondition === undefined || options.cellCondition(bound, boxWidths))) {
+        if (bound < lowerBound) lowerBound = bound;
+        continue;
       }
       failing++;
-      for (let i = 0; i < d; i++) if (widths[i] > MIN_WIDTH) split[i][index[i]] = 1;
-    });
+      for (let i = 0; i < d; i++) if (boxWidths[i] > MIN_WIDTH) split[i][index[i]] = 1;
+    }
     if (failing === 0) return finish('gapped', lowerBound);
     let inserted = 0;
-    positions.forEach((p, i) => {
-      const next: number[] = [p[0]];
+    const next = positions.map((p, i) => {
+      const out: number[] = [p[0]];
       for (let j = 0; j + 1 < p.length; j++) {
         if (split[i][j]) {
-          next.push((p[j] + p[j + 1]) / 2);
+          out.push((p[j] + p[j + 1]) / 2);
           inserted++;
         }
-        next.push(p[j + 1]);
+        out.push(p[j + 1]);
       }
-      positions[i] = next;
+      return out;
     });
     const where = `k = (${minGapAt.map((x) => (x / (2 * Math.PI)).toFixed(4)).join(', ')})`;
     if (inserted === 0) return polish(`boxes narrower than ${MIN_WIDTH.toExponential(1)} rad near ${where} are still not proven`);
-    if (positions.some((p) => p.length > maxLines + 1)) return polish(`more than ${maxLines} lines per direction would be needed near ${where}`);
-    if (!fill()) return polish(`more than ${maxSamples} samples would be needed near ${where}`);
+    if (next.some((p) => p.length > maxLines + 1)) return polish(`more than ${maxLines} lines per direction would be needed near ${where}`);
+    if (!relay(next)) return polish(`more than ${maxSamples} samples would be needed near ${where}`);
   }
 }

@@ -95,8 +95,12 @@ function unpairedCentres(c: Float64Array): boolean {
   return false;
 }
 
-/** Crossings of the largest-gap line over k1 in [0, pi] (nHalf steps), loops along the plane's second axis. */
-function flowCrossings(sampler: FrameSampler, plane: ReturnType<typeof resolvePlane>, nAlong: number, nHalf: number): FlowCount {
+/**
+ * Crossings of the largest-gap line over k1 in [0, pi] (nHalf steps), loops along the plane's second
+ * axis: the count on a uniform grid as sampled, with no gap proof (explicit grids, and the bench's
+ * baseline).
+ */
+export function flowCrossings(sampler: FrameSampler, plane: ReturnType<typeof resolvePlane>, nAlong: number, nHalf: number): FlowCount {
   const cols = new WilsonColumns(sampler, plane, uniformLines(nAlong));
   let crossings = 0;
   let zPrev = 0;
