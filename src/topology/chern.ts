@@ -9,7 +9,7 @@
 import { checkInterrupt } from '../interrupt.js';
 import { ModelError, show } from '../model/errors.js';
 import {
-  bandGroup, bisectLines, compileSource, embedding, formatK, FrameSampler, orientation2D, resolvePlane, uniformLines,
+  bandGroup, bisectLines, compileSource, embedding, formatK, FRAME_MEMORY, FrameSampler, orientation2D, resolvePlane, uniformLines,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { certifyGap } from '../spectra/certify.js';
@@ -196,14 +196,17 @@ export function chernNumber(source: TopologySource, options: ChernOptions = {}):
   const h = compileSource(source, options);
   const plane = resolvePlane(h.dim, options.plane);
   const group = bandGroup(options.bands, h.size);
-  const sampler = new FrameSampler(h, group);
+  // The FHS sum runs on the gap proof's own lines: the frames solved for the proof are kept.
+  const sampler = new FrameSampler(h, group).remember(FRAME_MEMORY);
   const grid = resolveGridOption(options.grid);
   const maxGrid = options.maxGrid ?? 512;
   if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${show(maxGrid)}`);
   const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   const planeInfo = h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at };
   const what = 'the Chern number';
-  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin }, { tolerance: options.gapTolerance, start: AUTO_START, maxLines: maxGrid });
+  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin }, {
+    tolerance: options.gapTolerance, start: AUTO_START, maxLines: maxGrid, solve: (k) => sampler.sample(k, undefined, 0, false),
+  });
   const result = (c: number | null, checks: ChernChecks, integer: boolean): ChernResult => ({
     kind: 'chern', chern: integer && c !== null ? Math.round(c) + 0 : null, bands: [group.lo, group.hi], plane: planeInfo, flux: c, checks,
   });

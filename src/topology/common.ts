@@ -33,6 +33,9 @@ export interface TopologyOptions {
   gapTolerance?: number;
 }
 
+/** How many numbers a sampler may keep of the frames it solved (`remember`): 64 MB. */
+export const FRAME_MEMORY = 8_000_000;
+
 /**
  * Eigenvectors of one band group at any k. A frame is the group's m eigenvectors stored one after
  * another (vector j at offset 2*n*j, n complex entries each), so overlaps read contiguous memory.
@@ -55,6 +58,14 @@ export class FrameSampler {
   energyScale = 0;
   private readonly matrix: Float64Array;
   private readonly solver: HermitianEigensolver;
+  /**
+   * What `sample` solved (see `remember`): energies then the group's frame per k, in slabs, found
+   * through one map per momentum component (numeric keys: no string per k).
+   */
+  private memo: Map<number, unknown> | null = null;
+  private memoRoom = 0;
+  private slab = new Float64Array(0);
+  private slabUsed = 0;
 
   constructor(hamiltonian: BlochHamiltonian, group: BandGroup) {
     this.hamiltonian = hamiltonian;
@@ -74,30 +85,81 @@ export class FrameSampler {
    */
   sample(k: ArrayLike<number>, out?: Float64Array, offset = 0, track = true): Float64Array {
     const n = this.n;
-    this.hamiltonian.fill(k, this.matrix);
-    this.solver.solve(this.matrix, this.energies, this.vectors);
     const e = this.energies;
-    if (track) {
-      const gap = groupGap(e, 0, this.group, n);
-      if (gap < this.minGap) {
-        this.minGap = gap;
-        for (let i = 0; i < this.minGapAt.length; i++) this.minGapAt[i] = k[i];
-      }
-      const scale = Math.max(Math.abs(e[0]), Math.abs(e[n - 1]));
-      if (scale > this.energyScale) this.energyScale = scale;
+    const known = this.memo === null ? undefined : this.recall(k);
+    if (known !== undefined) {
+      e.set(known.subarray(0, n));
+      if (out !== undefined) out.set(known.subarray(n), offset);
+      if (track) this.track(k);
+      return e;
     }
-    if (out !== undefined) {
-      const v = this.vectors;
-      for (let j = 0; j < this.m; j++) {
-        const col = this.group.lo + j;
-        const base = offset + 2 * n * j;
-        for (let a = 0; a < n; a++) {
-          out[base + 2 * a] = v[2 * (a * n + col)];
-          out[base + 2 * a + 1] = v[2 * (a * n + col) + 1];
-        }
-      }
-    }
+    this.hamiltonian.fill(k, this.matrix);
+    this.solver.solve(this.matrix, e, this.vectors);
+    if (track) this.track(k);
+    if (out !== undefined) this.frameInto(out, offset);
+    if (this.memo !== null && this.memoRoom > 0) this.keep(k);
     return e;
+  }
+
+  /**
+   * Keep what `sample` solves, up to `doubles` numbers in all, so a k solved once (by a gap proof,
+   * say) is not solved again by the computation that follows on the same lines.
+   */
+  remember(doubles: number): this {
+    this.memo = new Map();
+    this.memoRoom = doubles;
+    return this;
+  }
+
+  private recall(k: ArrayLike<number>): Float64Array | undefined {
+    let level: unknown = this.memo;
+    for (let i = 0; i < this.hamiltonian.dim && level !== undefined; i++) level = (level as Map<number, unknown>).get(k[i]);
+    return level as Float64Array | undefined;
+  }
+
+  private keep(k: ArrayLike<number>): void {
+    const size = this.n + this.frameLength;
+    if (this.slabUsed + size > this.slab.length) {
+      this.slab = new Float64Array(Math.max(size, Math.min(this.memoRoom, 1 << 16)));
+      this.slabUsed = 0;
+    }
+    const kept = this.slab.subarray(this.slabUsed, this.slabUsed + size);
+    this.slabUsed += size;
+    this.memoRoom -= size;
+    kept.set(this.energies);
+    this.frameInto(kept, this.n);
+    const dim = this.hamiltonian.dim;
+    let level = this.memo!;
+    for (let i = 0; i + 1 < dim; i++) {
+      let next = level.get(k[i]) as Map<number, unknown> | undefined;
+      if (next === undefined) level.set(k[i], (next = new Map()));
+      level = next;
+    }
+    level.set(k[dim - 1], kept);
+  }
+
+  private track(k: ArrayLike<number>): void {
+    const e = this.energies, n = this.n;
+    const gap = groupGap(e, 0, this.group, n);
+    if (gap < this.minGap) {
+      this.minGap = gap;
+      for (let i = 0; i < this.minGapAt.length; i++) this.minGapAt[i] = k[i];
+    }
+    const scale = Math.max(Math.abs(e[0]), Math.abs(e[n - 1]));
+    if (scale > this.energyScale) this.energyScale = scale;
+  }
+
+  /** The group's columns of the latest eigenvectors into `out` at `offset`. */
+  private frameInto(out: Float64Array, offset: number): void {
+    const n = this.n, v = this.vectors;
+    for (let j = 0; j < this.m; j++) {
+      const col = this.group.lo + j;
+      const base = offset + 2 * n * j;
+      for (let a = 0; a < n; a++) {
+        out[base + 2 * a] = v[2 * (a * n + col)];
+        out[base + 2 * a + 1] = v[2 * (a * n + col) + 1];
+      }
+    }
   }
 
   resetGap(): void {

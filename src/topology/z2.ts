@@ -19,7 +19,7 @@ import { chernNumber, type ChernOptions, type ChernResult } from './chern.js';
 import { certifyGap, type GapCertificate } from '../spectra/certify.js';
 import { certificateChecks } from './checks.js';
 import {
-  bandGroup, bisectLines, compileSource, formatK, FrameSampler, resolvePlane, uniformLines,
+  bandGroup, bisectLines, compileSource, formatK, FRAME_MEMORY, FrameSampler, resolvePlane, uniformLines,
   type BandGroup, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { crossingsBetween, largestGap, WilsonColumns } from './wilson.js';
@@ -154,12 +154,15 @@ export const CERTAIN_LINK = 0.7;
 function certifiedFlow(
   h: BlochHamiltonian, group: BandGroup, plane: ReturnType<typeof resolvePlane>, tolerance: number | undefined, maxGrid: number,
 ): { cert: GapCertificate; count: FlowCount | null; lines: [number, number]; failure?: string } {
-  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, { tolerance, start: 16, maxLines: maxGrid });
+  // The loops run on the gap proof's own lines: the frames solved for the proof are kept.
+  const sampler = new FrameSampler(h, group).remember(FRAME_MEMORY);
+  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, {
+    tolerance, start: 16, maxLines: maxGrid, solve: (k) => sampler.sample(k, undefined, 0, false),
+  });
   let xs = cert.positions[0];
   let ys = mirrored(cert.positions[1].subarray(0, -1));
   const lines = (): [number, number] => [ys.length, xs.length - 1];
   if (cert.verdict !== 'gapped') return { cert, count: null, lines: lines() };
-  const sampler = new FrameSampler(h, group);
   for (;;) {
     const cols = new WilsonColumns(sampler, plane, ys);
     const centres: Float64Array[] = [];
