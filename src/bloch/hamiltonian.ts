@@ -162,6 +162,28 @@ export class BlochHamiltonian {
     return worst;
   }
 
+  /**
+   * A bound on ||H(k + delta) - H(k) - sum_i delta_i dH/dk_i|| at every k for |delta_i| <= steps[i]:
+   * the second-order remainder, |e^{-ix} - 1 + ix| <= x^2/2 per term, summed by rows as in
+   * `variationBound`.
+   */
+  remainderBound(steps: ArrayLike<number>): number {
+    const n = this.size, dim = this.dim;
+    const rows = new Float64Array(n);
+    const amps = this.amplitudes;
+    for (let t = 0; t < this.termFrom.length; t++) {
+      const p = this.termPhase[t];
+      let reach = 0;
+      for (let j = 0; j < dim; j++) reach += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
+      const w = (Math.hypot(amps[2 * t], amps[2 * t + 1]) * reach * reach) / 2;
+      rows[this.termFrom[t]] += w;
+      rows[this.termTo[t]] += w;
+    }
+    let worst = 0;
+    for (let a = 0; a < n; a++) worst = Math.max(worst, rows[a]);
+    return worst;
+  }
+
   /** Sum the terms with their phases; with dir >= 0, each term is multiplied by -i d_dir. */
   private accumulate(out: CMatrix, dir: number): CMatrix {
     const n = this.size;

@@ -7,7 +7,10 @@
  * vectors (BlochHamiltonian.variationBound). Every point of a box of the sample lattice lies within
  * half the box's widths of one of its corners, so the gap everywhere in the box is at least
  *   (smallest corner gap) - 2 V(half widths).
- * Boxes where that is not positive are split by inserting the midlines of their intervals (a
+ * A box that fails this gets a second, local chance: around each corner c, H(k) - H(c) is the
+ * derivative at c (whose norm is solved there, along each axis) plus a second-order remainder the
+ * amplitudes bound, which is far tighter than the global bound wherever the hoppings partly cancel.
+ * Boxes where neither is positive are split by inserting the midlines of their intervals (a
  * rectilinear lattice, refined only along the lines that cross a bad box), until every box is
  * proven (gapped), a sample's gap falls to the tolerance (gapless), or the budget runs out
  * (unproven). Before saying unproven, the smallest sampled gap is minimised locally (Nelder–Mead),
@@ -20,6 +23,7 @@
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { ModelError, show } from '../model/errors.js';
+import { HermitianEigensolver } from '../linalg/eigh.js';
 import { BandSampler, groupGap, type BandGroup, type GapProof } from './common.js';
 import { nelderMead } from './gap.js';
 
@@ -122,6 +126,8 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   let positions = ranges.map(([a, b]) => linspace(a, b, start));
   /** Gaps at the lattice points, last axis fastest; NaN where not sampled yet. */
   let gaps = new Float64Array(0);
+  /** ||dH/du_i|| at the lattice points, d per point, solved only for the corners of boxes that need it (NaN: not yet). */
+  let norms = new Float64Array(0);
   let counts: number[] = [];
   let strides: number[] = [];
   let samples = 0;
@@ -159,6 +165,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     if (total > maxSamples) return false;
     const nextStrides = nextCounts.map((_, i) => nextCounts.slice(i + 1).reduce((a, n) => a * n, 1));
     const nextGaps = new Float64Array(total).fill(NaN);
+    const nextNorms = new Float64Array(total * d).fill(NaN);
     if (gaps.length > 0) {
       // Old line j of axis i sits at new line where[i][j].
       const where = positions.map((p, i) => {
@@ -178,23 +185,19 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
           to += where[i][j] * nextStrides[i];
         }
         nextGaps[to] = gaps[q];
+        for (let i = 0; i < d; i++) nextNorms[to * d + i] = norms[q * d + i];
       }
     }
     positions = next;
     counts = nextCounts;
     strides = nextStrides;
     gaps = nextGaps;
+    norms = nextNorms;
     const point = new Float64Array(d);
     for (let q = 0; q < total; q++) {
       if (!Number.isNaN(gaps[q])) continue;
       if (samples % 256 === 0) checkInterrupt();
-      let rest = q;
-      for (let i = 0; i < d; i++) {
-        const j = Math.floor(rest / strides[i]);
-        rest -= j * strides[i];
-        point[i] = positions[i][j];
-      }
-      gaps[q] = gapAt(point);
+      gaps[q] = gapAt(pointAt(q, point));
     }
     return true;
   };
@@ -210,6 +213,38 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     return h.variationBound(steps);
   };
   const corners = 1 << d;
+
+  // The local bound needs the derivative along each axis, which only a straight region has.
+  const derivative = region.chart === undefined ? new Float64Array(2 * nb * nb) : null;
+  const derivativeValues = new Float64Array(nb);
+  const derivativeSolver = derivative === null ? null : new HermitianEigensolver(nb);
+  const pointAt = (q: number, out: Float64Array): Float64Array => {
+    let rest = q;
+    for (let i = 0; i < d; i++) {
+      const j = Math.floor(rest / strides[i]);
+      rest -= j * strides[i];
+      out[i] = positions[i][j];
+    }
+    return out;
+  };
+  const normPoint = new Float64Array(d);
+  /** ||dH/du_i|| at lattice point q (solved once). */
+  const normAt = (q: number, i: number): number => {
+    if (Number.isNaN(norms[q * d + i])) {
+      chart.place(pointAt(q, normPoint), k);
+      h.fillDerivative(k, region.axes[i], derivative!);
+      derivativeSolver!.solve(derivative!, derivativeValues);
+      norms[q * d + i] = Math.max(Math.abs(derivativeValues[0]), Math.abs(derivativeValues[nb - 1]));
+    }
+    return norms[q * d + i];
+  };
+  const intervalRemainder = (axis: number, half: number): number => {
+    const one = new Array<number>(d).fill(0);
+    one[axis] = half;
+    steps.fill(0);
+    chart.reach(one, steps);
+    return h.remainderBound(steps);
+  };
 
   const finish = (verdict: GapVerdict, lowerBound: number, reason?: string): GapCertificate => ({
     verdict, lowerBound, minGap, minGapAt: [...minGapAt], tolerance: tolerance(), energyScale, samples,
@@ -238,6 +273,8 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     checkInterrupt();
     const widths = positions.map((p) => Float64Array.from({ length: p.length - 1 }, (_, j) => p[j + 1] - p[j]));
     const shares = widths.map((w, i) => Float64Array.from(w, (x) => intervalBound(i, x / 2)));
+    // (sum of d terms)^2 <= d (sum of squares): each interval's share of the remainder, times d.
+    const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => d * intervalRemainder(i, x / 2)));
     const cornerOffsets = Array.from({ length: corners }, (_, c) => strides.reduce((a, st, i) => a + ((c >> i) & 1) * st, 0));
     // Boxes: the proven gap of each, and which intervals to split where a box is not proven.
     const split = positions.map((p) => new Uint8Array(p.length - 1));
@@ -259,8 +296,21 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
       }
       let smallest = Infinity;
       for (let c = 0; c < corners; c++) smallest = Math.min(smallest, gaps[base + cornerOffsets[c]]);
-      const bound = smallest - 2 * share;
-      if (bound > 0 && (options.cellCondition === undefined || options.cellCondition(bound, boxWidths))) {
+      let bound = smallest - 2 * share;
+      const fine = (b: number) => b > 0 && (options.cellCondition === undefined || options.cellCondition(b, boxWidths));
+      if (!fine(bound) && remainders !== null) {
+        let remainder = 0;
+        for (let i = 0; i < d; i++) remainder += remainders[i][index[i]];
+        let local = Infinity;
+        for (let c = 0; c < corners && local > bound; c++) {
+          const q = base + cornerOffsets[c];
+          let move = remainder;
+          for (let i = 0; i < d; i++) move += normAt(q, i) * boxWidths[i] / 2;
+          local = Math.min(local, gaps[q] - 2 * move);
+        }
+        bound = Math.max(bound, local);
+      }
+      if (fine(bound)) {
         if (bound < lowerBound) lowerBound = bound;
         continue;
       }
