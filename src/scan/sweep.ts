@@ -79,6 +79,11 @@ export interface PhaseBoundary {
   upper: number;
   /** The invariant at `lower` and at `upper` (null: gapless there). */
   values: [number | null, number | null];
+  /**
+   * The smallest gap found at `lower` and at `upper`: a boundary of certified integers is a gap
+   * closing, so both shrink with the bracket (their confirmation that the phases meet there).
+   */
+  gaps: [number, number];
 }
 
 export interface PhaseMapAxis extends SweepAxis {
@@ -321,12 +326,14 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
       const lower = Math.min(b.lo[b.axis], b.hi[b.axis]);
       const upper = Math.max(b.lo[b.axis], b.hi[b.axis]);
       const ascending = b.lo[b.axis] <= b.hi[b.axis];
+      const gapLo = known.get(pointKey(b.lo))!.gap, gapHi = known.get(pointKey(b.hi))!.gap;
       boundaries.push({
         at: sweptParams(axes, mid),
         along: axes[b.axis].param,
         lower,
         upper,
         values: ascending ? [b.vlo, b.vhi] : [b.vhi, b.vlo],
+        gaps: ascending ? [gapLo, gapHi] : [gapHi, gapLo],
       });
     }
     refinement = { tolerance, rounds, points: extra };

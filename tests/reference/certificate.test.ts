@@ -318,6 +318,8 @@ describe('phase maps land on the true closing', () => {
     })) as PhaseMapResult;
     expect(map.boundaries).toHaveLength(1);
     expect(Math.abs(map.boundaries[0].at.lambda_v - KM_EDGE)).toBeLessThan(1e-4);
+    // Both ends of the bracket sit on a nearly closed gap (about 2 |lambda_v - edge| at K, common practice).
+    expect(Math.max(...map.boundaries[0].gaps)).toBeLessThan(1e-3);
     // There the gap proof finds the closing itself (gap ~ 2 |3 sqrt3 lambda_SO - lambda_v| at K).
     const at = certifyGap(new BlochHamiltonian(kaneMele(), { lambda_SO: 0.06, lambda_R: 0, lambda_v: map.boundaries[0].at.lambda_v }), { lo: 0, hi: 1 }, { axes: [0, 1], origin: [0, 0] });
     expect(at.minGap).toBeLessThan(3e-4);
