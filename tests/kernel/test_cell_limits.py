@@ -1,0 +1,92 @@
+"""Cells that exhaust memory or flood output, through Debian's jupyter_client: the kernel's own
+process survives, the reply names the cause and what was lost, and the cell process is restarted
+by itself within a few seconds (common practice for Jupyter kernels: a cell's failure is a reply,
+never a dead kernel)."""
+
+import os
+import time
+import unittest
+
+import harness
+
+MEMORY_MB = 1024
+OUTPUT_MB = 1
+
+
+class CellLimits(unittest.TestCase):
+    @classmethod
+    def setUpClass(cls):
+        os.environ["CHERNEL_CELL_MEMORY_MB"] = str(MEMORY_MB)
+        os.environ["CHERNEL_OUTPUT_MB"] = str(OUTPUT_MB)
+        try:
+            cls.km, cls.kc = harness.start_kernel()
+        finally:
+            del os.environ["CHERNEL_CELL_MEMORY_MB"]
+            del os.environ["CHERNEL_OUTPUT_MB"]
+        cls.pid = cls.km.provisioner.process.pid
+
+    @classmethod
+    def tearDownClass(cls):
+        harness.stop_kernel(cls.km, cls.kc)
+
+    def assert_alive_and_restarted(self, reply, cause):
+        self.assertEqual(reply["status"], "error")
+        self.assertEqual(reply["ename"], "StateReset")
+        self.assertIn(cause, reply["evalue"])
+        self.assertIn("all state was reset", reply["evalue"])
+        self.assertTrue(self.km.is_alive())
+        self.assertEqual(self.km.provisioner.process.pid, self.pid, "the kernel process itself must not restart")
+        start = time.monotonic()
+        self.assertEqual(harness.value(self.kc, "6 * 7", timeout=30), "42")
+        self.assertLess(time.monotonic() - start, 10, "the cell process must be back within a few seconds")
+
+    def test_an_array_past_the_largest_size_ends_the_cell_process_not_the_kernel(self):
+        harness.value(self.kc, "const lost = 1")
+        reply, _ = harness.run(self.kc, "const a: number[] = []; for (let i = 0; i < 2e8; i++) a.push(i); a.length", timeout=120)
+        self.assert_alive_and_restarted(reply, "out of memory")
+        reply, _ = harness.run(self.kc, "lost")
+        self.assertEqual(reply["ename"], "ReferenceError", "the reply said state was reset: it must be")
+
+    def test_a_heap_past_its_limit_is_named_out_of_memory(self):
+        reply, _ = harness.run(self.kc, "const objs: object[] = []; for (;;) objs.push({ n: objs.length, s: 'x' + objs.length });", timeout=120)
+        self.assert_alive_and_restarted(reply, "out of memory")
+
+    def test_typed_arrays_are_bounded_and_the_cell_keeps_its_state(self):
+        harness.value(self.kc, "const kept = 'still here'")
+        start = time.monotonic()
+        reply, _ = harness.run(self.kc, "const held: Float64Array[] = []; for (;;) held.push(new Float64Array(1e8));", timeout=120)
+        self.assertLess(time.monotonic() - start, 30)
+        self.assertEqual(reply["status"], "error")
+        self.assertEqual(reply["ename"], "RangeError")
+        self.assertIn(f"memory limit is {MEMORY_MB} MB", reply["evalue"])
+        self.assertEqual(harness.value(self.kc, "kept"), "'still here'")
+
+    def test_written_typed_arrays_are_bounded_too(self):
+        reply, _ = harness.run(self.kc, "const filled: Float64Array[] = []; for (;;) filled.push(new Float64Array(1e7).fill(1));", timeout=120)
+        self.assertEqual(reply["status"], "error")
+        self.assertIn("memory", reply["evalue"])
+        self.assertTrue(self.km.is_alive())
+        self.assertEqual(harness.value(self.kc, "6 * 7"), "42")
+
+    def test_a_model_cannot_allocate_through_its_expressions(self):
+        code = ("compute({kind: 'bands', model: {format: 'chernel.model', version: 1, name: 'm', periodic: 1, vectors: [[1]], "
+                "orbitals: [{label: 'a', position: [0]}], parameters: {}, "
+                "terms: [{from: 'a', to: 'a', cell: [1], amplitude: 'size(range(1, 1e9))[1]'}]}, path: [[0], [1]]})")
+        reply, _ = harness.run(self.kc, code, timeout=60)
+        self.assertEqual(reply["status"], "error")
+        self.assertIn("terms[0].amplitude", reply["evalue"])
+        self.assertIn("range", reply["evalue"])
+        self.assertEqual(harness.value(self.kc, "6 * 7"), "42")
+
+    def test_output_is_capped_and_says_where_the_rest_went(self):
+        reply, outputs = harness.run(self.kc, "for (let i = 0; i < 3000; i++) console.log('y'.repeat(1000)); 'done'", timeout=60)
+        self.assertEqual(reply["status"], "ok")
+        text = "".join(c["text"] for t, c, _ in outputs if t == "stream")
+        self.assertLess(len(text), OUTPUT_MB * 1_000_000 + 10_000)
+        self.assertIn("output capped", text)
+        self.assertIn("chernel-output/", text)
+        self.assertEqual(harness.result_text(outputs), "'done'")
+
+
+if __name__ == "__main__":
+    unittest.main()
