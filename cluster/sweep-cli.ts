@@ -20,6 +20,7 @@ import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from
 import { NodeWorkerExecutor, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
+import { checkRequestFields } from '../src/request-fields.js';
 import { pointTarget, validatePhaseMapRequest, type PhaseMapRequest } from '../src/scan/sweep.js';
 import { sbatchScript, type SlurmOptions } from './slurm.js';
 
@@ -113,7 +114,10 @@ function loadPlan(path: string): SweepPlan {
 function loadRequest(path: string): PhaseMapRequest {
   const raw = readJson(path, 'request') as Record<string, unknown>;
   if (raw !== null && typeof raw === 'object' && typeof raw.model === 'string') raw.model = catalogueModel(raw.model);
-  return validatePhaseMapRequest(raw);
+  const request = validatePhaseMapRequest(raw);
+  // The engine's point function runs every point: the request takes exactly its options.
+  checkRequestFields(request);
+  return request;
 }
 
 async function cmdPlan(p: Parsed, out: (s: string) => void): Promise<number> {

@@ -8,6 +8,7 @@ import { Console } from 'node:console';
 import { Writable } from 'node:stream';
 import vm from 'node:vm';
 import { parentPort, workerData } from 'node:worker_threads';
+import { setComputeBudget } from '../../src/cost.js';
 import { InterruptedError, installInterruptFlag } from '../../src/interrupt.js';
 import { connectComms, handleFrontendComm } from '../comms.js';
 import { mimeBundle, plainText } from '../display/index.js';
@@ -104,6 +105,9 @@ for (const [name, value] of Object.entries(helpers)) define(name, value, false);
 let interruptCurrent: ((error: Error) => void) | null = null;
 
 const memoryLimit = cellLimits(process.env);
+// Requests are refused before they run when their estimate exceeds what the cell may allocate
+// (src/cost.ts): the limit less what the engine and the notebook's own values already hold.
+setComputeBudget({ memoryBytes: Math.max(128, (memoryLimit.totalMb - 384) * 0.8) * 2 ** 20 });
 
 function serializeError(error: unknown): SerializedError {
   if (error instanceof RangeError && /allocation failed/.test(error.message)) {
