@@ -17,7 +17,7 @@ import { InterruptedError } from '../src/interrupt.js';
 import { catalogueModel } from '../src/model/catalogue.js';
 import { ModelError, show } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
-import { NodeWorkerExecutor, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
+import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
 import { checkRequestFields } from '../src/request-fields.js';
@@ -171,6 +171,19 @@ async function cmdRun(p: Parsed, out: (s: string) => void): Promise<number> {
   const paths = sweepPaths(planPath);
   const file = paths.shardFile(shard, shards);
   mkdirSync(paths.shardDir, { recursive: true });
+  // One runner per shard: a duplicate would overwrite the first one's points.
+  const unlock = lockFile(file);
+  try {
+    return await runLockedShard(p, plan, shard, shards, workers, module, factory, file, out);
+  } finally {
+    unlock();
+  }
+}
+
+async function runLockedShard(
+  p: Parsed, plan: SweepPlan, shard: number, shards: number, workers: number, module: string | undefined,
+  factory: PointFunctionFactory, file: string, out: (s: string) => void,
+): Promise<number> {
   let previous: unknown;
   if (existsSync(file)) {
     try {
@@ -409,7 +422,7 @@ export async function runSweepCli(args: string[], out: (s: string) => void = (s)
         throw new UsageError(`unknown command ${show(command)}`);
     }
   } catch (err) {
-    if (err instanceof UsageError || err instanceof ModelError) {
+    if (err instanceof UsageError || err instanceof ModelError || err instanceof ShardLockedError) {
       process.stderr.write(`chernel sweep ${command}: ${err.name}: ${err.message}\n`);
       if (err instanceof UsageError && /unknown command/.test(err.message)) process.stderr.write(USAGE + '\n');
       return 2;
