@@ -87,6 +87,25 @@ class CellLimits(unittest.TestCase):
         self.assertIn("chernel-output/", text)
         self.assertEqual(harness.result_text(outputs), "'done'")
 
+    def test_an_error_aborts_only_its_own_clients_queued_cells(self):
+        from jupyter_client import BlockingKernelClient
+        from jupyter_client.session import Session
+
+        other = BlockingKernelClient()
+        other.load_connection_info(self.km.get_connection_info())
+        other.session = Session(key=self.km.session.key, signature_scheme=self.km.session.signature_scheme)
+        self.assertNotEqual(other.session.session, self.kc.session.session)
+        other.start_channels()
+        try:
+            failing = self.kc.execute("await new Promise((r) => setTimeout(r, 800)); throw new Error('first client fails')")
+            mine = self.kc.execute("'queued by the first client'")
+            theirs = other.execute("'queued by the second client'")
+            self.assertEqual(harness.shell_reply(self.kc, failing)["content"]["status"], "error")
+            self.assertEqual(harness.shell_reply(self.kc, mine)["content"]["status"], "aborted")
+            self.assertEqual(harness.shell_reply(other, theirs)["content"]["status"], "ok")
+        finally:
+            other.stop_channels()
+
 
 if __name__ == "__main__":
     unittest.main()
