@@ -5,9 +5,9 @@
  * of that field that fits. The limits are not constants: they follow from the budget, which the
  * host sets (the kernel from the cell's memory limit; `setComputeBudget`).
  *
- * The estimates are deliberately rough (the dominant arrays, and eigensolver time measured on the
- * bench machine: about 0.1 us + 2 ns * n^3 per Hermitian solve with vectors, README's table) and
- * err on the high side: they exist to refuse what cannot finish, not to predict run times.
+ * The estimates are deliberately rough (the dominant arrays, and the time per k-point measured on
+ * the bench machine, see `solveSeconds`) and err on the high side: they exist to refuse what cannot
+ * finish, not to predict run times.
  */
 import type { DiagnosticKind, DiagnosticRequest } from './diagnostics.js';
 import { ModelError } from './model/errors.js';
@@ -43,28 +43,34 @@ export interface CostEstimate {
 
 /** A dense Hermitian problem of n orbitals: the matrix, its eigenvectors and the solver's scratch. */
 export const denseBytes = (n: number): number => 8 * 16 * n * n;
-/** One Hermitian solve with vectors (bench: 55 ns at n = 2, 20 ms at n = 256). */
-const solveSeconds = (n: number): number => 1e-7 + 2e-9 * n ** 3;
+/**
+ * One k-point of a diagnostic on n orbitals: building H(k), the Hermitian solve with vectors and
+ * the overlaps (measured: 4 us at n = 2, 12 us at n = 8, 32 ms at n = 200, 0.44 s at n = 600).
+ */
+const solveSeconds = (n: number): number => 4e-6 + 1.5e-7 * n ** 2 + 4e-9 * n ** 3;
 /** One record of a phase map's point (coordinates, value, gap, bookkeeping). */
 const POINT_BYTES = 256;
 
 type Fields = Record<string, unknown>;
 
+/** A size as given, or `fallback` when it is not a usable count (the diagnostic then names it). */
+const count = (x: unknown, fallback: number): number => (typeof x === 'number' && Number.isFinite(x) && x >= 1 ? x : fallback);
+
 function gridCounts(grid: unknown, dim: number, fallback: number): number[] {
-  if (typeof grid === 'number' && Number.isFinite(grid)) return new Array<number>(Math.max(dim, 1)).fill(grid);
-  if (Array.isArray(grid) && grid.every((x) => typeof x === 'number')) return grid as number[];
+  if (typeof grid === 'number') return new Array<number>(Math.max(dim, 1)).fill(count(grid, fallback));
+  if (Array.isArray(grid) && grid.length > 0) return grid.map((x) => count(x, fallback));
   return new Array<number>(Math.max(dim, 1)).fill(fallback);
 }
 const product = (xs: number[]): number => xs.reduce((a, b) => a * Math.max(b, 1), 1);
 
 function groupSize(r: Fields, n: number): number {
-  if (typeof r.bands === 'number') return r.bands;
-  if (Array.isArray(r.bands)) return r.bands.length;
+  if (typeof r.bands === 'number') return Math.min(count(r.bands, 1), n);
+  if (Array.isArray(r.bands)) return Math.min(r.bands.length, n);
   return Math.max(1, Math.floor(n / 2));
 }
 
 function pathPoints(r: Fields, perDefault: number): number {
-  const per = typeof r.pointsPerSegment === 'number' ? r.pointsPerSegment : perDefault;
+  const per = count(r.pointsPerSegment, perDefault);
   const segments = typeof r.path === 'string' ? Math.max(1, r.path.trim().split(/\s+/).length - 1) : Array.isArray(r.path) ? Math.max(1, r.path.length - 1) : 4;
   return segments * per;
 }
@@ -93,8 +99,8 @@ export function estimateCost(request: DiagnosticRequest, n: number, dim: number)
     case 'weyl':
       return gridCost(n, 0, gridCounts(r.grid, dim, [1, 256, 64, 24][dim] ?? 24), 16);
     case 'ribbon': {
-      const width = typeof r.width === 'number' ? r.width : 1;
-      const nk = typeof r.nk === 'number' ? r.nk : dim === 1 ? 201 : 40 * 4;
+      const width = count(r.width, 1);
+      const nk = count(r.nk, dim === 1 ? 201 : 40 * 4);
       const big = n * width;
       return { bytes: denseBytes(big) + nk * big * 16, seconds: nk * solveSeconds(big) };
     }
@@ -113,14 +119,14 @@ export function estimateCost(request: DiagnosticRequest, n: number, dim: number)
     }
     case 'berry-phase':
     case 'winding': {
-      const points = typeof r.points === 'number' ? r.points : Array.isArray(r.loop) ? r.loop.length : 256;
+      const points = count(r.points, Array.isArray(r.loop) ? r.loop.length : 256);
       return { bytes: denseBytes(n) + 4 * 16 * n * m, seconds: points * solveSeconds(n) };
     }
     case 'majorana':
       return { bytes: denseBytes(n), seconds: 4 * solveSeconds(n) };
     case 'phase-map': {
       const axes = Array.isArray(r.axes) ? (r.axes as Fields[]) : [];
-      const points = product(axes.map((a) => (typeof a.count === 'number' ? a.count : 1)));
+      const points = product(axes.map((a) => count(a?.count, 1)));
       const invariant = typeof r.invariant === 'string' ? r.invariant : 'chern';
       const each = estimateCost({ ...r, kind: invariant } as unknown as DiagnosticRequest, n, dim);
       return { bytes: points * POINT_BYTES + each.bytes, seconds: points * each.seconds };

@@ -119,6 +119,11 @@ export function checkRequestFields(request: DiagnosticRequest): void {
     if (isObject(r[option])) checkFields(r[option], fields, `${option}.`, `"${option}"`);
   }
   if (Array.isArray(r.axes)) r.axes.forEach((axis, i) => isObject(axis) && checkFields(axis, AXIS_FIELDS, `axes[${i}].`, 'a swept axis'));
+  // The one option of many kinds whose shape varies; each diagnostic checks its values.
+  const grid = r.grid;
+  if (grid !== undefined && typeof grid !== 'number' && grid !== 'auto' && !(Array.isArray(grid) && grid.length > 0)) {
+    throw new ModelError('grid', `expected a number of k-points, one per direction, or "auto". Value: ${show(grid)}`);
+  }
 }
 
 /** Checks the field names of a model description and of its orbitals, parameters and terms. */

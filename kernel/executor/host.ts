@@ -24,10 +24,12 @@ import { CellSyntaxError, compileCell } from './transpile.js';
 /** How long a cell may ignore an interrupt before its worker is replaced. */
 export const GRACE_MS = 2000;
 /**
- * Address space a cell process reserves beyond what its cell allocates: the code, the engine and
- * V8's heap reservations (measured about 1.1 GB on Linux x64 with Node 20, with the engine loaded).
+ * Address space a cell process reserves beyond what its cell allocates: the code, the engine, V8's
+ * heap reservations (about 1.1 GB on Linux x64 with Node 20) and above all WebAssembly memories,
+ * for which V8 reserves 10 GB each (guard regions; the engine's linear algebra holds one, two
+ * while it replaces it). Reserved, not used: the resident size is what the poll bounds.
  */
-const ADDRESS_SPACE_OVERHEAD_MB = 1536;
+const ADDRESS_SPACE_OVERHEAD_MB = 24 * 1024;
 /** Printed text is gathered this long before it is published. */
 const STREAM_FLUSH_MS = 20;
 const QUERY_TIMEOUT_MS = 1500;
