@@ -87,6 +87,33 @@ class CellLimits(unittest.TestCase):
         self.assertIn("chernel-output/", text)
         self.assertEqual(harness.result_text(outputs), "'done'")
 
+    def test_malformed_requests_from_cells_name_the_field_and_keep_state(self):
+        harness.value(self.kc, "const survivor = 'kept'")
+        cases = [
+            ("compute({kind: 'chern', model: qwz(), gird: 64})", "gird", 'did you mean "grid"'),
+            ("compute({kind: 'chern', model: qwz(), param: {u: 3}})", "param", 'did you mean "params"'),
+            ("compute({kind: 'chern', model: qwz(), parms: {u: 99}})", "parms", 'did you mean "params"'),
+            ("compute({kind: 'chern', model: qwz(), params: JSON.parse('{\"__proto__\": 1}')})", "params.__proto__", "has no parameter"),
+            ("compute({kind: 'chern', model: qwz(), params: {toString: 1}})", "params.toString", "has no parameter"),
+            ("compute({kind: 'chern', model: qwz(), grid: 100000})", "grid", "the largest grid that fits is"),
+            ("compute({kind: 'z2', model: kaneMele(), grid: 100000})", "grid", "the largest grid that fits is"),
+            ("compute({kind: 'ribbon', model: qwz(), direction: 0, width: 100000})", "width", "the largest width that fits is"),
+            ("compute({kind: 'phase-map', model: qwz(), invariant: 'chern', axes: [{param: 'u', from: -3, to: 3, count: 1e9}]})", "axes[0].count", "fits is"),
+            ("qwz({uu: 3})", "qwz", "did you mean params: {u: ...}"),
+            ("show(qwz(), {kind: 'curvature', gird: 32})", "gird", 'did you mean "grid"'),
+            ("show(qwz(), {kind: 'bands', tolerence: 1})", "tolerence", 'did you mean "tolerance"'),
+            ("hofstadter(1, 1e6)", "flux.q", "the largest q that fits is"),
+        ]
+        for code, field, hint in cases:
+            reply, _ = harness.run(self.kc, code, timeout=30)
+            self.assertEqual(reply["status"], "error", code)
+            self.assertIn(reply["ename"], ("ModelError", "WidgetOptionError"), code)
+            self.assertTrue(reply["evalue"].startswith(f"{field}: "), f"{code}: {reply['evalue']}")
+            self.assertIn(hint, reply["evalue"], code)
+        self.assertEqual(harness.value(self.kc, "survivor"), "'kept'")
+        result = harness.value(self.kc, "JSON.stringify(compute({kind: 'chern', model: qwz(), grid: 16, params: {u: -1}}).params)")
+        self.assertEqual(result, "'{\"u\":-1}'")
+
     def test_an_error_aborts_only_its_own_clients_queued_cells(self):
         from jupyter_client import BlockingKernelClient
         from jupyter_client.session import Session
