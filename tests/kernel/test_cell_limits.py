@@ -114,6 +114,18 @@ class CellLimits(unittest.TestCase):
         result = harness.value(self.kc, "JSON.stringify(compute({kind: 'chern', model: qwz(), grid: 16, params: {u: -1}}).params)")
         self.assertEqual(result, "'{\"u\":-1}'")
 
+    def test_an_interrupt_stops_one_long_eigensolve_and_keeps_state(self):
+        harness.value(self.kc, "const wide = ribbon(qwz(), 0, 750); wide.orbitals.length")
+        msg_id = self.kc.execute("compute({kind: 'bands', model: wide, pointsPerSegment: 3})")
+        time.sleep(2.0)
+        sent = time.monotonic()
+        self.km.interrupt_kernel()
+        reply = harness.shell_reply(self.kc, msg_id, timeout=30)
+        elapsed = time.monotonic() - sent
+        self.assertEqual(reply["content"]["ename"], "InterruptedError")
+        self.assertLess(elapsed, 1.5, f"the interrupt took {elapsed:.2f} s")
+        self.assertEqual(harness.value(self.kc, "wide.orbitals.length"), "1500")
+
     def test_an_error_aborts_only_its_own_clients_queued_cells(self):
         from jupyter_client import BlockingKernelClient
         from jupyter_client.session import Session
