@@ -276,8 +276,10 @@ export class ExecutionHost {
     this.stopping = true;
     this.clearKillTimer();
     this.flushStream();
-    const exited = new Promise((resolve) => this.worker.once('exit', resolve));
-    this.worker.kill('SIGKILL');
+    const worker = this.worker;
+    if (worker.exitCode !== null || worker.signalCode !== null) return;
+    const exited = new Promise((resolve) => worker.once('exit', resolve));
+    worker.kill('SIGKILL');
     await exited;
   }
 }

@@ -4,8 +4,11 @@ by itself within a few seconds (common practice for Jupyter kernels: a cell's fa
 never a dead kernel)."""
 
 import os
+import shutil
+import tempfile
 import time
 import unittest
+from pathlib import Path
 
 import harness
 
@@ -18,8 +21,9 @@ class CellLimits(unittest.TestCase):
     def setUpClass(cls):
         os.environ["CHERNEL_CELL_MEMORY_MB"] = str(MEMORY_MB)
         os.environ["CHERNEL_OUTPUT_MB"] = str(OUTPUT_MB)
+        cls.tmp = Path(tempfile.mkdtemp(prefix="chernel-limits-"))
         try:
-            cls.km, cls.kc = harness.start_kernel()
+            cls.km, cls.kc = harness.start_kernel(cwd=cls.tmp)
         finally:
             del os.environ["CHERNEL_CELL_MEMORY_MB"]
             del os.environ["CHERNEL_OUTPUT_MB"]
@@ -28,6 +32,7 @@ class CellLimits(unittest.TestCase):
     @classmethod
     def tearDownClass(cls):
         harness.stop_kernel(cls.km, cls.kc)
+        shutil.rmtree(cls.tmp, ignore_errors=True)
 
     def assert_alive_and_restarted(self, reply, cause):
         self.assertEqual(reply["status"], "error")
@@ -86,6 +91,12 @@ class CellLimits(unittest.TestCase):
         self.assertIn("output capped", text)
         self.assertIn("chernel-output/", text)
         self.assertEqual(harness.result_text(outputs), "'done'")
+        # The rest went where the note says, in the kernel's folder: every line accounted for.
+        kept = sorted((self.tmp / "chernel-output").glob("*.txt"))
+        self.assertEqual(len(kept), 1)
+        rest = kept[0].read_text()
+        self.assertIn(kept[0].name, text)
+        self.assertEqual(text.count("y" * 1000) + rest.count("y" * 1000), 3000)
 
     def test_malformed_requests_from_cells_name_the_field_and_keep_state(self):
         harness.value(self.kc, "const survivor = 'kept'")
