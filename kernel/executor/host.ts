@@ -11,9 +11,8 @@
  *     error names the cause. The kernel's own process never runs user code, so it never dies of it.
  */
 
-import { fileURLToPath } from 'node:url';
 import { spawn, type ChildProcess } from 'node:child_process';
-import { fileURLToPath as toPath } from 'node:url';
+import { fileURLToPath } from 'node:url';
 import { log } from '../log.js';
 import { cellLimits } from './limits.js';
 import type { CellProcessNotice } from './cell-process.js';
@@ -292,7 +291,7 @@ export class ExecutionHost {
  * (cell-process.ts), which is what bounds memory where `ulimit -v` is not enforced.
  */
 function startCellProcess(): ChildProcess {
-  const script = toPath(new URL('./cell-process.js', import.meta.url));
+  const script = fileURLToPath(new URL('./cell-process.js', import.meta.url));
   const options = { serialization: 'advanced' as const, stdio: ['ignore', 'ignore', 'pipe', 'ipc'] as ('ignore' | 'pipe' | 'ipc')[] };
   const args = [...process.execArgv, script];
   if (process.platform === 'win32') return spawn(process.execPath, args, options);
