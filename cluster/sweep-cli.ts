@@ -17,9 +17,10 @@ import { InterruptedError } from '../src/interrupt.js';
 import { catalogueModel } from '../src/model/catalogue.js';
 import { ModelError, show } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
-import { NodeWorkerExecutor, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
+import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
+import { checkRequestFields } from '../src/request-fields.js';
 import { pointTarget, validatePhaseMapRequest, type PhaseMapRequest } from '../src/scan/sweep.js';
 import { sbatchScript, type SlurmOptions } from './slurm.js';
 
@@ -113,7 +114,10 @@ function loadPlan(path: string): SweepPlan {
 function loadRequest(path: string): PhaseMapRequest {
   const raw = readJson(path, 'request') as Record<string, unknown>;
   if (raw !== null && typeof raw === 'object' && typeof raw.model === 'string') raw.model = catalogueModel(raw.model);
-  return validatePhaseMapRequest(raw);
+  const request = validatePhaseMapRequest(raw);
+  // The engine's point function runs every point: the request takes exactly its options.
+  checkRequestFields(request);
+  return request;
 }
 
 async function cmdPlan(p: Parsed, out: (s: string) => void): Promise<number> {
@@ -167,6 +171,19 @@ async function cmdRun(p: Parsed, out: (s: string) => void): Promise<number> {
   const paths = sweepPaths(planPath);
   const file = paths.shardFile(shard, shards);
   mkdirSync(paths.shardDir, { recursive: true });
+  // One runner per shard: a duplicate would overwrite the first one's points.
+  const unlock = lockFile(file);
+  try {
+    return await runLockedShard(p, plan, shard, shards, workers, module, factory, file, out);
+  } finally {
+    unlock();
+  }
+}
+
+async function runLockedShard(
+  p: Parsed, plan: SweepPlan, shard: number, shards: number, workers: number, module: string | undefined,
+  factory: PointFunctionFactory, file: string, out: (s: string) => void,
+): Promise<number> {
   let previous: unknown;
   if (existsSync(file)) {
     try {
@@ -405,7 +422,7 @@ export async function runSweepCli(args: string[], out: (s: string) => void = (s)
         throw new UsageError(`unknown command ${show(command)}`);
     }
   } catch (err) {
-    if (err instanceof UsageError || err instanceof ModelError) {
+    if (err instanceof UsageError || err instanceof ModelError || err instanceof ShardLockedError) {
       process.stderr.write(`chernel sweep ${command}: ${err.name}: ${err.message}\n`);
       if (err instanceof UsageError && /unknown command/.test(err.message)) process.stderr.write(USAGE + '\n');
       return 2;

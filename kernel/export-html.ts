@@ -8,7 +8,10 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { validateModel } from '../src/model/validate.js';
 import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
+import { diagnosticStateProblem } from '../widgets/src/saved-state.js';
+import { WIDGET_MODULE } from './widget-state.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {
@@ -112,7 +115,92 @@ export function markdownToHtml(source: string): string {
   return out.join('\n');
 }
 
-function outputHtml(output: Json): string {
+/** A widget that cannot be embedded: where it is and why. */
+export interface WidgetProblem {
+  /** 1-based, as a notebook's cells are counted by a reader. */
+  cell: number;
+  modelId: string;
+  problem: string;
+}
+
+const SAVED_STATE_VERSION = 2;
+const isObject = (x: unknown): x is Json => x !== null && typeof x === 'object' && !Array.isArray(x);
+
+/** Lays each saved base64 buffer at its path in the state, as the widget manager would. */
+function placeBuffers(state: Json, buffers: unknown): string | null {
+  if (buffers === undefined) return null;
+  if (!Array.isArray(buffers)) return 'buffers: expected a list';
+  for (const [i, b] of buffers.entries()) {
+    if (!isObject(b) || !Array.isArray(b.path) || b.path.length === 0) return `buffers[${i}]: expected {path, encoding, data}`;
+    if (b.encoding !== 'base64') return `buffers[${i}].encoding: expected "base64". Value: ${JSON.stringify(b.encoding)}`;
+    if (typeof b.data !== 'string' || !/^[A-Za-z0-9+/]*={0,2}$/.test(b.data) || b.data.length % 4 !== 0) return `buffers[${i}].data: not valid base64 (truncated?)`;
+    let parent: unknown = state;
+    for (const key of b.path.slice(0, -1)) parent = isObject(parent) || Array.isArray(parent) ? (parent as Json)[key as string] : undefined;
+    if (!isObject(parent) && !Array.isArray(parent)) return `buffers[${i}].path: ${b.path.join('.')} leads nowhere in the state`;
+    const bytes = Buffer.from(b.data, 'base64');
+    (parent as Json)[b.path[b.path.length - 1] as string] = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  }
+  return null;
+}
+
+/** The problem of one saved widget model, or null if the page can show it. */
+function savedModelProblem(entry: unknown): string | null {
+  if (!isObject(entry)) return 'its saved entry is not an object';
+  if (!isObject(entry.state)) return 'its saved entry has no state';
+  if (entry.model_module !== WIDGET_MODULE) return null; // another library's widget: its own runtime checks it
+  const state = structuredClone(entry.state);
+  const placed = placeBuffers(state, entry.buffers);
+  if (placed) return placed;
+  const problem = diagnosticStateProblem(state);
+  if (problem) return problem;
+  try {
+    validateModel(state.spec);
+  } catch (err) {
+    return `spec.${(err as Error).message}`;
+  }
+  return null;
+}
+
+/**
+ * Every widget view in the notebook whose state the page cannot embed: the saved state missing
+ * (the notebook was saved without it), of another version, or damaged.
+ */
+export function widgetProblems(notebook: unknown): WidgetProblem[] {
+  if (!isObject(notebook)) return [];
+  const cells = cellsOf(notebook);
+  const widgets = isObject(notebook.metadata) && isObject(notebook.metadata.widgets) ? notebook.metadata.widgets : {};
+  const saved = widgets[WIDGET_STATE_MIME];
+  let all: string | null = null;
+  if (saved === undefined) all = 'the notebook carries no saved widget state (it was saved with widget-state saving off); re-run it and save';
+  else if (!isObject(saved)) all = 'the saved widget state is not an object';
+  else if (saved.version_major !== SAVED_STATE_VERSION) all = `the saved widget state has version ${JSON.stringify(saved.version_major)}.${JSON.stringify(saved.version_minor)}; this page reads ${SAVED_STATE_VERSION}.x`;
+  else if (!isObject(saved.state)) all = 'the saved widget state has no models (metadata "state" is missing)';
+  const models = isObject(saved) && isObject(saved.state) ? saved.state : {};
+  const problems: WidgetProblem[] = [];
+  cells.forEach((cell, i) => {
+    for (const output of cell.outputs) {
+      const view = isObject(output) && isObject(output.data) ? output.data[WIDGET_VIEW_MIME] : undefined;
+      if (view === undefined) continue;
+      const modelId = isObject(view) && typeof view.model_id === 'string' ? view.model_id : '';
+      let problem = all;
+      if (problem === null) {
+        if (!modelId) problem = 'its output names no widget (model_id missing)';
+        else if (!Object.hasOwn(models, modelId)) problem = 'its state was not saved with the notebook';
+        else problem = savedModelProblem(models[modelId]);
+      }
+      if (problem !== null) problems.push({ cell: i + 1, modelId: modelId || '(none)', problem });
+    }
+  });
+  return problems;
+}
+
+function staticPicture(data: Json): string {
+  if (data['image/svg+xml']) return `<div class="output svg">${text(data['image/svg+xml'])}</div>`;
+  if (data['image/png']) return `<div class="output image"><img alt="figure" src="data:image/png;base64,${text(data['image/png']).trim()}"></div>`;
+  return '';
+}
+
+function outputHtml(output: Json, broken: ReadonlyMap<string, WidgetProblem>): string {
   const type = output.output_type;
   if (type === 'stream') return `<pre class="output stream ${escapeHtml(String(output.name))}">${escapeHtml(text(output.text))}</pre>`;
   if (type === 'error') {
@@ -122,16 +210,18 @@ function outputHtml(output: Json): string {
   if (type !== 'display_data' && type !== 'execute_result') return '';
   const data = (output.data ?? {}) as Json;
   if (data[WIDGET_VIEW_MIME]) {
-    // The view tag; the runtime replaces it by the live widget. The text/plain beside it shows
-    // if the widget's state was not saved.
+    const modelId = String((data[WIDGET_VIEW_MIME] as Json).model_id ?? '(none)');
+    const problem = broken.get(modelId);
+    if (problem) {
+      // Said on the page where the widget would be, with its last picture when the output has one.
+      const message = `Widget ${modelId} (cell ${problem.cell}) is not live in this page: ${problem.problem}.`;
+      return `<div class="output widget broken"><div class="chernel-message" data-level="error">${escapeHtml(message)}</div>${staticPicture(data)}</div>`;
+    }
+    // The view tag; the runtime replaces it by the live widget.
     const fallback = data['text/plain'] ? `<noscript><pre>${escapeHtml(text(data['text/plain']))}</pre></noscript>` : '';
     return `<div class="output widget">${fallback}<script type="${WIDGET_VIEW_MIME}">${scriptSafe(JSON.stringify(data[WIDGET_VIEW_MIME]))}</script></div>`;
   }
-  const image = data['image/svg+xml']
-    ? `<div class="output svg">${text(data['image/svg+xml'])}</div>`
-    : data['image/png']
-      ? `<div class="output image"><img alt="figure" src="data:image/png;base64,${text(data['image/png']).trim()}"></div>`
-      : '';
+  const image = staticPicture(data);
   // Notebook outputs are the author's own HTML, shown as JupyterLab shows a trusted notebook.
   const html = data['text/html'] ? `<div class="output html">${text(data['text/html'])}</div>` : '';
   if (data[PLOTLY_MIME]) {
@@ -151,6 +241,7 @@ body { font: 14px/1.45 system-ui, -apple-system, "Segoe UI", sans-serif; margin:
 .cell pre.input { background: #f5f6f8; border-left: 3px solid #9aa8c0; padding: 8px 10px; overflow-x: auto; margin: 0 0 6px; }
 pre.output { margin: 4px 0; padding: 4px 10px; overflow-x: auto; }
 pre.output.error, pre.output.stderr { background: #fdecea; }
+.chernel-message[data-level="error"] { background: #fdecea; border-left: 3px solid #c62828; padding: 8px 10px; margin: 4px 0; }
 .output.image img { max-width: 100%; }
 footer { margin-top: 32px; color: #777; font-size: 12px; }
 `;
@@ -163,6 +254,14 @@ export interface ExportOptions {
 
 /** The page for a parsed notebook. Throws NotebookFormatError naming the malformed field. */
 export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): string {
+  return renderNotebook(notebook, options).html;
+}
+
+/**
+ * The page, and the widgets it could not embed live (each shown on the page as a message in place
+ * of the widget, with its static picture when the output carries one).
+ */
+export function renderNotebook(notebook: unknown, options: ExportOptions = {}): { html: string; problems: WidgetProblem[] } {
   if (notebook === null || typeof notebook !== 'object') throw new NotebookFormatError('notebook', 'expected a JSON object');
   const nb = notebook as Json;
   const cells = cellsOf(nb);
@@ -175,20 +274,22 @@ export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): 
   }
   const runtime = readFileSync(runtimePath, 'utf8');
   const title = options.title ?? 'chernel notebook';
+  const problems = widgetProblems(nb);
+  const broken = new Map(problems.map((p) => [p.modelId, p]));
 
   const body = cells
     .map((cell) => {
       if (cell.cell_type === 'markdown') return `<div class="cell markdown">${markdownToHtml(cell.source)}</div>`;
       if (cell.cell_type === 'raw') return `<div class="cell raw"><pre>${escapeHtml(cell.source)}</pre></div>`;
       const input = cell.source.trim() ? `<pre class="input"><code>${escapeHtml(cell.source)}</code></pre>` : '';
-      return `<div class="cell code">${input}${cell.outputs.map(outputHtml).join('')}</div>`;
+      return `<div class="cell code">${input}${cell.outputs.map((o) => outputHtml(o, broken)).join('')}</div>`;
     })
     .join('\n');
 
   const stateTag = widgetState
     ? `<script type="${WIDGET_STATE_MIME}">${scriptSafe(JSON.stringify(widgetState))}</script>`
     : '';
-  return `<!DOCTYPE html>
+  const html = `<!DOCTYPE html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
@@ -207,20 +308,26 @@ ${body}
 </body>
 </html>
 `;
+  return { html, problems };
 }
 
-/** Reads a notebook file and writes the page. */
-export function exportHtml(input: string, output: string, options: ExportOptions = {}): void {
+/** Reads a notebook file and writes the page; returns the widgets it could not embed live. */
+export function exportHtml(input: string, output: string, options: ExportOptions = {}): WidgetProblem[] {
   let notebook: unknown;
   try {
     notebook = JSON.parse(readFileSync(input, 'utf8'));
   } catch (err) {
     throw new NotebookFormatError(input, `not a readable notebook (JSON): ${(err as Error).message}`);
   }
-  writeFileSync(output, notebookToHtml(notebook, { title: basename(input, '.ipynb'), ...options }));
+  const { html, problems } = renderNotebook(notebook, { title: basename(input, '.ipynb'), ...options });
+  writeFileSync(output, html);
+  return problems;
 }
 
-export const USAGE = 'usage: chernel export-html NOTEBOOK.ipynb [-o OUT.html]';
+export const USAGE =
+  'usage: chernel export-html NOTEBOOK.ipynb [-o OUT.html]\n' +
+  '  A widget whose saved state is missing or damaged is shown as a message (with its static picture)\n' +
+  '  in place of the live widget; each is reported here and the exit status is 1.';
 
 /** The CLI subcommand: `chernel export-html nb.ipynb -o out.html`. Returns the exit code. */
 export function exportHtmlCommand(argv: string[], stderr: (line: string) => void = (l) => process.stderr.write(l + '\n')): number {
@@ -243,10 +350,16 @@ export function exportHtmlCommand(argv: string[], stderr: (line: string) => void
     return 2;
   }
   output ??= input.replace(/\.ipynb$/, '') + '.html';
+  let problems: WidgetProblem[];
   try {
-    exportHtml(input, output);
+    problems = exportHtml(input, output);
   } catch (err) {
     stderr(`export-html: ${(err as Error).message}`);
+    return 1;
+  }
+  for (const p of problems) stderr(`export-html: ${input}, cell ${p.cell}: widget ${p.modelId} is not live in the page: ${p.problem}`);
+  if (problems.length > 0) {
+    stderr(`export-html: wrote ${output}, with ${problems.length} widget(s) shown as a message instead (see above)`);
     return 1;
   }
   stderr(`export-html: wrote ${output}`);

@@ -6,6 +6,8 @@
  */
 
 import type { ModelSpec } from '../src/index.js';
+import { didYouMean, requestFields } from '../src/request-fields.js';
+import type { SweepQuantity } from '../src/scan/sweep.js';
 import type { WidgetKind } from '../widgets/src/protocol.js';
 import { packArrays, removeBuffers } from '../widgets/src/wire.js';
 
@@ -31,6 +33,23 @@ export class WidgetOptionError extends Error {
   constructor(field: string, message: string) {
     super(`${field}: ${message}`);
     this.name = 'WidgetOptionError';
+  }
+}
+
+/** The widget's own options; the rest are its diagnostic's request fields (src/request-fields.ts). */
+const OWN_OPTIONS = ['kind', 'values', 'title'];
+
+/**
+ * Checks the names of `show(model, options)` options: the widget's own and those of the request it
+ * computes (the flow widget also takes `invariant: 'z2'`). A misspelt one names the closest.
+ */
+export function checkWidgetOptions(kind: WidgetKind, options: Record<string, unknown>): void {
+  const request = requestFields(kind, options.invariant as SweepQuantity | undefined).filter((f) => f !== 'kind' && f !== 'model' && f !== 'params');
+  const valid = [...OWN_OPTIONS, ...request, ...(kind === 'wannier-flow' ? ['invariant'] : [])];
+  for (const key of Object.keys(options)) {
+    if (valid.includes(key)) continue;
+    const hint = key === 'params' ? '; parameter values go in "values"' : didYouMean(key, valid);
+    throw new WidgetOptionError(key, `unknown option for a "${kind}" widget${hint} (valid: ${valid.join(', ')})`);
   }
 }
 
@@ -94,10 +113,10 @@ export function checkValues(spec: ModelSpec, values: unknown, field = 'values'):
   }
   const out: Values = {};
   for (const [name, value] of Object.entries(values)) {
-    const decl = spec.parameters[name];
+    const decl = Object.hasOwn(spec.parameters, name) ? spec.parameters[name] : undefined;
     if (decl === undefined) {
-      const known = Object.keys(spec.parameters).join(', ') || 'none';
-      throw new WidgetOptionError(`${field}.${name}`, `not a parameter of model "${spec.name}" (parameters: ${known})`);
+      const known = Object.keys(spec.parameters);
+      throw new WidgetOptionError(`${field}.${name}`, `not a parameter of model "${spec.name}"${didYouMean(name, known)} (parameters: ${known.join(', ') || 'none'})`);
     }
     if (typeof value !== 'number' || !Number.isFinite(value)) {
       throw new WidgetOptionError(`${field}.${name}`, `expected a finite number. Value: ${JSON.stringify(value)}`);

@@ -16,6 +16,7 @@ import { WIDGET_KINDS, WIDGET_VIEW_MIME, type WidgetKind } from '../widgets/src/
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
 import {
   checkValues,
+  checkWidgetOptions,
   WIDGET_PROTOCOL_VERSION,
   WidgetOptionError,
   widgetState,
@@ -48,6 +49,7 @@ export class TopologyWidget {
     if (!WIDGET_KINDS.includes(kind)) {
       throw new WidgetOptionError('kind', `expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(kind)}`);
     }
+    checkWidgetOptions(kind, options);
     this.kind = kind;
     this.spec = validateModel(model);
     this.options = requestOptions;

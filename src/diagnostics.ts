@@ -5,8 +5,11 @@
  */
 import type { BlochConvention } from './bloch/hamiltonian.js';
 import { BlochHamiltonian } from './bloch/hamiltonian.js';
+import { checkCost } from './cost.js';
 import { checkInterrupt, InterruptedError } from './interrupt.js';
 import { ModelError, show } from './model/errors.js';
+import { resolveParameters } from './model/expressions.js';
+import { checkRequestFields, didYouMean } from './request-fields.js';
 import type { ModelSpec, ParameterValues } from './model/spec.js';
 import { pointFunction } from './scan/point.js';
 import { phaseMapSync, runPhaseMap } from './scan/run.js';
@@ -20,7 +23,7 @@ import { majoranaNumber, windingNumber, type MajoranaResult, type WindingOptions
 import type { TopologyOptions } from './topology/common.js';
 import { curvatureMap, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
 import { hallConductivity, type HallOptions, type HallResult } from './topology/hall.js';
-import type { DiagnosticPart } from './topology/parts.js';
+import { joinParts as joinPartsOnly, type CurvaturePart, type DiagnosticPart, type WannierFlowPart } from './topology/parts.js';
 import { weylPoints, type WeylOptions, type WeylResult } from './topology/weyl.js';
 import { wannierFlow, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
 import { spinChern, z2Index, type SpinChernResult, type Z2Options, type Z2Result } from './topology/z2.js';
@@ -83,21 +86,59 @@ function optionsOf<T extends DiagnosticRequest>(request: T): Omit<T, 'kind' | 'm
   return rest;
 }
 
+/** Every result carries the parameter values it was computed with, defaults filled in. */
+export type ComputedResult = DiagnosticResult & { params: ParameterValues };
+
 /**
- * Compute one diagnostic. Throws ModelError (naming the field and value) on a malformed request.
- * A 'curvature' or 'wannier-flow' request with `part: {index, count}` computes that part only;
- * `joinParts` makes the result of the whole request from all of them.
+ * Checks a request before any work: its kind, the names of all its fields (a misspelt option is an
+ * error naming the closest valid one), the shape of its parameter values and its cost (refused when
+ * it cannot fit the budget, src/cost.ts). The model and the values themselves are checked when the
+ * model is compiled.
  */
-export function compute(request: DiagnosticRequest): DiagnosticResult {
-  if (request === null || typeof request !== 'object') throw new ModelError('request', `expected a diagnostic request object. Value: ${show(request)}`);
+export function checkRequest(request: DiagnosticRequest): void {
+  if (request === null || typeof request !== 'object' || Array.isArray(request)) throw new ModelError('request', `expected a diagnostic request object. Value: ${show(request)}`);
   if (!DIAGNOSTIC_KINDS.includes(request.kind)) {
-    throw new ModelError('kind', `unknown diagnostic ${show(request.kind)}; expected one of ${DIAGNOSTIC_KINDS.map((k) => `"${k}"`).join(', ')}`);
+    const hint = typeof request.kind === 'string' ? didYouMean(request.kind, DIAGNOSTIC_KINDS) : '';
+    throw new ModelError('kind', `unknown diagnostic ${show(request.kind)}${hint} (expected one of ${DIAGNOSTIC_KINDS.map((k) => `"${k}"`).join(', ')})`);
   }
+  checkRequestFields(request);
   if (request.params !== undefined && (request.params === null || typeof request.params !== 'object' || Array.isArray(request.params))) {
     throw new ModelError('params', `expected an object of parameter values. Value: ${show(request.params)}`);
   }
-  if (request.kind === 'phase-map') return phaseMapSync(request, pointFunction);
+  checkCost(request);
+}
+
+/**
+ * Compute one diagnostic. Throws ModelError (naming the field and value) on a malformed request or
+ * one whose cost does not fit the budget. The result echoes the parameter values it used (`params`,
+ * defaults filled in; for a phase map, the values of the parameters it does not sweep).
+ * A 'curvature' or 'wannier-flow' request with `part: {index, count}` computes that part only;
+ * `joinParts` makes the result of the whole request from all of them.
+ */
+export function compute(request: DiagnosticRequest): ComputedResult {
+  checkRequest(request);
+  return run(request);
+}
+
+/** The parameters a phase map holds fixed, resolved with defaults (its model is valid by now). */
+function fixedParams(request: PhaseMapRequest): ParameterValues {
+  const swept = new Set(request.axes.map((a) => a.param));
+  const given = Object.entries(request.params ?? {}).filter(([name]) => !swept.has(name));
+  const resolved = resolveParameters(request.model, Object.fromEntries(given));
+  for (const name of swept) delete resolved[name];
+  return resolved;
+}
+
+function run(request: DiagnosticRequest): ComputedResult {
+  if (request.kind === 'phase-map') {
+    const map = phaseMapSync(request, pointFunction);
+    return Object.assign(map, { params: fixedParams(request) });
+  }
   const h = new BlochHamiltonian(request.model, request.params ?? {}, { convention: request.convention ?? 'lattice' });
+  return Object.assign(diagnose(h, request), { params: { ...h.params } });
+}
+
+function diagnose(h: BlochHamiltonian, request: Exclude<DiagnosticRequest, PhaseMapRequest>): DiagnosticResult {
   switch (request.kind) {
     case 'bands':
       return bands(h, optionsOf(request));
@@ -143,20 +184,34 @@ export interface ComputeAsyncOptions {
  * shows and a stop takes effect between points; long loops inside still stop through
  * `checkInterrupt` (src/interrupt.ts).
  */
-export async function computeAsync(request: DiagnosticRequest, options: ComputeAsyncOptions = {}): Promise<DiagnosticResult> {
+export async function computeAsync(request: DiagnosticRequest, options: ComputeAsyncOptions = {}): Promise<ComputedResult> {
+  checkRequest(request);
   await Promise.resolve();
   if (options.signal?.aborted) throw new InterruptedError();
   checkInterrupt();
   options.onProgress?.(0);
-  const result =
+  const result: ComputedResult =
     request.kind === 'phase-map'
-      ? await runPhaseMap(request, {
+      ? Object.assign(await runPhaseMap(request, {
           pointFunction,
           signal: options.signal,
           // Refinement schedules more points as it goes: the fraction is of those scheduled so far.
           onProgress: (p) => options.onProgress?.(p.total > 0 ? Math.min(p.done / p.total, 0.99) : 0),
-        })
-      : compute(request);
+        }), { params: fixedParams(request) })
+      : run(request);
   options.onProgress?.(1);
   return result;
+}
+
+/**
+ * The result of a whole split request from all its parts (topology/parts.ts), echoing the
+ * parameter values the parts were computed with, as `compute` of the whole request does.
+ */
+export function joinParts(parts: readonly CurvaturePart[]): CurvatureResult;
+export function joinParts(parts: readonly WannierFlowPart[]): WannierFlowResult;
+export function joinParts(parts: readonly DiagnosticPart[]): CurvatureResult | WannierFlowResult;
+export function joinParts(parts: readonly DiagnosticPart[]): CurvatureResult | WannierFlowResult {
+  const joined = joinPartsOnly(parts);
+  const params = (parts[0] as { params?: ParameterValues }).params;
+  return params === undefined ? joined : Object.assign(joined, { params: { ...params } });
 }

@@ -20,7 +20,9 @@ export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, co
 export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
 
 // One call for every diagnostic
-export { compute, computeAsync, DIAGNOSTIC_KINDS, type ComputeAsyncOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
+export { checkRequest, compute, computeAsync, DIAGNOSTIC_KINDS, joinParts, type ComputeAsyncOptions, type ComputedResult, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
+export { computeBudget, estimateCost, setComputeBudget, type ComputeBudget, type CostEstimate } from './cost.js';
+export { closestName, REQUEST_FIELDS, requestFields } from './request-fields.js';
 
 // Spectra
 export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
@@ -36,7 +38,7 @@ export { FrameSampler, type PlaneSpec, type TopologyChecks, type TopologyOptions
 export { chernNumber, type ChernChecks, type ChernOptions, type ChernResult } from './topology/chern.js';
 export { curvatureMap, type CurvatureChecks, type CurvatureMethod, type CurvatureOptions, type CurvatureResult } from './topology/curvature.js';
 export { wannierFlow, type WannierFlowChecks, type WannierFlowOptions, type WannierFlowResult } from './topology/wilson.js';
-export { joinParts, joinCurvatureParts, joinWannierFlowParts, partBounds, type CurvaturePart, type WannierFlowPart, type DiagnosticPart, type PartSpec, type GapRecord } from './topology/parts.js';
+export { joinCurvatureParts, joinWannierFlowParts, partBounds, type CurvaturePart, type WannierFlowPart, type DiagnosticPart, type PartSpec, type GapRecord } from './topology/parts.js';
 export { berryPhase, type BerryPhaseChecks, type BerryPhaseOptions, type BerryPhaseResult } from './topology/berry.js';
 export { z2Index, spinChern, type MatrixEntry, type SpinChernResult, type Z2Checks, type Z2Method, type Z2Options, type Z2Plane, type Z2Result } from './topology/z2.js';
 export { windingNumber, majoranaNumber, type MajoranaResult, type WindingOptions, type WindingResult } from './topology/chiral.js';

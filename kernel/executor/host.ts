@@ -1,22 +1,34 @@
 /**
- * The main-thread side of the executor: compiles cells, runs them in a worker thread, relays what
- * they print and display, and handles interrupts:
+ * The kernel-side of the executor: compiles cells, runs them in a child process (cell-process.ts,
+ * whose worker thread holds the notebook's state), relays what they print and display, and handles
+ * interrupts and deaths:
  *
- *   - an interrupt sets a shared flag (engine loops stop at their next `checkInterrupt()`) and
- *     rejects an awaiting cell; the worker and its state stay;
+ *   - an interrupt sets the cell process's shared flag (engine loops stop at their next
+ *     `checkInterrupt()`) and rejects an awaiting cell; the worker and its state stay;
  *   - a cell that still runs GRACE_MS later ignores interrupts (a plain `while (true) {}`): the
- *     worker is terminated and a fresh one started, and the cell's error says that state was reset.
+ *     cell process is killed and a fresh one started, and the cell's error says that state was reset;
+ *   - a cell process that dies (out of memory, a fatal V8 error) is replaced the same way, and the
+ *     error names the cause. The kernel's own process never runs user code, so it never dies of it.
  */
 
+import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { Worker } from 'node:worker_threads';
 import { log } from '../log.js';
+import { cellLimits } from './limits.js';
+import type { CellProcessNotice } from './cell-process.js';
 import type { CommPayload, Description, DisplayOutput, HostToWorker, WorkerToHost } from './channel.js';
 import { CellRegistry, type FormattedError } from './traceback.js';
 import { CellSyntaxError, compileCell } from './transpile.js';
 
 /** How long a cell may ignore an interrupt before its worker is replaced. */
 export const GRACE_MS = 2000;
+/**
+ * Address space a cell process reserves beyond what its cell allocates: the code, the engine, V8's
+ * heap reservations (about 1.1 GB on Linux x64 with Node 20) and above all WebAssembly memories,
+ * for which V8 reserves 10 GB each (guard regions; the engine's linear algebra holds one, two
+ * while it replaces it). Reserved, not used: the resident size is what the poll bounds.
+ */
+const ADDRESS_SPACE_OVERHEAD_MB = 24 * 1024;
 /** Printed text is gathered this long before it is published. */
 const STREAM_FLUSH_MS = 20;
 const QUERY_TIMEOUT_MS = 1500;
@@ -43,9 +55,10 @@ interface Running {
 const KERNEL_DIR = fileURLToPath(new URL('..', import.meta.url));
 
 export class ExecutionHost {
-  private worker!: Worker;
+  private worker!: ChildProcess;
   private ready!: Promise<void>;
-  private readonly flag = new Int32Array(new SharedArrayBuffer(4));
+  /** Why the current cell process is dying, when it said so before exiting. */
+  private fatalReason: string | null = null;
   private readonly cells = new CellRegistry(KERNEL_DIR);
   private running: Running | null = null;
   private killTimer: NodeJS.Timeout | null = null;
@@ -64,8 +77,12 @@ export class ExecutionHost {
   }
 
   private spawn(): void {
-    const worker = new Worker(new URL('./worker.js', import.meta.url), { workerData: { interrupt: this.flag.buffer }, stdout: false, stderr: false });
+    const worker = startCellProcess();
     this.worker = worker;
+    this.fatalReason = null;
+    // The tail of the cell process's stderr: V8 writes its fatal errors there before aborting.
+    let stderrTail = '';
+    worker.stderr?.setEncoding('utf8').on('data', (text: string) => (stderrTail = (stderrTail + text).slice(-8192)));
     this.ready = new Promise((resolve) => {
       const onReady = (message: WorkerToHost): void => {
         if (message.type !== 'ready') return;
@@ -76,11 +93,16 @@ export class ExecutionHost {
       };
       worker.on('message', onReady);
     });
-    worker.on('message', (message: WorkerToHost) => this.receive(message));
-    worker.on('error', (error) => log(`worker error: ${error.stack ?? error.message}`));
-    worker.on('exit', (code) => {
+    worker.on('message', (message: WorkerToHost | CellProcessNotice) => {
+      if (worker !== this.worker) return;
+      if (message.type === 'fatal') this.fatalReason = message.reason;
+      else this.receive(message);
+    });
+    worker.on('error', (error) => log(`cell process error: ${error.stack ?? error.message}`));
+    worker.on('exit', (code, signal) => {
       if (worker !== this.worker || this.stopping) return;
-      this.replaceWorker(`the worker running your code stopped (exit code ${code})`);
+      if (stderrTail) log(`cell process stderr (end): ${stderrTail.slice(-1000)}`);
+      this.replaceWorker(this.fatalReason ?? deathCause(code, signal, stderrTail));
     });
   }
 
@@ -88,7 +110,6 @@ export class ExecutionHost {
   private replaceWorker(reason: string): void {
     const old = this.worker;
     this.clearKillTimer();
-    Atomics.store(this.flag, 0, 0);
     this.flushStream();
     for (const [commId] of this.openComms) this.events.comm({ type: 'comm_close', commId, data: {}, metadata: {}, buffers: [] });
     this.openComms.clear();
@@ -96,7 +117,7 @@ export class ExecutionHost {
     this.answers.clear();
     this.cells.clear();
     this.spawn();
-    void old.terminate();
+    old.kill('SIGKILL');
     const running = this.running;
     this.running = null;
     running?.resolve({
@@ -167,7 +188,6 @@ export class ExecutionHost {
     const { resolve } = this.running;
     this.running = null;
     this.clearKillTimer();
-    Atomics.store(this.flag, 0, 0);
     if (!message.error) {
       resolve({ status: 'ok', result: message.result });
       return;
@@ -181,8 +201,8 @@ export class ExecutionHost {
     this.killTimer = null;
   }
 
-  private post(message: HostToWorker, transfer?: ArrayBuffer[]): void {
-    this.worker.postMessage(message, transfer);
+  private post(message: HostToWorker): void {
+    if (this.worker.connected) this.worker.send(message);
   }
 
   /** Runs one cell. `label` names it in tracebacks (e.g. `In [3]`). */
@@ -201,7 +221,6 @@ export class ExecutionHost {
     const id = this.nextId++;
     return new Promise<ExecuteOutcome>((resolve) => {
       this.running = { id, resolve };
-      Atomics.store(this.flag, 0, 0);
       this.post({ type: 'execute', id, code: compiled.code, filename, hasValue: compiled.hasValue, silent: options.silent });
     });
   }
@@ -209,7 +228,6 @@ export class ExecutionHost {
   /** True if a cell was running and has been asked to stop. */
   interrupt(): boolean {
     if (!this.running) return false;
-    Atomics.store(this.flag, 0, 1);
     this.post({ type: 'interrupt' });
     this.killTimer ??= setTimeout(() => this.replaceWorker(`the cell did not stop within ${GRACE_MS / 1000} s of the interrupt`), GRACE_MS);
     return true;
@@ -257,6 +275,39 @@ export class ExecutionHost {
     this.stopping = true;
     this.clearKillTimer();
     this.flushStream();
-    await this.worker.terminate();
+    const worker = this.worker;
+    if (worker.exitCode !== null || worker.signalCode !== null) return;
+    const exited = new Promise((resolve) => worker.once('exit', resolve));
+    worker.kill('SIGKILL');
+    await exited;
   }
+}
+
+/**
+ * Starts the cell process with its address space bounded (`ulimit -v`), on systems with a POSIX
+ * shell: typed arrays live outside the JavaScript heap, and zero-filled ones take no resident
+ * memory until written, so only the address space bounds them at the moment they are allocated (a
+ * cell then gets a RangeError it can catch, and keeps its state). The resident size is also polled
+ * (cell-process.ts), which is what bounds memory where `ulimit -v` is not enforced.
+ */
+function startCellProcess(): ChildProcess {
+  const script = fileURLToPath(new URL('./cell-process.js', import.meta.url));
+  const options = { serialization: 'advanced' as const, stdio: ['ignore', 'ignore', 'pipe', 'ipc'] as ('ignore' | 'pipe' | 'ipc')[] };
+  const args = [...process.execArgv, script];
+  if (process.platform === 'win32') return spawn(process.execPath, args, options);
+  const limitKb = (cellLimits(process.env).totalMb + ADDRESS_SPACE_OVERHEAD_MB) * 1024;
+  return spawn('/bin/sh', ['-c', `ulimit -v ${limitKb} && exec "$0" "$@"`, process.execPath, ...args], options);
+}
+
+/** The cause of a cell process's death that it could not report itself (V8 aborts at once). */
+export function deathCause(code: number | null, signal: NodeJS.Signals | null, stderr: string): string {
+  const fatal = /^#?\s*(Fatal JavaScript [^\n(]*|FATAL ERROR: [^\n]*)/m.exec(stderr);
+  if (fatal) {
+    const what = fatal[1].trim();
+    if (/invalid size/.test(what)) return `out of memory: the cell made an array or string larger than JavaScript allows (${what.replace(/\s+\d+$/, '')})`;
+    const memory = /heap|memory|allocation/i.test(what);
+    return `${memory ? 'out of memory' : 'fatal error'}: the JavaScript engine stopped the cell's process (${what.replace(/\s+\d+$/, '')})`;
+  }
+  if (signal === 'SIGKILL') return 'the cell\'s process was killed (SIGKILL; the system may have run out of memory)';
+  return `the cell's process stopped (${signal ? `signal ${signal}` : `exit code ${code}`})`;
 }

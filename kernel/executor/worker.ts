@@ -8,10 +8,12 @@ import { Console } from 'node:console';
 import { Writable } from 'node:stream';
 import vm from 'node:vm';
 import { parentPort, workerData } from 'node:worker_threads';
+import { setComputeBudget } from '../../src/cost.js';
 import { InterruptedError, installInterruptFlag } from '../../src/interrupt.js';
 import { connectComms, handleFrontendComm } from '../comms.js';
 import { mimeBundle, plainText } from '../display/index.js';
 import type { Description, HostToWorker, SerializedError, WorkerToHost } from './channel.js';
+import { cellLimits } from './limits.js';
 import { importFromCwd } from './resolve.js';
 import { createScope, DisplayHandle } from './scope.js';
 import { RUNTIME } from './transpile.js';
@@ -102,7 +104,17 @@ for (const [name, value] of Object.entries(helpers)) define(name, value, false);
 // --- execution ------------------------------------------------------------------------------------
 let interruptCurrent: ((error: Error) => void) | null = null;
 
+const memoryLimit = cellLimits(process.env);
+// Requests are refused before they run when their estimate exceeds what the cell may allocate
+// (src/cost.ts): the limit less what the engine and the notebook's own values already hold.
+setComputeBudget({ memoryBytes: Math.max(128, (memoryLimit.totalMb - 384) * 0.8) * 2 ** 20 });
+
 function serializeError(error: unknown): SerializedError {
+  if (error instanceof RangeError && /allocation failed/.test(error.message)) {
+    // The address-space bound of the cell process (host.ts): say which limit, and that state is kept.
+    const message = `${error.message}: the cell's memory limit is ${memoryLimit.totalMb} MB (${memoryLimit.source}); the kernel kept all variables`;
+    return { name: error.name, message, stack: (error.stack ?? '').replace(error.message, message) };
+  }
   if (error instanceof Error) return { name: error.name, message: error.message, stack: error.stack ?? '' };
   return { name: 'Thrown value', message: plainText(error), stack: '' };
 }

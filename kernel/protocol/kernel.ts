@@ -257,7 +257,7 @@ export class Kernel {
     const { ename, evalue, traceback } = outcome;
     this.publish('error', { ename, evalue, traceback });
     this.reply(message, 'shell', { status: 'error', execution_count: count, ename, evalue, traceback });
-    if (stopOnError) this.abortQueuedExecutions();
+    if (stopOnError) this.abortQueuedExecutions(message);
   }
 
   private async userExpressions(expressions: Dict): Promise<Dict> {
@@ -275,9 +275,12 @@ export class Kernel {
     return results;
   }
 
-  /** stop_on_error: the execute requests already queued are answered `aborted`, not run. */
-  private abortQueuedExecutions(): void {
-    const queued = this.shellQueue.filter((m) => m.header.msg_type === 'execute_request');
+  /**
+   * stop_on_error: the execute requests the same client (session) already queued are answered
+   * `aborted`, not run. Another client's queued cells do not depend on this one: they still run.
+   */
+  private abortQueuedExecutions(failed: Message): void {
+    const queued = this.shellQueue.filter((m) => m.header.msg_type === 'execute_request' && m.header.session === failed.header.session);
     for (const message of queued) {
       this.shellQueue.splice(this.shellQueue.indexOf(message), 1);
       this.publish('status', { execution_state: 'busy' }, message);

@@ -13,6 +13,7 @@
  * real matrix product (about 4/3 n^3 flops in all, less after deflation, against about 3 n^3 for
  * QL with rotations accumulated), run by a WebAssembly SIMD kernel (`simd.ts`).
  */
+import { checkInterrupt } from '../interrupt.js';
 import type { SimdKernels } from './simd.js';
 import { ascendingOrder, tridiagonalQL } from './tridiagonal.js';
 
@@ -152,6 +153,8 @@ export class TridiagonalDivideConquer {
    * each half of d) coupled by the off-diagonal b. False if a secular equation did not converge.
    */
   private merge(d: Float64Array, z: Float64Array, o: number, s: number, m: number, b: number): boolean {
+    // A merge of a large matrix costs s^3: stop between merges when asked.
+    if (s >= 256) checkInterrupt();
     const n = this.n;
     const ds = this.ds;
     const zs = this.zs;

@@ -13,6 +13,7 @@
  * Normwise backward stable: residuals and orthonormality are of order eps ||H||, also on clustered
  * and exactly degenerate spectra. Inputs of any magnitude are scaled by a power of two (exact).
  */
+import { checkInterrupt } from '../interrupt.js';
 import type { CMatrix } from './cmatrix.js';
 import { LEAF, TridiagonalDivideConquer } from './divide-conquer.js';
 import { simdWorkspace, type SimdKernels } from './simd.js';
@@ -28,6 +29,9 @@ const SAFE_MAX = 2 ** 300;
 const BACK_BLOCK = 16;
 
 /** A power of two near `big` (exact to scale by); clamped so that its reciprocal is finite. */
+/** Columns between interrupt checks (minus one, a mask): small matrices never check. */
+const INTERRUPT_STRIDE = 63;
+
 function powerOfTwoNear(big: number): number {
   const k = Math.max(-1000, Math.min(1000, Math.round(Math.log2(big))));
   return 2 ** k;
@@ -271,6 +275,8 @@ export class HermitianEigensolver {
     const off = this.off;
     const betas = this.beta;
     for (let k = 0; k < n - 2; k++) {
+      // One solve of a thousand orbitals takes seconds: stop between columns when asked.
+      if ((k & INTERRUPT_STRIDE) === INTERRUPT_STRIDE) checkInterrupt();
       const base = 2 * k * n;
       // x = column k below the diagonal = conj(row k right of the diagonal).
       let tail = 0;
@@ -362,6 +368,7 @@ export class HermitianEigensolver {
     const betas = this.beta;
     for (let i = 0; i < n; i++) a[2 * (i * n + i)] = a[2 * (i * n + i) + 1] = 0;
     for (let c0 = 0; c0 < n; c0 += BACK_BLOCK) {
+      if (n > INTERRUPT_STRIDE) checkInterrupt();
       const count = Math.min(n, c0 + BACK_BLOCK) - c0;
       let k = n - 3;
       for (; k >= 1; k -= 2) {

@@ -10,8 +10,22 @@ import { magneticFlux } from './builders/flux.js';
 import { wireStack } from './builders/wires.js';
 import { ModelError, show } from './errors.js';
 import type { ModelSpec } from './spec.js';
+import { checkFields, closestName } from '../request-fields.js';
 
 const E = 'energy';
+
+/**
+ * Catalogue models take no options: their parameters are set per request (`params`) or per widget
+ * (`values`). Without this check `qwz({u: 3})` would return the default model in silence.
+ */
+function refuseOptions(name: string, given: IArguments, make: () => ModelSpec): void {
+  if (given.length === 0) return;
+  const known = Object.keys(make().parameters);
+  const first = given[0] as unknown;
+  const keys = first !== null && typeof first === 'object' ? Object.keys(first) : [];
+  const hint = keys.length ? ` (did you mean params: {${keys.map((k) => `${closestName(k, known) ?? k}: ...`).join(', ')}} in the request?)` : '';
+  throw new ModelError(name, `${name}() takes no options. Value: ${show(first)}; set its parameters (${known.join(', ') || 'none'}) with params in a request or values in show()${hint}`);
+}
 const SQRT3 = Math.sqrt(3);
 
 /**
@@ -20,6 +34,7 @@ const SQRT3 = Math.sqrt(3);
  * Su, Schrieffer, Heeger, PRL 42, 1698 (1979).
  */
 export function ssh(): ModelSpec {
+  refuseOptions('ssh', arguments, ssh);
   return lattice('SSH chain', [[1]])
     .describe('Su–Schrieffer–Heeger chain; Su, Schrieffer, Heeger, PRL 42, 1698 (1979). v intracell, w intercell hopping.')
     .parameter('v', { default: 0.5, range: [-2, 2], unit: E, doc: 'intracell hopping (A to B in the same cell)' })
@@ -35,6 +50,7 @@ export function ssh(): ModelSpec {
  * Rice & Mele, PRL 49, 1455 (1982).
  */
 export function riceMele(): ModelSpec {
+  refuseOptions('riceMele', arguments, riceMele);
   return lattice('Rice–Mele chain', [[1]])
     .describe('Rice–Mele chain; Rice & Mele, PRL 49, 1455 (1982). SSH hoppings v, w plus staggered potential +u (A), -u (B).')
     .parameter('v', { default: 0.5, range: [-2, 2], unit: E, doc: 'intracell hopping' })
@@ -55,6 +71,7 @@ export function riceMele(): ModelSpec {
  * Kitaev, Physics-Uspekhi 44, 131 (2001) (there the hopping is called w).
  */
 export function kitaevChain(): ModelSpec {
+  refuseOptions('kitaevChain', arguments, kitaevChain);
   const normal = lattice('Kitaev chain', [[1]])
     .parameter('mu', { default: 0.5, range: [-4, 4], unit: E, doc: 'chemical potential' })
     .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping (H has -t)' })
@@ -80,6 +97,7 @@ function withDoc(spec: ModelSpec, doc: string): ModelSpec {
  * Qi, Wu, Zhang, PRB 74, 085308 (2006).
  */
 export function qwz(): ModelSpec {
+  refuseOptions('qwz', arguments, qwz);
   return lattice('Qi–Wu–Zhang', [[1, 0], [0, 1]])
     .describe('Qi–Wu–Zhang model H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz; Qi, Wu, Zhang, PRB 74, 085308 (2006).')
     .parameter('u', { default: -1, range: [-4, 4], unit: E, doc: 'mass (staggered onsite energy)' })
@@ -108,6 +126,7 @@ const NNN_CELLS = [[1, 0], [-1, 1], [0, -1]];
  * Haldane, PRL 61, 2015 (1988).
  */
 export function haldane(): ModelSpec {
+  refuseOptions('haldane', arguments, haldane);
   const b = lattice('Haldane model', HONEYCOMB)
     .describe('Haldane model on the honeycomb lattice (C–C distance 1); Haldane, PRL 61, 2015 (1988).')
     .parameter('t1', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping' })
@@ -128,6 +147,7 @@ export function haldane(): ModelSpec {
  * |lambda_v| < 3 sqrt3 lambda_SO at lambda_R = 0. Kane & Mele, PRL 95, 226801 (2005).
  */
 export function kaneMele(): ModelSpec {
+  refuseOptions('kaneMele', arguments, kaneMele);
   const b = lattice('Kane–Mele model', HONEYCOMB)
     .describe('Kane–Mele model on the honeycomb lattice (C–C distance 1); Kane & Mele, PRL 95, 226801 (2005).')
     .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping' })
@@ -157,6 +177,7 @@ export function kaneMele(): ModelSpec {
  * Bernevig, Hughes, Zhang, Science 314, 1757 (2006).
  */
 export function bhz(): ModelSpec {
+  refuseOptions('bhz', arguments, bhz);
   return lattice('BHZ-type square-lattice model', [[1, 0], [0, 1]])
     .describe('Four-band BHZ-type quantum spin Hall model on the square lattice; Bernevig, Hughes, Zhang, Science 314, 1757 (2006).')
     .parameter('A', { default: 1, range: [-2, 2], unit: E, doc: 'spin–orbit (linear) term' })
@@ -178,6 +199,9 @@ export function bhz(): ModelSpec {
  * Nightingale, den Nijs, PRL 49, 405 (1982).
  */
 export function hofstadter(p = 1, q = 3): ModelSpec {
+  for (const [field, value] of [['p', p], ['q', q]] as const) {
+    if (typeof value !== 'number') throw new ModelError(`hofstadter.${field}`, `expected a whole number (hofstadter(p, q): flux p/q per plaquette). Value: ${show(value)}`);
+  }
   const square = lattice('square lattice', [[1, 0], [0, 1]])
     .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping (H has -t)' })
     .site('a', [0, 0])
@@ -210,6 +234,8 @@ export interface CoupledWireOptions {
  * convention, either sign of g), 0 for |delta| > |g|.
  */
 export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
+  if (options === null || typeof options !== 'object' || Array.isArray(options)) throw new ModelError('coupledWires', `expected an options object {wires, boundary}. Value: ${show(options)}`);
+  checkFields(options, ['wires', 'boundary'], 'coupledWires.', 'coupledWires() options');
   const chain = lattice('dimerized wire', [[1]])
     .parameter('t', { default: 1, range: [0.6, 2], unit: E, doc: 'mean hopping along a wire' })
     .parameter('delta', { default: 0.1, range: [-0.5, 0.5], unit: E, doc: 'dimerization: v = t + delta, w = t - delta' })
@@ -241,6 +267,7 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
  * time reversal broken.
  */
 export function weyl2band(): ModelSpec {
+  refuseOptions('weyl2band', arguments, weyl2band);
   return lattice('two-band Weyl semimetal', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
     .describe('Two-band Weyl semimetal on the cubic lattice (common practice): Weyl points at (0, 0, ±k0).')
     .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'overall energy scale' })
@@ -270,7 +297,7 @@ export const CATALOGUE: Readonly<Record<string, () => ModelSpec>> = {
 
 /** A catalogue model by name; the error lists what exists. */
 export function catalogueModel(name: string): ModelSpec {
-  const make = CATALOGUE[name];
+  const make = Object.hasOwn(CATALOGUE, name) ? CATALOGUE[name] : undefined;
   if (make === undefined) throw new ModelError('catalogue', `no model ${show(name)} (known: ${Object.keys(CATALOGUE).join(', ')})`);
   return make();
 }

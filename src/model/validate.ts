@@ -6,6 +6,7 @@ import { ModelError, show } from './errors.js';
 import { numericValue } from './amplitude.js';
 import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type ModelSpec } from './spec.js';
+import { checkModelFields } from '../request-fields.js';
 
 function isFiniteArray(x: unknown, length: number): x is number[] {
   return Array.isArray(x) && x.length === length && x.every((v) => typeof v === 'number' && Number.isFinite(v));
@@ -14,6 +15,8 @@ function isFiniteArray(x: unknown, length: number): x is number[] {
 /** Throws ModelError on the first problem; returns the spec (typed) when it is well formed. */
 export function validateModel(spec: unknown): ModelSpec {
   if (spec === null || typeof spec !== 'object') throw new ModelError('model', `expected a model description object. Value: ${show(spec)}`);
+  if (Array.isArray(spec)) throw new ModelError('model', `expected a model description object, not an array. Value: ${show(spec)}`);
+  checkModelFields(spec as Record<string, unknown>);
   const m = spec as Partial<ModelSpec>;
   if (m.format !== MODEL_FORMAT) throw new ModelError('format', `expected "${MODEL_FORMAT}". Value: ${show(m.format)}`);
   if (m.version !== MODEL_VERSION) throw new ModelError('version', `this engine reads version ${MODEL_VERSION}. Value: ${show(m.version)}`);
@@ -29,7 +32,12 @@ export function validateModel(spec: unknown): ModelSpec {
   m.vectors.forEach((v, i) => {
     if (!isFiniteArray(v, space)) throw new ModelError(`vectors[${i}]`, `expected ${space} finite numbers. Value: ${show(v)}`);
   });
-  if (Math.abs(determinant(m.vectors)) < 1e-12) throw new ModelError('vectors', `basis vectors are linearly dependent. Value: ${show(m.vectors)}`);
+  // Relative to the vectors' lengths, so the check does not depend on the unit of length: the
+  // volume spanned over the product of lengths is the sine of the angle in 2D (near 0: collinear).
+  const lengths = m.vectors.map((v) => Math.hypot(...v));
+  if (lengths.some((l) => l === 0)) throw new ModelError(`vectors[${lengths.indexOf(0)}]`, `a basis vector has zero length. Value: ${show(m.vectors)}`);
+  const skew = Math.abs(determinant(m.vectors)) / lengths.reduce((a, b) => a * b, 1);
+  if (skew < 1e-9) throw new ModelError('vectors', `basis vectors are linearly dependent (or nearly: volume / product of lengths = ${skew.toExponential(2)}). Value: ${show(m.vectors)}`);
 
   if (m.parameters === null || typeof m.parameters !== 'object' || Array.isArray(m.parameters)) {
     throw new ModelError('parameters', `expected an object of named parameters. Value: ${show(m.parameters)}`);
@@ -37,6 +45,7 @@ export function validateModel(spec: unknown): ModelSpec {
   for (const [name, p] of Object.entries(m.parameters)) {
     const field = `parameters.${name}`;
     if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) throw new ModelError(field, `parameter names must be identifiers. Value: ${show(name)}`);
+    if (name in Object.prototype) throw new ModelError(field, `"${name}" is a name every JavaScript object has; choose another name`);
     if (RESERVED_NAMES.has(name)) throw new ModelError(field, `"${name}" is reserved in expressions; choose another name`);
     if (p === null || typeof p !== 'object' || typeof p.default !== 'number' || !Number.isFinite(p.default)) {
       throw new ModelError(`${field}.default`, `expected a finite number. Value: ${show(p?.default)}`);

@@ -3,9 +3,10 @@
  * This file is also the worker's entry point. Not part of the pure engine (excluded from
  * tsconfig.engine.json): it imports node:*.
  */
-import { existsSync, renameSync, writeFileSync } from 'node:fs';
-import { readFile, rename, writeFile } from 'node:fs/promises';
-import { availableParallelism } from 'node:os';
+import { closeSync, existsSync, fsyncSync, openSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { open, readFile, rename } from 'node:fs/promises';
+import { availableParallelism, hostname } from 'node:os';
+import { dirname } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
 import type { PointFunctionFactory } from './executor.js';
@@ -65,18 +66,110 @@ export class NodeWorkerExecutor extends WorkerPoolExecutor {
   }
 }
 
-/** Write a file so that readers see the old or the new content, never a torn one. */
+/**
+ * Write a file so that readers see the old or the new content, never a torn one, and so that the
+ * new content survives a crash of the machine once this returns: the data is flushed (fsync)
+ * before the rename, and the folder after it.
+ */
 export async function writeFileAtomic(path: string, text: string): Promise<void> {
   const temporary = `${path}.${process.pid}.tmp`;
-  await writeFile(temporary, text);
+  const handle = await open(temporary, 'w');
+  try {
+    await handle.writeFile(text);
+    await handle.sync();
+  } finally {
+    await handle.close();
+  }
   await rename(temporary, path);
+  syncFolder(dirname(path));
 }
 
 /** The same, synchronously: lands even when the caller's loop keeps the event loop busy. */
 export function writeFileAtomicSync(path: string, text: string): void {
   const temporary = `${path}.${process.pid}.tmp`;
-  writeFileSync(temporary, text);
+  const fd = openSync(temporary, 'w');
+  try {
+    writeFileSync(fd, text);
+    fsyncSync(fd);
+  } finally {
+    closeSync(fd);
+  }
   renameSync(temporary, path);
+  syncFolder(dirname(path));
+}
+
+/** Makes a rename in `folder` durable (POSIX); where folders cannot be opened, the rename stands alone. */
+function syncFolder(folder: string): void {
+  let fd: number | null = null;
+  try {
+    fd = openSync(folder, 'r');
+    fsyncSync(fd);
+  } catch {
+    // Windows cannot open a folder for fsync; its renames are metadata-journalled.
+  } finally {
+    if (fd !== null) closeSync(fd);
+  }
+}
+
+interface LockOwner {
+  pid: number;
+  host: string;
+  started: string;
+  /** The scheduler's job and array task, so a requeued task takes over its own lock. */
+  job: string | null;
+}
+
+export class ShardLockedError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'ShardLockedError';
+  }
+}
+
+/**
+ * Claims `path.lock` for this process, so a second runner of the same shard cannot overwrite the
+ * first one's output: created exclusively, holding who owns it. A lock whose owner is gone (a dead
+ * process on this host, or the same scheduler task requeued) is taken over; any other is refused,
+ * naming the owner. Returns the function that releases it.
+ */
+export function lockFile(path: string, env: NodeJS.ProcessEnv = process.env): () => void {
+  const lock = `${path}.lock`;
+  const job = env.SLURM_JOB_ID ? `${env.SLURM_ARRAY_JOB_ID ?? env.SLURM_JOB_ID}:${env.SLURM_ARRAY_TASK_ID ?? ''}` : null;
+  const me: LockOwner = { pid: process.pid, host: hostname(), started: new Date().toISOString(), job };
+  for (let attempt = 0; attempt < 2; attempt++) {
+    try {
+      writeFileSync(lock, JSON.stringify(me) + '\n', { flag: 'wx' });
+      return () => rmSync(lock, { force: true });
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
+    }
+    let owner: Partial<LockOwner> = {};
+    try {
+      owner = JSON.parse(readFileSync(lock, 'utf8')) as Partial<LockOwner>;
+    } catch {
+      // Unreadable: written by a runner that died while writing it (it is a few bytes): stale.
+    }
+    const alive = owner.host === me.host && typeof owner.pid === 'number' ? processAlive(owner.pid) : owner.host === undefined ? false : null;
+    const requeued = job !== null && owner.job === job;
+    if (alive === false || requeued) {
+      rmSync(lock, { force: true });
+      continue;
+    }
+    throw new ShardLockedError(
+      `${path} is being written by another runner (pid ${owner.pid} on ${owner.host}, since ${owner.started}${owner.job ? `, job ${owner.job}` : ''}); ` +
+        `a second runner would overwrite its points. If that run is gone, remove ${lock}`,
+    );
+  }
+  throw new ShardLockedError(`could not claim ${lock}: another runner claims it at the same time`);
+}
+
+function processAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (err) {
+    return (err as NodeJS.ErrnoException).code === 'EPERM';
+  }
 }
 
 /** The checkpoint saved at `path`, or undefined when there is none yet. */

@@ -12,6 +12,7 @@ import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { validateModel } from '../model/validate.js';
 import { canonicalJson, digest } from './checksum.js';
+import { didYouMean } from '../request-fields.js';
 
 /** What a point of a phase map computes: a quantised invariant, or the gap itself. */
 export type SweepQuantity = 'chern' | 'z2' | 'winding' | 'majorana' | 'gap';
@@ -188,7 +189,7 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     throw new ModelError('params', `expected an object of parameter values. Value: ${show(r.params)}`);
   }
   for (const [name, value] of Object.entries(r.params ?? {})) {
-    if (!(name in model.parameters)) throw new ModelError(`params.${name}`, `model "${model.name}" has no parameter "${name}"`);
+    if (!Object.hasOwn(model.parameters, name)) throw new ModelError(`params.${name}`, `model "${model.name}" has no parameter ${JSON.stringify(name)}${didYouMean(name, Object.keys(model.parameters))}`);
     if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelError(`params.${name}`, `must be a finite number. Value: ${show(value)}`);
   }
   if (!Array.isArray(r.axes) || r.axes.length < 1 || r.axes.length > 2) {
@@ -198,7 +199,7 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
   r.axes.forEach((a, i) => {
     const field = `axes[${i}]`;
     if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${show(a)}`);
-    const spec = model.parameters[a.param];
+    const spec = typeof a.param === 'string' && Object.hasOwn(model.parameters, a.param) ? model.parameters[a.param] : undefined;
     if (typeof a.param !== 'string' || spec === undefined) {
       throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${show(a.param)} (it has: ${Object.keys(model.parameters).join(', ') || 'none'})`);
     }

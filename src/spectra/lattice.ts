@@ -106,10 +106,12 @@ function dot(x: ArrayLike<number>, y: ArrayLike<number>): number {
 function invert(m: number[][], field: string): number[][] {
   const n = m.length;
   const a = m.map((row, i) => [...row, ...row.map((_, j) => (i === j ? 1 : 0))]);
+  // Relative to the Gram matrix's own scale, so the unit of length does not matter.
+  const scale = Math.max(...m.map((row, i) => Math.abs(row[i])));
   for (let col = 0; col < n; col++) {
     let pivot = col;
     for (let r = col + 1; r < n; r++) if (Math.abs(a[r][col]) > Math.abs(a[pivot][col])) pivot = r;
-    if (Math.abs(a[pivot][col]) < 1e-14 * Math.max(1, Math.abs(m[col][col]))) {
+    if (!(Math.abs(a[pivot][col]) > 1e-14 * scale)) {
       throw new ModelError(field, `periodic lattice vectors are linearly dependent. Value: ${show(m)}`);
     }
     [a[col], a[pivot]] = [a[pivot], a[col]];

@@ -1,7 +1,7 @@
 // Sweep plans, shards and merges (pure), and the sweep command line's handling of bad input.
 // The real Slurm run is tests/cluster/.
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
+import { hostname, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { runSweepCli, sweepPaths } from '../../cluster/sweep-cli.js';
@@ -189,6 +189,31 @@ describe('chernel sweep: bad input fails before any compute, naming the field', 
     expect(await cli('run', planPath, '--shard', '0', '--shards', '2')).toBe(2);
     expect(stderr).toMatch(/request\.model\.orbitals\[1\]\.label: duplicate orbital label "a"/);
     expect(existsSync(sweepPaths(planPath).shardDir)).toBe(false);
+  });
+
+  it('a misspelt option in a request file names the closest valid one', async () => {
+    expect(await cli('plan', writeRequest((r) => (r.gird = 8)))).toBe(2);
+    expect(stderr).toMatch(/gird: unknown field for a phase-map request of "chern"; did you mean "grid"\?/);
+    expect(await cli('plan', writeRequest((r) => (r.axes[0].cont = 3)))).toBe(2);
+    expect(stderr).toMatch(/axes\[0\]\.cont: unknown field for a swept axis; did you mean "count"\?/);
+    expect(existsSync(join(dir, 'q.plan.json'))).toBe(false);
+  });
+
+  it('a second runner of one shard is refused while the first holds it; a dead runner\'s lock is taken over', async () => {
+    expect(await cli('plan', writeRequest())).toBe(0);
+    const planPath = join(dir, 'q.plan.json');
+    const file = sweepPaths(planPath).shardFile(0, 2);
+    mkdirSync(sweepPaths(planPath).shardDir, { recursive: true });
+    // A live runner on this host (this very process) holds the shard.
+    writeFileSync(`${file}.lock`, JSON.stringify({ pid: process.pid, host: hostname(), started: 'now', job: null }));
+    expect(await cli('run', planPath, '--shard', '0', '--shards', '2')).toBe(2);
+    expect(stderr).toMatch(/is being written by another runner \(pid \d+ on/);
+    expect(existsSync(file)).toBe(false);
+    // Its process is gone: the lock is stale, the run proceeds and releases it.
+    writeFileSync(`${file}.lock`, JSON.stringify({ pid: 2 ** 22 + 17, host: hostname(), started: 'then', job: null }));
+    expect(await cli('run', planPath, '--shard', '0', '--shards', '2')).toBe(0);
+    expect(existsSync(file)).toBe(true);
+    expect(existsSync(`${file}.lock`)).toBe(false);
   });
 
   it('merge detects a truncated shard output and reports the missing points by point', async () => {

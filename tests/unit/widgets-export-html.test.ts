@@ -45,7 +45,11 @@ describe('export-html page', () => {
             { output_type: 'error', ename: 'ModelError', evalue: 'bad', traceback: ['\u001b[31mModelError\u001b[0m: bad'] },
           ],
         },
-      ]),
+      ], {
+        widgets: { 'application/vnd.jupyter.widget-state+json': { version_major: 2, version_minor: 0, state: {
+          abc: savedStateEntry(widgetState({ kind: 'curvature', spec: qwz(), options: {}, values: { u: -1 }, result: null, error: '', title: '' })),
+        } } },
+      }),
       { runtime },
     );
     expect(html).toContain('<script type="application/vnd.jupyter.widget-view+json">{"model_id":"abc","version_major":2,"version_minor":0}</script>');

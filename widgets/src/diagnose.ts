@@ -3,7 +3,7 @@
  * `invariant: 'z2'` adds the engine's Z2 count to the flow it draws. Runs in the page's worker and
  * in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
-import { bands, BlochHamiltonian, compute, curvatureMap, wannierFlow, type ModelSpec } from '../../src/index.js';
+import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, wannierFlow, type ModelSpec } from '../../src/index.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 type EngineRequest = Parameters<typeof compute>[0];
@@ -36,8 +36,11 @@ function run(request: Record<string, unknown>): DiagnosticResult {
   const kind = request.kind as string;
   if (Object.hasOwn(ON_COMPILED, kind) && request.params !== null && typeof request.params === 'object') {
     const { kind: _kind, model: _model, params: _params, convention: _convention, ...options } = request;
-    const diagnostic = ON_COMPILED[kind as keyof typeof ON_COMPILED] as (h: BlochHamiltonian, o: object) => unknown;
-    return diagnostic(compiledFor(request), options) as DiagnosticResult;
+    // The same checks compute() makes (field names, cost), then the compiled model.
+    checkRequest(request as unknown as EngineRequest);
+    const diagnostic = ON_COMPILED[kind as keyof typeof ON_COMPILED] as (h: BlochHamiltonian, o: object) => object;
+    const hamiltonian = compiledFor(request);
+    return Object.assign(diagnostic(hamiltonian, options), { params: { ...hamiltonian.params } }) as unknown as DiagnosticResult;
   }
   // Widget state is untyped JSON; compute() validates the request and names any bad field.
   return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;

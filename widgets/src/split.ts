@@ -32,6 +32,11 @@ export function splitPlan(workers: number): SplitPlan {
       return splittable ? Math.max(1, Math.min(workers, Math.floor(rowsOf(request) / MIN_ROWS_PER_PART))) : 1;
     },
     partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
-    join: (_request, parts) => joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult,
+    join: (_request, parts) => {
+      const joined = joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult;
+      // Each part echoes the parameter values it used (compute()); so does the whole.
+      const params = (parts[0] as { params?: unknown } | undefined)?.params;
+      return params === undefined ? joined : { ...joined, params };
+    },
   };
 }

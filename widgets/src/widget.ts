@@ -17,6 +17,7 @@ import { DragPreview } from './preview.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
+import { diagnosticStateProblem } from './saved-state.js';
 import { packArrays, unpackArrays } from './wire.js';
 
 export const MODULE_NAME = 'chernel-widgets';
@@ -247,6 +248,13 @@ export class DiagnosticView extends DOMWidgetView {
   /** Draw the saved result when it matches the values; otherwise compute. */
   private refresh(): void {
     if (!this.attached) return;
+    // A damaged saved state says so when the widget loads, not when a control first moves.
+    const damaged = diagnosticStateProblem(this.model.attributes);
+    if (damaged !== null) {
+      this.showMessage('error', `This widget's saved state is damaged: ${damaged}. Re-run the cell that made it to rebuild it.`);
+      this.el.dispatchEvent(new CustomEvent('chernel-error', { bubbles: true, detail: { message: damaged } }));
+      return;
+    }
     const result = this.model.get('result') as DiagnosticResult | null;
     const error = this.model.get('error') as string;
     if (result && this.model.answers(this.model.get('result_values'), this.live)) {

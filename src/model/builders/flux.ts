@@ -16,6 +16,7 @@
  * factor e^{-2 pi i p n x'_j}. The result is exactly periodic for any orbital positions.
  */
 import { withPhase } from '../amplitude.js';
+import { checkModelSize } from '../../cost.js';
 import { ModelError, show } from '../errors.js';
 import type { ModelSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
@@ -36,6 +37,7 @@ export function magneticFlux(model: ModelSpec, options: FluxOptions): ModelSpec 
   const { p, q } = options;
   if (!Number.isInteger(q) || q < 1) throw new ModelError('flux.q', `expected a positive integer. Value: ${show(q)}`);
   if (!Number.isInteger(p)) throw new ModelError('flux.p', `expected an integer. Value: ${show(p)}`);
+  checkModelSize(q * spec.orbitals.length, 'flux.q', q, spec.orbitals.length, 'q');
   if (spec.periodic < 2) throw new ModelError('flux.model', `needs two periodic directions; "${spec.name}" has ${spec.periodic}`);
   const [i, j] = options.plane ?? [0, 1];
   if (!Number.isInteger(i) || !Number.isInteger(j) || i === j || i < 0 || j < 0 || i >= spec.periodic || j >= spec.periodic) {

@@ -8,6 +8,7 @@
  * the opened directions, then directions that were open already. Orbital positions stay reduced in
  * that basis, so the coordinate along the opened direction runs from 0 to `width`.
  */
+import { checkModelSize } from '../../cost.js';
 import { ModelError, show } from '../errors.js';
 import type { ModelSpec, OrbitalSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
@@ -87,6 +88,7 @@ export function ribbon(model: ModelSpec, direction: number, width: number, optio
     throw new ModelError('ribbon.direction', `expected a periodic direction from 0 to ${spec.periodic - 1} of "${spec.name}". Value: ${show(direction)}`);
   }
   checkWidth(width, 'ribbon.width');
+  checkModelSize(width * spec.orbitals.length, 'ribbon.width', width, spec.orbitals.length, 'width');
   return openDirections(spec, [direction], [width], options.name ?? `${spec.name} ribbon (${width} cells along a${direction + 1})`, undefined, true);
 }
 
@@ -97,6 +99,8 @@ export function flake(model: ModelSpec, sizes: number[], options: FlakeOptions =
     throw new ModelError('flake.sizes', `expected ${spec.periodic} cell counts (one per periodic direction of "${spec.name}"). Value: ${show(sizes)}`);
   }
   sizes.forEach((s, i) => checkWidth(s, `flake.sizes[${i}]`));
+  const cells = sizes.reduce((a, b) => a * b, 1);
+  checkModelSize(cells * spec.orbitals.length, 'flake.sizes', cells, spec.orbitals.length, 'cells');
   const dirs = Array.from({ length: spec.periodic }, (_, i) => i);
   return openDirections(spec, dirs, sizes, options.name ?? `${spec.name} flake ${sizes.join('x')}`, options.keep);
 }

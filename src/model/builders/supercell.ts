@@ -4,6 +4,7 @@
  * R inside the supercell (label `a@R`), and every term is remapped so that H is unchanged. The bands
  * of the result are those of the original folded into the smaller Brillouin zone.
  */
+import { checkModelSize } from '../../cost.js';
 import { ModelError, show } from '../errors.js';
 import type { ModelSpec, TermSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
@@ -40,6 +41,8 @@ export function supercellDetailed(
   const d = spec.periodic;
   if (d === 0) throw new ModelError('supercell.model', `needs a periodic model; "${spec.name}" has no periodic direction`);
   const m = checkIntegerMatrix(matrix, d, 'supercell.matrix');
+  const cells = Math.abs(Math.round(integerDeterminant(m)));
+  checkModelSize(cells * spec.orbitals.length, 'supercell.matrix', cells, spec.orbitals.length, 'cells (|det|)');
   const lat = new SupercellLattice(m);
 
   const vectors = spec.vectors.map((v, i) =>
@@ -71,4 +74,11 @@ export function supercellDetailed(
     terms: set.list(),
   };
   return { spec: validateModel(out), lattice: lat, terms: remapped };
+}
+
+/** The determinant of a small integer matrix (the supercell's cell count), before listing its cells. */
+function integerDeterminant(m: number[][]): number {
+  if (m.length === 1) return m[0][0];
+  if (m.length === 2) return m[0][0] * m[1][1] - m[0][1] * m[1][0];
+  return m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1]) - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0]) + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0]);
 }
