@@ -84,7 +84,10 @@ export interface CertifyOptions {
   start?: number;
   /** Most lines per axis (default 4096). */
   maxLines?: number;
-  /** Most eigenvalue solves (default 400000). */
+  /**
+   * Most eigenvalue solves. Default: what about 4e10 operations buy (n^3 per solve for n orbitals),
+   * between four starting lattices and 400000.
+   */
   maxSamples?: number;
   cellCondition?: CellCondition;
   /** The ascending energies at k, when the caller wants to keep more of each solve (default: eigenvalues only). */
@@ -115,7 +118,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   const ranges = region.ranges ?? region.axes.map((): [number, number] => [-Math.PI, Math.PI]);
   const start = options.start ?? START[d];
   const maxLines = options.maxLines ?? 4096;
-  const maxSamples = options.maxSamples ?? 400_000;
+  const maxSamples = options.maxSamples ?? Math.round(Math.min(400_000, Math.max(4 * (start + 1) ** d, 4e10 / nb ** 3)));
   if (options.tolerance !== undefined && !(options.tolerance >= 0 && Number.isFinite(options.tolerance))) {
     throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${show(options.tolerance)}`);
   }
