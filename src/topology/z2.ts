@@ -153,7 +153,7 @@ export const CERTAIN_LINK = 0.7;
  */
 function certifiedFlow(
   h: BlochHamiltonian, group: BandGroup, plane: ReturnType<typeof resolvePlane>, tolerance: number | undefined, maxGrid: number,
-): { cert: GapCertificate; count: FlowCount | null; lines: [number, number]; failure?: string } {
+): { cert: GapCertificate; count: Pick<FlowCount, 'crossings' | 'unpaired'> | null; lines: [number, number]; failure?: string } {
   // The loops run on the gap proof's own lines: the frames solved for the proof are kept.
   const sampler = new FrameSampler(h, group).remember(FRAME_MEMORY);
   const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, {
@@ -186,7 +186,7 @@ function certifiedFlow(
       let crossings = 0;
       for (let i = 1; i < xs.length; i++) crossings += crossingsBetween(largestGap(centres[i - 1]).mid, largestGap(centres[i]).mid, centres[i]);
       const unpaired = unpairedCentres(centres[0]) || unpairedCentres(centres[xs.length - 1]);
-      return { cert, count: { crossings, minLinkAlong: Math.min(1, cols.minLinkAlong), minLinkAcross: 1, unpaired }, lines: lines() };
+      return { cert, count: { crossings, unpaired }, lines: lines() };
     }
     ys = mirrored(bisectLines(ys, badAlong, Math.PI));
     badAcross[xs.length - 1] = 0;
@@ -211,18 +211,19 @@ function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Re
   for (const spec of planes) {
     const plane = resolvePlane(h.dim, spec);
     const where = spec === undefined ? '' : ` (plane k${spec.normal + 1} = ${spec.at === 0 ? '0' : 'pi'})`;
-    let count: FlowCount | null;
+    let count: Pick<FlowCount, 'crossings' | 'unpaired'> | null;
     let used: [number, number];
     let cert: GapCertificate;
     if (grid !== 'auto') {
       const [nAlong, nHalf] = typeof grid === 'number' ? [grid, Math.max(2, Math.round(grid / 2))] : grid;
       if (![nAlong, nHalf].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000, or "auto". Value: ${show(grid)}`);
       cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, { tolerance: options.gapTolerance });
-      count = cert.verdict === 'gapped' ? flowCrossings(new FrameSampler(h, group), plane, nAlong, nHalf) : null;
+      const sampled = cert.verdict === 'gapped' ? flowCrossings(new FrameSampler(h, group), plane, nAlong, nHalf) : null;
+      count = sampled;
       used = [nAlong, nHalf];
-      if (count !== null && (count.minLinkAlong < Z2_LINK || count.minLinkAcross < Z2_LINK)) {
+      if (sampled !== null && (sampled.minLinkAlong < Z2_LINK || sampled.minLinkAcross < Z2_LINK)) {
         coarse = true;
-        warnings.push(`grid ${nAlong}x${nHalf}${where} is too coarse to trust: smallest link modulus along ${count.minLinkAlong.toFixed(3)}, across ${count.minLinkAcross.toFixed(3)} (limit ${Z2_LINK})`);
+        warnings.push(`grid ${nAlong}x${nHalf}${where} is too coarse to trust: smallest link modulus along ${sampled.minLinkAlong.toFixed(3)}, across ${sampled.minLinkAcross.toFixed(3)} (limit ${Z2_LINK})`);
       }
     } else {
       const flow = certifiedFlow(h, group, plane, options.gapTolerance, maxGrid);
