@@ -196,16 +196,17 @@ export function chernNumber(source: TopologySource, options: ChernOptions = {}):
   const h = compileSource(source, options);
   const plane = resolvePlane(h.dim, options.plane);
   const group = bandGroup(options.bands, h.size);
-  // The FHS sum runs on the gap proof's own lines: the frames solved for the proof are kept.
-  const sampler = new FrameSampler(h, group).remember(FRAME_MEMORY);
   const grid = resolveGridOption(options.grid);
+  // An automatic sum runs on the gap proof's own lines: the frames solved for the proof are kept.
+  const sampler = grid === 'auto' ? new FrameSampler(h, group).remember(FRAME_MEMORY) : new FrameSampler(h, group);
   const maxGrid = options.maxGrid ?? 512;
   if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${show(maxGrid)}`);
   const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   const planeInfo = h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at };
   const what = 'the Chern number';
   const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin }, {
-    tolerance: options.gapTolerance, start: AUTO_START, maxLines: maxGrid, solve: (k) => sampler.sample(k, undefined, 0, false),
+    tolerance: options.gapTolerance, start: AUTO_START, maxLines: maxGrid,
+    ...(grid === 'auto' ? { solve: (k: Float64Array) => sampler.sample(k, undefined, 0, false) } : {}),
   });
   const result = (c: number | null, checks: ChernChecks, integer: boolean): ChernResult => ({
     kind: 'chern', chern: integer && c !== null ? Math.round(c) + 0 : null, bands: [group.lo, group.hi], plane: planeInfo, flux: c, checks,
