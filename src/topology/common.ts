@@ -8,7 +8,9 @@ import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { groupGap, type BandGroup, type BandSelection, type SpectrumChecks, type SpectrumSource } from '../spectra/common.js';
+import { certifyGap } from '../spectra/certify.js';
 import { gapChecks, gapTolerance, type GapRecord } from './checks.js';
+import type { StripProof } from './parts.js';
 
 export { bandGroup, compileSource, type BandGroup, type BandSelection } from '../spectra/common.js';
 export { formatK } from './checks.js';
@@ -204,6 +206,19 @@ export function bisectLines(lines: Float64Array, marked: Uint8Array, end: number
     if (marked[a]) out.push((lines[a] + (a + 1 < lines.length ? lines[a + 1] : end)) / 2);
   }
   return Float64Array.from(out);
+}
+
+/**
+ * The gap certificate over a strip of a plane: plane axis `axis` (0 or 1) restricted to [from, to]
+ * (radians), the other spanning the zone. A split diagnostic proves its part's strip.
+ */
+export function stripProof(h: BlochHamiltonian, group: BandGroup, plane: Plane, axis: 0 | 1, from: number, to: number, tolerance: number | undefined): StripProof {
+  const full: [number, number] = [-Math.PI, Math.PI];
+  const ranges: [number, number][] = axis === 0 ? [[from, to], full] : [full, [from, to]];
+  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges }, { tolerance });
+  const proof: StripProof = { verdict: cert.verdict, minGap: cert.minGap, minGapAt: cert.minGapAt };
+  if (cert.reason !== undefined) proof.reason = cert.reason;
+  return proof;
 }
 
 /** The two in-plane axes and the fixed momentum of a 2D slice of the zone. */

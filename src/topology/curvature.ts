@@ -17,7 +17,7 @@ import { ModelError, show } from '../model/errors.js';
 import { planeFlux } from './chern.js';
 import { gapTolerance } from './checks.js';
 import {
-  bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane, uniformLines,
+  bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane, stripProof, uniformLines,
   type BandGroup, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { gridMomentum, joinCurvatureParts, resolvePart, type CurvaturePart, type PartSpec } from './parts.js';
@@ -210,5 +210,7 @@ function curvaturePart(source: TopologySource, options: CurvatureOptions): Curva
     ...(perBand !== undefined ? { perBand } : {}),
     gap: sampler.gapRecord(),
     ...stats,
+    // The rows held span k2 from row lo to row hi (plaquettes reach up to the next row).
+    proof: stripProof(h, group, plane, 1, -Math.PI + (2 * Math.PI * lo) / n2, -Math.PI + (2 * Math.PI * hi) / n2, options.gapTolerance),
   };
 }

@@ -14,6 +14,7 @@
  */
 import { ModelError, show } from '../model/errors.js';
 import { COARSE_LINK, COARSE_PLAQUETTE_PHASE, formatK, gapChecks, gapTolerance, mergeGaps, type GapRecord } from './checks.js';
+import type { SpectrumChecks } from '../spectra/common.js';
 import type { CurvatureChecks, CurvatureMethod, CurvatureResult } from './curvature.js';
 import type { WannierFlowChecks, WannierFlowResult } from './wilson.js';
 
@@ -52,6 +53,8 @@ export interface CurvaturePart {
   bandGaps?: GapRecord[];
   /** 'kubo' with perBand: smallest energy splitting met inside the band pairs used. */
   minSplitting?: number;
+  /** The gap certificate over the strip of k2 the rows held span. */
+  proof: StripProof;
 }
 
 /** The across-points [columns[0], columns[1]) of a Wannier-centre flow, and what the join needs. */
@@ -77,7 +80,7 @@ export interface WannierFlowPart {
   minLinkAlong: number;
   minLinkAcross: number;
   gap: GapRecord;
-  /** The gap certificate over the strip from the column before the first held to the last held. */
+  /** The gap certificate over the strip of k1 from the column before the first held to the last held. */
   proof: StripProof;
 }
 
@@ -91,6 +94,25 @@ export interface StripProof {
 }
 
 export type DiagnosticPart = CurvaturePart | WannierFlowPart;
+
+/**
+ * Whether every part proved the gap over its strip; when one did not, its closing or its reason
+ * joins the warnings (gapless when it found the bands touching between the samples).
+ */
+function provenOverStrips(parts: readonly { proof: StripProof }[], checks: SpectrumChecks, [lo, hi]: [number, number], what: string): boolean {
+  const failed = parts.find((p) => p.proof.verdict !== 'gapped')?.proof;
+  if (failed === undefined) return true;
+  if (!checks.gapless) {
+    const where = `k = ${formatK(failed.minGapAt)}, gap ${failed.minGap.toExponential(2)}`;
+    if (failed.verdict === 'gapless') checks.gapless = true;
+    checks.warnings.push(
+      failed.verdict === 'gapless'
+        ? `gapless: bands ${lo}-${hi} touch the other bands between the samples (${where}); ${what} is undefined`
+        : `gap not proven: ${failed.reason} (${where}); ${what} is withheld`,
+    );
+  }
+  return false;
+}
 
 /** First and one-past-last row of part `index` of `count` over `rows` rows. */
 export function partBounds(index: number, count: number, rows: number): [number, number] {
@@ -228,6 +250,7 @@ export function joinCurvatureParts(parts: readonly CurvaturePart[]): CurvatureRe
     checks.coarse = true;
     checks.warnings.push(`grid ${n1}x${n2} is coarse: largest plaquette phase ${checks.maxPlaquettePhase!.toFixed(3)} rad (limit pi/2)`);
   }
+  const proven = provenOverStrips(ordered, checks, first.bands, 'the Chern number of the map');
   const half = first.method === 'lattice' ? 0.5 : 0;
   return {
     kind: 'curvature',
@@ -240,7 +263,7 @@ export function joinCurvatureParts(parts: readonly CurvaturePart[]): CurvatureRe
     k2: Float64Array.from({ length: n2 }, (_, b) => gridMomentum(b, n2, half)),
     values,
     ...(perBand !== undefined ? { perBand } : {}),
-    total: checks.gapless ? null : total,
+    total: checks.gapless || !proven ? null : total,
     checks,
   };
 }
@@ -286,17 +309,7 @@ export function joinWannierFlowParts(parts: readonly WannierFlowPart[]): Wannier
 
   const gap = mergeGaps(ordered.map((p) => p.gap));
   const checks = gapChecks(gap, { lo, hi }, [nAlong, nAcross], first.gapTolerance ?? undefined, 'the Wannier-centre winding') as WannierFlowChecks;
-  // The winding needs the gap proven over the whole plane, strip by strip.
-  const failed = ordered.find((p) => p.proof.verdict !== 'gapped')?.proof;
-  if (failed !== undefined && !checks.gapless) {
-    const where = `k = ${formatK(failed.minGapAt)}, gap ${failed.minGap.toExponential(2)}`;
-    if (failed.verdict === 'gapless') checks.gapless = true;
-    checks.warnings.push(
-      failed.verdict === 'gapless'
-        ? `gapless: bands ${lo}-${hi} touch the other bands between the samples (${where}); the Wannier-centre winding is undefined`
-        : `gap not proven: ${failed.reason} (${where}); the Wannier-centre winding is withheld`,
-    );
-  }
+  const proven = provenOverStrips(ordered, checks, first.bands, 'the Wannier-centre winding');
   checks.minLinkAlong = Math.min(1, minLinkAlong);
   checks.minLinkAcross = Math.min(1, minLinkAcross);
   checks.maxStep = maxStep;
@@ -316,7 +329,7 @@ export function joinWannierFlowParts(parts: readonly WannierFlowPart[]): Wannier
     centres,
     sum,
     gapMidpoint,
-    winding: checks.gapless || failed !== undefined ? null : first.orientation * Math.round(sum[nAcross] - sum[0]) + 0,
+    winding: checks.gapless || !proven ? null : first.orientation * Math.round(sum[nAcross] - sum[0]) + 0,
     checks,
   };
 }

@@ -10,14 +10,12 @@ import { checkInterrupt } from '../interrupt.js';
 import { multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
 import {
-  bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane, uniformLines,
-  type BandGroup, type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
+  bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane, stripProof, uniformLines,
+  type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { gapTolerance } from './checks.js';
 import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases } from './links.js';
-import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
-import { certifyGap } from '../spectra/certify.js';
-import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type StripProof, type WannierFlowPart } from './parts.js';
+import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type WannierFlowPart } from './parts.js';
 
 /**
  * Wilson loops along one axis of a plane, one column (fixed across-momentum) at a time. Keeps the
@@ -242,14 +240,6 @@ export function wannierFlow(source: TopologySource, options: WannierFlowOptions 
   return options.part === undefined ? joinWannierFlowParts([part]) : part;
 }
 
-/** The gap certificate over the strip k1 in [from, to] of the plane (every k2). */
-function stripProof(h: BlochHamiltonian, group: BandGroup, plane: Plane, from: number, to: number, tolerance: number | undefined): StripProof {
-  const cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[from, to], [-Math.PI, Math.PI]] }, { tolerance });
-  const proof: StripProof = { verdict: cert.verdict, minGap: cert.minGap, minGapAt: cert.minGapAt };
-  if (cert.reason !== undefined) proof.reason = cert.reason;
-  return proof;
-}
-
 /** The Wilson loops of one part's across-points, with the statistics its checks are built from. */
 function wannierFlowPart(source: TopologySource, options: WannierFlowOptions): WannierFlowPart {
   const h = compileSource(source, options);
@@ -291,6 +281,6 @@ function wannierFlowPart(source: TopologySource, options: WannierFlowOptions): W
     minLinkAlong: cols.minLinkAlong,
     minLinkAcross: cols.minLinkAcross,
     gap: sampler.gapRecord(),
-    proof: stripProof(h, group, plane, acrossMomentum(Math.max(lo - 1, 0), nAcross), acrossMomentum(hi - 1, nAcross), options.gapTolerance),
+    proof: stripProof(h, group, plane, 0, acrossMomentum(Math.max(lo - 1, 0), nAcross), acrossMomentum(hi - 1, nAcross), options.gapTolerance),
   };
 }
