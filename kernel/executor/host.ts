@@ -75,6 +75,9 @@ export class ExecutionHost {
   engineNames: string[] = [];
 
   constructor(private readonly events: ExecutorEvents) {
+    const warnings: string[] = [];
+    cellLimits(process.env, warnings);
+    for (const warning of warnings) log(warning);
     this.spawn();
   }
 
