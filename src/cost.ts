@@ -85,6 +85,16 @@ function gridCost(n: number, m: number, counts: number[], perPointBytes: number)
   };
 }
 
+/**
+ * A grid refined until its integer is certain ('auto'): the time of the first grid (a gapped model
+ * stops there or soon after; an interrupt stops the rest), the memory of the largest it may reach.
+ */
+function autoGridCost(n: number, m: number, r: Fields, start: number[], at: (grid: number) => number[], perPointBytes: number): CostEstimate {
+  const first = gridCost(n, m, start, perPointBytes);
+  const largest = gridCost(n, m, at(count(r.maxGrid, 512)), perPointBytes);
+  return { bytes: largest.bytes, seconds: first.seconds };
+}
+
 /** The estimate for one request, given its model's orbital count and periodic dimension. */
 export function estimateCost(request: DiagnosticRequest, n: number, dim: number): CostEstimate {
   const r = request as unknown as Fields;
@@ -107,14 +117,16 @@ export function estimateCost(request: DiagnosticRequest, n: number, dim: number)
     case 'chern':
     case 'spin-chern':
     case 'hall':
-      return gridCost(n, m, r.grid === 'auto' || r.grid === undefined ? [16, 16] : gridCounts(r.grid, 2, 16), 16);
+      if (r.grid === 'auto' || (r.grid === undefined && !Array.isArray(r.mu))) return autoGridCost(n, m, r, [16, 16], (g) => [g, g], 16);
+      return gridCost(n, m, gridCounts(r.grid, 2, Array.isArray(r.mu) ? 128 : 16), 16);
     case 'curvature':
       return gridCost(n, m, gridCounts(r.grid, 2, 64), 8 * (1 + (r.perBand === true ? m : 0)));
     case 'wannier-flow':
     case 'z2': {
-      const [along, across] = r.grid === 'auto' || r.grid === undefined ? (request.kind === 'z2' ? [16, 8] : [64, 64]) : gridCounts(r.grid, 2, 64);
       const planes = request.kind === 'z2' && dim === 3 ? 6 : 1;
-      const cost = gridCost(n, m, [along, across + 1], 24 * m);
+      const auto = request.kind === 'z2' && (r.grid === 'auto' || r.grid === undefined);
+      const [along, across] = auto ? [16, 8] : gridCounts(r.grid, 2, 64);
+      const cost = auto ? autoGridCost(n, m, r, [16, 9], (g) => [g, g / 2 + 1], 24 * m) : gridCost(n, m, [along, across + 1], 24 * m);
       return { bytes: cost.bytes, seconds: planes * cost.seconds };
     }
     case 'berry-phase':
@@ -150,7 +162,7 @@ function sizeFields(request: Fields): string[] {
       return [...order.map(([i]) => `axes[${i}].count`), 'grid'];
     }
     default:
-      return ['grid'];
+      return request.grid === 'auto' || (request.grid === undefined && request.maxGrid !== undefined) ? ['maxGrid'] : ['grid'];
   }
 }
 

@@ -135,10 +135,11 @@ function run(request: DiagnosticRequest): ComputedResult {
     return Object.assign(map, { params: fixedParams(request) });
   }
   const h = new BlochHamiltonian(request.model, request.params ?? {}, { convention: request.convention ?? 'lattice' });
-  return Object.assign(diagnose(h, request), { params: { ...h.params } });
+  return Object.assign(computeOn(h, request), { params: { ...h.params } });
 }
 
-function diagnose(h: BlochHamiltonian, request: Exclude<DiagnosticRequest, PhaseMapRequest>): DiagnosticResult {
+/** One non-sweep diagnostic on a compiled model. */
+function computeOn(h: BlochHamiltonian, request: Exclude<DiagnosticRequest, PhaseMapRequest>): DiagnosticResult {
   switch (request.kind) {
     case 'bands':
       return bands(h, optionsOf(request));

@@ -125,3 +125,6 @@ process.on('message', (message: HostToWorker) => {
 });
 // The kernel went away: so do the cells.
 process.on('disconnect', () => process.exit(0));
+// A client that interrupts by signal may signal the kernel's whole process group: the kernel turns
+// SIGINT into an interrupt of the cell; here it must not end the process that holds the state.
+process.on('SIGINT', () => undefined);

@@ -59,6 +59,8 @@ export class ExecutionHost {
   private ready!: Promise<void>;
   /** Why the current cell process is dying, when it said so before exiting. */
   private fatalReason: string | null = null;
+  /** Why the cells' state was lost while no cell ran, until the next cell is told. */
+  private lostBetweenCells: string | null = null;
   private readonly cells = new CellRegistry(KERNEL_DIR);
   private running: Running | null = null;
   private killTimer: NodeJS.Timeout | null = null;
@@ -73,6 +75,9 @@ export class ExecutionHost {
   engineNames: string[] = [];
 
   constructor(private readonly events: ExecutorEvents) {
+    const warnings: string[] = [];
+    cellLimits(process.env, warnings);
+    for (const warning of warnings) log(warning);
     this.spawn();
   }
 
@@ -120,6 +125,8 @@ export class ExecutionHost {
     old.kill('SIGKILL');
     const running = this.running;
     this.running = null;
+    // Between cells (background code ran out of memory): the next cell is told before it runs.
+    if (!running) this.lostBetweenCells = reason;
     running?.resolve({
       status: 'error',
       ename: 'StateReset',
@@ -208,6 +215,10 @@ export class ExecutionHost {
   /** Runs one cell. `label` names it in tracebacks (e.g. `In [3]`). */
   async execute(source: string, options: { silent: boolean; label: string }): Promise<ExecuteOutcome> {
     if (this.running) throw new Error('execute: a cell is already running');
+    if (this.lostBetweenCells !== null) {
+      this.events.stream('stderr', `StateReset: between cells, ${this.lostBetweenCells}; the kernel restarted the worker that runs cells, and all variables from earlier cells are gone.\n`);
+      this.lostBetweenCells = null;
+    }
     const filename = `cell-${++this.serial}.ts`;
     let compiled;
     try {

@@ -20,18 +20,21 @@ export const DEFAULT_CELL_MEMORY_MB = Math.min(4096, Math.floor(totalmem() / 2 *
 export const DEFAULT_OUTPUT_MB = 10;
 const SMALLEST_MB = 256;
 
-function positive(env: NodeJS.ProcessEnv, name: string): number | null {
+/** A positive number of MB from the environment; a malformed one is reported and the default kept. */
+function positive(env: NodeJS.ProcessEnv, name: string, warnings: string[]): number | null {
   const text = env[name];
   if (text === undefined || text === '') return null;
   const value = Number(text);
-  if (!Number.isFinite(value) || value <= 0) throw new Error(`${name}: expected a positive number of MB, got ${JSON.stringify(text)}`);
-  return value;
+  if (Number.isFinite(value) && value > 0) return value;
+  warnings.push(`${name}: expected a positive number of MB, got ${JSON.stringify(text)}; using the default`);
+  return null;
 }
 
-export function cellLimits(env: NodeJS.ProcessEnv): CellLimits {
-  const asked = positive(env, 'CHERNEL_CELL_MEMORY_MB');
+/** The limits from the environment (the kernel logs `warnings` once, at start). */
+export function cellLimits(env: NodeJS.ProcessEnv, warnings: string[] = []): CellLimits {
+  const asked = positive(env, 'CHERNEL_CELL_MEMORY_MB', warnings);
   const totalMb = Math.max(SMALLEST_MB, Math.floor(asked ?? DEFAULT_CELL_MEMORY_MB));
-  const outputMb = positive(env, 'CHERNEL_OUTPUT_MB') ?? DEFAULT_OUTPUT_MB;
+  const outputMb = positive(env, 'CHERNEL_OUTPUT_MB', warnings) ?? DEFAULT_OUTPUT_MB;
   return {
     totalMb,
     heapMb: Math.floor(totalMb * 0.75),

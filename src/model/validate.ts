@@ -2,6 +2,7 @@
  * Structural validation of a model description. Every error names the field path and the value;
  * amplitudes are checked again, numerically, when parameters are resolved (src/bloch).
  */
+import { checkInterrupt } from '../interrupt.js';
 import { ModelError, show } from './errors.js';
 import { numericValue } from './amplitude.js';
 import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
@@ -73,6 +74,8 @@ export function validateModel(spec: unknown): ModelSpec {
   if (!Array.isArray(m.terms)) throw new ModelError('terms', `expected an array. Value: ${show(m.terms)}`);
   const seen = new Map<string, number>();
   m.terms.forEach((t, i) => {
+    // A model of a million terms takes seconds to check: stop when asked.
+    if ((i & 1023) === 1023) checkInterrupt();
     const field = `terms[${i}]`;
     if (t === null || typeof t !== 'object') throw new ModelError(field, `expected a term object. Value: ${show(t)}`);
     if (!labels.has(t.from)) throw new ModelError(`${field}.from`, `unknown orbital ${show(t.from)}`);

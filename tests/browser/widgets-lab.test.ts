@@ -92,7 +92,8 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     expect(ours?.state.result_values).toMatchObject({ M: 0.1 });
 
     const out = join(lab.rootDir, 'exported.html');
-    expect(exportHtmlCommand([path, '-o', out], () => undefined)).toBe(0);
+    const messages: string[] = [];
+    expect(exportHtmlCommand([path, '-o', out], (line) => messages.push(line)), messages.join('\n')).toBe(0);
     const page = await openPage(out);
     try {
       const exported = page.page.locator('.chernel-widget');

@@ -137,6 +137,17 @@ class CellLimits(unittest.TestCase):
         self.assertLess(elapsed, 1.5, f"the interrupt took {elapsed:.2f} s")
         self.assertEqual(harness.value(self.kc, "wide.orbitals.length"), "1500")
 
+    def test_state_lost_between_cells_is_said_by_the_next_cell(self):
+        harness.value(self.kc, "const before = 1")
+        code = "setTimeout(() => { const a: number[] = []; for (let i = 0; i < 2e8; i++) a.push(i); }, 50); 'scheduled'"
+        self.assertEqual(harness.value(self.kc, code), "'scheduled'")
+        time.sleep(12)  # no cell runs while the background code fills the memory (about 4 s) and the process restarts
+        reply, outputs = harness.run(self.kc, "typeof before", timeout=60)
+        text = "".join(c.get("text", "") for t, c, _ in outputs if t == "stream")
+        self.assertIn("StateReset: between cells, out of memory", text)
+        self.assertEqual(harness.result_text(outputs), "'undefined'")
+        self.assertTrue(self.km.is_alive())
+
     def test_an_error_aborts_only_its_own_clients_queued_cells(self):
         from jupyter_client import BlockingKernelClient
         from jupyter_client.session import Session

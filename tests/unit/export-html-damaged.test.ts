@@ -54,7 +54,7 @@ const DAMAGE: [string, (nb: Json) => void][] = [
   ['spec term to an unknown orbital', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.spec.terms[0].to = 'zz')],
   ['spec amplitude calling config', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.spec.terms[0].amplitude = 'config({predictable: true})')],
   ['spec field misspelt', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.spec.term = [])],
-  ['values missing', (nb) => delete nb.metadata.widgets[STATE_MIME].state.w1.state.values],
+  ['values not an object', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.values = 3)],
   ['value not a number', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.values.u = 'x')],
   ['value of an unknown parameter', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.values.v = 1)],
   ['options not an object', (nb) => (nb.metadata.widgets[STATE_MIME].state.w1.state.options = 3)],
@@ -76,6 +76,13 @@ describe('export-html with damaged widget state', () => {
     expect(problems).toEqual([]);
     expect(html).toContain(`<script type="${VIEW_MIME}">`);
     expect(html).not.toContain('class="chernel-message"');
+  });
+
+  it('a state saved without its default fields (as widget managers save it: drop_defaults) is whole', () => {
+    const nb = goodNotebook();
+    const state = nb.metadata.widgets[STATE_MIME].state.w1.state;
+    for (const key of ['kind', 'options', 'title', 'error', '_dom_classes']) delete state[key];
+    expect(renderNotebook(nb, { runtime }).problems).toEqual([]);
   });
 
   it.each(DAMAGE)('%s: reported naming the cell, shown as a message with the picture, exit 1', (name, damage) => {

@@ -105,6 +105,8 @@ describe('strict request fields (src/request-fields.ts)', () => {
 describe('cost known before running (src/cost.ts)', () => {
   it.each([
     [{ kind: 'chern', model: qwz(), grid: 100000 }, 'grid'],
+    [{ kind: 'chern', model: qwz(), maxGrid: 100000 }, 'maxGrid'],
+    [{ kind: 'z2', model: kaneMele(), grid: 'auto', maxGrid: 1e6 }, 'maxGrid'],
     [{ kind: 'wannier-flow', model: qwz(), grid: 100000 }, 'grid'],
     [{ kind: 'z2', model: kaneMele(), grid: 100000 }, 'grid'],
     [{ kind: 'curvature', model: qwz(), grid: [100000, 100000] }, 'grid'],

@@ -50,6 +50,19 @@ describe('widget state wire format', () => {
     expect(back.checks).toEqual({ minGap: 0.5, warnings: [] });
   });
 
+  it('a view into a larger buffer is saved as its own bytes: the widget manager saves a view\'s whole buffer (ipywidgets remove_buffers)', () => {
+    const backing = new Float64Array([999, 1.5, -2.25, 999]);
+    const packed = packArrays({ a: backing.subarray(1, 3) }) as { a: { buffer: DataView } };
+    // What the manager would save: the DataView's whole underlying buffer.
+    expect(new Float64Array(packed.a.buffer.buffer)).toEqual(new Float64Array([1.5, -2.25]));
+  });
+
+  it('reads an array from a saved buffer larger than its shape (states saved before views were copied)', () => {
+    const saved = new Float64Array([1.5, -2.25, 999, 999]).buffer;
+    const back = unpackArrays({ dtype: 'float64', shape: [2], buffer: saved }) as Float64Array;
+    expect(Array.from(back)).toEqual([1.5, -2.25]);
+  });
+
   it('unpacks buffers decoded from a saved notebook (ArrayBuffer) too', () => {
     const source = new Float64Array([3, 4]);
     const state = { dtype: 'float64', shape: [2], buffer: source.buffer.slice(0) };

@@ -8,6 +8,9 @@ import { WIDGET_KINDS } from './protocol.js';
 
 const BYTES: Readonly<Record<string, number>> = { float64: 8, float32: 4, int32: 4, uint32: 4, int16: 2, uint16: 2, int8: 1, uint8: 1 };
 
+/** DiagnosticModel's defaults (widget.ts) for the fields checked here. */
+const SAVED_DEFAULTS: Readonly<Record<string, unknown>> = { kind: 'curvature', spec: null, options: {}, values: {}, result: null };
+
 const isObject = (x: unknown): x is Record<string, unknown> => x !== null && typeof x === 'object' && !Array.isArray(x) && !ArrayBuffer.isView(x);
 
 function byteLength(buffer: unknown): number | null {
@@ -32,7 +35,8 @@ function arrayProblem(value: unknown, path: string): string | null {
     const count = value.shape.reduce((a: number, b: unknown) => a * (typeof b === 'number' ? b : NaN), 1);
     const bytes = byteLength(value.buffer);
     if (bytes === null) return `${path}: the array's binary buffer is missing`;
-    if (!(bytes === count * size)) return `${path}: the buffer holds ${bytes} bytes, the array needs ${count * size} (${value.dtype} x ${JSON.stringify(value.shape)})`;
+    // More is allowed: a widget manager saves a view's whole underlying buffer (wire.ts reads the shape's share).
+    if (!(bytes >= count * size)) return `${path}: the buffer holds ${bytes} bytes, the array needs ${count * size} (${value.dtype} x ${JSON.stringify(value.shape)})`;
     return null;
   }
   for (const [key, item] of Object.entries(value)) {
@@ -46,8 +50,10 @@ function arrayProblem(value: unknown, path: string): string | null {
  * The first problem of a diagnostic widget's state (buffers in place, as packed arrays or already
  * unpacked typed arrays), or null when it can be drawn and recomputed.
  */
-export function diagnosticStateProblem(state: unknown): string | null {
-  if (!isObject(state)) return 'the saved state is not an object';
+export function diagnosticStateProblem(saved: unknown): string | null {
+  if (!isObject(saved)) return 'the saved state is not an object';
+  // Widget managers save state without the fields that equal the model's defaults (drop_defaults).
+  const state = { ...SAVED_DEFAULTS, ...saved };
   if (!(WIDGET_KINDS as readonly unknown[]).includes(state.kind)) return `kind: expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(state.kind)}`;
   const spec = state.spec;
   if (!isObject(spec)) return 'spec: the model description is missing';

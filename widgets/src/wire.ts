@@ -47,7 +47,10 @@ export function packArrays(value: unknown): unknown {
     const dtype = dtypeOf(value);
     if (dtype === null) throw new TypeError(`cannot send a ${value.constructor.name} in widget state`);
     const length = (value as NumericArray).length;
-    return { dtype, shape: [length], buffer: new DataView(value.buffer, value.byteOffset, value.byteLength) };
+    // The widget manager saves a view's whole underlying buffer (ipywidgets' remove_buffers): a
+    // view into a larger buffer is copied first, so the saved bytes are the array's own.
+    const own = value.byteOffset === 0 && value.byteLength === value.buffer.byteLength ? value : (value as NumericArray).slice();
+    return { dtype, shape: [length], buffer: new DataView(own.buffer, own.byteOffset, own.byteLength) };
   }
   if (Array.isArray(value)) return value.map(packArrays);
   if (value !== null && typeof value === 'object') {
@@ -78,9 +81,14 @@ function unpackOne(value: Record<string, unknown>): NumericArray {
   if (bytes.byteLength % ctor.BYTES_PER_ELEMENT !== 0) {
     throw new RangeError(`${value.dtype} array: ${bytes.byteLength} bytes is not a whole number of elements`);
   }
+  // A buffer saved before arrays were copied whole may hold more than the array: its shape says
+  // how much is the array's.
+  const shape = value.shape as unknown[];
+  const count = shape.every((x) => typeof x === 'number') ? (shape as number[]).reduce((a, b) => a * b, 1) : bytes.byteLength / ctor.BYTES_PER_ELEMENT;
+  const used = Math.min(bytes.byteLength, count * ctor.BYTES_PER_ELEMENT);
   // Copy into a fresh, aligned buffer: a view into a message frame may sit at an odd offset.
-  const copy = new Uint8Array(bytes.byteLength);
-  copy.set(bytes);
+  const copy = new Uint8Array(used);
+  copy.set(bytes.subarray(0, used));
   return new ctor(copy.buffer);
 }
 
