@@ -1,6 +1,6 @@
 // `npm start`: the chernel lab on the demo notebooks. Installs and builds what is missing or
 // stale, registers the chernel kernel, starts the server on 127.0.0.1 and prints its URL.
-// Options: --port N (default 8888, or the next free one), --root DIR (default notebooks-demo/),
+// Options: --port N (default 8888, or the next free one above it), --root DIR (default notebooks-demo/),
 // --prepare (install, build and register only; what CI runs before the browser tests).
 // Run: node --import ./scripts/register-ts.js lab/start.ts
 import { parseArgs } from 'node:util';
@@ -23,7 +23,18 @@ if (!Number.isInteger(port) || port < 0 || port > 65535) {
 ensureLabBuilt();
 registerChernelKernel();
 if (values.prepare) process.exit(0);
-const server = await startLabServer({ rootDir: resolve(values.root), port, onOutput: text => process.stderr.write(text) });
+/**
+ * The server's log, minus its own banner: its address lines (with the token masked) and its Ctrl-C
+ * advice would stand before the one address to open, printed below.
+ */
+const banner = /is running at:$|^\[I [^\]]*\] +(or )?https?:\/\/\S+$|Use Control-C to stop this server/;
+let partial = '';
+function serverLog(text: string): void {
+  const lines = (partial + text).split('\n');
+  partial = lines.pop() ?? '';
+  for (const line of lines) if (!banner.test(line)) process.stderr.write(`${line}\n`);
+}
+const server = await startLabServer({ rootDir: resolve(values.root), port, onOutput: serverLog });
 console.log(`\nchernel lab is running on ${resolve(values.root)}\n\n    ${server.labUrl}\n\nPress Ctrl-C to stop.`);
 
 let stopping = false;

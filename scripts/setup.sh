@@ -1,9 +1,16 @@
 #!/usr/bin/env bash
-# Installs what chernel needs on Debian 12 with Node 20: the Debian packages listed in
-# .ci/apt-packages.txt (when missing, as root), the npm dependencies of every package folder, and the
-# build. Safe to run again: it only does what is missing or stale.
+# Installs what chernel needs on Debian 12 with Node 20 or 22: the Debian packages listed in
+# .ci/apt-packages.txt (when missing, as root), the npm dependencies of every package folder (where
+# node_modules is absent or incomplete: scripts/npm-deps.js checks every package of each lock), and
+# the builds. Safe to run again, and after an interrupted run.
+#   bash scripts/setup.sh            everything (`npm run setup`)
+#   bash scripts/setup.sh --no-build  packages only (the first step of `npm start`, which then
+#                                     builds only what is stale)
+# Needs no npm package itself: it is what installs them.
 set -euo pipefail
 cd "$(dirname "$0")/.."
+build=1
+[ "${1:-}" = "--no-build" ] && build=0
 
 mapfile -t wanted < <(grep -v -e '^#' -e '^$' .ci/apt-packages.txt)
 missing=()
@@ -17,18 +24,13 @@ if [ ${#missing[@]} -gt 0 ]; then
   DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q --no-install-recommends "${missing[@]}"
 fi
 
-for dir in . widgets lab; do
-  if [ -f "$dir/package-lock.json" ]; then
-    stamp="$dir/node_modules/.package-lock.json"
-    if [ ! -f "$stamp" ] || [ "$dir/package-lock.json" -nt "$stamp" ]; then
-      echo "setup: npm ci in $dir"
-      (cd "$dir" && npm ci --no-audit --no-fund)
-    fi
-  fi
-done
+node scripts/npm-deps.js . widgets lab
 
+[ $build -eq 1 ] || exit 0
 echo "setup: building"
 npm run build --silent
-[ -f widgets/package.json ] && (cd widgets && npm run build --silent) || true
-[ -f lab/package.json ] && (cd lab && npm run build --silent) || true
+(cd widgets && npm run build --silent)
+(cd lab && npm run build --silent)
+# Fresh outputs: `npm start` and the lab tests take these as up to date (lab/launch.ts) from their times.
+rm -f widgets/dist/.inputs-stamp lab/build/.inputs-stamp
 echo "setup: done"

@@ -78,6 +78,8 @@ declare global {
   interface Window {
     /** Put there by lab/src/index.js once the app is restored. */
     chernelLab?: PageLab;
+    /** The names of the federated (prebuilt) extensions the page loaded (lab/src/bootstrap.js). */
+    chernelFederatedExtensions?: string[];
   }
 }
 
@@ -166,6 +168,11 @@ export class LabSession {
   /** The ids among `ids` of plugins that are not activated. */
   inactivePlugins(ids: string[]): Promise<string[]> {
     return this.page.evaluate(ids => ids.filter(id => !window.chernelLab!.isPluginActivated(id)), ids);
+  }
+
+  /** The prebuilt (federated) extensions the page loaded from the Jupyter data directories. */
+  federatedExtensions(): Promise<string[]> {
+    return this.page.evaluate(() => window.chernelFederatedExtensions ?? []);
   }
 
   /** Runs a command of the app's command registry (the same ones menus and shortcuts run). */
