@@ -189,6 +189,8 @@ export interface LabServerOptions {
   jupyterPath?: string[];
   /** Server output goes here as it arrives (default: kept only in `output()`). */
   onOutput?: (text: string) => void;
+  /** Notebooks to sign as trusted for this server (its trust database starts empty each time). */
+  trust?: string[];
 }
 
 export interface LabServer {
@@ -224,6 +226,12 @@ export async function startLabServer(options: LabServerOptions): Promise<LabServ
     PYDEVD_DISABLE_FILE_VALIDATION: '1',
   };
   mkdirSync(options.rootDir, { recursive: true });
+  if (options.trust?.length) {
+    // nbformat's own signing, with the key and database of this server's data folder.
+    const signer = 'from nbformat.sign import TrustNotebookApp; TrustNotebookApp.launch_instance()';
+    const signed = spawnSync(debianPython, ['-c', signer, '--log-level=WARN', ...options.trust], { env, encoding: 'utf8' });
+    if (signed.status !== 0) throw new Error(`lab: could not sign ${options.trust.join(', ')} as trusted:\n${signed.stderr}`);
+  }
   const args = [
     join(labDir, 'server.py'),
     '--ServerApp.ip=127.0.0.1',
