@@ -313,8 +313,9 @@ describe('the README followed from a clean clone', () => {
     await box.fill('0.9');
     await box.press('Enter');
     await view.locator('.chernel-status', { hasText: 'M = 0.9 · engine' }).waitFor({ timeout: 30_000 });
-    // Ctrl-S's command; the widget manager's "save widget state" stays as the lab ships it.
-    await lab!.command('docmanager:save');
+    // Saved through the document context, as Ctrl-S does (without its first-save rename dialog);
+    // the widget manager's "save widget state" stays as the lab ships it.
+    await notebook.save();
     await lab!.screenshot('readme-4-new-notebook');
     const saved = JSON.parse(readFileSync(join(demoDir, savedPath), 'utf8')) as SavedNotebook;
     const outputs = saved.cells[0].outputs ?? [];
