@@ -9,11 +9,11 @@
 # Needs no npm package itself: it is what installs them.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-build=1
 # The engines field of package.json: vite and vitest set the lower bounds (README, "Two commands").
 node -e 'const [major, minor] = process.versions.node.split(".").map(Number);
   process.exit((major === 20 && minor >= 19) || (major === 22 && minor >= 12) || major > 22 ? 0 : 1)' ||
   { echo "setup: chernel needs Node 20.19 or newer, or 22.12 or newer; this is Node $(node --version)" >&2; exit 1; }
+build=1
 [ "${1:-}" = "--no-build" ] && build=0
 
 mapfile -t wanted < <(grep -v -e '^#' -e '^$' .ci/apt-packages.txt)
