@@ -26,15 +26,18 @@ ensureLabBuilt();
 registerChernelKernel();
 if (values.prepare) process.exit(0);
 /**
- * The server's log, minus its own banner: its address lines (with the token masked) and its Ctrl-C
- * advice would stand before the one address to open, printed below.
+ * The server's log, minus its own banner (its address lines, with the token masked, and its Ctrl-C
+ * advice would stand before the one address to open, printed below) and minus the page's polling
+ * of APIs this server version lacks (harmless: /work/shared/JUPYTERLAB.md), which would bury the
+ * lines that matter.
  */
 const banner = /is running at:$|^\[I [^\]]*\] +(or )?https?:\/\/\S+$|Use Control-C to stop this server/;
+const harmless = /404 GET \/api\/(me|events\/subscribe)\b|Could not open static file ''/;
 let partial = '';
 function serverLog(text: string): void {
   const lines = (partial + text).split('\n');
   partial = lines.pop() ?? '';
-  for (const line of lines) if (!banner.test(line)) process.stderr.write(`${line}\n`);
+  for (const line of lines) if (!banner.test(line) && !harmless.test(line)) process.stderr.write(`${line}\n`);
 }
 // The project's own demos open live (their widgets and figures run); anything else a user opens is
 // untrusted until they say so, as in any JupyterLab.
