@@ -97,6 +97,9 @@ function ensureStepBuilt(step: BuildStep, log: Log): void {
     if (!existsSync(step.stamp)) writeFileSync(step.stamp, fingerprint(files));
     return;
   }
+  // Neither the stamp nor the output survives a build that is interrupted, so the next run builds again.
+  rmSync(step.stamp, { force: true });
+  rmSync(step.output, { force: true });
   run('npm', ['run', 'build', '--silent'], step.dir, log);
   // Taken after the build, so that its own outputs count as seen.
   writeFileSync(step.stamp, fingerprint(step.inputs()));
