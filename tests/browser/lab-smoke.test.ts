@@ -56,6 +56,9 @@ describe(`lab smoke test with the ${kernel} kernel`, () => {
       jupyterlab: { _build: { load: string } };
     };
     expect(await lab.federatedExtensions()).toEqual(['chernel-widgets']);
+    // With the note JupyterLab's extension listings show on how to remove it.
+    const installedDir = join(projectDir, '.jupyter-local', 'share', 'jupyter', 'labextensions', 'chernel-widgets');
+    expect(JSON.parse(readFileSync(join(installedDir, 'install.json'), 'utf8'))).toMatchObject({ packageName: 'chernel-widgets', uninstallInstructions: expect.stringContaining('chernel remove') });
     const loaded = await lab.page.evaluate(() => performance.getEntriesByType('resource').map(entry => new URL(entry.name).pathname));
     expect(loaded).toContain(`/lab/extensions/chernel-widgets/${installed.jupyterlab._build.load}`);
   });
