@@ -2,14 +2,22 @@
  * Widget recompute latency in headless Chromium: one control step (slider input -> engine in the
  * page's Web Workers, the request shared among them -> parts back and joined -> the new picture
  * previewed on a canvas, or a plotly redraw) of a 4-band model, 50 steps each, for a 100x100 Berry-curvature map and a
- * 101x101 Wannier-centre flow. Target: p95 under 50 ms.
+ * 101x101 Wannier-centre flow, in an exported page; and the curvature map in the real lab (lab/,
+ * the widgets loaded as the prebuilt extension users install), from the very first step after a
+ * saved notebook opens. Targets: p95 under 50 ms; in the lab, the first step under 100 ms.
  * Reference, same run: the same requests computed directly by the engine in Node (no worker, no
  * drawing); the ratio is reference / ours (1 would mean the widget adds nothing to the engine).
  *
  *   npm run bench -- widgets          (needs `npm run build` in widgets/ first)
  */
+import { writeFileSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { chromium } from 'playwright-core';
 import { compute, kaneMele } from '../src/index.js';
-import { exportDemo, openPage, type DemoWidget } from '../tests/browser/widgets-harness.js';
+import { ensureLabBuilt, registerChernelKernel, startLabServer } from '../lab/launch.js';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../tests/browser/chromium.js';
+import { exportDemo, notebookFor, openPage, type DemoWidget } from '../tests/browser/widgets-harness.js';
 import type { BenchRow } from './table.js';
 
 const STEPS = 50;
@@ -68,12 +76,88 @@ const stepScript = `async ({ index, name, steps }) => {
   return out;
 }`;
 
+/** The engine alone, in Node, on the steps' requests (median of 10): every row's reference. */
+function engineReference(widget: DemoWidget, steps: number[]): number {
+  const direct: number[] = [];
+  for (const v of steps.slice(WARMUP, WARMUP + 10)) {
+    const request = { ...widget.options, kind: widget.kind, model: widget.spec, params: { [PARAMETER]: v } };
+    const t0 = performance.now();
+    compute(request as Parameters<typeof compute>[0]);
+    direct.push(performance.now() - t0);
+  }
+  return median(direct);
+}
+
+/**
+ * The same drag in the real lab: a saved notebook with the widget opens and is trusted, its widget
+ * draws the saved result, and one second later (a hand reaching for the slider) the drag starts.
+ * The first step is the one users feel; the rest as above.
+ */
+async function benchLab(widget: DemoWidget, label: string): Promise<BenchRow[]> {
+  ensureLabBuilt(() => undefined);
+  if (!registerChernelKernel(() => undefined).registered) throw new Error('the chernel kernel could not be registered');
+  const root = mkdtempSync(join(tmpdir(), 'chernel-bench-lab-'));
+  const notebook = join(root, 'bench.ipynb');
+  writeFileSync(notebook, JSON.stringify(notebookFor([widget]), null, 1));
+  const server = await startLabServer({ rootDir: root });
+  const profile = mkdtempSync(join(tmpdir(), 'chernel-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, { executablePath: CHROMIUM_PATH, headless: true, args: CHROMIUM_ARGS, viewport: { width: 1400, height: 900 } });
+  try {
+    const page = context.pages()[0] ?? (await context.newPage());
+    await page.goto(server.labUrl);
+    await page.waitForFunction('document.body.dataset.chernelLab === "ready"', undefined, { timeout: 90_000 });
+    // The widget manager (@jupyter-widgets/jupyterlab-manager 5, upstream) sometimes marks itself
+    // restored before the notebook's saved state is loaded, and the view says "model not found"
+    // (tests/browser/widgets-lab.test.ts); a user reopens the notebook, and so does the bench.
+    const plot = page.locator('.chernel-widget .chernel-plot .main-svg').first();
+    const lost = page.getByText('Error displaying widget: model not found');
+    for (let attempt = 1; ; attempt++) {
+      await page.evaluate(`window.chernelLab.commands.execute('docmanager:open', { path: 'bench.ipynb', factory: 'Notebook' })`);
+      // Trusted as a user does (this generated notebook gains cell ids on loading, so a signature
+      // made beforehand would not match it).
+      await page.evaluate(`void window.chernelLab.commands.execute('notebook:trust')`);
+      await page.locator('.jp-Dialog .jp-Dialog-button.jp-mod-accept').click();
+      await plot.or(lost).waitFor({ timeout: 60_000 });
+      if (await plot.isVisible()) break;
+      if (attempt === 3) throw new Error('the lab lost the saved widget model three times');
+      process.stderr.write('bench: widgets: the lab lost the saved widget model (upstream restore race); reopening\n');
+      await page.evaluate(`(async () => {
+        for (const panel of window.chernelLab.shell.widgets('main')) {
+          if (panel.context?.path !== 'bench.ipynb') continue;
+          await panel.sessionContext.shutdown();
+          panel.context.model.dirty = false;
+          panel.dispose();
+        }
+      })()`);
+    }
+    await page.waitForTimeout(1000);
+    const steps = values(WARMUP + STEPS);
+    const timings = (await page.evaluate(`(${stepScript})(${JSON.stringify({ index: 0, name: PARAMETER, steps })})`)) as StepTiming[];
+    const reference = engineReference(widget, steps);
+    const totals = timings.slice(WARMUP).map((t) => t.total).sort((a, b) => a - b);
+    const first = timings[0].total;
+    process.stderr.write(`bench: widgets: lab, ${label}: first steps ${timings.slice(0, 5).map((t) => t.total.toFixed(0)).join(', ')} ms\n`);
+    const p95 = quantile(totals, 0.95);
+    return [
+      { name: `widget step in the lab, ${label}: the first step after the notebook opens`, ours: first, reference, unit: 'ms', ratio: reference / first, target: '<= 100 ms' },
+      { name: `widget step in the lab, ${label}: median`, ours: quantile(totals, 0.5), reference, unit: 'ms', ratio: reference / quantile(totals, 0.5), target: 'p95 <= 50 ms' },
+      { name: `widget step in the lab, ${label}: p95`, ours: p95, reference, unit: 'ms', ratio: reference / p95, target: 'p95 <= 50 ms' },
+    ];
+  } finally {
+    await context.close();
+    await server.stop();
+    rmSync(profile, { recursive: true, force: true });
+    rmSync(root, { recursive: true, force: true });
+  }
+}
+
 export async function benchWidgets(): Promise<BenchRow[]> {
   const model = kaneMele();
   const cases: { label: string; widget: DemoWidget }[] = [
     { label: 'curvature map 100x100, 4 bands', widget: { id: 'bench0000000000000000000000000001', kind: 'curvature', spec: model, options: { grid: 100, bands: 2 } } },
     { label: 'Wannier flow 101x101, 4 bands', widget: { id: 'bench0000000000000000000000000002', kind: 'wannier-flow', spec: model, options: { grid: [101, 101], bands: 2 } } },
   ];
+  const labRows = await benchLab(cases[0].widget, cases[0].label);
   const { page: html } = exportDemo(
     cases.map((c) => c.widget),
     'widgets-bench',
@@ -95,15 +179,7 @@ export async function benchWidgets(): Promise<BenchRow[]> {
       );
       const totals = measured.map((t) => t.total).sort((a, b) => a - b);
 
-      // Reference: the engine alone, in Node, on the same requests.
-      const direct: number[] = [];
-      for (const v of steps.slice(WARMUP, WARMUP + 10)) {
-        const request = { ...c.widget.options, kind: c.widget.kind, model, params: { [PARAMETER]: v } };
-        const t0 = performance.now();
-        compute(request as Parameters<typeof compute>[0]);
-        direct.push(performance.now() - t0);
-      }
-      const reference = median(direct);
+      const reference = engineReference(c.widget, steps);
       const med = quantile(totals, 0.5);
       const p95 = quantile(totals, 0.95);
       rows.push(
@@ -124,5 +200,5 @@ export async function benchWidgets(): Promise<BenchRow[]> {
     await opened.close();
   }
   if (opened.errors.length > 0) throw new Error(`page errors during the widget bench: ${opened.errors.join('; ')}`);
-  return rows;
+  return [...rows, ...labRows];
 }

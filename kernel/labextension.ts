@@ -5,7 +5,7 @@
  * labextension build (a folder with the extension's package.json and static/).
  */
 
-import { cpSync, existsSync, readFileSync, rmSync } from 'node:fs';
+import { cpSync, existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -25,6 +25,9 @@ export function installLabExtension(dataDir: string): string | null {
   const target = join(dataDir, 'labextensions', name);
   rmSync(target, { recursive: true, force: true });
   cpSync(PREBUILT_DIR, target, { recursive: true });
+  // How it came and how to remove it, which JupyterLab's extension listings show (its install.json).
+  const install = { packageManager: 'chernel', packageName: name, uninstallInstructions: 'Use `chernel remove` with the options it was installed with' };
+  writeFileSync(join(target, 'install.json'), JSON.stringify(install, null, 2) + '\n');
   return target;
 }
 

@@ -8,6 +8,7 @@ import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { ensureNpmDeps } from '../scripts/npm-deps.js';
 
 export const labDir = dirname(fileURLToPath(import.meta.url));
 export const projectDir = resolve(labDir, '..');
@@ -17,7 +18,7 @@ export const jupyterDataPath = join(jupyterPrefix, 'share', 'jupyter');
 /** Debian's interpreter: it has jupyter_server and jupyterlab_server (the first python3 on PATH may not). */
 export const debianPython = '/usr/bin/python3';
 
-const stampFile = join(labDir, 'build', '.inputs-stamp');
+const widgetsDir = join(projectDir, 'widgets');
 const kernelCli = join(projectDir, 'bin', 'chernel.js');
 
 type Log = (message: string) => void;
@@ -42,34 +43,6 @@ function listFiles(dir: string, skip: ReadonlySet<string>): string[] {
   });
 }
 
-interface LabPackage {
-  dependencies: Record<string, string>;
-  jupyterlab: { extensions: string[] };
-}
-
-function readLabPackage(): LabPackage {
-  return JSON.parse(readFileSync(join(labDir, 'package.json'), 'utf8')) as LabPackage;
-}
-
-/** Folders of extensions installed from this repository (`file:` dependencies), e.g. ../widgets. */
-function localExtensionDirs(pkg: LabPackage): string[] {
-  return pkg.jupyterlab.extensions
-    .filter(name => pkg.dependencies[name]?.startsWith('file:'))
-    .map(name => resolve(labDir, pkg.dependencies[name].slice('file:'.length)));
-}
-
-/** Every file the bundle is made from: the lab's own, and local extensions with the engine they bundle. */
-function inputFiles(pkg: LabPackage): string[] {
-  const skip = new Set(['node_modules', 'build']);
-  const local = localExtensionDirs(pkg);
-  return [
-    ...['package.json', 'package-lock.json', 'webpack.config.cjs', 'src'].flatMap(p => listFiles(join(labDir, p), skip)),
-    ...local.flatMap(dir => listFiles(dir, skip)),
-    // chernel-widgets bundles the engine into its Web Worker.
-    ...(local.length > 0 ? listFiles(join(projectDir, 'src'), skip) : []),
-  ].sort();
-}
-
 /** A hash of the paths, sizes and mtimes of the inputs: catches edits, additions and deletions. */
 function fingerprint(files: string[]): string {
   const hash = createHash('sha256');
@@ -80,39 +53,67 @@ function fingerprint(files: string[]): string {
   return hash.digest('hex');
 }
 
-/**
- * Installs lab/node_modules when absent or older than the lockfile; when any input changed since
- * the last build, rebuilds local extensions (their `build:lib` or `build` script) and the bundle.
- */
-export function ensureLabBuilt(log: Log = console.log): void {
-  const installed = join(labDir, 'node_modules', '.package-lock.json');
-  if (!existsSync(installed) || statSync(join(labDir, 'package-lock.json')).mtimeMs > statSync(installed).mtimeMs) {
-    run('npm', ['ci', '--no-audit', '--no-fund'], labDir, log);
-  }
-  const pkg = readLabPackage();
-  const files = inputFiles(pkg);
-  const bundle = join(labDir, 'build', 'bundle.js');
-  if (existsSync(stampFile) ? readFileSync(stampFile, 'utf8') === fingerprint(files) : builtAfter(bundle, files)) {
-    // Up to date (without a stamp, e.g. after `npm run build` in setup: when newer than every input).
-    if (!existsSync(stampFile)) writeFileSync(stampFile, fingerprint(files));
-    return;
-  }
-
-  for (const dir of localExtensionDirs(pkg)) {
-    if (!existsSync(join(dir, 'node_modules'))) run('npm', ['ci', '--no-audit', '--no-fund'], dir, log);
-    // `build:lib` when the package has it: the lab needs only the module it imports.
-    const scripts = (JSON.parse(readFileSync(join(dir, 'package.json'), 'utf8')) as { scripts?: Record<string, string> }).scripts ?? {};
-    run('npm', ['run', scripts['build:lib'] ? 'build:lib' : 'build', '--silent'], dir, log);
-  }
-  run('npm', ['run', 'build', '--silent'], labDir, log);
-  // Taken after the builds, so that their own outputs count as seen.
-  writeFileSync(stampFile, fingerprint(inputFiles(pkg)));
-}
-
 function builtAfter(output: string, inputs: string[]): boolean {
   if (!existsSync(output)) return false;
   const built = statSync(output).mtimeMs;
   return inputs.every(file => statSync(file).mtimeMs < built);
+}
+
+/** One build: its input files, the file it makes, where it keeps the fingerprint of its inputs. */
+interface BuildStep {
+  dir: string;
+  inputs: () => string[];
+  output: string;
+  stamp: string;
+}
+
+const skipOutputs = new Set(['node_modules', 'build', 'dist', 'lib', 'labextension']);
+const inputsUnder = (dir: string, names: string[]) => names.flatMap(name => listFiles(join(dir, name), skipOutputs));
+
+/** The widgets' prebuilt (federated) extension, which bundles the engine into its Web Worker. */
+const widgetsBuild: BuildStep = {
+  dir: widgetsDir,
+  inputs: () => [
+    ...inputsUnder(widgetsDir, ['package.json', 'package-lock.json', 'build.mjs', 'tsconfig.json', 'src', 'labextension-core']),
+    ...inputsUnder(projectDir, ['src']),
+  ].sort(),
+  output: join(widgetsDir, 'labextension', 'package.json'),
+  stamp: join(widgetsDir, 'dist', '.inputs-stamp'),
+};
+
+/** The lab page's bundle. */
+const labBuild: BuildStep = {
+  dir: labDir,
+  inputs: () => inputsUnder(labDir, ['package.json', 'package-lock.json', 'webpack.config.cjs', 'src']).sort(),
+  output: join(labDir, 'build', 'bundle.js'),
+  stamp: join(labDir, 'build', '.inputs-stamp'),
+};
+
+/** Runs `npm run build` in the step's folder when any input changed since its last build. */
+function ensureStepBuilt(step: BuildStep, log: Log): void {
+  const files = step.inputs();
+  // Without a stamp (e.g. after `npm run setup`), up to date when the output is newer than every input.
+  if (existsSync(step.stamp) ? readFileSync(step.stamp, 'utf8') === fingerprint(files) : builtAfter(step.output, files)) {
+    if (!existsSync(step.stamp)) writeFileSync(step.stamp, fingerprint(files));
+    return;
+  }
+  // Neither the stamp nor the output survives a build that is interrupted, so the next run builds again.
+  rmSync(step.stamp, { force: true });
+  rmSync(step.output, { force: true });
+  run('npm', ['run', 'build', '--silent'], step.dir, log);
+  // Taken after the build, so that its own outputs count as seen.
+  writeFileSync(step.stamp, fingerprint(step.inputs()));
+}
+
+/**
+ * Installs the npm dependencies of widgets/ and lab/ where they are missing or incomplete
+ * (scripts/npm-deps.js), then rebuilds the widgets' prebuilt extension and the lab's bundle when
+ * any of their inputs changed since their last build.
+ */
+export function ensureLabBuilt(log: Log = console.log): void {
+  ensureNpmDeps([widgetsDir, labDir], log);
+  ensureStepBuilt(widgetsBuild, log);
+  ensureStepBuilt(labBuild, log);
 }
 
 export interface KernelRegistration {
@@ -160,7 +161,10 @@ export function registerChernelKernel(log: Log = console.log): KernelRegistratio
   return { registered: true };
 }
 
-/** A TCP port free on 127.0.0.1 right now (the OS picks one when `preferred` is 0 or taken). */
+/**
+ * A TCP port free on 127.0.0.1 right now: `preferred` or the next free one above it (as Jupyter's
+ * own servers do), or one the OS picks when `preferred` is 0 or the 50 ports from it are taken.
+ */
 export async function freePort(preferred = 0): Promise<number> {
   const tryPort = (port: number) =>
     new Promise<number | null>(done => {
@@ -172,7 +176,11 @@ export async function freePort(preferred = 0): Promise<number> {
         server.close(() => done(chosen));
       });
     });
-  return (preferred ? await tryPort(preferred) : null) ?? (await tryPort(0)) ?? Promise.reject(new Error('lab: no free port on 127.0.0.1'));
+  for (let port = preferred; preferred > 0 && port < Math.min(preferred + 50, 65536); port++) {
+    const free = await tryPort(port);
+    if (free !== null) return free;
+  }
+  return (await tryPort(0)) ?? Promise.reject(new Error('lab: no free port on 127.0.0.1'));
 }
 
 export interface LabServerOptions {
@@ -184,6 +192,8 @@ export interface LabServerOptions {
   jupyterPath?: string[];
   /** Server output goes here as it arrives (default: kept only in `output()`). */
   onOutput?: (text: string) => void;
+  /** Notebooks to sign as trusted for this server (its trust database starts empty each time). */
+  trust?: string[];
 }
 
 export interface LabServer {
@@ -219,6 +229,12 @@ export async function startLabServer(options: LabServerOptions): Promise<LabServ
     PYDEVD_DISABLE_FILE_VALIDATION: '1',
   };
   mkdirSync(options.rootDir, { recursive: true });
+  if (options.trust?.length) {
+    // nbformat's own signing, with the key and database of this server's data folder.
+    const signer = 'from nbformat.sign import TrustNotebookApp; TrustNotebookApp.launch_instance()';
+    const signed = spawnSync(debianPython, ['-c', signer, '--log-level=WARN', ...options.trust], { env, encoding: 'utf8' });
+    if (signed.status !== 0) throw new Error(`lab: could not sign ${options.trust.join(', ')} as trusted:\n${signed.stderr}`);
+  }
   const args = [
     join(labDir, 'server.py'),
     '--ServerApp.ip=127.0.0.1',
@@ -229,6 +245,8 @@ export async function startLabServer(options: LabServerOptions): Promise<LabServ
     '--ServerApp.allow_root=True',
     `--ServerApp.root_dir=${resolve(options.rootDir)}`,
   ];
+  // The default kernel comes first in the launcher and is what a new notebook starts with.
+  if (existsSync(join(jupyterDataPath, 'kernels', 'chernel', 'kernel.json'))) args.push('--MappingKernelManager.default_kernel_name=chernel');
   // Its own process group, so that stop() can also end kernels the server failed to end.
   const child = spawn(debianPython, args, { env, cwd: projectDir, stdio: ['ignore', 'pipe', 'pipe'], detached: true });
   let output = '';

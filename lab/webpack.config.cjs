@@ -1,5 +1,7 @@
 // Builds the chernel lab: one bundle with every extension listed under `jupyterlab.extensions`
-// in package.json, plus the schemas, themes and style imports @jupyterlab/builder collects.
+// in package.json, plus the schemas, themes and style imports @jupyterlab/builder collects. The
+// bundle shares its packages by module federation, so that prebuilt extensions installed in a
+// Jupyter data directory (labextensions/, e.g. chernel's widgets) load as in any JupyterLab 4.
 // `npm run build` (development mode, fast: what tests and `npm start` use) or `npm run build:prod`
 // (minified, about five times slower to build). No source maps: they would double the output.
 const fs = require('fs');
@@ -47,12 +49,12 @@ ${loaders(mimeRenderers)}
 writeExtensionLoaders();
 
 /**
- * Packages that must exist once in the page: a second copy of @jupyterlab/services or
- * @jupyter-widgets/base brings its own plugin tokens and classes, and plugins silently fail to
- * meet. An extension linked from this repository (file:../widgets) has its own node_modules that
- * its imports would otherwise reach first, so these all resolve to lab/node_modules.
+ * What the page shares with prebuilt (federated) extensions, as JupyterLab's own build does: every
+ * package of the JupyterLab, Lumino and widgets scopes, React and Yjs, each once (a singleton), so
+ * that an extension from a Jupyter data directory's labextensions/ meets the same plugin tokens and
+ * classes as the core. An extension may bring a package the page lacks; it then loads its own copy.
  */
-function singletonAliases() {
+function sharedPackages() {
   const modules = path.join(__dirname, 'node_modules');
   const scopes = ['@jupyterlab', '@jupyter-widgets', '@jupyter', '@lumino', '@codemirror', '@lezer'];
   const names = ['react', 'react-dom', 'yjs'];
@@ -60,7 +62,14 @@ function singletonAliases() {
     if (!fs.existsSync(path.join(modules, scope))) continue;
     for (const entry of fs.readdirSync(path.join(modules, scope))) names.push(`${scope}/${entry}`);
   }
-  return Object.fromEntries(names.filter(name => fs.existsSync(path.join(modules, name))).map(name => [name, path.join(modules, name)]));
+  const shared = {};
+  for (const name of names) {
+    const manifest = path.join(modules, name, 'package.json');
+    if (!fs.existsSync(manifest)) continue;
+    const { version } = require(manifest);
+    shared[name] = { singleton: true, version, requiredVersion: `^${version}` };
+  }
+  return shared;
 }
 
 module.exports = (env, argv) => {
@@ -68,7 +77,7 @@ module.exports = (env, argv) => {
   const app = {
     name: 'app',
     mode: production ? 'production' : 'development',
-    entry: path.join(__dirname, 'src', 'index.js'),
+    entry: path.join(__dirname, 'src', 'bootstrap.js'),
     output: {
       path: output,
       filename: 'bundle.js',
@@ -80,7 +89,6 @@ module.exports = (env, argv) => {
     bail: true,
     devtool: false,
     resolve: {
-      alias: singletonAliases(),
       fallback: { path: require.resolve('path-browserify'), url: false, fs: false, crypto: false }
     },
     module: {
@@ -102,7 +110,15 @@ module.exports = (env, argv) => {
         { test: /\.svg$/, issuer: /\.[cm]?js$/, type: 'asset/source' }
       ]
     },
-    plugins: [new webpack.ProvidePlugin({ process: require.resolve('process/browser') })],
+    plugins: [
+      new webpack.ProvidePlugin({ process: require.resolve('process/browser') }),
+      // The share scope federated extensions join (JupyterLab's names: they look for _JUPYTERLAB).
+      new webpack.container.ModuleFederationPlugin({
+        library: { type: 'var', name: ['_JUPYTERLAB', 'CORE_LIBRARY_FEDERATION'] },
+        name: 'CORE_FEDERATION',
+        shared: sharedPackages()
+      })
+    ],
     performance: { hints: false },
     stats: 'errors-warnings'
   };

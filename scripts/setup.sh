@@ -1,9 +1,20 @@
 #!/usr/bin/env bash
-# Installs what chernel needs on Debian 12 with Node 20: the Debian packages listed in
-# .ci/apt-packages.txt (when missing, as root), the npm dependencies of every package folder, and the
-# build. Safe to run again: it only does what is missing or stale.
+# Installs what chernel needs on Debian 12 with Node 20 or 22: the Debian packages listed in
+# .ci/apt-packages.txt (when missing, as root), the npm dependencies of every package folder (where
+# node_modules is absent or incomplete: scripts/npm-deps.js checks every package of each lock), and
+# the builds. Safe to run again, and after an interrupted run.
+#   bash scripts/setup.sh            everything (`npm run setup`)
+#   bash scripts/setup.sh --no-build  packages only (the first step of `npm start`, which then
+#                                     builds only what is stale)
+# Needs no npm package itself: it is what installs them.
 set -euo pipefail
 cd "$(dirname "$0")/.."
+# The engines field of package.json: vite and vitest set the lower bounds (README, "Two commands").
+node -e 'const [major, minor] = process.versions.node.split(".").map(Number);
+  process.exit((major === 20 && minor >= 19) || (major === 22 && minor >= 12) || major > 22 ? 0 : 1)' ||
+  { echo "setup: chernel needs Node 20.19 or newer, or 22.12 or newer; this is Node $(node --version)" >&2; exit 1; }
+build=1
+[ "${1:-}" = "--no-build" ] && build=0
 
 mapfile -t wanted < <(grep -v -e '^#' -e '^$' .ci/apt-packages.txt)
 missing=()
@@ -17,18 +28,13 @@ if [ ${#missing[@]} -gt 0 ]; then
   DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -q --no-install-recommends "${missing[@]}"
 fi
 
-for dir in . widgets lab; do
-  if [ -f "$dir/package-lock.json" ]; then
-    stamp="$dir/node_modules/.package-lock.json"
-    if [ ! -f "$stamp" ] || [ "$dir/package-lock.json" -nt "$stamp" ]; then
-      echo "setup: npm ci in $dir"
-      (cd "$dir" && npm ci --no-audit --no-fund)
-    fi
-  fi
-done
+node scripts/npm-deps.js . widgets lab
 
+[ $build -eq 1 ] || exit 0
 echo "setup: building"
 npm run build --silent
-[ -f widgets/package.json ] && (cd widgets && npm run build --silent) || true
-[ -f lab/package.json ] && (cd lab && npm run build --silent) || true
+(cd widgets && npm run build --silent)
+(cd lab && npm run build --silent)
+# Fresh outputs: `npm start` and the lab tests take these as up to date (lab/launch.ts) from their times.
+rm -f widgets/dist/.inputs-stamp lab/build/.inputs-stamp
 echo "setup: done"

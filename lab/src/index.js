@@ -1,10 +1,6 @@
-// Entry of the chernel lab: starts JupyterLab with the plugins of every package listed under
-// `jupyterlab.extensions` in lab/package.json (build/extensions.js is generated from that list).
-import { PageConfig } from '@jupyterlab/coreutils';
-
-// Chunks and assets load from the server's static URL; this must run before any dynamic import.
-// eslint-disable-next-line no-undef
-__webpack_public_path__ = PageConfig.getOption('fullStaticUrl') + '/';
+// The chernel lab app: JupyterLab with the plugins of every package listed under
+// `jupyterlab.extensions` in lab/package.json (build/extensions.js is generated from that list)
+// and of the federated extensions bootstrap.js loaded.
 
 /**
  * Plugins left out because the services they need are not shipped here: the language-server
@@ -18,14 +14,15 @@ function pluginsOf(module) {
   return Array.isArray(exported) ? exported : [exported];
 }
 
-async function main() {
+/** Starts the app; `federated` is bootstrap.js's list of `{name, plugins, mimeExtension}`. */
+export async function main(federated) {
   await import('../build/style.js');
   const { JupyterLab } = await import('@jupyterlab/application');
   const { pluginModules, mimeRendererModules } = await import('../build/extensions.js');
 
   const load = loaders => Promise.all(loaders.map(load => load()));
-  const mimeExtensions = await load(mimeRendererModules);
-  const plugins = (await load(pluginModules))
+  const mimeExtensions = [...(await load(mimeRendererModules)), ...federated.flatMap(ext => (ext.mimeExtension ? [ext.mimeExtension] : []))];
+  const plugins = [...(await load(pluginModules)), ...federated.flatMap(ext => (ext.plugins ? [ext.plugins] : []))]
     .flatMap(pluginsOf)
     .filter(plugin => !LEFT_OUT.some(pattern => pattern.test(plugin.id)));
 
@@ -33,12 +30,8 @@ async function main() {
   lab.registerPlugins(plugins);
   await lab.start();
   await lab.restored;
-  // The handle browser tests (and curious users in the console) reach the app through.
+  // The handles browser tests (and curious users in the console) reach the app through.
   window.chernelLab = lab;
+  window.chernelFederatedExtensions = federated.map(ext => ext.name);
   document.body.dataset.chernelLab = 'ready';
 }
-
-main().catch(error => {
-  console.error('chernel lab failed to start', error);
-  document.body.dataset.chernelLab = 'failed';
-});

@@ -78,6 +78,8 @@ declare global {
   interface Window {
     /** Put there by lab/src/index.js once the app is restored. */
     chernelLab?: PageLab;
+    /** The names of the federated (prebuilt) extensions the page loaded (lab/src/bootstrap.js). */
+    chernelFederatedExtensions?: string[];
   }
 }
 
@@ -89,6 +91,9 @@ export interface OpenLabOptions {
   viewport?: { width: number; height: number };
 }
 
+/** What a session needs of a lab server: where it is, its token, and how to stop it. */
+export type LabEndpoint = Pick<LabServer, 'baseUrl' | 'token' | 'labUrl' | 'stop'>;
+
 /** Builds what is stale, registers the chernel kernel when it exists, starts server and browser. */
 export async function openLab(options: OpenLabOptions = {}): Promise<LabSession> {
   ensureLabBuilt(() => undefined);
@@ -96,6 +101,24 @@ export async function openLab(options: OpenLabOptions = {}): Promise<LabSession>
   const ownRoot = options.rootDir === undefined;
   const rootDir = options.rootDir ?? mkdtempSync(join(tmpdir(), 'chernel-lab-root-'));
   const server = await startLabServer({ rootDir, jupyterPath: options.jupyterPath });
+  return openBrowserOn(server, rootDir, {
+    viewport: options.viewport,
+    chernelKernel,
+    cleanup: () => {
+      if (ownRoot) rmSync(rootDir, { recursive: true, force: true });
+    },
+  });
+}
+
+/**
+ * A fresh headless Chromium (new profile) on a running lab server, e.g. one `npm start` started;
+ * `close()` closes it and calls the server's `stop`.
+ */
+export async function openBrowserOn(
+  server: LabEndpoint,
+  rootDir: string,
+  options: { viewport?: { width: number; height: number }; chernelKernel?: KernelRegistration; cleanup?: () => void } = {},
+): Promise<LabSession> {
   const profile = mkdtempSync(join(tmpdir(), 'chernel-chromium-'));
   try {
     const context = await chromium.launchPersistentContext(profile, {
@@ -105,15 +128,16 @@ export async function openLab(options: OpenLabOptions = {}): Promise<LabSession>
       viewport: options.viewport ?? { width: 1400, height: 900 },
     });
     const page = context.pages()[0] ?? (await context.newPage());
-    const session = new LabSession(server, context, page, rootDir, chernelKernel, () => {
+    const session = new LabSession(server, context, page, rootDir, options.chernelKernel ?? { registered: true }, () => {
       rmSync(profile, { recursive: true, force: true });
-      if (ownRoot) rmSync(rootDir, { recursive: true, force: true });
+      options.cleanup?.();
     });
     await session.load();
     return session;
   } catch (error) {
     await server.stop();
     rmSync(profile, { recursive: true, force: true });
+    options.cleanup?.();
     throw error;
   }
 }
@@ -123,7 +147,7 @@ export class LabSession {
   readonly console: string[] = [];
 
   constructor(
-    readonly server: LabServer,
+    readonly server: LabEndpoint,
     readonly context: BrowserContext,
     readonly page: Page,
     readonly rootDir: string,
@@ -166,6 +190,11 @@ export class LabSession {
   /** The ids among `ids` of plugins that are not activated. */
   inactivePlugins(ids: string[]): Promise<string[]> {
     return this.page.evaluate(ids => ids.filter(id => !window.chernelLab!.isPluginActivated(id)), ids);
+  }
+
+  /** The prebuilt (federated) extensions the page loaded from the Jupyter data directories. */
+  federatedExtensions(): Promise<string[]> {
+    return this.page.evaluate(() => window.chernelFederatedExtensions ?? []);
   }
 
   /** Runs a command of the app's command registry (the same ones menus and shortcuts run). */
@@ -418,6 +447,39 @@ export class NotebookHandle {
         panel.dispose();
       }
     }, this.panelId);
+  }
+
+  /**
+   * Trusts the notebook the way a user does: the Edit menu's "Trust Notebook" command, then the
+   * dialog's Trust button. Its outputs are then rendered with every renderer, scripts included.
+   */
+  async trust(): Promise<void> {
+    await this.lab.page.evaluate(id => {
+      window.chernelLab!.shell.activateById(id);
+      // Not awaited: the command waits for the dialog below.
+      void window.chernelLab!.commands.execute('notebook:trust');
+    }, this.panelId);
+    await this.lab.page.locator('.jp-Dialog .jp-Dialog-button.jp-mod-accept').click();
+    await this.lab.page.locator('.jp-Dialog').waitFor({ state: 'detached' });
+  }
+
+  /**
+   * For each output of cell `index`, in order: the size in CSS pixels of the largest picture it
+   * shows (an <img>, a plotly SVG or a canvas), or null when it shows none (text only, or nothing).
+   */
+  outputPictures(index: number): Promise<Array<{ width: number; height: number } | null>> {
+    return this.cell(index)
+      .locator('.jp-OutputArea-child')
+      .evaluateAll(children =>
+        children.map(child => {
+          let best: { width: number; height: number } | null = null;
+          for (const element of Array.from(child.querySelectorAll('img, svg.main-svg, canvas'))) {
+            const { width, height } = element.getBoundingClientRect();
+            if (width * height > (best ? best.width * best.height : 0)) best = { width, height };
+          }
+          return best;
+        }),
+      );
   }
 
   /** Saves through the document context and waits until the model is clean. */

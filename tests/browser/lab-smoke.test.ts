@@ -8,8 +8,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { projectDir } from '../../lab/launch.js';
 import { openLab, type CellOutput, type LabSession } from './lab-harness.js';
 
-const labExtensions = (JSON.parse(readFileSync(join(projectDir, 'lab', 'package.json'), 'utf8')) as { jupyterlab: { extensions: string[] } })
-  .jupyterlab.extensions;
 const useChernel = existsSync(join(projectDir, 'bin', 'chernel.js'));
 const kernel = useChernel ? 'chernel' : 'python3';
 // 6 * 7 = 42 in either language (arithmetic; common practice). The second cell reads state the
@@ -46,9 +44,29 @@ describe(`lab smoke test with the ${kernel} kernel`, () => {
     const shown = await lab.page.locator('#jp-main-dock-panel').isVisible();
     expect(shown).toBe(true);
     const wanted = ['@jupyterlab/notebook-extension:tracker', '@jupyter-widgets/jupyterlab-manager:plugin'];
-    if (labExtensions.includes('chernel-widgets')) wanted.push('chernel-widgets:plugin');
+    if (useChernel) wanted.push('chernel-widgets:plugin');
     expect(await lab.inactivePlugins(wanted)).toEqual([]);
     expect(lab.unexpectedErrors()).toEqual([]);
+  });
+
+  it.runIf(useChernel)('loads the widgets as users get them: the prebuilt extension `chernel install` put in a Jupyter data directory', async () => {
+    // Not bundled into the lab: the page config lists it among the federated extensions found in
+    // the labextensions/ folders on JUPYTER_PATH, and the page loaded its remote entry from there.
+    const installed = JSON.parse(readFileSync(join(projectDir, '.jupyter-local', 'share', 'jupyter', 'labextensions', 'chernel-widgets', 'package.json'), 'utf8')) as {
+      jupyterlab: { _build: { load: string } };
+    };
+    expect(await lab.federatedExtensions()).toEqual(['chernel-widgets']);
+    // With the note JupyterLab's extension listings show on how to remove it.
+    const installedDir = join(projectDir, '.jupyter-local', 'share', 'jupyter', 'labextensions', 'chernel-widgets');
+    expect(JSON.parse(readFileSync(join(installedDir, 'install.json'), 'utf8'))).toMatchObject({ packageName: 'chernel-widgets', uninstallInstructions: expect.stringContaining('chernel remove') });
+    const loaded = await lab.page.evaluate(() => performance.getEntriesByType('resource').map(entry => new URL(entry.name).pathname));
+    expect(loaded).toContain(`/lab/extensions/chernel-widgets/${installed.jupyterlab._build.load}`);
+  });
+
+  it.runIf(useChernel)('lists the chernel kernel first in the launcher', async () => {
+    const cards = lab.page.locator('.jp-LauncherCard[data-category="Notebook"]');
+    await cards.first().waitFor();
+    expect(await cards.first().getAttribute('title')).toMatch(/chernel/);
   });
 
   it('runs typed cells, saves them, and shows them again after a reload', async () => {

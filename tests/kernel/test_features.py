@@ -247,8 +247,17 @@ class Features(unittest.TestCase):
             self.assertEqual(png[:8], b"\x89PNG\r\n\x1a\n")  # PNG signature (PNG specification, section 5.2)
             self.assertEqual(png[12:16], b"IHDR")
             self.assertEqual(struct.unpack(">II", png[16:24]), (size, size))
+        # The prebuilt widget extension beside it, found as JupyterLab 4 finds federated extensions
+        # (Debian's jupyterlab_server, the same function that fills the page's federated_extensions).
+        from jupyterlab_server.config import get_federated_extensions
+        extensions = prefix / "share" / "jupyter" / "labextensions"
+        found = get_federated_extensions([str(extensions)])
+        self.assertEqual(list(found), ["chernel-widgets"])
+        self.assertTrue((extensions / "chernel-widgets" / found["chernel-widgets"]["jupyterlab"]["_build"]["load"]).is_file())
+        self.assertIn("chernel remove", found["chernel-widgets"]["install"]["uninstallInstructions"])
         subprocess.run(["node", str(harness.CLI), "remove", "--prefix", str(prefix)], check=True, capture_output=True)
         self.assertFalse(spec_dir.exists())
+        self.assertFalse((extensions / "chernel-widgets").exists())
         bad = subprocess.run(["node", str(harness.CLI), "instal"], capture_output=True, text=True)
         self.assertEqual(bad.returncode, 2)
         self.assertIn('unknown command "instal"', bad.stderr)

@@ -130,6 +130,7 @@ export class DiagnosticView extends DOMWidgetView {
   private controls: ParameterControls | null = null;
   private client: LatestWinsClient | null = null;
   private attached = false;
+  private seen: IntersectionObserver | null = null;
   private figure: Figure | null = null;
   private plotEventsBound = false;
   /** The frame key of the figure plotly shows in full, and the pending full redraw after a drag. */
@@ -200,11 +201,13 @@ export class DiagnosticView extends DOMWidgetView {
     void this.displayed.then(() => {
       this.attached = true;
       this.refresh();
+      this.warmWhenSeen();
     });
   }
 
   override remove(): this {
     this.attached = false;
+    this.seen?.disconnect();
     if (this.settleTimer !== null) clearTimeout(this.settleTimer);
     if (this.staleTimer !== null) clearTimeout(this.staleTimer);
     Plotly.purge(this.plot);
@@ -337,6 +340,20 @@ export class DiagnosticView extends DOMWidgetView {
   private engine(): LatestWinsClient {
     this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
     return this.client;
+  }
+
+  /**
+   * Once the view is first on screen (a saved notebook opens, drawn from its saved result): start
+   * the workers and warm them on the current values, so that the first drag step is not cold.
+   */
+  private warmWhenSeen(): void {
+    if (typeof IntersectionObserver === 'undefined') return this.warmUp();
+    this.seen = new IntersectionObserver((entries) => {
+      if (!entries.some((entry) => entry.isIntersecting)) return;
+      this.seen?.disconnect();
+      this.warmUp();
+    });
+    this.seen.observe(this.el);
   }
 
   /** The hand nears the controls: start the workers now, so the first drag steps are not cold. */
