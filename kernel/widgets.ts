@@ -12,10 +12,13 @@ import { diagnose } from '../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { MIME_BUNDLE } from './display/index.js';
-import { WIDGET_KINDS, WIDGET_VIEW_MIME, type WidgetKind } from '../widgets/src/protocol.js';
+import { figurePng } from './display/pictures.js';
+import { figureFor } from '../widgets/src/figures/index.js';
+import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../widgets/src/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
 import {
   checkValues,
+  savedStateEntry,
   WIDGET_PROTOCOL_VERSION,
   WidgetOptionError,
   widgetState,
@@ -95,12 +98,14 @@ export class TopologyWidget {
     return this.lastError;
   }
 
-  /** Move the controls: the front end recomputes and syncs the result back. */
-  setValues(values: Values): this {
+  /**
+   * Move the controls: the front end recomputes and syncs the result back. Returns nothing, so a
+   * cell ending with it shows no second view of the widget.
+   */
+  setValues(values: Values): void {
     const checked = checkValues(this.spec, values, 'setValues');
     this.current = { ...this.current, ...checked };
     this.send({ values: this.current });
-    return this;
   }
 
   /** Called after every change synced from the front end. */
@@ -113,13 +118,34 @@ export class TopologyWidget {
     this.comm.close();
   }
 
+  /**
+   * The live view, and beside it what outlives the kernel: the widget's state (a front end with no
+   * saved widget state restores the widget from it) and a PNG of its last result (what an untrusted
+   * notebook, nbconvert and viewers without JavaScript show).
+   */
   [MIME_BUNDLE](): Record<string, unknown> {
-    return {
+    const bundle: Record<string, unknown> = {
       [WIDGET_VIEW_MIME]: { model_id: this.comm.id, version_major: 2, version_minor: 0 },
+      [SAVED_WIDGET_MIME]: { model_id: this.comm.id, ...savedStateEntry(this.state()) },
       'text/plain': `${this.kind} widget for model "${this.spec.name}" (${Object.entries(this.current)
         .map(([k, v]) => `${k} = ${v}`)
         .join(', ')})`,
     };
+    const picture = this.picture();
+    if (picture !== null) bundle['image/png'] = picture;
+    return bundle;
+  }
+
+  /** The PNG of the last result, drawn as the view draws it; null without a result. */
+  private picture(): string | null {
+    if (this.lastResult === null) return null;
+    const values = this.resultValues ?? this.current;
+    try {
+      const figure = figureFor(this.lastResult as DiagnosticResult, { spec: this.spec as unknown as ModelSpecView, values, options: this.options });
+      return figurePng(figure);
+    } catch {
+      return null; // the view shows the same figure error; the state still travels
+    }
   }
 
   private computeNow(values: Values): Result {

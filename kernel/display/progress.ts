@@ -6,6 +6,8 @@ export interface ProgressState {
   done: number;
   total: number | null;
   finished: boolean;
+  /** Said after the bar: the time left, or how long it took. */
+  note?: string;
 }
 
 export function progressBundle(state: ProgressState): DisplayOutput {
@@ -17,7 +19,7 @@ export function progressBundle(state: ProgressState): DisplayOutput {
   const filled = fraction === null ? 0 : Math.round(fraction * width);
   const bar = `[${'#'.repeat(filled)}${'.'.repeat(width - filled)}]`;
   const label = state.label.replace(/[&<>]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[c] ?? c);
-  const status = state.finished ? ' done' : '';
+  const status = (state.finished ? ' done' : '') + (state.note ? ` · ${state.note.replace(/[&<>]/g, '')}` : '');
   return {
     data: {
       'text/plain': `${state.label} ${bar} ${percent}${count}${status}`.trim(),

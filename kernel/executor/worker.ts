@@ -10,9 +10,10 @@ import vm from 'node:vm';
 import { parentPort, workerData } from 'node:worker_threads';
 import { InterruptedError, installInterruptFlag } from '../../src/interrupt.js';
 import { connectComms, handleFrontendComm } from '../comms.js';
-import { mimeBundle, plainText } from '../display/index.js';
+import { displayOutputs, plainText } from '../display/index.js';
 import type { Description, HostToWorker, SerializedError, WorkerToHost } from './channel.js';
 import { importFromCwd } from './resolve.js';
+import { cellCompute, type Engine } from './cell-compute.js';
 import { createScope, DisplayHandle } from './scope.js';
 import { RUNTIME } from './transpile.js';
 
@@ -98,6 +99,14 @@ for (const [i, relative] of SCOPE_MODULES.entries()) {
 }
 const engineError = loadErrors.length ? loadErrors.join('\n') : null;
 for (const [name, value] of Object.entries(helpers)) define(name, value, false);
+/** The engine functions a cell sees in the kernel's own version (documented as the engine's). */
+const wrapped = new Map<string, unknown>();
+if (typeof engine.compute === 'function') {
+  for (const [name, value] of Object.entries(cellCompute(engine as unknown as Engine, post))) {
+    define(name, value, false);
+    wrapped.set(name, value);
+  }
+}
 
 // --- execution ------------------------------------------------------------------------------------
 let interruptCurrent: ((error: Error) => void) | null = null;
@@ -114,7 +123,10 @@ async function execute(message: Extract<HostToWorker, { type: 'execute' }>): Pro
     const interrupted = new Promise<never>((_, reject) => (interruptCurrent = reject));
     const value = await Promise.race([running, interrupted]);
     const show = message.hasValue && value !== undefined && !(value instanceof DisplayHandle) && !message.silent;
-    outcome = { type: 'done', id: message.id, result: show ? mimeBundle(value) : null, error: null };
+    // An engine result with a figure shows as two outputs: its summary first, the figure as the result.
+    const outputs = show ? displayOutputs(value) : [];
+    for (const output of outputs.slice(0, -1)) post({ type: 'display', output, displayId: null, update: false });
+    outcome = { type: 'done', id: message.id, result: outputs.at(-1) ?? null, error: null };
   } catch (error) {
     outcome = { type: 'done', id: message.id, result: null, error: serializeError(error) };
   } finally {
@@ -146,7 +158,7 @@ function memberNames(value: unknown): string[] {
 function describe(path: string[]): Description {
   const { found, value } = resolvePath(path);
   if (!found) return { found: false, engineExport: false, summary: '' };
-  const engineExport = path.length === 1 && Object.prototype.hasOwnProperty.call(engine, path[0]) && engine[path[0]] === value;
+  const engineExport = path.length === 1 && Object.prototype.hasOwnProperty.call(engine, path[0]) && (engine[path[0]] === value || wrapped.get(path[0]) === value);
   let summary: string;
   if (typeof value === 'function') {
     const source = Function.prototype.toString.call(value);

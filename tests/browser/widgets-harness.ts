@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
-import { mimeBundle } from '../../kernel/display/index.js';
+import { displayOutputs } from '../../kernel/display/index.js';
 import { exportHtmlCommand } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
 import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../widgets/src/protocol.js';
@@ -88,13 +88,16 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
     });
   });
   // An engine result a cell displayed (the kernel's own rich display): a static plot in the page.
-  const shown = mimeBundle(compute({ kind: 'bands', model: qwz(), params: { u: -1 } }));
+  const [summary, shown] = displayOutputs(compute({ kind: 'bands', model: qwz(), params: { u: -1 } }));
   cells.push({
     cell_type: 'code',
     metadata: {},
     execution_count: widgets.length + 1,
     source: "compute({ kind: 'bands', model: qwz() })",
-    outputs: [{ output_type: 'execute_result', execution_count: widgets.length + 1, metadata: shown.metadata, data: shown.data }],
+    outputs: [
+      { output_type: 'display_data', metadata: summary.metadata, data: summary.data },
+      { output_type: 'execute_result', execution_count: widgets.length + 1, metadata: shown.metadata, data: shown.data },
+    ],
   });
   return {
     nbformat: 4,

@@ -1,9 +1,11 @@
 /**
- * A widget's request -> the engine. Most widgets are one engine request; the flow widget with
- * `invariant: 'z2'` adds the engine's Z2 count to the flow it draws. Runs in the page's worker and
- * in the kernel (kernel/widgets.ts), so both compute the same thing.
+ * A widget's request -> the engine. Most widgets are one engine request; the flow widget adds the
+ * engine's Z2 count to the flow it draws (asked for with `invariant: 'z2'`, and by default for a
+ * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
+ * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
 import { bands, BlochHamiltonian, compute, curvatureMap, wannierFlow, type ModelSpec } from '../../src/index.js';
+import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 type EngineRequest = Parameters<typeof compute>[0];
@@ -43,17 +45,33 @@ function run(request: Record<string, unknown>): DiagnosticResult {
   return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;
 }
 
+/**
+ * The engine's Z2 count refuses a band group whose Wannier centres are not Kramers pairs at the
+ * time-reversal-invariant momenta (src/topology/z2.ts says so in a warning): such a group is not
+ * time-reversal symmetric, and its flow is read by its winding instead.
+ */
+const NOT_KRAMERS = /not in Kramers pairs/;
+
 export function diagnose(request: DiagnosticRequest): DiagnosticResult {
-  if (request.kind === 'wannier-flow' && request.invariant === 'z2') {
-    const { invariant: _invariant, ...flowRequest } = request;
+  if (request.kind === 'wannier-flow') {
+    // `invariant` is the widget's, not an engine option.
+    const { invariant, ...flowRequest } = request;
     const flow = run(flowRequest);
-    const z2 = run({ kind: 'z2', model: request.model, params: request.params, bands: request.bands, method: 'flow' });
-    const gapless = flow.checks.gapless === true || z2.checks.gapless === true;
-    return {
-      ...flow,
-      z2: gapless ? null : z2.z2,
-      checks: { ...flow.checks, gapless, warnings: [...flow.checks.warnings, ...z2.checks.warnings] },
-    };
+    const part = request.part as { index?: number } | undefined;
+    if (invariant === 'winding' || (part !== undefined && part.index !== 0)) return flow;
+    let z2: DiagnosticResult;
+    try {
+      z2 = run({ kind: 'z2', model: request.model, params: request.params, bands: request.bands, method: 'flow' });
+    } catch (err) {
+      if (invariant === 'z2') throw err;
+      return flow;
+    }
+    // Asked for by default: kept only for a time-reversal-symmetric group.
+    if (invariant === undefined && z2.checks.warnings.some((w) => NOT_KRAMERS.test(w))) return flow;
+    return part !== undefined ? { ...flow, [Z2_OF_PARTS]: z2 } : withZ2(flow, z2);
   }
-  return run(request);
+  const result = run(request);
+  // A curvature map's Chern number under the name every other Chern result uses.
+  if (result.kind === 'curvature' && !('chern' in result)) return { ...result, chern: result.total ?? null };
+  return result;
 }

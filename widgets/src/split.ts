@@ -6,6 +6,7 @@
  */
 import { joinParts, type DiagnosticPart } from '../../src/topology/parts.js';
 import type { SplitPlan } from './compute-client.js';
+import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 /** The engine's default grid for these kinds (src/topology/curvature.ts, wilson.ts). */
@@ -28,10 +29,15 @@ function rowsOf(request: DiagnosticRequest): number {
 export function splitPlan(workers: number): SplitPlan {
   return {
     parts(request) {
-      const splittable = request.kind === 'curvature' || (request.kind === 'wannier-flow' && request.invariant !== 'z2');
+      const splittable = request.kind === 'curvature' || request.kind === 'wannier-flow';
       return splittable ? Math.max(1, Math.min(workers, Math.floor(rowsOf(request) / MIN_ROWS_PER_PART))) : 1;
     },
     partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
-    join: (_request, parts) => joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult,
+    join: (_request, parts) => {
+      const joined = joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult;
+      // A flow's Z2 count comes whole with its first part (diagnose.ts).
+      const z2 = parts[0]?.[Z2_OF_PARTS] as DiagnosticResult | undefined;
+      return z2 === undefined ? joined : withZ2(joined, z2);
+    },
   };
 }
