@@ -6,9 +6,9 @@ const CSS = `
 .chernel-title { font-weight: 600; }
 .chernel-summary { font-variant-numeric: tabular-nums; }
 .chernel-summary[data-gapless="true"] { color: #a15c00; font-weight: 600; }
-.chernel-controls { display: grid; grid-template-columns: repeat(auto-fill, minmax(300px, 1fr)); gap: 4px 20px; margin: 4px 0 8px; }
-.chernel-control { display: grid; grid-template-columns: 6.5em minmax(80px, 1fr) 5.5em; align-items: center; gap: 6px; min-width: 0; }
-.chernel-control-name { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
+.chernel-controls { display: grid; grid-template-columns: repeat(auto-fill, minmax(340px, 1fr)); gap: 4px 20px; margin: 4px 0 8px; }
+.chernel-control { display: grid; grid-template-columns: minmax(6.5em, max-content) minmax(80px, 1fr) 5.5em; align-items: center; gap: 6px; min-width: 0; }
+.chernel-control-name { white-space: normal; overflow-wrap: anywhere; max-width: 16em; }
 .chernel-control-value { width: 100%; box-sizing: border-box; font: inherit; }
 .chernel-plot { width: 100%; height: 440px; }
 .chernel-plot.chernel-stale { opacity: 0.45; }

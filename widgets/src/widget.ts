@@ -4,7 +4,7 @@
  * in a Web Worker, then writes values and result back to the model (and so to the kernel and the
  * saved notebook).
  */
-import { DOMWidgetModel, DOMWidgetView, type ISerializers } from '@jupyter-widgets/base';
+import { DOMWidgetModel, DOMWidgetView, type IBackboneModelOptions, type ISerializers } from '@jupyter-widgets/base';
 import { LatestWinsClient, type Outcome, type WorkerLike } from './compute-client.js';
 import { createParameterControls, formatValue, type ParameterControls } from './controls.js';
 import { spawnEngineWorker } from './engine-worker.js';
@@ -14,6 +14,7 @@ import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
 import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
 import { rasterImage } from './picture.js';
 import { DragPreview } from './preview.js';
+import { forgetLiveModel, registerLiveModel } from './saved-state.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
@@ -59,6 +60,13 @@ export class DiagnosticModel extends DOMWidgetModel {
       result_values: null,
       error: '',
     };
+  }
+
+  /** Each model is known by id on the page, so its notebook output can be kept current (notebook-outputs.ts). */
+  override initialize(attributes: Backbone.ObjectHash, options: IBackboneModelOptions): void {
+    super.initialize(attributes, options);
+    registerLiveModel(this);
+    this.once('destroy', () => forgetLiveModel(this));
   }
 
   static override serializers: ISerializers = {
@@ -441,7 +449,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.computingDone(busy);
       this.statusEl.textContent = outcome
         ? `${describeValues(values, this.parameterOrder())} · engine ${outcome.computeMs.toFixed(0)} ms`
-        : `${describeValues(values, this.parameterOrder())} · saved result`;
+        : `${describeValues(values, this.parameterOrder())} · ${this.model.comm_live ? 'computed by the kernel' : 'saved result'}`;
       const detail: DrawnDetail = {
         summary: figure.summary,
         invariant: figure.invariant,

@@ -5,7 +5,7 @@
  */
 import type { Data } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, gapText, numberArray, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, gapText, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 /** Light where the gap is wide, dark where it closes. */
 const GAP_SCALE: [number, string][] = [
@@ -47,7 +47,7 @@ export function gapFigure(result: DiagnosticResult, ctx: FigureContext): Figure 
   if (grid.length === 1) {
     const n = grid[0];
     data.push({ type: 'scatter', mode: 'lines', x: Array.from({ length: n }, (_, j) => fraction(j, n)), y: Array.from(gap), line: { color: '#3b6ea8', width: 2 }, name: 'gap' });
-    data.push({ type: 'scatter', mode: 'markers', x: [at[0]], y: [result.checks.minGap ?? 0], marker, name: gapless ? 'gap closes' : 'smallest gap' });
+    data.push({ type: 'scatter', mode: 'markers', x: [at[0]], y: [result.checks.minGap ?? 0], marker, cliponaxis: false, name: gapless ? 'gap closes' : 'smallest gap' });
     xaxis = { title: { text: 'k [b]' }, range: [-0.5, 0.5], zeroline: false };
     yaxis = { title: { text: withUnit('direct gap', unit) }, rangemode: 'tozero', zeroline: false };
   } else {
@@ -64,16 +64,16 @@ export function gapFigure(result: DiagnosticResult, ctx: FigureContext): Figure 
       zmin: 0,
       colorscale: GAP_SCALE,
       colorbar: { title: { text: withUnit('gap', unit) } },
-      hovertemplate: `k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>gap %{z:.4g}${unit ? ' ' + unit : ''}<extra></extra>`,
+      hovertemplate: `k₁ = %{x:.3f} b₁<br>k₂ = %{y:.3f} b₂<br>gap %{z:.4g}${unitText(unit)}<extra></extra>`,
       name: 'direct gap',
     });
-    data.push({ type: 'scatter', mode: 'markers', x: [at[0]], y: [at[1]], marker, name: gapless ? 'gap closes' : 'smallest gap', showlegend: false });
+    data.push({ type: 'scatter', mode: 'markers', x: [at[0]], y: [at[1]], marker, cliponaxis: false, name: gapless ? 'gap closes' : 'smallest gap', showlegend: false });
     xaxis = { title: { text: 'k₁ [b₁]' }, zeroline: false, showgrid: false, constrain: 'domain' };
     yaxis = { title: { text: grid.length === 3 ? `k₂ [b₂] (plane k₃ = ${fmt(fraction(plane, n3))} b₃)` : 'k₂ [b₂]' }, zeroline: false, showgrid: false, scaleanchor: 'x', constrain: 'domain' };
   }
   return {
     data,
-    layout: { ...BASE_LAYOUT, title: { text: `Direct gap — ${summary}` }, xaxis, yaxis },
+    layout: { ...BASE_LAYOUT, title: titled(`Direct gap — ${summary}`), xaxis, yaxis },
     summary,
     invariant: null,
     gapless,

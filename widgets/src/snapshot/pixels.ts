@@ -40,7 +40,7 @@ export function parseColour(text: unknown): Paint | null {
 }
 
 export class Pixels {
-  readonly rgba: Uint8ClampedArray;
+  readonly rgba: Uint8ClampedArray<ArrayBuffer>;
   /** Where drawing is allowed (everything by default): [left, top, right, bottom), pixels. */
   private clip: [number, number, number, number];
 

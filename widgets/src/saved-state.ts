@@ -1,0 +1,75 @@
+/**
+ * A widget's state as its output carries it (SAVED_WIDGET_MIME): the entry a notebook's saved
+ * widget state has for it (the kernel writes the same, kernel/widget-state.ts), and the picture of
+ * what its view shows, drawn by the shared rasteriser (snapshot/) on a canvas for its PNG.
+ */
+import { figureFor } from './figures/index.js';
+import { base64 } from './picture.js';
+import type { DiagnosticResult, ModelSpecView } from './protocol.js';
+import { drawFigure } from './snapshot/figure.js';
+import { packArrays, removeBuffers } from './wire.js';
+
+/** What is read of a widget model here (DiagnosticModel, widget.ts). */
+export interface ModelLike {
+  readonly model_id: string;
+  get(name: string): unknown;
+  get_state(drop_defaults?: boolean): Record<string, unknown>;
+}
+
+const live = new Map<string, ModelLike>();
+
+/** The widget models alive on this page, by id (each registers itself when created). */
+export function registerLiveModel(model: ModelLike): void {
+  live.set(model.model_id, model);
+}
+
+export function forgetLiveModel(model: ModelLike): void {
+  if (live.get(model.model_id) === model) live.delete(model.model_id);
+}
+
+export function liveModel(modelId: string): ModelLike | undefined {
+  return live.get(modelId);
+}
+
+/** The model's entry for a notebook's widget state: binary buffers inline as base64 beside their paths. */
+export function savedEntry(model: ModelLike): Record<string, unknown> {
+  const state = { ...model.get_state(false) };
+  state.result = packArrays(state.result);
+  const split = removeBuffers(state);
+  return {
+    model_name: state._model_name,
+    model_module: state._model_module,
+    model_module_version: state._model_module_version,
+    state: split.state,
+    buffers: split.buffers.map((b, i) => ({
+      path: split.buffer_paths[i],
+      encoding: 'base64',
+      data: base64(new Uint8Array(b.buffer, b.byteOffset, b.byteLength)),
+    })),
+  };
+}
+
+/** A PNG (base64) of the widget's last result as its view draws it, and a line saying what it shows. */
+export function viewPicture(model: ModelLike, doc: Document = document): { png: string; text: string } | null {
+  const result = model.get('result') as DiagnosticResult | null;
+  const spec = model.get('spec') as ModelSpecView | null;
+  if (result === null || spec === null || model.get('error')) return null;
+  const values = (model.get('result_values') ?? model.get('values')) as Record<string, number>;
+  try {
+    const figure = figureFor(result, { spec, values, options: (model.get('options') ?? {}) as Record<string, unknown> });
+    const pixels = drawFigure(figure);
+    const canvas = doc.createElement('canvas');
+    canvas.width = pixels.width;
+    canvas.height = pixels.height;
+    const context = canvas.getContext('2d');
+    if (context === null) return null;
+    context.putImageData(new ImageData(pixels.rgba, pixels.width, pixels.height), 0, 0);
+    const shown = Object.entries(values).map(([k, v]) => `${k} = ${v}`).join(', ');
+    return {
+      png: canvas.toDataURL('image/png').replace(/^data:image\/png;base64,/, ''),
+      text: `${String(model.get('kind'))} widget for model "${spec.name}" (${shown}): ${figure.summary}`,
+    };
+  } catch {
+    return null;
+  }
+}
