@@ -8,7 +8,7 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
+import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {
@@ -161,6 +161,25 @@ export interface ExportOptions {
   title?: string;
 }
 
+/**
+ * The notebook's saved widget state, with the states chernel's widget outputs carry themselves
+ * (SAVED_WIDGET_MIME: a notebook saved with the lab's default settings has no other); an output's
+ * copy wins, as in the lab. Undefined when there is neither.
+ */
+function withOutputStates(saved: Json | undefined, cells: Cell[]): Json | undefined {
+  const state: Json = { ...((saved?.state as Json | undefined) ?? {}) };
+  for (const output of cells.flatMap((c) => c.outputs)) {
+    const data = (output.data ?? {}) as Json;
+    const entry = data[SAVED_WIDGET_MIME] as Json | undefined;
+    const modelId = (data[WIDGET_VIEW_MIME] as Json | undefined)?.model_id;
+    if (entry === undefined || typeof modelId !== 'string') continue;
+    const { model_id: _id, ...rest } = entry;
+    state[modelId] = rest;
+  }
+  if (saved === undefined && Object.keys(state).length === 0) return undefined;
+  return { version_major: 2, version_minor: 0, ...(saved ?? {}), state };
+}
+
 /** The page for a parsed notebook. Throws NotebookFormatError naming the malformed field. */
 export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): string {
   if (notebook === null || typeof notebook !== 'object') throw new NotebookFormatError('notebook', 'expected a JSON object');
@@ -168,7 +187,7 @@ export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): 
   const cells = cellsOf(nb);
   const metadata = (nb.metadata ?? {}) as Json;
   const widgets = (metadata.widgets ?? {}) as Json;
-  const widgetState = widgets[WIDGET_STATE_MIME];
+  const widgetState = withOutputStates(widgets[WIDGET_STATE_MIME] as Json | undefined, cells);
   const runtimePath = options.runtime ?? defaultRuntimePath();
   if (!existsSync(runtimePath)) {
     throw new Error(`export-html: the widget runtime ${runtimePath} is missing; run \`npm run build\` in widgets/`);

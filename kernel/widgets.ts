@@ -83,9 +83,14 @@ export class TopologyWidget {
     return { ...this.current };
   }
 
-  /** The last result (computed here at creation, then by the front end as values move). */
+  /**
+   * The last result (computed here at creation, then by the front end as values move). A curvature
+   * map's Chern number is also under `chern`, the name every other Chern result uses.
+   */
   get result(): Result | null {
-    return this.lastResult;
+    const result = this.lastResult;
+    if (result?.kind === 'curvature' && !('chern' in result)) return { ...result, chern: result.total ?? null };
+    return result;
   }
 
   /** The values `result` was computed for. */

@@ -70,8 +70,5 @@ export function diagnose(request: DiagnosticRequest): DiagnosticResult {
     if (invariant === undefined && z2.checks.warnings.some((w) => NOT_KRAMERS.test(w))) return flow;
     return part !== undefined ? { ...flow, [Z2_OF_PARTS]: z2 } : withZ2(flow, z2);
   }
-  const result = run(request);
-  // A curvature map's Chern number under the name every other Chern result uses.
-  if (result.kind === 'curvature' && !('chern' in result)) return { ...result, chern: result.total ?? null };
-  return result;
+  return run(request);
 }

@@ -299,7 +299,12 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
       }
       px.polyline(lx, ly, num(line.width) ?? 2, paint, dash === 'dash' ? [6, 4] : dash === 'dot' ? [2, 3] : null);
     }
-    if (mode.includes('markers')) drawMarkers(px, xs, yv, marker, x.at, ys.at, fallback);
+    if (mode.includes('markers')) {
+      // A trace drawn whole beyond the axes (cliponaxis: false), as plotly does: within the picture.
+      if (t.cliponaxis === false) px.clipTo(null);
+      drawMarkers(px, xs, yv, marker, x.at, ys.at, fallback);
+      px.clipTo(plotArea);
+    }
   });
   for (const s of shapes) {
     if (str(s.type) !== 'circle') continue;
