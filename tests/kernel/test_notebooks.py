@@ -33,14 +33,19 @@ class Notebooks(unittest.TestCase):
                     self.check_tour(code_cells)
 
     def check_tour(self, cells):
-        """What the fixture shows: a model table, a plot, a progress bar finished by the result."""
+        """What the fixture shows: a model table, a summary and its figure (live and as a picture), a
+        progress bar finished by the result."""
         self.assertIn("text/html", cells[0].outputs[0]["data"])
         self.assertEqual(cells[1].outputs[0]["data"]["text/plain"], "[ true, true, true ]")
-        self.assertIn("application/vnd.plotly.v1+json", cells[2].outputs[0]["data"])
-        # nbclient applies update_display_data in place: the bar's output now holds the phase map.
-        final = cells[3].outputs[0]["data"]
+        summary, figure = cells[2].outputs
+        self.assertIn("text/html", summary["data"])
+        self.assertEqual(sorted(figure["data"]), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
+        # nbclient applies update_display_data in place: the bar's output now holds the phase map's
+        # summary, and its figure follows.
+        final, figure = cells[3].outputs[0]["data"], cells[3].outputs[1]["data"]
         self.assertIn("phase-map result", final["text/plain"])
-        self.assertIn("application/vnd.plotly.v1+json", final)
+        self.assertIn("application/vnd.plotly.v1+json", figure)
+        self.assertIn("image/png", figure)
         texts = [o["data"]["text/plain"] for o in cells[4].outputs if o.get("output_type") == "display_data"]
         self.assertEqual(texts, ["'second version'"])
         self.assertIn("printed 9", "".join(o.get("text", "") for o in cells[4].outputs if o.get("output_type") == "stream"))

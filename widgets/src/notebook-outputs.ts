@@ -86,13 +86,16 @@ class PlotlyOutput extends Widget implements IRenderMime.IRenderer {
 /**
  * The widget manager's renderer for a widget output, made to keep its view when the output's data
  * changes but its widget does not (the output area reuses a renderer and calls renderModel again).
+ * Only a view on show is kept: the renderer retries through renderModel itself while the manager
+ * restores its models.
  */
 function keepingView(renderer: IRenderMime.IRenderer): IRenderMime.IRenderer {
   const render = renderer.renderModel.bind(renderer);
+  const views = renderer as unknown as { widgets?: readonly unknown[] };
   let shown: string | null = null;
   renderer.renderModel = (model: IRenderMime.IMimeModel) => {
     const id = (model.data[WIDGET_VIEW_MIME] as { model_id?: string } | undefined)?.model_id ?? null;
-    if (id !== null && id === shown) return Promise.resolve();
+    if (id !== null && id === shown && (views.widgets?.length ?? 0) > 0) return Promise.resolve();
     shown = id;
     return render(model);
   };
@@ -146,13 +149,16 @@ function withdraw(model: NotebookModelLike, handed: string[]): void {
   else model.deleteMetadata('widgets');
 }
 
-/** Brings every live widget's output up to date: its state and the picture of what it shows. */
-export function refreshOutputs(model: NotebookModelLike): number {
+/**
+ * Brings every live widget's output up to date: its state and the picture of what it shows.
+ * `document` is the notebook's context (its widget manager's).
+ */
+export function refreshOutputs(model: NotebookModelLike, document: unknown): number {
   let refreshed = 0;
   for (const output of outputs(model)) {
     const modelId = (output.data[WIDGET_VIEW_MIME] as { model_id?: unknown } | undefined)?.model_id;
     if (!(SAVED_WIDGET_MIME in output.data) || typeof modelId !== 'string') continue;
-    const widget = liveModel(modelId);
+    const widget = liveModel(modelId, document);
     if (widget === undefined) continue;
     const data: Record<string, unknown> = { ...output.data, [SAVED_WIDGET_MIME]: { model_id: modelId, ...savedEntry(widget) } };
     const picture = viewPicture(widget);
@@ -178,7 +184,7 @@ function attach(panel: Widget, context: DocumentRegistry.IContext<DocumentRegist
   // "save widget state" on, the manager writes the full state after this.
   context.saveState.connect((_, state) => {
     if (state === 'started') {
-      refreshOutputs(model);
+      refreshOutputs(model, context);
       withdraw(model, handed);
     } else {
       // Saved (or not): hand them over again, for a widget manager still to restore (its kernel

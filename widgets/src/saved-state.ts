@@ -12,23 +12,32 @@ import { packArrays, removeBuffers } from './wire.js';
 /** What is read of a widget model here (DiagnosticModel, widget.ts). */
 export interface ModelLike {
   readonly model_id: string;
+  /** Its widget manager; in JupyterLab, the notebook's (whose `context` is the document's). */
+  readonly widget_manager?: unknown;
   get(name: string): unknown;
   get_state(drop_defaults?: boolean): Record<string, unknown>;
 }
 
-const live = new Map<string, ModelLike>();
+/** The widget models alive on this page (each registers itself when created). */
+const live = new Set<ModelLike>();
 
-/** The widget models alive on this page, by id (each registers itself when created). */
 export function registerLiveModel(model: ModelLike): void {
-  live.set(model.model_id, model);
+  live.add(model);
 }
 
 export function forgetLiveModel(model: ModelLike): void {
-  if (live.get(model.model_id) === model) live.delete(model.model_id);
+  live.delete(model);
 }
 
-export function liveModel(modelId: string): ModelLike | undefined {
-  return live.get(modelId);
+/**
+ * The live model `modelId` of one document: copies of a notebook open side by side hold models
+ * with the same ids, each in its own notebook's widget manager.
+ */
+export function liveModel(modelId: string, document: unknown): ModelLike | undefined {
+  for (const model of live) {
+    if (model.model_id === modelId && (model.widget_manager as { context?: unknown } | undefined)?.context === document) return model;
+  }
+  return undefined;
 }
 
 /** The model's entry for a notebook's widget state: binary buffers inline as base64 beside their paths. */
