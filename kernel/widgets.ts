@@ -13,6 +13,7 @@ import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { MIME_BUNDLE } from './display/index.js';
 import { figurePng } from './display/pictures.js';
+import { integerOrValue } from '../widgets/src/figures/curvature.js';
 import { figureFor } from '../widgets/src/figures/index.js';
 import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../widgets/src/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
@@ -85,11 +86,12 @@ export class TopologyWidget {
 
   /**
    * The last result (computed here at creation, then by the front end as values move). A curvature
-   * map's Chern number is also under `chern`, the name every other Chern result uses.
+   * map's Chern number is also under `chern`, the name every other Chern result uses (an integer,
+   * as the lattice sum is one up to rounding).
    */
   get result(): Result | null {
     const result = this.lastResult;
-    if (result?.kind === 'curvature' && !('chern' in result)) return { ...result, chern: result.total ?? null };
+    if (result?.kind === 'curvature' && !('chern' in result)) return { ...result, chern: integerOrValue(typeof result.total === 'number' ? result.total : null) };
     return result;
   }
 

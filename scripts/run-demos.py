@@ -26,6 +26,7 @@ for path in sorted((ROOT / "notebooks-demo").glob("*.ipynb")):
     if wanted and not any(w in path.name for w in wanted):
         continue
     nb = nbformat.read(path, as_version=4)
+    nb.metadata.pop("widgets", None)  # from an older save: the outputs carry the state now
     client = NotebookClient(nb, kernel_name="chernel", timeout=600, store_widget_state=False, allow_errors=True,
                             resources={"metadata": {"path": str(path.parent)}})
     client.execute()

@@ -56,9 +56,13 @@ function contextOf(result: ResultLike): FigureContext {
   return { spec: model as unknown as ModelSpecView, values, options };
 }
 
-/** Typed arrays as plain arrays, getters read: what JSON (the wire, the notebook) can hold. */
+/** Five significant digits: finer than a screen resolves, and a wide ribbon has tens of thousands of points. */
+const round = (v: number): number => (Number.isFinite(v) && v !== 0 ? Number(v.toPrecision(5)) : v);
+
+/** Typed arrays as plain arrays, numbers rounded, getters read: what JSON (the wire, the notebook) holds. */
 function plain(value: unknown): unknown {
-  if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return Array.from(value as unknown as ArrayLike<number>);
+  if (typeof value === 'number') return round(value);
+  if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return Array.from(value as unknown as ArrayLike<number>, round);
   if (Array.isArray(value)) return value.map(plain);
   if (value !== null && typeof value === 'object') return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, plain(v)]));
   return value;

@@ -70,7 +70,8 @@ export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figu
       x.push(r.x[p]);
       y.push(r.energies[i]);
       colour.push(r.first[i] - r.last[i]);
-      custom.push([r.first[i], r.last[i]]);
+      // Hover shows two decimals; three keep a saved figure of tens of thousands of states small.
+      custom.push([Math.round(r.first[i] * 1000) / 1000, Math.round(r.last[i] * 1000) / 1000]);
     }
   }
   const unit = energyUnit(ctx.spec);
