@@ -243,8 +243,8 @@ class Features(unittest.TestCase):
         self.assertEqual(len([l for l in reply["traceback"] if "chernel engine" in l]), 1)
 
     def test_a_long_phase_map_shows_a_progress_bar_with_the_time_left(self):
-        # A fine map takes seconds (a few milliseconds a point).
-        code = "compute({kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 24, axes: [{param: 'u', from: -3.05, to: 2.95, count: 1500}]})"
+        # A fine map takes seconds (well under a millisecond a point, thousands of points).
+        code = "compute({kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 24, axes: [{param: 'phi', from: -3, to: 3, count: 80}, {param: 'M', from: -0.6, to: 0.6, count: 60}]})"
         reply, outputs = harness.run(self.kc, code, timeout=120)
         self.assertEqual(reply["status"], "ok")
         bars = [(m, c["data"]["text/plain"]) for m, c, _ in outputs if "display" in m and "<progress" in c["data"].get("text/html", "")]

@@ -32,6 +32,24 @@ class Notebooks(unittest.TestCase):
                 if path.name == "kernel-tour.ipynb":
                     self.check_tour(code_cells)
 
+    def test_nbconvert_shows_every_widget_and_figure_of_the_demos_as_a_picture(self):
+        """Debian's nbconvert, as `jupyter nbconvert --to html` runs it, on each shipped demo: one PNG
+        per widget and per figure output, and no widget script (whose runtime it would fetch online)."""
+        from nbconvert import HTMLExporter
+
+        for path in sorted((harness.ROOT / "notebooks-demo").glob("*.ipynb")):
+            with self.subTest(notebook=path.name):
+                nb = nbformat.read(path, as_version=4)
+                pictured = [
+                    o for c in nb.cells if c.cell_type == "code" for o in c.get("outputs", [])
+                    if {"application/vnd.jupyter.widget-view+json", "application/vnd.plotly.v1+json"} & set(o.get("data", {}))
+                ]
+                self.assertTrue(pictured)
+                self.assertTrue(all("image/png" in o["data"] for o in pictured))
+                body, _ = HTMLExporter().from_notebook_node(nb)
+                self.assertEqual(body.count('<img src="data:image/png;base64,'), len(pictured))
+                self.assertNotIn('type="application/vnd.jupyter.widget-view+json"', body)
+
     def check_tour(self, cells):
         """What the fixture shows: a model table, a summary and its figure (live and as a picture), a
         progress bar finished by the result."""
