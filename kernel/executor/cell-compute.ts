@@ -7,7 +7,9 @@
  *     model's units, zone and parameter values.
  */
 import { randomUUID } from 'node:crypto';
-import type { ComputeAsyncOptions, DiagnosticRequest, DiagnosticResult, PointFunctionFactory } from '../../src/index.js';
+import type { ComputeAsyncOptions, DiagnosticRequest, DiagnosticResult } from '../../src/index.js';
+import { phaseMapCounting } from '../../widgets/src/diagnose.js';
+import type { DiagnosticRequest as WidgetRequest } from '../../widgets/src/protocol.js';
 import { REQUEST_OF } from '../display/index.js';
 import { progressBundle, type ProgressState } from '../display/progress.js';
 import type { WorkerToHost } from './channel.js';
@@ -19,8 +21,6 @@ const REDRAW_MS = 250;
 export interface Engine {
   compute(request: DiagnosticRequest): DiagnosticResult;
   computeAsync(request: DiagnosticRequest, options?: ComputeAsyncOptions): Promise<DiagnosticResult>;
-  phaseMapSync(request: Extract<DiagnosticRequest, { kind: 'phase-map' }>, factory: PointFunctionFactory): DiagnosticResult;
-  pointFunction: PointFunctionFactory;
 }
 
 export function seconds(ms: number): string {
@@ -80,21 +80,11 @@ function remember<T extends DiagnosticResult>(result: T, request: DiagnosticRequ
 export function cellCompute(engine: Engine, post: (message: WorkerToHost) => void): Pick<Engine, 'compute' | 'computeAsync'> {
   function compute(request: DiagnosticRequest): DiagnosticResult {
     if (request === null || typeof request !== 'object' || request.kind !== 'phase-map') return remember(engine.compute(request), request);
-    // A phase map point by point: each point counted against the grid (boundary refinement adds a few more).
-    const grid = Array.isArray(request.axes) ? request.axes.reduce((n, axis) => n * (Number(axis?.count) || 1), 1) : 1;
+    // A phase map point by point, each point counted against the grid (boundary refinement adds a few more).
     const bar = new SilentProgress(post, `phase map of ${String(request.invariant ?? 'invariant')}`);
-    let done = 0;
-    const counting: PointFunctionFactory = (target) => {
-      const point = engine.pointFunction(target);
-      return (swept) => {
-        const outcome = point(swept);
-        done++;
-        bar.report(done, Math.max(grid, done + 1));
-        return outcome;
-      };
-    };
     try {
-      return remember(engine.phaseMapSync(request, counting), request);
+      const result = phaseMapCounting(request as unknown as WidgetRequest, (done, total) => bar.report(done, Math.max(total, done + 1)));
+      return remember(result as unknown as DiagnosticResult, request);
     } finally {
       bar.finish();
     }

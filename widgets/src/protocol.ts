@@ -65,6 +65,12 @@ export interface ComputeMessage {
   request: DiagnosticRequest;
 }
 
+/** Worker -> main thread, while a long request (a phase map) computes: points done of those planned. */
+export interface ComputeProgress {
+  id: number;
+  progress: { done: number; total: number };
+}
+
 /** Worker -> main thread. */
 export type ComputeReply =
   | { id: number; ok: true; result: DiagnosticResult; ms: number }

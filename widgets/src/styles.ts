@@ -18,8 +18,10 @@ const CSS = `
 .chernel-message { display: none; padding: 6px 8px; margin: 4px 0; border-radius: 3px; white-space: pre-wrap; }
 .chernel-message[data-level="error"] { display: block; background: #fdecea; color: #8a1c12; border: 1px solid #f5c2bc; }
 .chernel-message[data-level="warning"] { display: block; background: #fff6e0; color: #6b4a00; border: 1px solid #f0d9a0; }
-.chernel-footer { display: flex; gap: 6px; align-items: center; flex-wrap: wrap; margin-top: 4px; }
-.chernel-footer button { font: inherit; padding: 1px 8px; cursor: pointer; }
+.chernel-progress { display: none; align-items: center; gap: 8px; margin: 2px 0 6px; font-variant-numeric: tabular-nums; }
+.chernel-progress[data-active] { display: flex; }
+.chernel-progress progress { width: 14em; }
+.chernel-progress button, .chernel-footer { display: flex; gap: 6px; align-items: center; flex-wrap: wrap; margin-top: 4px; }
 .chernel-status { margin-left: auto; color: var(--jp-ui-font-color2, #666); font-size: 12px; }
 `;
 

@@ -134,6 +134,9 @@ export class DiagnosticView extends DOMWidgetView {
   private messageEl!: HTMLElement;
   private statusEl!: HTMLElement;
   private controlsHost!: HTMLElement;
+  /** A long computation's progress (a phase map's points) and its stop button. */
+  private progressEl!: HTMLElement;
+  private progressStarted: number | null = null;
   private controls: ParameterControls | null = null;
   private client: LatestWinsClient | null = null;
   private attached = false;
@@ -188,9 +191,21 @@ export class DiagnosticView extends DOMWidgetView {
     this.statusEl.className = 'chernel-status';
     footer.append(this.statusEl);
 
+    this.progressEl = document.createElement('div');
+    this.progressEl.className = 'chernel-progress';
+    const bar = document.createElement('progress');
+    bar.max = 1;
+    const progressText = document.createElement('span');
+    const stop = document.createElement('button');
+    stop.type = 'button';
+    stop.textContent = 'Stop';
+    stop.title = 'Stop this computation; the plot keeps the last result';
+    stop.addEventListener('click', () => this.stopComputing());
+    this.progressEl.append(bar, progressText, stop);
+
     this.controlsHost = document.createElement('div');
     for (const approach of ['pointerenter', 'focusin']) this.controlsHost.addEventListener(approach, () => this.warmUp(), { once: true });
-    this.el.append(header, this.messageEl, this.controlsHost, this.plot, footer);
+    this.el.append(header, this.messageEl, this.controlsHost, this.progressEl, this.plot, footer);
     this.buildControls();
 
     this.listenTo(this.model, 'change:values', (_m: unknown, _v: unknown, options: { updated_view?: unknown }) => {
@@ -335,7 +350,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private engine(): LatestWinsClient {
-    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
+    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()), (fraction) => this.showProgress(fraction));
     return this.client;
   }
 
@@ -371,8 +386,40 @@ export class DiagnosticView extends DOMWidgetView {
     else this.plot.classList.remove('chernel-stale');
   }
 
+  /** A phase map on its way: how far, about how long is left, and a way to stop it. */
+  private showProgress(fraction: number): void {
+    if (!this.attached) return;
+    const now = performance.now();
+    this.progressStarted ??= now;
+    const elapsed = now - this.progressStarted;
+    const left = fraction > 0.02 ? ` · about ${Math.max(1, Math.round((elapsed * (1 - fraction)) / fraction / 1000))} s left` : '';
+    (this.progressEl.querySelector('progress') as HTMLProgressElement).value = fraction;
+    (this.progressEl.querySelector('span') as HTMLElement).textContent = `computing: ${Math.round(fraction * 100)}%${left}`;
+    this.progressEl.dataset.active = 'true';
+  }
+
+  private hideProgress(): void {
+    this.progressStarted = null;
+    delete this.progressEl.dataset.active;
+  }
+
+  /** The stop button: the workers end; the plot keeps the last result, and the message says so. */
+  private stopComputing(): void {
+    const stopped = this.client?.stop() ?? null;
+    this.hideProgress();
+    if (this.staleTimer !== null) clearTimeout(this.staleTimer);
+    this.staleTimer = null;
+    this.plot.classList.remove('chernel-stale');
+    if (stopped === null) return;
+    const values = describeValues(stopped.params, this.parameterOrder());
+    this.showMessage('warning', `Stopped: nothing was computed for ${values}; the plot shows the last result.`);
+    this.statusEl.textContent = `stopped at ${values}`;
+    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stopped.params } }));
+  }
+
   private computed(outcome: Outcome): void {
     if (!this.attached) return;
+    if (!(this.client?.busy ?? false)) this.hideProgress();
     const values = outcome.request.params;
     if (outcome.error) {
       const message = `${outcome.error.name}: ${outcome.error.message}`;
