@@ -11,7 +11,10 @@ import { resolveParameters, validateModel, type ModelSpec } from '../src/index.j
 import { diagnose } from '../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
-import { MIME_BUNDLE } from './display/index.js';
+import { figureOutput, MIME_BUNDLE } from './display/index.js';
+import { latticePicture } from './display/lattice.js';
+import type { ResultLike } from './display/summary.js';
+import type { LatticePicture } from '../widgets/src/figures/lattice.js';
 import { figurePng } from './display/pictures.js';
 import { integerOrValue } from '../widgets/src/figures/curvature.js';
 import { figureFor } from '../widgets/src/figures/index.js';
@@ -50,7 +53,7 @@ export class TopologyWidget {
   constructor(model: unknown, options: WidgetOptions = {}) {
     const { kind = 'curvature', values = {}, title = '', ...requestOptions } = options;
     if (!WIDGET_KINDS.includes(kind)) {
-      throw new WidgetOptionError('kind', `expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(kind)}`);
+      throw new WidgetOptionError('kind', `expected one of ${[...WIDGET_KINDS, 'lattice'].join(', ')}. Value: ${JSON.stringify(kind)}`);
     }
     this.kind = kind;
     this.spec = validateModel(model);
@@ -196,10 +199,32 @@ export class TopologyWidget {
   }
 }
 
+/** A picture of a few cells of a model's lattice at some parameter values (`show(model, {kind: 'lattice'})`). */
+export class LatticeDrawing {
+  constructor(readonly picture: LatticePicture) {}
+
+  [MIME_BUNDLE](): Record<string, unknown> {
+    return figureOutput(this.picture as unknown as ResultLike)?.data ?? { 'text/plain': `lattice of ${this.picture.name}` };
+  }
+}
+
+export interface LatticeOptions {
+  kind: 'lattice';
+  /** Parameter values for the amplitudes (defaults from the model for the rest). */
+  values?: Values;
+}
+
 /**
  * `show(model, options)` in a cell: a live widget for the model. As a cell's value it displays
- * itself; `display(w)` shows another view of the same widget.
+ * itself; `display(w)` shows another view of the same widget. `{kind: 'lattice'}` draws a few cells
+ * of the model's lattice instead: sites, bonds coloured by the phase of their amplitude, the unit cell.
  */
-export function show(model: unknown, options: WidgetOptions = {}): TopologyWidget {
-  return new TopologyWidget(model, options);
+export function show(model: unknown, options: LatticeOptions): LatticeDrawing;
+export function show(model: unknown, options?: WidgetOptions): TopologyWidget;
+export function show(model: unknown, options: WidgetOptions | LatticeOptions = {}): TopologyWidget | LatticeDrawing {
+  if (options.kind === 'lattice') {
+    const spec = validateModel(model);
+    return new LatticeDrawing(latticePicture(spec, checkValues(spec, options.values ?? {})));
+  }
+  return new TopologyWidget(model, options as WidgetOptions);
 }

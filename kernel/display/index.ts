@@ -2,7 +2,8 @@
  * Values become outputs here, in the worker where they live. Order of choice:
  *   1. an object that renders itself: a method under `MIME_BUNDLE` returning a bundle (widgets use
  *      this for `application/vnd.jupyter.widget-view+json`);
- *   2. a model description (`format: 'chernel.model'`): a summary table;
+ *   2. a model description (`format: 'chernel.model'`): a summary table, and a picture of a few
+ *      cells of its lattice (sites, bonds by amplitude and phase, the unit cell);
  *   3. an engine result (`kind` + `checks`): a summary (text and HTML) and, when its kind has a
  *      figure (widgets/src/figures/), a second output with the figure: plotly's JSON, which the
  *      lab draws live, and a PNG of it, which every viewer shows (trusted or not, with or without
@@ -17,6 +18,7 @@ import { figureFor, hasFigure, type Figure, type FigureContext } from '../../wid
 import { rasterImage } from '../../widgets/src/picture.js';
 import { PLOTLY_MIME, type DiagnosticResult, type ModelSpecView } from '../../widgets/src/protocol.js';
 import type { DisplayOutput, MimeBundle } from '../executor/channel.js';
+import { latticePicture } from './lattice.js';
 import { figurePng } from './pictures.js';
 import { isModelSpec, isResult, modelHtml, modelText, resultHtml, resultText, type ResultLike } from './summary.js';
 
@@ -104,7 +106,16 @@ export function displayOutputs(value: unknown): DisplayOutput[] {
     if (!('text/plain' in bundle.data)) bundle.data['text/plain'] = plainText(value);
     return [bundle];
   }
-  if (isModelSpec(value)) return [{ data: { 'text/plain': modelText(value), 'text/html': modelHtml(value) }, metadata: {} }];
+  if (isModelSpec(value)) {
+    const summary: DisplayOutput = { data: { 'text/plain': modelText(value), 'text/html': modelHtml(value) }, metadata: {} };
+    let lattice: DisplayOutput | null = null;
+    try {
+      lattice = figureOutput(latticePicture(value as unknown as ModelSpec) as unknown as ResultLike);
+    } catch {
+      // A model that does not validate shows its summary; using it names the bad field.
+    }
+    return lattice === null ? [summary] : [summary, lattice];
+  }
   if (isResult(value)) {
     const summary: DisplayOutput = { data: { 'text/plain': resultText(value), 'text/html': resultHtml(value) }, metadata: {} };
     const figure = figureOutput(value);

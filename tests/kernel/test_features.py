@@ -162,8 +162,12 @@ class Features(unittest.TestCase):
             "terms: [{from: 'A', to: 'B', cell: [0], amplitude: 'v'}]})"
         )
         _, outputs = harness.run(self.kc, model)
-        data = outputs[-1][1]["data"]
+        shown = [c["data"] for m, c, _ in outputs if m in ("display_data", "execute_result")]
+        data = shown[0]
         self.assertIn("model two-site chain", data["text/plain"])
+        # Then a picture of its lattice: three cells of the chain, its bond, the unit cell.
+        self.assertEqual(sorted(shown[1]), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
+        self.assertIn("lattice figure: 2 orbitals, 1 hopping from the home cell", shown[1]["text/plain"])
         self.assertIn("<table", data["text/html"])
         self.assertIn("intracell hopping", data["text/html"])
         gapless = "({kind: 'chern', checks: {minGap: 0, minGapAt: [0, 3.14159], grid: [12, 12], warnings: ['gap closes at k = (0, pi)'], gapless: true}, chern: null})"

@@ -3,8 +3,10 @@ import type { DiagnosticResult } from '../protocol.js';
 import type { Figure, FigureContext, Table } from './common.js';
 import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
+import { dosFigure, dosTable } from './dos.js';
 import { flowFigure, flowTable } from './flow.js';
 import { gapFigure, gapTable } from './gap.js';
+import { latticeFigure, latticeTable } from './lattice.js';
 import { phaseMapFigure, phaseMapTable } from './phase-map.js';
 import { ribbonFigure, ribbonTable } from './ribbon.js';
 
@@ -22,6 +24,8 @@ const RENDERERS: Record<string, Renderer> = {
   ribbon: { figure: ribbonFigure, table: ribbonTable },
   'phase-map': { figure: phaseMapFigure, table: phaseMapTable },
   gap: { figure: gapFigure, table: gapTable },
+  dos: { figure: dosFigure, table: dosTable },
+  lattice: { figure: latticeFigure, table: latticeTable },
 };
 
 /** Whether results of this kind have a figure. */

@@ -276,8 +276,10 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     const line = obj(t.line);
     const marker = obj(t.marker);
     const fallback = parseColour(SEQUENCE[i % SEQUENCE.length]) ?? DEFAULT_LINE;
+    const opacity = num(t.opacity) ?? 1;
     if (mode.includes('lines')) {
-      const paint = parseColour(line.color) ?? fallback;
+      const stroke = parseColour(line.color) ?? fallback;
+      const paint = { ...stroke, alpha: stroke.alpha * opacity };
       const dash = str(line.dash);
       const step = str(line.shape) === 'hv';
       const lx: (number | null)[] = [];
