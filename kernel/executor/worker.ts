@@ -6,6 +6,7 @@
 
 import { Console } from 'node:console';
 import { Writable } from 'node:stream';
+import { fileURLToPath } from 'node:url';
 import vm from 'node:vm';
 import { parentPort, workerData } from 'node:worker_threads';
 import { InterruptedError, installInterruptFlag } from '../../src/interrupt.js';
@@ -15,6 +16,7 @@ import type { Description, HostToWorker, SerializedError, WorkerToHost } from '.
 import { importFromCwd } from './resolve.js';
 import { cellCompute, type Engine } from './cell-compute.js';
 import { createScope, DisplayHandle } from './scope.js';
+import { CellRegistry } from './traceback.js';
 import { RUNTIME } from './transpile.js';
 
 const port = parentPort;
@@ -40,9 +42,11 @@ globalThis.console = new Console({ stdout, stderr });
 for (const [stream, target] of [[process.stdout, stdout], [process.stderr, stderr]] as const) {
   Object.defineProperty(stream, 'write', { value: target.write.bind(target), configurable: true, writable: true });
 }
+/** Background errors print their stack with this machine's paths shortened (traceback.ts). */
+const paths = new CellRegistry(fileURLToPath(new URL('..', import.meta.url)));
 const reportBackground = (what: string) => (error: unknown) => {
   const text = error instanceof Error ? (error.stack ?? String(error)) : plainText(error);
-  post({ type: 'stream', name: 'stderr', text: `${what}: ${text}\n` });
+  post({ type: 'stream', name: 'stderr', text: `${what}: ${paths.scrub(text)}\n` });
 };
 process.on('uncaughtException', reportBackground('Uncaught error in background code'));
 process.on('unhandledRejection', reportBackground('Unhandled promise rejection'));

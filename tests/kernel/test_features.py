@@ -245,6 +245,12 @@ class Features(unittest.TestCase):
         for private in {str(harness.ROOT), os.path.expanduser("~"), "file://", "dist/src", "node:internal"}:
             self.assertNotIn(private, text)
         self.assertEqual(len([l for l in reply["traceback"] if "chernel engine" in l]), 1)
+        # An error thrown later, outside any cell's run, is printed without the machine's paths too.
+        reply, outputs = harness.run(self.kc, "setTimeout(() => compute({kind: 'chern', model: qwz(), params: {u: 9}}), 10)\nawait new Promise((r) => setTimeout(r, 200))")
+        printed = "".join(c.get("text", "") for m, c, _ in outputs if m == "stream")
+        self.assertIn("Uncaught error in background code: ModelError: params.u", printed)
+        for private in {str(harness.ROOT), os.path.expanduser("~"), "file://"}:
+            self.assertNotIn(private, printed)
 
     def test_a_long_phase_map_shows_a_progress_bar_with_the_time_left(self):
         # A fine map takes seconds (well under a millisecond a point, thousands of points).
