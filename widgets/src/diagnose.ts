@@ -4,7 +4,7 @@
  * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
  * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
-import { bands, BlochHamiltonian, compute, curvatureMap, phaseMapSync, pointFunction, wannierFlow, type ModelSpec, type PointFunctionFactory } from '../../src/index.js';
+import { bands, BlochHamiltonian, compute, curvatureMap, phaseMapSync, pointFunction, wannierFlow, z2Index, type ModelSpec, type PointFunctionFactory } from '../../src/index.js';
 import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
@@ -19,6 +19,8 @@ const ON_COMPILED = {
   curvature: curvatureMap,
   'wannier-flow': wannierFlow,
   bands,
+  // The Z2 count beside a flow (below): same model, same values, no second compilation.
+  z2: z2Index,
 } as const;
 
 let compiled: { key: string; hamiltonian: BlochHamiltonian } | null = null;
