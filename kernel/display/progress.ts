@@ -14,7 +14,7 @@ export function progressBundle(state: ProgressState): DisplayOutput {
   const fraction = state.total ? Math.min(1, Math.max(0, state.done / state.total)) : null;
   const percent = fraction === null ? '' : `${Math.round(fraction * 100)}%`;
   // A count is shown only when counting items (total > 1); `{fraction}` progress shows a percentage.
-  const count = state.total === null ? ` (${state.done})` : state.total > 1 ? ` (${state.done}/${state.total})` : '';
+  const count = state.total === null ? (state.done > 0 ? ` (${state.done})` : '') : state.total > 1 ? ` (${state.done}/${state.total})` : '';
   const width = 30;
   const filled = fraction === null ? 0 : Math.round(fraction * width);
   const bar = `[${'#'.repeat(filled)}${'.'.repeat(width - filled)}]`;

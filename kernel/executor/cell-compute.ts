@@ -1,13 +1,15 @@
 /**
  * The `compute` and `computeAsync` a cell sees: the engine's, plus two things a notebook needs.
  *   - A computation that runs longer than a second shows a progress bar by itself, with the time
- *     left: a phase map counts its points; `computeAsync` reports its fraction. The bar stays, at
- *     100%, saying how long it took.
+ *     left: a phase map counts its points; `computeAsync` reports its fraction; any other
+ *     computation, whose share done is unknown, shows how long it has run (the engine's loops
+ *     call back at every interrupt check). The bar stays, at 100%, saying how long it took.
  *   - The result remembers its request (under REQUEST_OF, not enumerable), so its figure knows the
  *     model's units, zone and parameter values.
  */
 import { randomUUID } from 'node:crypto';
 import type { ComputeAsyncOptions, DiagnosticRequest, DiagnosticResult } from '../../src/index.js';
+import { onInterruptCheck } from '../../src/interrupt.js';
 import { phaseMapCounting } from '../../widgets/src/diagnose.js';
 import type { DiagnosticRequest as WidgetRequest } from '../../widgets/src/protocol.js';
 import { REQUEST_OF } from '../display/index.js';
@@ -44,6 +46,15 @@ export class SilentProgress {
     this.state = { label, done: 0, total: 1, finished: false };
   }
 
+  /** Still running, share done unknown: shows the time so far (and an empty bar). */
+  alive(): void {
+    const elapsed = this.now() - this.started;
+    if (elapsed < SHOW_AFTER_MS || this.now() - this.lastDrawn < REDRAW_MS) return;
+    this.state.total = null;
+    this.state.note = `${seconds(elapsed)} so far`;
+    this.draw();
+  }
+
   /** `done` of `total` (a fraction when total is 1). */
   report(done: number, total = 1): void {
     const elapsed = this.now() - this.started;
@@ -59,7 +70,8 @@ export class SilentProgress {
   finish(): void {
     if (!this.shown) return;
     this.state.finished = true;
-    this.state.done = this.state.total ?? 1;
+    this.state.total ??= 1;
+    this.state.done = this.state.total;
     this.state.note = `in ${seconds(this.now() - this.started)}`;
     this.draw();
   }
@@ -79,7 +91,16 @@ function remember<T extends DiagnosticResult>(result: T, request: DiagnosticRequ
 /** Scope entries replacing the engine's `compute` and `computeAsync` in cells. */
 export function cellCompute(engine: Engine, post: (message: WorkerToHost) => void): Pick<Engine, 'compute' | 'computeAsync'> {
   function compute(request: DiagnosticRequest): DiagnosticResult {
-    if (request === null || typeof request !== 'object' || request.kind !== 'phase-map') return remember(engine.compute(request), request);
+    if (request === null || typeof request !== 'object' || request.kind !== 'phase-map') {
+      const bar = new SilentProgress(post, String(request?.kind ?? 'computation'));
+      onInterruptCheck(() => bar.alive());
+      try {
+        return remember(engine.compute(request), request);
+      } finally {
+        onInterruptCheck(null);
+        bar.finish();
+      }
+    }
     // A phase map point by point, each point counted against the grid (boundary refinement adds a few more).
     const bar = new SilentProgress(post, `phase map of ${String(request.invariant ?? 'invariant')}`);
     try {
@@ -93,9 +114,13 @@ export function cellCompute(engine: Engine, post: (message: WorkerToHost) => voi
   async function computeAsync(request: DiagnosticRequest, options: ComputeAsyncOptions = {}): Promise<DiagnosticResult> {
     if (options.onProgress !== undefined) return remember(await engine.computeAsync(request, options), request);
     const bar = new SilentProgress(post, String(request?.kind ?? 'computation'));
+    // A phase map reports its fraction; anything else only that it is still running.
+    const sweep = request?.kind === 'phase-map';
+    if (!sweep) onInterruptCheck(() => bar.alive());
     try {
-      return remember(await engine.computeAsync(request, { ...options, onProgress: (fraction) => bar.report(fraction) }), request);
+      return remember(await engine.computeAsync(request, sweep ? { ...options, onProgress: (fraction) => bar.report(fraction) } : options), request);
     } finally {
+      if (!sweep) onInterruptCheck(null);
       bar.finish();
     }
   }

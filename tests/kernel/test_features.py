@@ -265,6 +265,16 @@ class Features(unittest.TestCase):
         # The result follows as usual: summary and figure.
         self.assertIn("phase-map result", [c["data"]["text/plain"] for m, c, _ in outputs if m == "display_data" and "<table" in c["data"].get("text/html", "")][0])
 
+    def test_any_long_computation_shows_how_long_it_has_run(self):
+        # A fine curvature map takes seconds; its share done is unknown, so the bar says the time so far.
+        code = "const fine = compute({kind: 'curvature', model: kaneMele(), grid: [1200, 1200], bands: 2}); fine.grid"
+        reply, outputs = harness.run(self.kc, code, timeout=120)
+        self.assertEqual(reply["status"], "ok")
+        bars = [c["data"]["text/plain"] for m, c, _ in outputs if "display" in m and "<progress" in c["data"].get("text/html", "")]
+        self.assertTrue(bars, "no progress bar for a computation of several seconds")
+        self.assertTrue(any("so far" in text for text in bars), bars)
+        self.assertRegex(bars[-1], r"done · in \d+ s$")
+
     # --- completion and inspection ---------------------------------------------------------------
     def test_complete_variables_and_members(self):
         self.value("const myTable = { alpha: 1, beta: 2 }")
