@@ -166,6 +166,11 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     await restored.locator('.chernel-status', { hasText: 'M = 1.5 · engine' }).waitFor();
     expect(await restored.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(1.5)));
     await lab.screenshot('widgets-lab-restored');
+    // What the collaborator explored is saved too, though no kernel knows this widget.
+    await shared.save();
+    const output = (JSON.parse(readFileSync(join(lab.rootDir, 'shared.ipynb'), 'utf8')) as { cells: { outputs: { data?: Record<string, unknown> }[] }[] }).cells[0].outputs.find((o) => o.data?.['application/vnd.chernel.widget-state+json']);
+    expect((output?.data?.['application/vnd.chernel.widget-state+json'] as { state: { result_values: Record<string, number> } }).state.result_values).toMatchObject({ M: 1.5 });
+    expect(String(output?.data?.['text/plain'])).toContain('M = 1.5');
     // Nothing from the widget bundle among the page's errors.
     expect(lab.unexpectedErrors().filter((line) => /chernel|widgets_lib_index/.test(line))).toEqual([]);
   });
