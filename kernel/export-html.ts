@@ -9,8 +9,8 @@ import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { validateModel } from '../src/model/validate.js';
-import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
-import { diagnosticStateProblem } from '../widgets/src/saved-state.js';
+import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
+import { diagnosticStateProblem } from '../widgets/src/state-check.js';
 import { WIDGET_MODULE } from './widget-state.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
@@ -169,9 +169,12 @@ export function widgetProblems(notebook: unknown): WidgetProblem[] {
   if (!isObject(notebook)) return [];
   const cells = cellsOf(notebook);
   const widgets = isObject(notebook.metadata) && isObject(notebook.metadata.widgets) ? notebook.metadata.widgets : {};
-  const saved = widgets[WIDGET_STATE_MIME];
+  // The states the outputs carry count as saved (a notebook saved with the lab's default settings has no other).
+  const saved = isObject(widgets[WIDGET_STATE_MIME]) || widgets[WIDGET_STATE_MIME] === undefined
+    ? withOutputStates(widgets[WIDGET_STATE_MIME] as Json | undefined, cells)
+    : widgets[WIDGET_STATE_MIME];
   let all: string | null = null;
-  if (saved === undefined) all = 'the notebook carries no saved widget state (it was saved with widget-state saving off); re-run it and save';
+  if (saved === undefined) all = 'the notebook carries no saved widget state (neither in its outputs nor in its metadata); re-run it and save';
   else if (!isObject(saved)) all = 'the saved widget state is not an object';
   else if (saved.version_major !== SAVED_STATE_VERSION) all = `the saved widget state has version ${JSON.stringify(saved.version_major)}.${JSON.stringify(saved.version_minor)}; this page reads ${SAVED_STATE_VERSION}.x`;
   else if (!isObject(saved.state)) all = 'the saved widget state has no models (metadata "state" is missing)';
@@ -252,6 +255,25 @@ export interface ExportOptions {
   title?: string;
 }
 
+/**
+ * The notebook's saved widget state, with the states chernel's widget outputs carry themselves
+ * (SAVED_WIDGET_MIME: a notebook saved with the lab's default settings has no other); an output's
+ * copy wins, as in the lab. Undefined when there is neither.
+ */
+function withOutputStates(saved: Json | undefined, cells: Cell[]): Json | undefined {
+  const state: Json = { ...((saved?.state as Json | undefined) ?? {}) };
+  for (const output of cells.flatMap((c) => c.outputs)) {
+    const data = (output.data ?? {}) as Json;
+    const entry = data[SAVED_WIDGET_MIME] as Json | undefined;
+    const modelId = (data[WIDGET_VIEW_MIME] as Json | undefined)?.model_id;
+    if (entry === undefined || typeof modelId !== 'string') continue;
+    const { model_id: _id, ...rest } = entry;
+    state[modelId] = rest;
+  }
+  if (saved === undefined && Object.keys(state).length === 0) return undefined;
+  return { version_major: 2, version_minor: 0, ...(saved ?? {}), state };
+}
+
 /** The page for a parsed notebook. Throws NotebookFormatError naming the malformed field. */
 export function notebookToHtml(notebook: unknown, options: ExportOptions = {}): string {
   return renderNotebook(notebook, options).html;
@@ -267,7 +289,7 @@ export function renderNotebook(notebook: unknown, options: ExportOptions = {}): 
   const cells = cellsOf(nb);
   const metadata = (nb.metadata ?? {}) as Json;
   const widgets = (metadata.widgets ?? {}) as Json;
-  const widgetState = widgets[WIDGET_STATE_MIME];
+  const widgetState = withOutputStates(widgets[WIDGET_STATE_MIME] as Json | undefined, cells);
   const runtimePath = options.runtime ?? defaultRuntimePath();
   if (!existsSync(runtimePath)) {
     throw new Error(`export-html: the widget runtime ${runtimePath} is missing; run \`npm run build\` in widgets/`);

@@ -11,12 +11,19 @@ import { resolveParameters, validateModel, type ModelSpec } from '../src/index.j
 import { diagnose } from '../widgets/src/diagnose.js';
 import type { DiagnosticRequest } from '../widgets/src/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
-import { MIME_BUNDLE } from './display/index.js';
-import { WIDGET_KINDS, WIDGET_VIEW_MIME, type WidgetKind } from '../widgets/src/protocol.js';
+import { figureOutput, MIME_BUNDLE } from './display/index.js';
+import { latticePicture } from './display/lattice.js';
+import type { ResultLike } from './display/summary.js';
+import type { LatticePicture } from '../widgets/src/figures/lattice.js';
+import { figurePng } from './display/pictures.js';
+import { integerOrValue } from '../widgets/src/figures/curvature.js';
+import { figureFor } from '../widgets/src/figures/index.js';
+import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../widgets/src/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
 import {
   checkValues,
   checkWidgetOptions,
+  savedStateEntry,
   WIDGET_PROTOCOL_VERSION,
   WidgetOptionError,
   widgetState,
@@ -47,7 +54,7 @@ export class TopologyWidget {
   constructor(model: unknown, options: WidgetOptions = {}) {
     const { kind = 'curvature', values = {}, title = '', ...requestOptions } = options;
     if (!WIDGET_KINDS.includes(kind)) {
-      throw new WidgetOptionError('kind', `expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(kind)}`);
+      throw new WidgetOptionError('kind', `expected one of ${[...WIDGET_KINDS, 'lattice'].join(', ')}. Value: ${JSON.stringify(kind)}`);
     }
     checkWidgetOptions(kind, options);
     this.kind = kind;
@@ -82,9 +89,15 @@ export class TopologyWidget {
     return { ...this.current };
   }
 
-  /** The last result (computed here at creation, then by the front end as values move). */
+  /**
+   * The last result (computed here at creation, then by the front end as values move). A curvature
+   * map's Chern number is also under `chern`, the name every other Chern result uses (an integer,
+   * as the lattice sum is one up to rounding).
+   */
   get result(): Result | null {
-    return this.lastResult;
+    const result = this.lastResult;
+    if (result?.kind === 'curvature' && !('chern' in result)) return { ...result, chern: integerOrValue(typeof result.total === 'number' ? result.total : null) };
+    return result;
   }
 
   /** The values `result` was computed for. */
@@ -97,12 +110,14 @@ export class TopologyWidget {
     return this.lastError;
   }
 
-  /** Move the controls: the front end recomputes and syncs the result back. */
-  setValues(values: Values): this {
+  /**
+   * Move the controls: the front end recomputes and syncs the result back. Returns nothing, so a
+   * cell ending with it shows no second view of the widget.
+   */
+  setValues(values: Values): void {
     const checked = checkValues(this.spec, values, 'setValues');
     this.current = { ...this.current, ...checked };
     this.send({ values: this.current });
-    return this;
   }
 
   /** Called after every change synced from the front end. */
@@ -115,13 +130,34 @@ export class TopologyWidget {
     this.comm.close();
   }
 
+  /**
+   * The live view, and beside it what outlives the kernel: the widget's state (a front end with no
+   * saved widget state restores the widget from it) and a PNG of its last result (what an untrusted
+   * notebook, nbconvert and viewers without JavaScript show).
+   */
   [MIME_BUNDLE](): Record<string, unknown> {
-    return {
+    const bundle: Record<string, unknown> = {
       [WIDGET_VIEW_MIME]: { model_id: this.comm.id, version_major: 2, version_minor: 0 },
+      [SAVED_WIDGET_MIME]: { model_id: this.comm.id, ...savedStateEntry(this.state()) },
       'text/plain': `${this.kind} widget for model "${this.spec.name}" (${Object.entries(this.current)
         .map(([k, v]) => `${k} = ${v}`)
         .join(', ')})`,
     };
+    const picture = this.picture();
+    if (picture !== null) bundle['image/png'] = picture;
+    return bundle;
+  }
+
+  /** The PNG of the last result, drawn as the view draws it; null without a result. */
+  private picture(): string | null {
+    if (this.lastResult === null) return null;
+    const values = this.resultValues ?? this.current;
+    try {
+      const figure = figureFor(this.lastResult as DiagnosticResult, { spec: this.spec as unknown as ModelSpecView, values, options: this.options });
+      return figurePng(figure);
+    } catch {
+      return null; // the view shows the same figure error; the state still travels
+    }
   }
 
   private computeNow(values: Values): Result {
@@ -165,10 +201,32 @@ export class TopologyWidget {
   }
 }
 
+/** A picture of a few cells of a model's lattice at some parameter values (`show(model, {kind: 'lattice'})`). */
+export class LatticeDrawing {
+  constructor(readonly picture: LatticePicture) {}
+
+  [MIME_BUNDLE](): Record<string, unknown> {
+    return figureOutput(this.picture as unknown as ResultLike)?.data ?? { 'text/plain': `lattice of ${this.picture.name}` };
+  }
+}
+
+export interface LatticeOptions {
+  kind: 'lattice';
+  /** Parameter values for the amplitudes (defaults from the model for the rest). */
+  values?: Values;
+}
+
 /**
  * `show(model, options)` in a cell: a live widget for the model. As a cell's value it displays
- * itself; `display(w)` shows another view of the same widget.
+ * itself; `display(w)` shows another view of the same widget. `{kind: 'lattice'}` draws a few cells
+ * of the model's lattice instead: sites, bonds coloured by the phase of their amplitude, the unit cell.
  */
-export function show(model: unknown, options: WidgetOptions = {}): TopologyWidget {
-  return new TopologyWidget(model, options);
+export function show(model: unknown, options: LatticeOptions): LatticeDrawing;
+export function show(model: unknown, options?: WidgetOptions): TopologyWidget;
+export function show(model: unknown, options: WidgetOptions | LatticeOptions = {}): TopologyWidget | LatticeDrawing {
+  if (options.kind === 'lattice') {
+    const spec = validateModel(model);
+    return new LatticeDrawing(latticePicture(spec, checkValues(spec, options.values ?? {})));
+  }
+  return new TopologyWidget(model, options as WidgetOptions);
 }

@@ -1,4 +1,6 @@
-"""Executes the demo notebooks in place with the chernel kernel, saving outputs and widget state.
+"""Executes the demo notebooks in place with the chernel kernel, saving their outputs. Each widget's
+state travels in its own output (as a lab with default settings saves it), not in the notebook's
+widget-state metadata, so nbconvert and untrusted viewers show the widget's picture.
 
 Run with Debian's Python after `npm run setup`: /usr/bin/python3 scripts/run-demos.py [names...]
 A notebook with an error output is reported and left unchanged on disk."""
@@ -24,7 +26,8 @@ for path in sorted((ROOT / "notebooks-demo").glob("*.ipynb")):
     if wanted and not any(w in path.name for w in wanted):
         continue
     nb = nbformat.read(path, as_version=4)
-    client = NotebookClient(nb, kernel_name="chernel", timeout=600, store_widget_state=True, allow_errors=True,
+    nb.metadata.pop("widgets", None)  # from an older save: the outputs carry the state now
+    client = NotebookClient(nb, kernel_name="chernel", timeout=600, store_widget_state=False, allow_errors=True,
                             resources={"metadata": {"path": str(path.parent)}})
     client.execute()
     errors = [(i, o.get("ename"), o.get("evalue")) for i, c in enumerate(nb.cells) if c.cell_type == "code"

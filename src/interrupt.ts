@@ -21,7 +21,18 @@ export function installInterruptFlag(shared: Int32Array | null): void {
   flag = shared;
 }
 
+let heartbeat: (() => void) | null = null;
+
+/**
+ * Install (or with `null`, remove) a function called at every check: a sign of life from long
+ * loops, which a host uses to show that a computation is still running (the kernel's progress bar).
+ */
+export function onInterruptCheck(fn: (() => void) | null): void {
+  heartbeat = fn;
+}
+
 /** Throw `InterruptedError` if the host asked to stop; the flag stays set until the host clears it. */
 export function checkInterrupt(): void {
   if (flag !== null && Atomics.load(flag, 0) !== 0) throw new InterruptedError();
+  if (heartbeat !== null) heartbeat();
 }

@@ -6,18 +6,20 @@ export interface ProgressState {
   done: number;
   total: number | null;
   finished: boolean;
+  /** Said after the bar: the time left, or how long it took. */
+  note?: string;
 }
 
 export function progressBundle(state: ProgressState): DisplayOutput {
   const fraction = state.total ? Math.min(1, Math.max(0, state.done / state.total)) : null;
   const percent = fraction === null ? '' : `${Math.round(fraction * 100)}%`;
   // A count is shown only when counting items (total > 1); `{fraction}` progress shows a percentage.
-  const count = state.total === null ? ` (${state.done})` : state.total > 1 ? ` (${state.done}/${state.total})` : '';
+  const count = state.total === null ? (state.done > 0 ? ` (${state.done})` : '') : state.total > 1 ? ` (${state.done}/${state.total})` : '';
   const width = 30;
   const filled = fraction === null ? 0 : Math.round(fraction * width);
   const bar = `[${'#'.repeat(filled)}${'.'.repeat(width - filled)}]`;
   const label = state.label.replace(/[&<>]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;' })[c] ?? c);
-  const status = state.finished ? ' done' : '';
+  const status = (state.finished ? ' done' : '') + (state.note ? ` · ${state.note.replace(/[&<>]/g, '')}` : '');
   return {
     data: {
       'text/plain': `${state.label} ${bar} ${percent}${count}${status}`.trim(),

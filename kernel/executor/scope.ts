@@ -4,13 +4,21 @@
  */
 
 import { randomUUID } from 'node:crypto';
-import { mimeBundle } from '../display/index.js';
+import { displayOutputs } from '../display/index.js';
 import { progressBundle, type ProgressState } from '../display/progress.js';
 import type { WorkerToHost } from './channel.js';
 
 export interface ScopeHost {
   post(message: WorkerToHost): void;
   requestInput(prompt: string, password: boolean): Promise<string>;
+}
+
+/**
+ * Posts a value's outputs under one display id: the first output under the id itself, a second one
+ * (an engine result's figure) under `${id}-1`, so an update replaces each in place.
+ */
+export function postDisplay(host: Pick<ScopeHost, 'post'>, value: unknown, displayId: string, update: boolean): void {
+  displayOutputs(value).forEach((output, i) => host.post({ type: 'display', output, displayId: i === 0 ? displayId : `${displayId}-${i}`, update }));
 }
 
 /** Returned by `display()`; not itself shown as a cell's value. */
@@ -22,7 +30,7 @@ export class DisplayHandle {
 
   /** Replace what this display shows, in place. */
   update(value: unknown): void {
-    this.host.post({ type: 'display', output: mimeBundle(value), displayId: this.displayId, update: true });
+    postDisplay(this.host, value, this.displayId, true);
   }
 }
 
@@ -47,7 +55,7 @@ const MIN_INTERVAL_MS = 100;
 export function createScope(host: ScopeHost): Record<string, unknown> {
   function display(value: unknown, options: DisplayOptions = {}): DisplayHandle {
     const displayId = options.displayId ?? randomUUID();
-    host.post({ type: 'display', output: mimeBundle(value), displayId, update: options.update === true });
+    postDisplay(host, value, displayId, options.update === true);
     return new DisplayHandle(displayId, host);
   }
 
@@ -91,7 +99,12 @@ export function createScope(host: ScopeHost): Record<string, unknown> {
         state.finished = true;
         if (state.total !== null) state.done = state.total;
         if (result === undefined) show(true);
-        else host.post({ type: 'display', output: mimeBundle(result), displayId, update: true });
+        else {
+          // The bar becomes the result's summary; its figure, if any, is a new output below.
+          const [summary, ...rest] = displayOutputs(result);
+          host.post({ type: 'display', output: summary, displayId, update: true });
+          rest.forEach((output, i) => host.post({ type: 'display', output, displayId: `${displayId}-${i + 1}`, update: false }));
+        }
       },
     };
   }

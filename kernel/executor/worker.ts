@@ -6,16 +6,19 @@
 
 import { Console } from 'node:console';
 import { Writable } from 'node:stream';
+import { fileURLToPath } from 'node:url';
 import vm from 'node:vm';
 import { parentPort, workerData } from 'node:worker_threads';
 import { setComputeBudget } from '../../src/cost.js';
 import { InterruptedError, installInterruptFlag } from '../../src/interrupt.js';
 import { connectComms, handleFrontendComm } from '../comms.js';
-import { mimeBundle, plainText } from '../display/index.js';
+import { displayOutputs, plainText } from '../display/index.js';
 import type { Description, HostToWorker, SerializedError, WorkerToHost } from './channel.js';
 import { cellLimits } from './limits.js';
 import { importFromCwd } from './resolve.js';
+import { cellCompute, type Engine } from './cell-compute.js';
 import { createScope, DisplayHandle } from './scope.js';
+import { CellRegistry } from './traceback.js';
 import { RUNTIME } from './transpile.js';
 
 const port = parentPort;
@@ -41,9 +44,11 @@ globalThis.console = new Console({ stdout, stderr });
 for (const [stream, target] of [[process.stdout, stdout], [process.stderr, stderr]] as const) {
   Object.defineProperty(stream, 'write', { value: target.write.bind(target), configurable: true, writable: true });
 }
+/** Background errors print their stack with this machine's paths shortened (traceback.ts). */
+const paths = new CellRegistry(fileURLToPath(new URL('..', import.meta.url)));
 const reportBackground = (what: string) => (error: unknown) => {
   const text = error instanceof Error ? (error.stack ?? String(error)) : plainText(error);
-  post({ type: 'stream', name: 'stderr', text: `${what}: ${text}\n` });
+  post({ type: 'stream', name: 'stderr', text: `${what}: ${paths.scrub(text)}\n` });
 };
 process.on('uncaughtException', reportBackground('Uncaught error in background code'));
 process.on('unhandledRejection', reportBackground('Unhandled promise rejection'));
@@ -100,6 +105,14 @@ for (const [i, relative] of SCOPE_MODULES.entries()) {
 }
 const engineError = loadErrors.length ? loadErrors.join('\n') : null;
 for (const [name, value] of Object.entries(helpers)) define(name, value, false);
+/** The engine functions a cell sees in the kernel's own version (documented as the engine's). */
+const wrapped = new Map<string, unknown>();
+if (typeof engine.compute === 'function') {
+  for (const [name, value] of Object.entries(cellCompute(engine as unknown as Engine, post))) {
+    define(name, value, false);
+    wrapped.set(name, value);
+  }
+}
 
 // --- execution ------------------------------------------------------------------------------------
 let interruptCurrent: ((error: Error) => void) | null = null;
@@ -126,7 +139,10 @@ async function execute(message: Extract<HostToWorker, { type: 'execute' }>): Pro
     const interrupted = new Promise<never>((_, reject) => (interruptCurrent = reject));
     const value = await Promise.race([running, interrupted]);
     const show = message.hasValue && value !== undefined && !(value instanceof DisplayHandle) && !message.silent;
-    outcome = { type: 'done', id: message.id, result: show ? mimeBundle(value) : null, error: null };
+    // An engine result with a figure shows as two outputs: its summary first, the figure as the result.
+    const outputs = show ? displayOutputs(value) : [];
+    for (const output of outputs.slice(0, -1)) post({ type: 'display', output, displayId: null, update: false });
+    outcome = { type: 'done', id: message.id, result: outputs.at(-1) ?? null, error: null };
   } catch (error) {
     outcome = { type: 'done', id: message.id, result: null, error: serializeError(error) };
   } finally {
@@ -158,7 +174,7 @@ function memberNames(value: unknown): string[] {
 function describe(path: string[]): Description {
   const { found, value } = resolvePath(path);
   if (!found) return { found: false, engineExport: false, summary: '' };
-  const engineExport = path.length === 1 && Object.prototype.hasOwnProperty.call(engine, path[0]) && engine[path[0]] === value;
+  const engineExport = path.length === 1 && Object.prototype.hasOwnProperty.call(engine, path[0]) && (engine[path[0]] === value || wrapped.get(path[0]) === value);
   let summary: string;
   if (typeof value === 'function') {
     const source = Function.prototype.toString.call(value);

@@ -1,7 +1,8 @@
 /**
  * Standard models, each a function returning a ModelSpec with parameters named as in the paper that
  * introduced it, a default and a range for every parameter (what sliders span), and the citation in
- * `spec.doc`. Energies are in the model's own energy unit (unit 'energy'), angles in radians.
+ * `spec.doc`. Energies are in units of the model's own energy scale, which each unit names (e.g.
+ * 'energy (units of t)'), angles in radians.
  * Signs follow DEVELOPERS.md: a term {from a, to b, cell R, amplitude t} is <R,b|H|0,a> = t.
  */
 import { lattice } from './builder.js';
@@ -12,7 +13,8 @@ import { ModelError, show } from './errors.js';
 import type { ModelSpec } from './spec.js';
 import { checkFields, closestName } from '../request-fields.js';
 
-const E = 'energy';
+/** The unit of a model's energies: its own energy scale, named (e.g. 'energy (units of t)'). */
+const energyIn = (scale: string): string => `energy (units of ${scale})`;
 
 /**
  * Catalogue models take no options: their parameters are set per request (`params`) or per widget
@@ -37,8 +39,8 @@ export function ssh(): ModelSpec {
   refuseOptions('ssh', arguments, ssh);
   return lattice('SSH chain', [[1]])
     .describe('Su–Schrieffer–Heeger chain; Su, Schrieffer, Heeger, PRL 42, 1698 (1979). v intracell, w intercell hopping.')
-    .parameter('v', { default: 0.5, range: [-2, 2], unit: E, doc: 'intracell hopping (A to B in the same cell)' })
-    .parameter('w', { default: 1, range: [-2, 2], unit: E, doc: 'intercell hopping (B to A of the next cell)' })
+    .parameter('v', { default: 0.5, range: [-2, 2], unit: energyIn('w'), doc: 'intracell hopping (A to B in the same cell)' })
+    .parameter('w', { default: 1, range: [-2, 2], unit: energyIn('w'), doc: 'intercell hopping (B to A of the next cell)' })
     .site('A', [0]).site('B', [0.5])
     .hop('A', 'B', [0], 'v')
     .hop('B', 'A', [1], 'w')
@@ -53,9 +55,9 @@ export function riceMele(): ModelSpec {
   refuseOptions('riceMele', arguments, riceMele);
   return lattice('Rice–Mele chain', [[1]])
     .describe('Rice–Mele chain; Rice & Mele, PRL 49, 1455 (1982). SSH hoppings v, w plus staggered potential +u (A), -u (B).')
-    .parameter('v', { default: 0.5, range: [-2, 2], unit: E, doc: 'intracell hopping' })
-    .parameter('w', { default: 1, range: [-2, 2], unit: E, doc: 'intercell hopping' })
-    .parameter('u', { default: 0.2, range: [-2, 2], unit: E, doc: 'staggered onsite energy, +u on A and -u on B' })
+    .parameter('v', { default: 0.5, range: [-2, 2], unit: energyIn('w'), doc: 'intracell hopping' })
+    .parameter('w', { default: 1, range: [-2, 2], unit: energyIn('w'), doc: 'intercell hopping' })
+    .parameter('u', { default: 0.2, range: [-2, 2], unit: energyIn('w'), doc: 'staggered onsite energy, +u on A and -u on B' })
     .site('A', [0]).site('B', [0.5])
     .onsite('A', 'u').onsite('B', '-u')
     .hop('A', 'B', [0], 'v')
@@ -73,15 +75,15 @@ export function riceMele(): ModelSpec {
 export function kitaevChain(): ModelSpec {
   refuseOptions('kitaevChain', arguments, kitaevChain);
   const normal = lattice('Kitaev chain', [[1]])
-    .parameter('mu', { default: 0.5, range: [-4, 4], unit: E, doc: 'chemical potential' })
-    .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping (H has -t)' })
+    .parameter('mu', { default: 0.5, range: [-4, 4], unit: energyIn('t'), doc: 'chemical potential' })
+    .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'nearest-neighbour hopping (H has -t)' })
     .site('c', [0])
     .hop('c', 'c', [1], '-t')
     .build();
   const bdg = bogoliubov(normal, {
     name: 'Kitaev chain',
     chemicalPotential: 'mu',
-    parameters: { Delta: { default: 1, range: [-2, 2], unit: E, doc: 'p-wave pairing amplitude' } },
+    parameters: { Delta: { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'p-wave pairing amplitude' } },
     pairing: [{ from: 'c', to: 'c', cell: [1], amplitude: 'Delta' }],
   });
   return withDoc(bdg, 'Kitaev chain (BdG, Nambu basis (c_k, c+_-k), H = 1/2 Psi+ H_BdG Psi); Kitaev, Physics-Uspekhi 44, 131 (2001). Topological for |mu| < 2|t|.');
@@ -100,7 +102,7 @@ export function qwz(): ModelSpec {
   refuseOptions('qwz', arguments, qwz);
   return lattice('Qi–Wu–Zhang', [[1, 0], [0, 1]])
     .describe('Qi–Wu–Zhang model H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz; Qi, Wu, Zhang, PRB 74, 085308 (2006).')
-    .parameter('u', { default: -1, range: [-4, 4], unit: E, doc: 'mass (staggered onsite energy)' })
+    .parameter('u', { default: -1, range: [-4, 4], unit: energyIn('the hopping'), doc: 'mass (staggered onsite energy)' })
     .site('a', [0, 0]).site('b', [0, 0]).block('s', ['a', 'b'])
     .onsiteMatrix('s', { z: 'u' })
     .harmonic('s', [1, 0], { cos: { z: 1 }, sin: { x: 1 } })
@@ -129,10 +131,10 @@ export function haldane(): ModelSpec {
   refuseOptions('haldane', arguments, haldane);
   const b = lattice('Haldane model', HONEYCOMB)
     .describe('Haldane model on the honeycomb lattice (C–C distance 1); Haldane, PRL 61, 2015 (1988).')
-    .parameter('t1', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping' })
-    .parameter('t2', { default: 0.1, range: [-0.5, 0.5], unit: E, doc: 'second-neighbour hopping magnitude' })
+    .parameter('t1', { default: 1, range: [-2, 2], unit: energyIn('t1'), doc: 'nearest-neighbour hopping' })
+    .parameter('t2', { default: 0.1, range: [-0.5, 0.5], unit: energyIn('t1'), doc: 'second-neighbour hopping magnitude' })
     .parameter('phi', { default: Math.PI / 2, range: [-Math.PI, Math.PI], unit: 'rad', doc: 'second-neighbour phase (counter-clockwise)' })
-    .parameter('M', { default: 0.2, range: [-2, 2], unit: E, doc: 'sublattice mass, +M on A, -M on B' })
+    .parameter('M', { default: 0.2, range: [-2, 2], unit: energyIn('t1'), doc: 'sublattice mass, +M on A, -M on B' })
     .site('A', [0, 0]).site('B', [1 / 3, 1 / 3])
     .onsite('A', 'M').onsite('B', '-M');
   for (const c of NN_CELLS) b.hop('A', 'B', c, 't1');
@@ -150,10 +152,10 @@ export function kaneMele(): ModelSpec {
   refuseOptions('kaneMele', arguments, kaneMele);
   const b = lattice('Kane–Mele model', HONEYCOMB)
     .describe('Kane–Mele model on the honeycomb lattice (C–C distance 1); Kane & Mele, PRL 95, 226801 (2005).')
-    .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping' })
-    .parameter('lambda_SO', { default: 0.06, range: [-0.5, 0.5], unit: E, doc: 'intrinsic spin–orbit coupling' })
-    .parameter('lambda_R', { default: 0.05, range: [-0.5, 0.5], unit: E, doc: 'Rashba coupling' })
-    .parameter('lambda_v', { default: 0.1, range: [-1, 1], unit: E, doc: 'staggered sublattice potential, +A, -B' })
+    .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'nearest-neighbour hopping' })
+    .parameter('lambda_SO', { default: 0.06, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'intrinsic spin–orbit coupling' })
+    .parameter('lambda_R', { default: 0.05, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'Rashba coupling' })
+    .parameter('lambda_v', { default: 0.1, range: [-1, 1], unit: energyIn('t'), doc: 'staggered sublattice potential, +A, -B' })
     .site('A', [0, 0], { spin: true }).site('B', [1 / 3, 1 / 3], { spin: true })
     .onsite('A', 'lambda_v').onsite('B', '-lambda_v');
   // Cartesian bond vectors A -> B for the three neighbour cells (unit length).
@@ -180,9 +182,9 @@ export function bhz(): ModelSpec {
   refuseOptions('bhz', arguments, bhz);
   return lattice('BHZ-type square-lattice model', [[1, 0], [0, 1]])
     .describe('Four-band BHZ-type quantum spin Hall model on the square lattice; Bernevig, Hughes, Zhang, Science 314, 1757 (2006).')
-    .parameter('A', { default: 1, range: [-2, 2], unit: E, doc: 'spin–orbit (linear) term' })
-    .parameter('B', { default: 1, range: [-2, 2], unit: E, doc: 'band curvature' })
-    .parameter('M', { default: 1, range: [-10, 10], unit: E, doc: 'mass' })
+    .parameter('A', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'spin–orbit (linear) term' })
+    .parameter('B', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'band curvature' })
+    .parameter('M', { default: 1, range: [-10, 10], unit: energyIn('B'), doc: 'mass' })
     .site('s', [0, 0], { spin: true }).site('p', [0, 0], { spin: true })
     // spin (x) orbital: the Pauli string 'ab' is s_a (x) tau_b.
     .block('q', ['s.up', 'p.up', 's.dn', 'p.dn'])
@@ -203,7 +205,7 @@ export function hofstadter(p = 1, q = 3): ModelSpec {
     if (typeof value !== 'number') throw new ModelError(`hofstadter.${field}`, `expected a whole number (hofstadter(p, q): flux p/q per plaquette). Value: ${show(value)}`);
   }
   const square = lattice('square lattice', [[1, 0], [0, 1]])
-    .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'nearest-neighbour hopping (H has -t)' })
+    .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'nearest-neighbour hopping (H has -t)' })
     .site('a', [0, 0])
     .hop('a', 'a', [1, 0], '-t').hop('a', 'a', [0, 1], '-t')
     .build();
@@ -237,8 +239,8 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
   if (options === null || typeof options !== 'object' || Array.isArray(options)) throw new ModelError('coupledWires', `expected an options object {wires, boundary}. Value: ${show(options)}`);
   checkFields(options, ['wires', 'boundary'], 'coupledWires.', 'coupledWires() options');
   const chain = lattice('dimerized wire', [[1]])
-    .parameter('t', { default: 1, range: [0.6, 2], unit: E, doc: 'mean hopping along a wire' })
-    .parameter('delta', { default: 0.1, range: [-0.5, 0.5], unit: E, doc: 'dimerization: v = t + delta, w = t - delta' })
+    .parameter('t', { default: 1, range: [0.6, 2], unit: energyIn('t'), doc: 'mean hopping along a wire' })
+    .parameter('delta', { default: 0.1, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'dimerization: v = t + delta, w = t - delta' })
     .site('a', [0]).site('b', [0.5])
     .hop('a', 'b', [0], 't + delta')
     .hop('b', 'a', [1], 't - delta')
@@ -247,7 +249,7 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
     wires: options.wires,
     boundary: options.boundary,
     name: 'coupled-wire Chern insulator',
-    parameters: { g: { default: 0.3, range: [-0.5, 0.5], unit: E, doc: 'inter-wire coupling, left mover of wire n to right mover of wire n+1' } },
+    parameters: { g: { default: 0.3, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'inter-wire coupling, left mover of wire n to right mover of wire n+1' } },
     // T = g (sx - i sz): <n+1, a|H|n, a> = -i g, <n+1, b|H|n, b> = i g, <n+1, b|H|n, a> = <n+1, a|H|n, b> = g.
     couplings: [
       { from: 'a', to: 'a', cell: [0, 1], amplitude: { re: 0, im: '-g' } },
@@ -270,7 +272,7 @@ export function weyl2band(): ModelSpec {
   refuseOptions('weyl2band', arguments, weyl2band);
   return lattice('two-band Weyl semimetal', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
     .describe('Two-band Weyl semimetal on the cubic lattice (common practice): Weyl points at (0, 0, ±k0).')
-    .parameter('t', { default: 1, range: [-2, 2], unit: E, doc: 'overall energy scale' })
+    .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'overall energy scale' })
     .parameter('m', { default: 1, range: [0, 3], unit: '', doc: 'in-plane mass ratio that gaps kx, ky != 0' })
     .parameter('k0', { default: Math.PI / 2, range: [0, Math.PI], unit: 'rad', doc: 'Weyl points at kz = ±k0' })
     .site('a', [0, 0, 0]).site('b', [0, 0, 0]).block('s', ['a', 'b'])

@@ -4,6 +4,8 @@
 // go from 1 to 0; save, end the kernel, reload the page, and the widget comes back from the saved
 // notebook without a cell being run. Works on copies (outputs and widget state stripped) in a
 // temporary root; notebooks-demo/ is never written. Screenshots go to $CHERNEL_ARTIFACTS.
+// First, each demo as shipped is opened the way a collaborator opens a notebook they received
+// (not trusted): every widget and every figure output shows its picture.
 //
 // Physics: the coupled-wire Chern insulator of src/model/catalogue.ts (our design; the wire
 // construction of quantum Hall states is common practice) has C(lower) = 1 for |delta| < |g| < t and
@@ -20,6 +22,7 @@ import { artifactsDir, openLab, type CellOutput, type LabSession, type NotebookH
 
 const WIDGET_VIEW = 'application/vnd.jupyter.widget-view+json';
 const WIDGET_STATE = 'application/vnd.jupyter.widget-state+json';
+const SAVED_WIDGET = 'application/vnd.chernel.widget-state+json';
 const demoDir = join(projectDir, 'notebooks-demo');
 const kernelReady = existsSync(join(projectDir, 'bin', 'chernel.js')) && existsSync(join(projectDir, 'dist', 'kernel', 'cli.js'));
 
@@ -42,6 +45,19 @@ function strippedCopy(name: string, rootDir: string): void {
     cell.execution_count = null;
   }
   writeFileSync(join(rootDir, name), JSON.stringify(notebook, null, 1));
+}
+
+/**
+ * The shipped demo, changed in one metadata field so that no lab has signed it: a notebook someone
+ * else saved. Returns, per cell, the indexes of its outputs that are a widget or a figure.
+ */
+function receivedCopy(name: string, dir: string): number[][] {
+  const notebook = readNotebook(join(demoDir, name));
+  notebook.metadata.received_from = 'a collaborator';
+  writeFileSync(join(dir, name), JSON.stringify(notebook, null, 1));
+  return notebook.cells.map(cell =>
+    (cell.outputs ?? []).flatMap((o, i) => (o.data?.[WIDGET_VIEW] !== undefined || o.data?.['application/vnd.plotly.v1+json'] !== undefined ? [i] : [])),
+  );
 }
 
 /** Error outputs and anything written to stderr, as `cell N: text`. */
@@ -94,9 +110,8 @@ describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel
   beforeAll(async () => {
     rootDir = mkdtempSync(join(tmpdir(), 'chernel-lab-demos-'));
     for (const name of demoNames) strippedCopy(name, rootDir);
+    // The lab's default settings: "save widget state" off; widgets keep their state in their outputs.
     lab = await openLab({ rootDir });
-    // Save widget state with the notebook (the widget manager's own toggle, off by default).
-    await lab.command('@jupyter-widgets/jupyterlab-manager:saveWidgetState');
   });
 
   afterAll(async () => {
@@ -112,6 +127,30 @@ describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel
     expect(demoNames).toHaveLength(5);
     expect(demoNames).toContain('01-coupled-wires.ipynb');
   });
+
+  for (const name of demoNames) {
+    it(`${name} as shipped, not trusted: every widget and figure output shows its picture`, async () => {
+      await answering(lab);
+      mkdirSync(join(rootDir, 'received'), { recursive: true });
+      const pictured = receivedCopy(name, join(rootDir, 'received'));
+      expect(pictured.flat().length).toBeGreaterThan(0);
+      const notebook = await lab.openNotebook(`received/${name}`);
+      for (const [index, outputs] of pictured.entries()) {
+        if (outputs.length === 0) continue;
+        const cell = notebook.cell(index);
+        await cell.scrollIntoViewIfNeeded();
+        for (const output of outputs) {
+          const image = cell.locator('.jp-OutputArea-child').nth(output).locator('.jp-RenderedImage img');
+          await image.waitFor();
+          // Drawn, not broken: the size the kernel draws its pictures.
+          expect([index, output, await image.evaluate(img => [(img as HTMLImageElement).naturalWidth, (img as HTMLImageElement).naturalHeight])]).toEqual([index, output, [760, 480]]);
+        }
+        expect(await cell.locator('.chernel-widget, .chernel-saved-plot').count()).toBe(0);
+      }
+      await lab.screenshot(`lab-demo-received-${name.replace(/\.ipynb$/, '')}`);
+      await notebook.close();
+    }, 180_000);
+  }
 
   describe('01-coupled-wires.ipynb', () => {
     const name = '01-coupled-wires.ipynb';
@@ -166,7 +205,8 @@ describe.skipIf(!kernelReady)('demo notebooks in the lab with the chernel kernel
     it('saves the dragged state; after the kernel ends and the page reloads, the widget shows it again without running a cell', async () => {
       await notebook.save();
       const saved = readNotebook(join(rootDir, name));
-      const states = Object.values(saved.metadata.widgets?.[WIDGET_STATE]?.state ?? {});
+      expect(saved.metadata.widgets?.[WIDGET_STATE]).toBeUndefined();
+      const states = saved.cells.flatMap(cell => (cell.outputs ?? []).flatMap(o => (o.data?.[SAVED_WIDGET] ? [o.data[SAVED_WIDGET] as { model_name: string; state: Record<string, unknown> }] : [])));
       const ours = states.find(s => s.model_name === 'DiagnosticModel');
       expect(ours?.state.values).toMatchObject({ g: draggedTo, delta: 0.1 });
       expect(ours?.state.result_values).toMatchObject({ g: draggedTo, delta: 0.1 });

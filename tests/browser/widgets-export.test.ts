@@ -180,11 +180,16 @@ describe('exported notebook page', () => {
     expect(back.invariant).toBe(String(qwzChern(-1)));
   });
 
-  it('refuses a typed value outside the declared range, naming the parameter', async () => {
+  it('refuses a typed value outside the declared range or not a number, naming the parameter and the value, and puts the value in use back', async () => {
     const fragile = widget(2);
     await typeValue(fragile, 'u', 99);
-    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: outside its range [-4, 4]. Value: 99');
+    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: outside its range [-4, 4]. Value: 99; kept -1');
     expect(await control(fragile, 'u').slider.inputValue()).toBe('-1');
+    expect(await control(fragile, 'u').box.inputValue()).toBe('-1');
+    await control(fragile, 'u').box.fill('abc');
+    await control(fragile, 'u').box.press('Enter');
+    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: not a number. Value: "abc"; kept -1');
+    expect(await control(fragile, 'u').box.inputValue()).toBe('-1');
   });
 
   it('exports the data as CSV and the figure as PNG', async () => {

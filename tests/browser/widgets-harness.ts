@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
-import { mimeBundle } from '../../kernel/display/index.js';
+import { displayOutputs } from '../../kernel/display/index.js';
 import { exportHtmlCommand } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
 import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../widgets/src/protocol.js';
@@ -49,6 +49,13 @@ export function moreWidgets(): DemoWidget[] {
       options: { axes: [{ param: 'phi', from: -3, to: 3, count: 13 }, { param: 'M', from: -1, to: 1, count: 13 }], invariant: 'chern', grid: 12, bands: 1 },
     },
     { id: 'c0ffee0000000000000000000000b004', kind: 'wannier-flow', spec: kaneMele(), values: { lambda_R: 0 }, options: { grid: [48, 32], bands: 2, invariant: 'z2' } },
+    {
+      // A fine map: recomputing it takes seconds (progress and stop).
+      id: 'c0ffee0000000000000000000000b005',
+      kind: 'phase-map',
+      spec: haldane(),
+      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 90 }, { param: 'M', from: -1, to: 1, count: 90 }], invariant: 'chern', grid: 24, bands: 1 },
+    },
   ];
 }
 
@@ -88,13 +95,16 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
     });
   });
   // An engine result a cell displayed (the kernel's own rich display): a static plot in the page.
-  const shown = mimeBundle(compute({ kind: 'bands', model: qwz(), params: { u: -1 } }));
+  const [summary, shown] = displayOutputs(compute({ kind: 'bands', model: qwz(), params: { u: -1 } }));
   cells.push({
     cell_type: 'code',
     metadata: {},
     execution_count: widgets.length + 1,
     source: "compute({ kind: 'bands', model: qwz() })",
-    outputs: [{ output_type: 'execute_result', execution_count: widgets.length + 1, metadata: shown.metadata, data: shown.data }],
+    outputs: [
+      { output_type: 'display_data', metadata: summary.metadata, data: summary.data },
+      { output_type: 'execute_result', execution_count: widgets.length + 1, metadata: shown.metadata, data: shown.data },
+    ],
   });
   return {
     nbformat: 4,

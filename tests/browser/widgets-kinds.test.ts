@@ -108,6 +108,25 @@ describe('widget kinds in the exported page', () => {
     expect(await w.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(M, 0.2, Math.PI / 2)));
   });
 
+  it('phase map: a long recompute shows its progress with the time left, and Stop keeps the last map', async () => {
+    const w = widget(4);
+    await w.locator('.chernel-plot .main-svg').first().waitFor({ timeout: 60_000 });
+    await w.scrollIntoViewIfNeeded();
+    await typeValue(w, 't2', 0.2);
+    const progress = w.locator('.chernel-progress[data-active]');
+    await progress.waitFor({ timeout: 30_000 });
+    await expect.poll(() => progress.locator('span').textContent(), { timeout: 30_000 }).toMatch(/^computing: \d+% · about \d+ s left$/);
+    await page.screenshot({ path: artifactPath('widgets-kinds-progress.png'), fullPage: true });
+    await progress.locator('button', { hasText: 'Stop' }).click();
+    expect(await w.locator('.chernel-message').textContent()).toMatch(/^Stopped: nothing was computed for .*t2 = 0\.2.*; the plot shows the last result\.$/);
+    expect(await w.locator('.chernel-progress[data-active]').count()).toBe(0);
+    expect(await w.locator('.chernel-status').textContent()).toMatch(/^stopped at /);
+    // Back to the value the shown map was computed for: drawn again at once, no computation.
+    await typeValue(w, 't2', 0.1);
+    await w.locator('.chernel-status', { hasText: 'saved result' }).waitFor();
+    expect(await w.locator('.chernel-message').getAttribute('data-level')).toBeNull();
+  });
+
   it('flow with Z2: the Kane–Mele index changes across |lambda_v| = 3 sqrt3 lambda_SO', async () => {
     const w = widget(3);
     const summary = w.locator('.chernel-summary');

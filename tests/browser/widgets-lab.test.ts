@@ -1,9 +1,12 @@
-// A chernel widget live in the real lab with the real kernel: a cell shows it, dragging a control
-// recomputes in the browser and syncs the value back (a cell reads it), a cell moves the control,
-// and the saved notebook carries the state, so its HTML export draws with no kernel.
+// A chernel widget live in the real lab with the real kernel, under the lab's default settings
+// ("save widget state" off, as every user starts): a cell shows it, dragging a control recomputes
+// in the browser and syncs the value back (a cell reads it), a cell moves the control, and the saved
+// notebook carries the state and a picture in the widget's own output, so its HTML export draws with
+// no kernel, a collaborator reopens it live, and an untrusted copy shows pictures (trusting it makes
+// it live). An engine result shows its summary and its figure, live when trusted, a picture when not.
 // Physics: Haldane, PRL 61, 2015 (1988): C(lower) = -sign(sin phi) for |M| < 3 sqrt3 t2 |sin phi|,
 // else 0 (sign convention of /work/shared/references.md).
-import { copyFileSync, existsSync, readFileSync } from 'node:fs';
+import { copyFileSync, existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Locator } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -27,9 +30,8 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
   let view: Locator;
 
   beforeAll(async () => {
+    // Default settings: the widget manager's "save widget state" stays off.
     lab = await openLab();
-    // Save widget state with the notebook (the widget manager's own toggle, off by default).
-    await lab.command('@jupyter-widgets/jupyterlab-manager:saveWidgetState');
     notebook = await lab.newNotebook('chernel');
   });
 
@@ -81,15 +83,38 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     expect(text(await notebook.runCell(5, 'w.values.M'))).toBe('0.1');
   });
 
-  it('the saved notebook carries the widget state; its HTML export draws it with no kernel', async () => {
+  it('an engine result shows its summary and, below it, its figure drawn live', async () => {
+    const outputs = await notebook.runCell(6, "compute({ kind: 'bands', model: haldane(), params: { M: 0.1 } })");
+    expect(outputs.map((o) => Object.keys(o.data ?? {}).sort())).toEqual([
+      ['text/html', 'text/plain'],
+      ['application/vnd.plotly.v1+json', 'image/png', 'text/plain'],
+    ]);
+    const cell = notebook.cell(6);
+    await cell.locator('.chernel-summary table').waitFor();
+    await cell.locator('.chernel-saved-plot .main-svg').first().waitFor();
+    expect(await cell.locator('.chernel-saved-plot .gtitle').textContent()).toMatch(/^Bands — /);
+  });
+
+  it('saved with the default settings, the widget output carries the state and a picture of the last result', async () => {
     await notebook.save();
     await lab.screenshot('widgets-lab');
     const path = join(lab.rootDir, notebook.path);
-    const saved = JSON.parse(readFileSync(path, 'utf8')) as { metadata: { widgets?: Record<string, { state: Record<string, { model_name: string; state: Record<string, unknown> }> }> } };
-    const states = Object.values(saved.metadata.widgets?.['application/vnd.jupyter.widget-state+json']?.state ?? {});
-    const ours = states.find((s) => s.model_name === 'DiagnosticModel');
-    expect(ours?.state.values).toMatchObject({ M: 0.1 });
-    expect(ours?.state.result_values).toMatchObject({ M: 0.1 });
+    const saved = JSON.parse(readFileSync(path, 'utf8')) as {
+      metadata: { widgets?: unknown };
+      cells: { outputs?: { output_type: string; data?: Record<string, unknown> }[] }[];
+    };
+    // The lab saved no widget state of its own: everything below comes from the output.
+    expect(saved.metadata.widgets).toBeUndefined();
+    const output = saved.cells[0].outputs?.find((o) => o.data?.['application/vnd.jupyter.widget-view+json']);
+    const ours = output?.data?.['application/vnd.chernel.widget-state+json'] as { model_id: string; model_name: string; state: Record<string, unknown> };
+    expect(ours.model_name).toBe('DiagnosticModel');
+    expect(ours.model_id).toBe((output?.data?.['application/vnd.jupyter.widget-view+json'] as { model_id: string }).model_id);
+    expect(ours.state.values).toMatchObject({ M: 0.1 });
+    expect(ours.state.result_values).toMatchObject({ M: 0.1 });
+    // The picture is the one the view shows now (drawn when the notebook was saved).
+    const png = Buffer.from(String(output?.data?.['image/png']), 'base64');
+    expect(png.subarray(1, 4).toString('ascii')).toBe('PNG');
+    expect(String(output?.data?.['text/plain'])).toContain('M = 0.1');
 
     const out = join(lab.rootDir, 'exported.html');
     const messages: string[] = [];
@@ -142,7 +167,41 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
     await restored.locator('.chernel-status', { hasText: 'M = 1.5 · engine' }).waitFor();
     expect(await restored.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(1.5)));
     await lab.screenshot('widgets-lab-restored');
+    // What the collaborator explored is saved too, though no kernel knows this widget.
+    await shared.save();
+    const output = (JSON.parse(readFileSync(join(lab.rootDir, 'shared.ipynb'), 'utf8')) as { cells: { outputs: { data?: Record<string, unknown> }[] }[] }).cells[0].outputs.find((o) => o.data?.['application/vnd.chernel.widget-state+json']);
+    expect((output?.data?.['application/vnd.chernel.widget-state+json'] as { state: { result_values: Record<string, number> } }).state.result_values).toMatchObject({ M: 1.5 });
+    expect(String(output?.data?.['text/plain'])).toContain('M = 1.5');
     // Nothing from the widget bundle among the page's errors.
     expect(lab.unexpectedErrors().filter((line) => /chernel|widgets_lib_index/.test(line))).toEqual([]);
+  });
+
+  it('an untrusted copy shows a picture for the widget and for the figure; trusting it makes both live', async () => {
+    // Any change to the file makes it a notebook the lab has not signed: what a collaborator receives.
+    const copy = JSON.parse(readFileSync(join(lab.rootDir, notebook.path), 'utf8')) as { metadata: Record<string, unknown> };
+    copy.metadata.received_from = 'a collaborator';
+    writeFileSync(join(lab.rootDir, 'untrusted.ipynb'), JSON.stringify(copy, null, 1));
+    const untrusted = await lab.openNotebook('untrusted.ipynb');
+    const widgetCell = untrusted.cell(0);
+    const figureCell = untrusted.cell(6);
+    await widgetCell.locator('.jp-RenderedImage img').waitFor();
+    await figureCell.locator('.jp-RenderedImage img').waitFor();
+    expect(await widgetCell.locator('.chernel-widget').count()).toBe(0);
+    expect(await figureCell.locator('.chernel-saved-plot').count()).toBe(0);
+    // The pictures are drawn: not blank, the size the kernel and the page draw them.
+    for (const cell of [widgetCell, figureCell]) {
+      const size = await cell.locator('.jp-RenderedImage img').evaluate((img) => [(img as HTMLImageElement).naturalWidth, (img as HTMLImageElement).naturalHeight]);
+      expect(size).toEqual([760, 480]);
+    }
+    await lab.screenshot('widgets-lab-untrusted');
+
+    await lab.page.evaluate(() => void window.chernelLab!.commands.execute('notebook:trust'));
+    await lab.page.locator('.jp-Dialog .jp-mod-accept').click();
+    await widgetCell.locator('.chernel-widget .chernel-plot .main-svg').first().waitFor({ timeout: 60_000 });
+    await figureCell.locator('.chernel-saved-plot .main-svg').first().waitFor();
+    // Its own saved state (M = 0.1), not that of the other copy open beside it (dragged to 1.5).
+    await widgetCell.locator('.chernel-status', { hasText: 'M = 0.1' }).waitFor();
+    expect(await widgetCell.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.1)));
+    await lab.screenshot('widgets-lab-trusted');
   });
 });

@@ -162,8 +162,12 @@ class Features(unittest.TestCase):
             "terms: [{from: 'A', to: 'B', cell: [0], amplitude: 'v'}]})"
         )
         _, outputs = harness.run(self.kc, model)
-        data = outputs[-1][1]["data"]
+        shown = [c["data"] for m, c, _ in outputs if m in ("display_data", "execute_result")]
+        data = shown[0]
         self.assertIn("model two-site chain", data["text/plain"])
+        # Then a picture of its lattice: three cells of the chain, its bond, the unit cell.
+        self.assertEqual(sorted(shown[1]), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
+        self.assertIn("lattice figure: 2 orbitals, 1 hopping from the home cell", shown[1]["text/plain"])
         self.assertIn("<table", data["text/html"])
         self.assertIn("intracell hopping", data["text/html"])
         gapless = "({kind: 'chern', checks: {minGap: 0, minGapAt: [0, 3.14159], grid: [12, 12], warnings: ['gap closes at k = (0, pi)'], gapless: true}, chern: null})"
@@ -172,6 +176,104 @@ class Features(unittest.TestCase):
         self.assertIn("chern: null", data["text/plain"])
         self.assertIn("gapless", data["text/plain"])
         self.assertIn("gap closes at k = (0, pi)", data["text/html"])
+
+    def png_size(self, data):
+        """Width and height of a base64 PNG (the IHDR chunk: PNG specification, RFC 2083)."""
+        import base64
+
+        png = base64.b64decode(data)
+        self.assertEqual(png[:8], b"\x89PNG\r\n\x1a\n")
+        return struct.unpack(">II", png[16:24])
+
+    def test_every_plottable_result_shows_a_summary_and_its_figure_with_a_picture(self):
+        cases = {
+            "bands": "compute({kind: 'bands', model: qwz(), params: {u: -1}})",
+            "ribbon": "compute({kind: 'ribbon', model: qwz(), direction: 0, width: 10, params: {u: -1}})",
+            "curvature": "compute({kind: 'curvature', model: haldane(), grid: 16, bands: 1})",
+            "wannier-flow": "compute({kind: 'wannier-flow', model: kaneMele(), grid: [16, 8], bands: 2})",
+            "phase-map": "compute({kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{param: 'u', from: -3, to: 3, count: 5}]})",
+            "gap": "compute({kind: 'gap', model: qwz(), grid: 12, params: {u: -1}})",
+        }
+        for kind, code in cases.items():
+            with self.subTest(kind=kind):
+                reply, outputs = harness.run(self.kc, code, timeout=60)
+                self.assertEqual(reply["status"], "ok")
+                shown = [(m, c["data"]) for m, c, _ in outputs if m in ("display_data", "execute_result")]
+                self.assertEqual([m for m, _ in shown], ["display_data", "execute_result"])
+                summary, figure = shown[0][1], shown[1][1]
+                self.assertIn(f"{kind} result", summary["text/plain"])
+                self.assertIn("<table", summary["text/html"])
+                # No HTML beside the figure: a viewer showing one type per output shows the picture.
+                self.assertEqual(sorted(figure), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
+                self.assertEqual(self.png_size(figure["image/png"]), (760, 480))
+                self.assertTrue(figure["application/vnd.plotly.v1+json"]["data"])
+        # A result without a figure shows its summary alone.
+        _, outputs = harness.run(self.kc, "compute({kind: 'chern', model: qwz(), params: {u: -1}, bands: 1})")
+        self.assertEqual([m for m, _, _ in outputs if m in ("display_data", "execute_result")], ["execute_result"])
+
+    def test_display_of_a_result_updates_summary_and_figure_in_place(self):
+        reply, outputs = harness.run(self.kc, "const shown = display(compute({kind: 'bands', model: qwz(), params: {u: -1}}))\nshown.update(compute({kind: 'bands', model: qwz(), params: {u: 1}}))")
+        self.assertEqual(reply["status"], "ok")
+        ids = [(m, c["transient"]["display_id"]) for m, c, _ in outputs if "display" in m]
+        first = ids[0][1]
+        self.assertEqual(ids, [("display_data", first), ("display_data", f"{first}-1"), ("update_display_data", first), ("update_display_data", f"{first}-1")])
+
+    def test_widget_output_carries_its_state_and_a_picture(self):
+        reply, outputs = harness.run(self.kc, "const cw = show(qwz(), {kind: 'curvature', grid: 16, bands: 1}); cw", timeout=60)
+        data = [c["data"] for m, c, _ in outputs if m == "execute_result"][0]
+        view = data["application/vnd.jupyter.widget-view+json"]
+        saved = data["application/vnd.chernel.widget-state+json"]
+        self.assertEqual(saved["model_id"], view["model_id"])
+        self.assertEqual(saved["model_name"], "DiagnosticModel")
+        self.assertEqual(saved["state"]["values"], {"u": -1})
+        # The result's arrays travel as base64 buffers beside their paths (widget state schema 2).
+        self.assertIn(["result", "values", "buffer"], [b["path"] for b in saved["buffers"]])
+        self.assertEqual(self.png_size(data["image/png"]), (760, 480))
+        # Moving the controls from a cell shows no second view; the Chern number has its name.
+        reply, outputs = harness.run(self.kc, "cw.setValues({u: 1})")
+        self.assertEqual(reply["status"], "ok")
+        self.assertEqual([m for m, _, _ in outputs if m in ("display_data", "execute_result")], [])
+        # QWZ, PRB 74, 085308 (2006): C = +1 at u = -1 (lower band; references.md convention).
+        self.assertEqual(self.value("cw.result.chern"), "1")
+
+    def test_traceback_collapses_engine_frames_and_writes_no_machine_path(self):
+        reply, _ = harness.run(self.kc, "function ask() { return compute({kind: 'chern', model: qwz(), params: {u: 9}}) }\nask()")
+        self.assertEqual(reply["status"], "error")
+        text = "\n".join(reply["traceback"]) + reply["evalue"]
+        self.assertIn("at compute (chernel engine, in resolveParameters)", text)
+        self.assertIn("at ask (In [", text)
+        for private in {str(harness.ROOT), os.path.expanduser("~"), "file://", "dist/src", "node:internal"}:
+            self.assertNotIn(private, text)
+        self.assertEqual(len([l for l in reply["traceback"] if "chernel engine" in l]), 1)
+        # An error thrown later, outside any cell's run, is printed without the machine's paths too.
+        reply, outputs = harness.run(self.kc, "setTimeout(() => compute({kind: 'chern', model: qwz(), params: {u: 9}}), 10)\nawait new Promise((r) => setTimeout(r, 200))")
+        printed = "".join(c.get("text", "") for m, c, _ in outputs if m == "stream")
+        self.assertIn("Uncaught error in background code: ModelError: params.u", printed)
+        for private in {str(harness.ROOT), os.path.expanduser("~"), "file://"}:
+            self.assertNotIn(private, printed)
+
+    def test_a_long_phase_map_shows_a_progress_bar_with_the_time_left(self):
+        # A fine map takes seconds (well under a millisecond a point, thousands of points).
+        code = "compute({kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 24, axes: [{param: 'phi', from: -3, to: 3, count: 80}, {param: 'M', from: -0.6, to: 0.6, count: 60}]})"
+        reply, outputs = harness.run(self.kc, code, timeout=120)
+        self.assertEqual(reply["status"], "ok")
+        bars = [(m, c["data"]["text/plain"]) for m, c, _ in outputs if "display" in m and "<progress" in c["data"].get("text/html", "")]
+        self.assertTrue(bars, "no progress bar for a computation of several seconds")
+        self.assertEqual(bars[0][0], "display_data")
+        self.assertTrue(any("left" in text for _, text in bars), bars)
+        self.assertIn("done", bars[-1][1])
+        # The result follows as usual: summary and figure.
+        self.assertIn("phase-map result", [c["data"]["text/plain"] for m, c, _ in outputs if m == "display_data" and "<table" in c["data"].get("text/html", "")][0])
+
+    def test_any_long_computation_shows_how_long_it_has_run(self):
+        # A fine curvature map takes seconds; its share done is unknown, so the bar says the time so far.
+        code = "const fine = compute({kind: 'curvature', model: kaneMele(), grid: [1200, 1200], bands: 2}); fine.grid"
+        reply, outputs = harness.run(self.kc, code, timeout=120)
+        self.assertEqual(reply["status"], "ok")
+        bars = [c["data"]["text/plain"] for m, c, _ in outputs if "display" in m and "<progress" in c["data"].get("text/html", "")]
+        self.assertTrue(bars, "no progress bar for a computation of several seconds")
+        self.assertTrue(any("so far" in text for text in bars), bars)
+        self.assertRegex(bars[-1], r"done · in \d+ s$")
 
     # --- completion and inspection ---------------------------------------------------------------
     def test_complete_variables_and_members(self):
@@ -264,7 +366,10 @@ class Features(unittest.TestCase):
 
     def test_export_html_of_a_notebook_with_widgets(self):
         notebook = harness.ROOT / "notebooks-demo" / "01-coupled-wires.ipynb"
-        state = json.loads(notebook.read_text())["metadata"]["widgets"]["application/vnd.jupyter.widget-state+json"]["state"]
+        # Saved as a lab with default settings saves: each widget's state in its own output.
+        outputs = [o.get("data", {}) for c in json.loads(notebook.read_text())["cells"] for o in c.get("outputs", [])]
+        state = [d["application/vnd.chernel.widget-state+json"]["model_id"] for d in outputs if "application/vnd.chernel.widget-state+json" in d]
+        self.assertTrue(state)
         page = Path(tempfile.mkdtemp(prefix="chernel-export-")) / "wires.html"
         subprocess.run(["node", str(harness.CLI), "export-html", str(notebook), "-o", str(page)], check=True, capture_output=True)
         html = page.read_text()

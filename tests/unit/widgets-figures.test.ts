@@ -111,6 +111,21 @@ describe('Wannier-flow figure', () => {
     expect(above.figure.invariant).toBe(0);
   });
 
+  it('by default a time-reversal-symmetric group shows Z2 (Kane–Mele, Z2 = 1 with Rashba), a group that is not shows its winding (QWZ)', () => {
+    // Kane & Mele, PRL 95, 226801 (2005): Z2 = 1 at lambda_v = 0.1 < 3√3 lambda_SO (defaults, lambda_R = 0.05).
+    const qsh = run(kaneMele(), 'wannier-flow', { grid: [32, 16], bands: 2 });
+    expect(qsh.result.z2).toBe(1);
+    expect(qsh.figure.summary).toMatch(/^Z₂ = 1/);
+    expect(qsh.figure.invariant).toBe(1);
+    // Qi, Wu, Zhang, PRB 74, 085308 (2006): one band, no Kramers partner; C = +1 at u = -1.
+    const chern = run(qwz(), 'wannier-flow', { grid: [24, 16], bands: 1 });
+    expect('z2' in chern.result).toBe(false);
+    expect(chern.figure.summary).toMatch(/^winding 1/);
+    const winding = run(kaneMele(), 'wannier-flow', { grid: [32, 16], bands: 2, invariant: 'winding' });
+    expect('z2' in winding.result).toBe(false);
+    expect(winding.figure.summary).toMatch(/^winding 0/);
+  });
+
   it('wrapBreaks breaks a periodic line where it wraps', () => {
     expect(wrapBreaks([0, 1, 2, 3], [0.8, 0.95, 0.05, 0.2])).toEqual({ x: [0, 1, null, 2, 3], y: [0.8, 0.95, null, 0.05, 0.2] });
   });

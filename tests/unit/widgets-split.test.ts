@@ -29,11 +29,17 @@ describe('split plan', () => {
     expect(whole.total).toBeCloseTo(1, 9);
   });
 
-  it('a Wannier-centre flow in parts joins into the whole flow', () => {
+  it('a Wannier-centre flow in parts joins into the whole flow, with the Z2 count the first part carries', () => {
     const r = request('wannier-flow', kaneMele(), { grid: [33, 33], bands: 2 });
     const { count, joined } = viaParts(r, 3);
     expect(count).toBe(3);
-    expect(joined).toEqual(diagnose(r));
+    const whole = diagnose(r);
+    expect(joined).toEqual(whole);
+    // Kane–Mele at its defaults (lambda_v = 0.1 < 3√3 lambda_SO = 0.31): Z2 = 1 (PRL 95, 226801).
+    expect(whole.z2).toBe(1);
+    const asked = request('wannier-flow', kaneMele(), { grid: [33, 33], bands: 2, invariant: 'winding' });
+    expect(viaParts(asked, 3).joined).toEqual(diagnose(asked));
+    expect('z2' in diagnose(asked)).toBe(false);
   });
 
   it('goes whole where splitting does not pay or does not apply', () => {
@@ -41,7 +47,7 @@ describe('split plan', () => {
     expect(plan.parts(request('curvature', qwz(), { grid: 12 }))).toBe(1); // 12 rows: under 8 per part for two
     expect(plan.parts(request('curvature', qwz(), { grid: 20 }))).toBe(2);
     expect(plan.parts(request('curvature', qwz(), {}))).toBe(4); // default grid 64
-    expect(plan.parts(request('wannier-flow', kaneMele(), { grid: [101, 101], invariant: 'z2' }))).toBe(1);
+    expect(plan.parts(request('wannier-flow', kaneMele(), { grid: [101, 101], invariant: 'z2' }))).toBe(4);
     expect(plan.parts(request('bands', qwz(), {}))).toBe(1);
     expect(engineWorkers(1)).toBe(1);
     expect(engineWorkers(2)).toBe(2);

@@ -4,7 +4,7 @@
  * stale one is dropped, never sent), so the plot follows the hand instead of a queue. A request the
  * split plan divides goes out in parts, one per worker, computed side by side and joined on return.
  */
-import type { ComputeMessage, ComputeReply, DiagnosticRequest, DiagnosticResult } from './protocol.js';
+import type { ComputeMessage, ComputeProgress, ComputeReply, DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 export interface Outcome {
   request: DiagnosticRequest;
@@ -19,7 +19,7 @@ export interface Outcome {
 export interface WorkerLike {
   postMessage(message: ComputeMessage): void;
   terminate(): void;
-  onmessage: ((event: MessageEvent<ComputeReply>) => void) | null;
+  onmessage: ((event: MessageEvent<ComputeReply | ComputeProgress>) => void) | null;
   onerror: ((event: ErrorEvent) => void) | null;
 }
 
@@ -63,7 +63,22 @@ export class LatestWinsClient {
     private readonly spawn: () => WorkerLike,
     private readonly deliver: (outcome: Outcome) => void,
     private readonly plan: SplitPlan = WHOLE,
+    /** Progress of the request in flight (a phase map), as a fraction of the points planned. */
+    private readonly progress: (fraction: number, request: DiagnosticRequest) => void = () => undefined,
   ) {}
+
+  /**
+   * Stops the request in flight and drops any waiting: its workers are ended (a computation cannot
+   * be interrupted inside a worker) and started afresh for the next request. Returns the stopped request.
+   */
+  stop(): DiagnosticRequest | null {
+    const stopped = this.inFlight?.silent === false ? this.inFlight.request : (this.waiting?.request ?? null);
+    for (const worker of this.workers) worker?.terminate();
+    this.workers = [];
+    this.inFlight = null;
+    this.waiting = null;
+    return stopped;
+  }
 
   submit(request: DiagnosticRequest): void {
     const pending = { request, submitted: performance.now() };
@@ -109,10 +124,21 @@ export class LatestWinsClient {
     const existing = this.workers[index];
     if (existing) return existing;
     const worker = this.spawn();
-    worker.onmessage = (event) => this.receive(event.data);
+    worker.onmessage = (event) => {
+      const data = event.data;
+      if ('progress' in data) this.progressed(data);
+      else this.receive(data);
+    };
     worker.onerror = (event) => this.crashed(worker, event.message || 'the engine worker failed to start');
     this.workers[index] = worker;
     return worker;
+  }
+
+  private progressed(message: ComputeProgress): void {
+    const current = this.inFlight;
+    if (current === null || current.silent || !current.ids.includes(message.id)) return;
+    const { done, total } = message.progress;
+    this.progress(total > 0 ? Math.min(1, done / total) : 0, current.request);
   }
 
   private receive(reply: ComputeReply): void {

@@ -1,6 +1,7 @@
 /**
- * One slider per model parameter, from its declared range and unit. The number box beside each
- * slider accepts typed values (out-of-range values are refused with a message naming the field).
+ * One slider per model parameter, from its declared range and unit. The box beside each slider
+ * accepts typed values; a value that is not a number or outside the range is refused with a message
+ * naming the field and what was typed, and the box goes back to the value in use.
  */
 import type { ParameterDecl } from './protocol.js';
 
@@ -58,6 +59,7 @@ export function createParameterControls(
     const caption = document.createElement('span');
     caption.className = 'chernel-control-name';
     caption.textContent = decl.unit ? `${name} [${decl.unit}]` : name;
+    caption.title = caption.textContent;
 
     const slider = document.createElement('input');
     slider.type = 'range';
@@ -68,10 +70,12 @@ export function createParameterControls(
     slider.setAttribute('aria-label', name);
     slider.setAttribute('data-lm-suppress-shortcuts', 'true');
 
+    // A text box (with a numeric keyboard where there is one): a number box reports letters as ''.
     const box = document.createElement('input');
-    box.type = 'number';
+    box.type = 'text';
+    box.inputMode = 'decimal';
+    box.spellcheck = false;
     box.className = 'chernel-control-value';
-    box.step = 'any';
     box.value = formatValue(values[name] ?? decl.default);
     box.setAttribute('aria-label', `${name} value`);
     box.setAttribute('data-lm-suppress-shortcuts', 'true');
@@ -84,18 +88,26 @@ export function createParameterControls(
       committed = box.value;
       onInput(name, value);
     });
+    /** Puts the value in use back in the box and says why the typed one was refused. */
+    const refuse = (why: string) => {
+      const kept = formatValue(Number(slider.value));
+      box.value = kept;
+      committed = kept;
+      onInvalid(`${name}: ${why}; kept ${kept}`);
+    };
     const commit = () => {
       if (box.value === committed) return; // Enter, then blur: one commit
-      committed = box.value;
-      const value = Number(box.value);
-      if (box.value.trim() === '' || !Number.isFinite(value)) {
-        onInvalid(`${name}: not a number. Value: "${box.value}"`);
+      const typed = box.value.trim();
+      const value = Number(typed);
+      if (typed === '' || !Number.isFinite(value)) {
+        refuse(`not a number. Value: ${JSON.stringify(typed)}`);
         return;
       }
       if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
-        onInvalid(`${name}: outside its range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`);
+        refuse(`outside its range [${formatValue(decl.range[0])}, ${formatValue(decl.range[1])}]. Value: ${typed}`);
         return;
       }
+      committed = box.value;
       slider.value = String(value);
       onInput(name, value);
     };

@@ -1,9 +1,11 @@
 /**
- * A widget's request -> the engine. Most widgets are one engine request; the flow widget with
- * `invariant: 'z2'` adds the engine's Z2 count to the flow it draws. Runs in the page's worker and
- * in the kernel (kernel/widgets.ts), so both compute the same thing.
+ * A widget's request -> the engine. Most widgets are one engine request; the flow widget adds the
+ * engine's Z2 count to the flow it draws (asked for with `invariant: 'z2'`, and by default for a
+ * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
+ * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
-import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, wannierFlow, type ModelSpec } from '../../src/index.js';
+import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, phaseMapSync, pointFunction, wannierFlow, z2Index, type ModelSpec, type PointFunctionFactory } from '../../src/index.js';
+import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 type EngineRequest = Parameters<typeof compute>[0];
@@ -17,6 +19,8 @@ const ON_COMPILED = {
   curvature: curvatureMap,
   'wannier-flow': wannierFlow,
   bands,
+  // The Z2 count beside a flow (below): same model, same values, no second compilation.
+  z2: z2Index,
 } as const;
 
 let compiled: { key: string; hamiltonian: BlochHamiltonian } | null = null;
@@ -46,17 +50,53 @@ function run(request: Record<string, unknown>): DiagnosticResult {
   return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;
 }
 
-export function diagnose(request: DiagnosticRequest): DiagnosticResult {
-  if (request.kind === 'wannier-flow' && request.invariant === 'z2') {
-    const { invariant: _invariant, ...flowRequest } = request;
-    const flow = run(flowRequest);
-    const z2 = run({ kind: 'z2', model: request.model, params: request.params, bands: request.bands, method: 'flow' });
-    const gapless = flow.checks.gapless === true || z2.checks.gapless === true;
-    return {
-      ...flow,
-      z2: gapless ? null : z2.z2,
-      checks: { ...flow.checks, gapless, warnings: [...flow.checks.warnings, ...z2.checks.warnings] },
+/**
+ * The engine's Z2 count refuses a band group whose Wannier centres are not Kramers pairs at the
+ * time-reversal-invariant momenta (src/topology/z2.ts says so in a warning): such a group is not
+ * time-reversal symmetric, and its flow is read by its winding instead.
+ */
+const NOT_KRAMERS = /not in Kramers pairs/;
+
+/** Reports points done of the points planned (the grid; boundary refinement adds a few). */
+export type OnPoints = (done: number, total: number) => void;
+
+/**
+ * A phase map point by point, each point reported (the engine's own sweep, with a counting point
+ * function). The kernel's cells use it too (kernel/executor/cell-compute.ts).
+ */
+export function phaseMapCounting(request: DiagnosticRequest, onPoints: OnPoints): DiagnosticResult {
+  const axes = Array.isArray(request.axes) ? (request.axes as { count?: unknown }[]) : [];
+  const grid = axes.reduce((n, axis) => n * (Number(axis?.count) || 1), 1);
+  let done = 0;
+  const counting: PointFunctionFactory = (target) => {
+    const point = pointFunction(target);
+    return (swept) => {
+      const outcome = point(swept);
+      onPoints(++done, Math.max(grid, done));
+      return outcome;
     };
+  };
+  return phaseMapSync(request as unknown as Parameters<typeof phaseMapSync>[0], counting) as unknown as DiagnosticResult;
+}
+
+export function diagnose(request: DiagnosticRequest, onPoints?: OnPoints): DiagnosticResult {
+  if (request.kind === 'phase-map' && onPoints !== undefined) return phaseMapCounting(request, onPoints);
+  if (request.kind === 'wannier-flow') {
+    // `invariant` is the widget's, not an engine option.
+    const { invariant, ...flowRequest } = request;
+    const flow = run(flowRequest);
+    const part = request.part as { index?: number } | undefined;
+    if (invariant === 'winding' || (part !== undefined && part.index !== 0)) return flow;
+    let z2: DiagnosticResult;
+    try {
+      z2 = run({ kind: 'z2', model: request.model, params: request.params, bands: request.bands, method: 'flow' });
+    } catch (err) {
+      if (invariant === 'z2') throw err;
+      return flow;
+    }
+    // Asked for by default: kept only for a time-reversal-symmetric group.
+    if (invariant === undefined && z2.checks.warnings.some((w) => NOT_KRAMERS.test(w))) return flow;
+    return part !== undefined ? { ...flow, [Z2_OF_PARTS]: z2 } : withZ2(flow, z2);
   }
   return run(request);
 }

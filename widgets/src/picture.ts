@@ -119,7 +119,7 @@ export function rasterBitmap(raster: Raster): Uint8Array {
 const BASE64 = new TextEncoder().encode('ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/');
 
 /** Base64 of bytes, built as ASCII codes and decoded once (a string built char by char is slower). */
-function base64(bytes: Uint8Array): string {
+export function base64(bytes: Uint8Array): string {
   const out = new Uint8Array(4 * Math.ceil(bytes.length / 3));
   let o = 0;
   let i = 0;

@@ -1,6 +1,10 @@
-/** The JupyterLab plugin: registers chernel's widget models and views with the widget manager. */
+/**
+ * The JupyterLab plugin: registers chernel's widget models and views with the widget manager, and
+ * watches notebooks for chernel's outputs (notebook-outputs.ts).
+ */
 import { IJupyterWidgetRegistry } from '@jupyter-widgets/base';
 import type { JupyterFrontEnd, JupyterFrontEndPlugin } from '@jupyterlab/application';
+import { watchNotebooks } from './notebook-outputs.js';
 import { DiagnosticModel, DiagnosticView, MODULE_NAME, MODULE_VERSION } from './widget.js';
 
 export const widgetsPlugin: JupyterFrontEndPlugin<void> = {
@@ -8,11 +12,13 @@ export const widgetsPlugin: JupyterFrontEndPlugin<void> = {
   description: 'Live topology widgets for chernel notebooks: curvature, Wannier-centre flow, bands, ribbons, phase maps.',
   requires: [IJupyterWidgetRegistry],
   autoStart: true,
-  activate: (_app: JupyterFrontEnd, registry: IJupyterWidgetRegistry) => {
+  activate: (app: JupyterFrontEnd, registry: IJupyterWidgetRegistry) => {
     registry.registerWidget({
       name: MODULE_NAME,
       version: MODULE_VERSION,
       exports: { DiagnosticModel, DiagnosticView },
     });
+    // Figures drawn live, widgets restored from and saved into their own outputs.
+    watchNotebooks(app);
   },
 };

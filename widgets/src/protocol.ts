@@ -11,6 +11,12 @@ export type WidgetKind = (typeof WIDGET_KINDS)[number];
 export const WIDGET_STATE_MIME = 'application/vnd.jupyter.widget-state+json';
 export const WIDGET_VIEW_MIME = 'application/vnd.jupyter.widget-view+json';
 export const PLOTLY_MIME = 'application/vnd.plotly.v1+json';
+/**
+ * chernel's own entry in a widget's output: the widget's state as a notebook's widget-state entry
+ * (`{model_name, model_module, model_module_version, state, buffers}`) and its `model_id`, so a
+ * notebook saved without the lab's "save widget state" still reopens with live widgets.
+ */
+export const SAVED_WIDGET_MIME = 'application/vnd.chernel.widget-state+json';
 
 export interface ParameterDecl {
   default: number;
@@ -57,6 +63,12 @@ export interface DiagnosticResult {
 export interface ComputeMessage {
   id: number;
   request: DiagnosticRequest;
+}
+
+/** Worker -> main thread, while a long request (a phase map) computes: points done of those planned. */
+export interface ComputeProgress {
+  id: number;
+  progress: { done: number; total: number };
 }
 
 /** Worker -> main thread. */

@@ -1,74 +1,84 @@
 /**
- * Is a diagnostic widget's saved state whole? A notebook or page may carry state that was truncated,
- * edited, or written by another version; the widget then says what is wrong when it loads, and
- * `chernel export-html` refuses to embed it silently. Structural checks only (no model compilation),
- * so the page's main thread can run them; export-html also validates the model itself.
+ * A widget's state as its output carries it (SAVED_WIDGET_MIME): the entry a notebook's saved
+ * widget state has for it (the kernel writes the same, kernel/widget-state.ts), and the picture of
+ * what its view shows, drawn by the shared rasteriser (snapshot/) on a canvas for its PNG.
  */
-import { WIDGET_KINDS } from './protocol.js';
+import { figureFor } from './figures/index.js';
+import { base64 } from './picture.js';
+import type { DiagnosticResult, ModelSpecView } from './protocol.js';
+import { drawFigure } from './snapshot/figure.js';
+import { packArrays, removeBuffers } from './wire.js';
 
-const BYTES: Readonly<Record<string, number>> = { float64: 8, float32: 4, int32: 4, uint32: 4, int16: 2, uint16: 2, int8: 1, uint8: 1 };
-
-/** DiagnosticModel's defaults (widget.ts) for the fields checked here. */
-const SAVED_DEFAULTS: Readonly<Record<string, unknown>> = { kind: 'curvature', spec: null, options: {}, values: {}, result: null };
-
-const isObject = (x: unknown): x is Record<string, unknown> => x !== null && typeof x === 'object' && !Array.isArray(x) && !ArrayBuffer.isView(x);
-
-function byteLength(buffer: unknown): number | null {
-  if (buffer instanceof ArrayBuffer) return buffer.byteLength;
-  if (ArrayBuffer.isView(buffer)) return buffer.byteLength;
-  return null;
+/** What is read of a widget model here (DiagnosticModel, widget.ts). */
+export interface ModelLike {
+  readonly model_id: string;
+  /** Its widget manager; in JupyterLab, the notebook's (whose `context` is the document's). */
+  readonly widget_manager?: unknown;
+  get(name: string): unknown;
+  get_state(drop_defaults?: boolean): Record<string, unknown>;
 }
 
-/** The first packed array in `value` whose buffer is missing or of the wrong size, as a problem. */
-function arrayProblem(value: unknown, path: string): string | null {
-  if (Array.isArray(value)) {
-    for (const [i, item] of value.entries()) {
-      const problem = arrayProblem(item, `${path}[${i}]`);
-      if (problem) return problem;
-    }
-    return null;
-  }
-  if (!isObject(value)) return null;
-  if (typeof value.dtype === 'string' && Array.isArray(value.shape)) {
-    const size = BYTES[value.dtype];
-    if (size === undefined) return `${path}: unknown array type ${JSON.stringify(value.dtype)}`;
-    const count = value.shape.reduce((a: number, b: unknown) => a * (typeof b === 'number' ? b : NaN), 1);
-    const bytes = byteLength(value.buffer);
-    if (bytes === null) return `${path}: the array's binary buffer is missing`;
-    // More is allowed: a widget manager saves a view's whole underlying buffer (wire.ts reads the shape's share).
-    if (!(bytes >= count * size)) return `${path}: the buffer holds ${bytes} bytes, the array needs ${count * size} (${value.dtype} x ${JSON.stringify(value.shape)})`;
-    return null;
-  }
-  for (const [key, item] of Object.entries(value)) {
-    const problem = arrayProblem(item, `${path}.${key}`);
-    if (problem) return problem;
-  }
-  return null;
+/** The widget models alive on this page (each registers itself when created). */
+const live = new Set<ModelLike>();
+
+export function registerLiveModel(model: ModelLike): void {
+  live.add(model);
+}
+
+export function forgetLiveModel(model: ModelLike): void {
+  live.delete(model);
 }
 
 /**
- * The first problem of a diagnostic widget's state (buffers in place, as packed arrays or already
- * unpacked typed arrays), or null when it can be drawn and recomputed.
+ * The live model `modelId` of one document: copies of a notebook open side by side hold models
+ * with the same ids, each in its own notebook's widget manager.
  */
-export function diagnosticStateProblem(saved: unknown): string | null {
-  if (!isObject(saved)) return 'the saved state is not an object';
-  // Widget managers save state without the fields that equal the model's defaults (drop_defaults).
-  const state = { ...SAVED_DEFAULTS, ...saved };
-  if (!(WIDGET_KINDS as readonly unknown[]).includes(state.kind)) return `kind: expected one of ${WIDGET_KINDS.join(', ')}. Value: ${JSON.stringify(state.kind)}`;
-  const spec = state.spec;
-  if (!isObject(spec)) return 'spec: the model description is missing';
-  if (spec.format !== 'chernel.model') return `spec.format: expected "chernel.model". Value: ${JSON.stringify(spec.format)}`;
-  if (!Array.isArray(spec.orbitals) || spec.orbitals.length === 0) return 'spec.orbitals: missing or empty';
-  if (!Array.isArray(spec.terms)) return 'spec.terms: missing';
-  if (!isObject(spec.parameters)) return 'spec.parameters: missing';
-  if (!isObject(state.values)) return 'values: missing';
-  for (const [name, value] of Object.entries(state.values)) {
-    if (typeof value !== 'number' || !Number.isFinite(value)) return `values.${name}: expected a finite number. Value: ${JSON.stringify(value)}`;
-    if (!Object.hasOwn(spec.parameters, name)) return `values.${name}: not a parameter of the saved model`;
+export function liveModel(modelId: string, document: unknown): ModelLike | undefined {
+  for (const model of live) {
+    if (model.model_id === modelId && (model.widget_manager as { context?: unknown } | undefined)?.context === document) return model;
   }
-  if (state.options !== undefined && !isObject(state.options)) return 'options: expected an object';
-  const result = state.result;
-  if (result === null || result === undefined) return null;
-  if (!isObject(result) || typeof result.kind !== 'string') return 'result: expected a result object with a kind';
-  return arrayProblem(result, 'result');
+  return undefined;
+}
+
+/** The model's entry for a notebook's widget state: binary buffers inline as base64 beside their paths. */
+export function savedEntry(model: ModelLike): Record<string, unknown> {
+  const state = { ...model.get_state(false) };
+  state.result = packArrays(state.result);
+  const split = removeBuffers(state);
+  return {
+    model_name: state._model_name,
+    model_module: state._model_module,
+    model_module_version: state._model_module_version,
+    state: split.state,
+    buffers: split.buffers.map((b, i) => ({
+      path: split.buffer_paths[i],
+      encoding: 'base64',
+      data: base64(new Uint8Array(b.buffer, b.byteOffset, b.byteLength)),
+    })),
+  };
+}
+
+/** A PNG (base64) of the widget's last result as its view draws it, and a line saying what it shows. */
+export function viewPicture(model: ModelLike, doc: Document = document): { png: string; text: string } | null {
+  const result = model.get('result') as DiagnosticResult | null;
+  const spec = model.get('spec') as ModelSpecView | null;
+  if (result === null || spec === null || model.get('error')) return null;
+  const values = (model.get('result_values') ?? model.get('values')) as Record<string, number>;
+  try {
+    const figure = figureFor(result, { spec, values, options: (model.get('options') ?? {}) as Record<string, unknown> });
+    const pixels = drawFigure(figure);
+    const canvas = doc.createElement('canvas');
+    canvas.width = pixels.width;
+    canvas.height = pixels.height;
+    const context = canvas.getContext('2d');
+    if (context === null) return null;
+    context.putImageData(new ImageData(pixels.rgba, pixels.width, pixels.height), 0, 0);
+    const shown = Object.entries(values).map(([k, v]) => `${k} = ${v}`).join(', ');
+    return {
+      png: canvas.toDataURL('image/png').replace(/^data:image\/png;base64,/, ''),
+      text: `${String(model.get('kind'))} widget for model "${spec.name}" (${shown}): ${figure.summary}`,
+    };
+  } catch {
+    return null;
+  }
 }

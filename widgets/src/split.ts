@@ -6,6 +6,7 @@
  */
 import { joinParts, type DiagnosticPart } from '../../src/topology/parts.js';
 import type { SplitPlan } from './compute-client.js';
+import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
 /** The engine's default grid for these kinds (src/topology/curvature.ts, wilson.ts). */
@@ -28,7 +29,7 @@ function rowsOf(request: DiagnosticRequest): number {
 export function splitPlan(workers: number): SplitPlan {
   return {
     parts(request) {
-      const splittable = request.kind === 'curvature' || (request.kind === 'wannier-flow' && request.invariant !== 'z2');
+      const splittable = request.kind === 'curvature' || request.kind === 'wannier-flow';
       return splittable ? Math.max(1, Math.min(workers, Math.floor(rowsOf(request) / MIN_ROWS_PER_PART))) : 1;
     },
     partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
@@ -36,7 +37,10 @@ export function splitPlan(workers: number): SplitPlan {
       const joined = joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult;
       // Each part echoes the parameter values it used (compute()); so does the whole.
       const params = (parts[0] as { params?: unknown } | undefined)?.params;
-      return params === undefined ? joined : { ...joined, params };
+      const whole = params === undefined ? joined : { ...joined, params };
+      // A flow's Z2 count comes whole with its first part (diagnose.ts).
+      const z2 = parts[0]?.[Z2_OF_PARTS] as DiagnosticResult | undefined;
+      return z2 === undefined ? whole : withZ2(whole, z2);
     },
   };
 }

@@ -4,7 +4,7 @@
  * in a Web Worker, then writes values and result back to the model (and so to the kernel and the
  * saved notebook).
  */
-import { DOMWidgetModel, DOMWidgetView, type ISerializers } from '@jupyter-widgets/base';
+import { DOMWidgetModel, DOMWidgetView, type IBackboneModelOptions, type ISerializers } from '@jupyter-widgets/base';
 import { LatestWinsClient, type Outcome, type WorkerLike } from './compute-client.js';
 import { createParameterControls, formatValue, type ParameterControls } from './controls.js';
 import { spawnEngineWorker } from './engine-worker.js';
@@ -14,10 +14,11 @@ import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
 import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
 import { rasterImage } from './picture.js';
 import { DragPreview } from './preview.js';
+import { forgetLiveModel, registerLiveModel } from './saved-state.js';
 import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
-import { diagnosticStateProblem } from './saved-state.js';
+import { diagnosticStateProblem } from './state-check.js';
 import { packArrays, unpackArrays } from './wire.js';
 
 export const MODULE_NAME = 'chernel-widgets';
@@ -60,6 +61,13 @@ export class DiagnosticModel extends DOMWidgetModel {
       result_values: null,
       error: '',
     };
+  }
+
+  /** Each model is known by id on the page, so its notebook output can be kept current (notebook-outputs.ts). */
+  override initialize(attributes: Backbone.ObjectHash, options: IBackboneModelOptions): void {
+    super.initialize(attributes, options);
+    registerLiveModel(this);
+    this.once('destroy', () => forgetLiveModel(this));
   }
 
   static override serializers: ISerializers = {
@@ -127,6 +135,9 @@ export class DiagnosticView extends DOMWidgetView {
   private messageEl!: HTMLElement;
   private statusEl!: HTMLElement;
   private controlsHost!: HTMLElement;
+  /** A long computation's progress (a phase map's points) and its stop button. */
+  private progressEl!: HTMLElement;
+  private progressStarted: number | null = null;
   private controls: ParameterControls | null = null;
   private client: LatestWinsClient | null = null;
   private attached = false;
@@ -182,9 +193,21 @@ export class DiagnosticView extends DOMWidgetView {
     this.statusEl.className = 'chernel-status';
     footer.append(this.statusEl);
 
+    this.progressEl = document.createElement('div');
+    this.progressEl.className = 'chernel-progress';
+    const bar = document.createElement('progress');
+    bar.max = 1;
+    const progressText = document.createElement('span');
+    const stop = document.createElement('button');
+    stop.type = 'button';
+    stop.textContent = 'Stop';
+    stop.title = 'Stop this computation; the plot keeps the last result';
+    stop.addEventListener('click', () => this.stopComputing());
+    this.progressEl.append(bar, progressText, stop);
+
     this.controlsHost = document.createElement('div');
     for (const approach of ['pointerenter', 'focusin']) this.controlsHost.addEventListener(approach, () => this.warmUp(), { once: true });
-    this.el.append(header, this.messageEl, this.controlsHost, this.plot, footer);
+    this.el.append(header, this.messageEl, this.controlsHost, this.progressEl, this.plot, footer);
     this.buildControls();
 
     this.listenTo(this.model, 'change:values', (_m: unknown, _v: unknown, options: { updated_view?: unknown }) => {
@@ -338,7 +361,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private engine(): LatestWinsClient {
-    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()));
+    this.client ??= new LatestWinsClient(workerFactory, (outcome) => this.computed(outcome), splitPlan(engineWorkers()), (fraction) => this.showProgress(fraction));
     return this.client;
   }
 
@@ -388,8 +411,40 @@ export class DiagnosticView extends DOMWidgetView {
     else this.plot.classList.remove('chernel-stale');
   }
 
+  /** A phase map on its way: how far, about how long is left, and a way to stop it. */
+  private showProgress(fraction: number): void {
+    if (!this.attached) return;
+    const now = performance.now();
+    this.progressStarted ??= now;
+    const elapsed = now - this.progressStarted;
+    const left = fraction > 0.02 ? ` · about ${Math.max(1, Math.round((elapsed * (1 - fraction)) / fraction / 1000))} s left` : '';
+    (this.progressEl.querySelector('progress') as HTMLProgressElement).value = fraction;
+    (this.progressEl.querySelector('span') as HTMLElement).textContent = `computing: ${Math.round(fraction * 100)}%${left}`;
+    this.progressEl.dataset.active = 'true';
+  }
+
+  private hideProgress(): void {
+    this.progressStarted = null;
+    delete this.progressEl.dataset.active;
+  }
+
+  /** The stop button: the workers end; the plot keeps the last result, and the message says so. */
+  private stopComputing(): void {
+    const stopped = this.client?.stop() ?? null;
+    this.hideProgress();
+    if (this.staleTimer !== null) clearTimeout(this.staleTimer);
+    this.staleTimer = null;
+    this.plot.classList.remove('chernel-stale');
+    if (stopped === null) return;
+    const values = describeValues(stopped.params, this.parameterOrder());
+    this.showMessage('warning', `Stopped: nothing was computed for ${values}; the plot shows the last result.`);
+    this.statusEl.textContent = `stopped at ${values}`;
+    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stopped.params } }));
+  }
+
   private computed(outcome: Outcome): void {
     if (!this.attached) return;
+    if (!(this.client?.busy ?? false)) this.hideProgress();
     const values = outcome.request.params;
     if (outcome.error) {
       const message = `${outcome.error.name}: ${outcome.error.message}`;
@@ -466,7 +521,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.computingDone(busy);
       this.statusEl.textContent = outcome
         ? `${describeValues(values, this.parameterOrder())} · engine ${outcome.computeMs.toFixed(0)} ms`
-        : `${describeValues(values, this.parameterOrder())} · saved result`;
+        : `${describeValues(values, this.parameterOrder())} · ${this.model.comm_live ? 'computed by the kernel' : 'saved result'}`;
       const detail: DrawnDetail = {
         summary: figure.summary,
         invariant: figure.invariant,

@@ -1,15 +1,19 @@
+/** How often a long request reports its progress. */
+const PROGRESS_MS = 100;
+
 /**
- * The engine in a Web Worker: one request in, one result (or error) out. Bundled by build.mjs with
+ * The engine in a Web Worker: one request in, one result (or error) out; a phase map also reports
+ * its progress on the way. Bundled by build.mjs with
  * the engine from ../../src and inlined into the widget bundle as a blob URL, so it also runs from
  * a file:// page.
  */
 import { diagnose } from './diagnose.js';
-import type { ComputeMessage, ComputeReply, DiagnosticResult } from './protocol.js';
+import type { ComputeMessage, ComputeProgress, ComputeReply, DiagnosticResult } from './protocol.js';
 import { transferablesOf } from './wire.js';
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<ComputeMessage>) => void) | null;
-  postMessage(message: ComputeReply, transfer: ArrayBuffer[]): void;
+  postMessage(message: ComputeReply | ComputeProgress, transfer?: ArrayBuffer[]): void;
 }
 
 const scope = self as unknown as WorkerScope;
@@ -19,7 +23,14 @@ scope.onmessage = (event) => {
   const started = performance.now();
   let reply: ComputeReply;
   try {
-    const result: DiagnosticResult = diagnose(request);
+    let reported = started;
+    const onPoints = (done: number, total: number) => {
+      const now = performance.now();
+      if (now - reported < PROGRESS_MS) return;
+      reported = now;
+      scope.postMessage({ id, progress: { done, total } });
+    };
+    const result: DiagnosticResult = diagnose(request, onPoints);
     reply = { id, ok: true, result, ms: performance.now() - started };
   } catch (err) {
     const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };

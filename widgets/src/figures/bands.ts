@@ -4,7 +4,7 @@
  */
 import type { Data, Layout } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import { BASE_LAYOUT, energyUnit, fmt, numberArray, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface PathInfo {
   count: number;
@@ -78,7 +78,7 @@ export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figur
       name: `band ${n}`,
       showlegend: false,
       line: { color: isStrong ? '#c0392b' : '#5a6b85', width: isStrong ? 2.6 : 1.4 },
-      hovertemplate: `band ${n}<br>E = %{y:.4f}${unit ? ' ' + unit : ''}<extra></extra>`,
+      hovertemplate: `band ${n}<br>E = %{y:.4f}${unitText(unit)}<extra></extra>`,
     });
   }
 
@@ -102,9 +102,9 @@ export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figur
     const direct = result.checks.minGap;
     if (hi > lo) {
       shapes.push({ type: 'rect', xref: 'paper', yref: 'y', x0: 0, x1: 1, y0: lo, y1: hi, fillcolor: 'rgba(192,57,43,0.08)', line: { width: 0 } });
-      annotations.push({ xref: 'paper', yref: 'y', x: 0.99, y: (lo + hi) / 2, xanchor: 'right', showarrow: false, text: `gap ${fmt(hi - lo)}${unit ? ' ' + unit : ''}` });
+      annotations.push({ xref: 'paper', yref: 'y', x: 0.99, y: (lo + hi) / 2, xanchor: 'right', showarrow: false, text: `gap ${fmt(hi - lo)}${unitText(unit)}` });
     }
-    summary = hi > lo ? `gap above band ${top}: ${fmt(hi - lo)}${unit ? ' ' + unit : ''}` : `bands ${top} and ${top + 1} overlap in energy`;
+    summary = hi > lo ? `gap above band ${top}: ${fmt(hi - lo)}${unitText(unit)}` : `bands ${top} and ${top + 1} overlap in energy`;
     if (typeof direct === 'number') summary += ` · min direct gap ${fmt(direct)}`;
   }
   if (gapless) summary += ' · gapless';
@@ -113,7 +113,7 @@ export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figur
     data,
     layout: {
       ...BASE_LAYOUT,
-      title: { text: `Bands — ${summary}` },
+      title: titled(`Bands — ${summary}`),
       xaxis: {
         title: { text: `k along ${path.labels.map((l) => l.label).join('–') || 'the path'} (Cartesian |Δk|)` },
         tickmode: 'array',

@@ -89,6 +89,13 @@ export function energyUnit(spec: ModelSpecView): string {
   return best;
 }
 
+/** A unit after a number: ' eV', or ' (units of t)' for a model's own energy scale. */
+export function unitText(unit: string): string {
+  if (!unit) return '';
+  const scale = /^energy (\(units of .*\))$/.exec(unit);
+  return ` ${scale ? scale[1] : unit}`;
+}
+
 export function withUnit(label: string, unit: string): string {
   return unit ? `${label} [${unit}]` : label;
 }
@@ -98,12 +105,20 @@ export function gapText(result: DiagnosticResult, unit: string): string {
   const { minGap, minGapAt, gapless } = result.checks;
   if (minGap === null || minGap === undefined) return 'gap not measured';
   const at = minGapAt && minGapAt.length ? ` at k = (${minGapAt.map((k) => fmt(k)).join(', ')})` : '';
-  if (gapless) return `gapless${at} (gap ${fmt(minGap)}${unit ? ' ' + unit : ''})`;
-  return `min gap ${fmt(minGap)}${unit ? ' ' + unit : ''}`;
+  if (gapless) return `gapless${at} (gap ${fmt(minGap)}${unitText(unit)})`;
+  return `min gap ${fmt(minGap)}${unitText(unit)}`;
+}
+
+/**
+ * A figure title placed under plotly's toolbar (which shows at the top right of the figure while
+ * the pointer is over it), so the toolbar never covers it.
+ */
+export function titled(text: string): Partial<Layout['title']> & { text: string } {
+  return { text, yref: 'container', y: 1, yanchor: 'top', pad: { t: 30, r: 0, b: 0, l: 0 } };
 }
 
 export const BASE_LAYOUT: Partial<Layout> = {
-  margin: { l: 64, r: 24, t: 48, b: 56 },
+  margin: { l: 64, r: 24, t: 76, b: 56 },
   font: { family: 'system-ui, -apple-system, "Segoe UI", sans-serif', size: 12 },
   paper_bgcolor: 'rgba(0,0,0,0)',
   plot_bgcolor: '#ffffff',

@@ -17,6 +17,7 @@ import {
   gridOf,
   numberArray,
   optionalNumber,
+  titled,
   type Figure,
   type FigureContext,
   type Table,
@@ -177,6 +178,8 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
       x: [at[0]],
       y: [at[1]],
       marker: CLOSING_MARKER,
+      // Drawn whole also where the gap closes on the edge of the picture.
+      cliponaxis: false,
       name: 'gap closes',
       hovertemplate: 'gap closes here<br>k = (%{x:.3f}, %{y:.3f})<extra></extra>',
       showlegend: false,
@@ -193,7 +196,7 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
       ...BASE_LAYOUT,
       // Transparent: a drag step draws the new picture under plotly's drawing (widgets/src/preview.ts).
       plot_bgcolor: 'rgba(0,0,0,0)',
-      title: { text: `Berry curvature — ${summary}` },
+      title: titled(`Berry curvature — ${summary}`),
       // No grid lines: they would draw over the picture (a layout image sits under them).
       xaxis: { title: { text: 'k₁ [b₁]' }, range: xRange, zeroline: false, showgrid: false, constrain: 'domain' },
       yaxis: { title: { text: 'k₂ [b₂]' }, range: yRange, zeroline: false, showgrid: false, scaleanchor: 'x', constrain: 'domain' },

@@ -4,7 +4,7 @@
  */
 import type { Data } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import { BASE_LAYOUT, energyUnit, fmt, gapText, numberArray, optionalNumber, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, energyUnit, fmt, gapText, numberArray, optionalNumber, titled, type Figure, type FigureContext, type Table } from './common.js';
 import { integerOrValue } from './curvature.js';
 
 const CENTRE_COLOUR = '#1f4e9c';
@@ -105,7 +105,7 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
     data,
     layout: {
       ...BASE_LAYOUT,
-      title: { text: `Wannier-centre flow — ${summary}` },
+      title: titled(`Wannier-centre flow — ${summary}`),
       xaxis: { title: { text: 'k₁ [b₁]' }, range: [-0.5, 0.5], zeroline: false },
       yaxis: { title: { text: 'Wannier centre x̄₂ [a₂]' }, range: [0, 1], zeroline: false },
       legend: { orientation: 'h', x: 0, y: -0.18 },

@@ -3,7 +3,10 @@ import type { DiagnosticResult } from '../protocol.js';
 import type { Figure, FigureContext, Table } from './common.js';
 import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
+import { dosFigure, dosTable } from './dos.js';
 import { flowFigure, flowTable } from './flow.js';
+import { gapFigure, gapTable } from './gap.js';
+import { latticeFigure, latticeTable } from './lattice.js';
 import { phaseMapFigure, phaseMapTable } from './phase-map.js';
 import { ribbonFigure, ribbonTable } from './ribbon.js';
 
@@ -20,7 +23,15 @@ const RENDERERS: Record<string, Renderer> = {
   bands: { figure: bandsFigure, table: bandsTable },
   ribbon: { figure: ribbonFigure, table: ribbonTable },
   'phase-map': { figure: phaseMapFigure, table: phaseMapTable },
+  gap: { figure: gapFigure, table: gapTable },
+  dos: { figure: dosFigure, table: dosTable },
+  lattice: { figure: latticeFigure, table: latticeTable },
 };
+
+/** Whether results of this kind have a figure. */
+export function hasFigure(kind: string): boolean {
+  return Object.hasOwn(RENDERERS, kind);
+}
 
 function rendererFor(kind: string): Renderer {
   const renderer = RENDERERS[kind];

@@ -5,7 +5,7 @@
  */
 import type { Data, Layout } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface Axis {
   param: string;
@@ -118,7 +118,7 @@ export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Fi
       colorscale: [[0, '#333'], [1, '#333']],
       showscale: false,
       name: 'gap',
-      hovertemplate: `gap %{z:.3g}${unit ? ' ' + unit : ''}<extra></extra>`,
+      hovertemplate: `gap %{z:.3g}${unitText(unit)}<extra></extra>`,
     });
     const here1 = ctx.values[ax1.param];
     if (Number.isFinite(here0) && Number.isFinite(here1)) {
@@ -152,7 +152,7 @@ export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Fi
         gy.push(ax1.values[Math.floor(idx / n0)]);
       }
     });
-    if (gx.length) data.push({ type: 'scatter', mode: 'markers', x: gx, y: gy, marker: CLOSING_MARKER, name: 'gapless', hovertemplate: 'gapless<extra></extra>' });
+    if (gx.length) data.push({ type: 'scatter', mode: 'markers', x: gx, y: gy, marker: CLOSING_MARKER, cliponaxis: false, name: 'gapless', hovertemplate: 'gapless<extra></extra>' });
     const bx = m.boundaries.map((b) => b.at[ax0.param]);
     const by = m.boundaries.map((b) => b.at[ax1.param]);
     if (bx.length) data.push({ type: 'scatter', mode: 'markers', x: bx, y: by, marker: { size: 4, color: '#111' }, name: 'boundary', hovertemplate: 'boundary<extra></extra>' });
@@ -165,7 +165,7 @@ export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Fi
     data,
     layout: {
       ...BASE_LAYOUT,
-      title: { text: `Phase map of ${sym} — ${distinct.length} phase${distinct.length === 1 ? '' : 's'}` },
+      title: titled(`Phase map of ${sym} — ${distinct.length} phase${distinct.length === 1 ? '' : 's'}`),
       xaxis: { title: { text: withUnit(ax0.param, unitOf(ax0.param)) }, zeroline: false },
       yaxis: ax1
         ? { title: { text: withUnit(ax1.param, unitOf(ax1.param)) }, zeroline: false }

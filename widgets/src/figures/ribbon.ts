@@ -4,7 +4,7 @@
  */
 import type { Data } from '../plotly.js';
 import type { DiagnosticResult } from '../protocol.js';
-import { BASE_LAYOUT, energyUnit, fmt, numberArray, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface RibbonData {
   x: number[];
@@ -70,7 +70,8 @@ export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figu
       x.push(r.x[p]);
       y.push(r.energies[i]);
       colour.push(r.first[i] - r.last[i]);
-      custom.push([r.first[i], r.last[i]]);
+      // Hover shows two decimals; three keep a saved figure of tens of thousands of states small.
+      custom.push([Math.round(r.first[i] * 1000) / 1000, Math.round(r.last[i] * 1000) / 1000]);
     }
   }
   const unit = energyUnit(ctx.spec);
@@ -90,16 +91,16 @@ export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figu
         colorbar: { title: { text: 'edge weight<br>first − last' }, tickvals: [-1, 0, 1], ticktext: ['last', 'bulk', 'first'] },
       },
       name: 'states',
-      hovertemplate: `k = %{x:.3f}<br>E = %{y:.4f}${unit ? ' ' + unit : ''}<br>first edge %{customdata[0]:.2f}, last edge %{customdata[1]:.2f}<extra></extra>`,
+      hovertemplate: `k = %{x:.3f}<br>E = %{y:.4f}${unitText(unit)}<br>first edge %{customdata[0]:.2f}, last edge %{customdata[1]:.2f}<extra></extra>`,
     },
   ];
   const gap = result.checks.minGap;
-  const summary = `${r.name} · ${r.bandCount} states${typeof gap === 'number' ? ` · smallest gap ${fmt(gap)}${unit ? ' ' + unit : ''}` : ''}`;
+  const summary = `${r.name} · ${r.bandCount} states${typeof gap === 'number' ? ` · smallest gap ${fmt(gap)}${unitText(unit)}` : ''}`;
   return {
     data,
     layout: {
       ...BASE_LAYOUT,
-      title: { text: `Ribbon spectrum — ${r.name}` },
+      title: titled(`Ribbon spectrum — ${r.name}`),
       xaxis: {
         title: { text: r.xTitle },
         zeroline: false,
