@@ -169,16 +169,16 @@ export function widgetProblems(notebook: unknown): WidgetProblem[] {
   if (!isObject(notebook)) return [];
   const cells = cellsOf(notebook);
   const widgets = isObject(notebook.metadata) && isObject(notebook.metadata.widgets) ? notebook.metadata.widgets : {};
+  const saved = widgets[WIDGET_STATE_MIME];
   // The states the outputs carry count as saved (a notebook saved with the lab's default settings has no other).
-  const saved = isObject(widgets[WIDGET_STATE_MIME]) || widgets[WIDGET_STATE_MIME] === undefined
-    ? withOutputStates(widgets[WIDGET_STATE_MIME] as Json | undefined, cells)
-    : widgets[WIDGET_STATE_MIME];
+  const carried = (withOutputStates(undefined, cells)?.state ?? {}) as Json;
   let all: string | null = null;
-  if (saved === undefined) all = 'the notebook carries no saved widget state (neither in its outputs nor in its metadata); re-run it and save';
-  else if (!isObject(saved)) all = 'the saved widget state is not an object';
+  if (saved === undefined) {
+    if (Object.keys(carried).length === 0) all = 'the notebook carries no saved widget state (neither in its outputs nor in its metadata); re-run it and save';
+  } else if (!isObject(saved)) all = 'the saved widget state is not an object';
   else if (saved.version_major !== SAVED_STATE_VERSION) all = `the saved widget state has version ${JSON.stringify(saved.version_major)}.${JSON.stringify(saved.version_minor)}; this page reads ${SAVED_STATE_VERSION}.x`;
   else if (!isObject(saved.state)) all = 'the saved widget state has no models (metadata "state" is missing)';
-  const models = isObject(saved) && isObject(saved.state) ? saved.state : {};
+  const models = { ...(isObject(saved) && isObject(saved.state) ? saved.state : {}), ...carried };
   const problems: WidgetProblem[] = [];
   cells.forEach((cell, i) => {
     for (const output of cell.outputs) {
