@@ -8,7 +8,10 @@
 export interface ResultLike {
   kind: string;
   convention?: string;
-  checks: { minGap?: number; minGapAt?: unknown; grid?: unknown; warnings?: string[]; gapless?: boolean };
+  checks: {
+    minGap?: number; minGapAt?: unknown; grid?: unknown; warnings?: string[]; gapless?: boolean;
+    certified?: boolean; gapProof?: { verdict: string; lowerBound: number; samples: number; lines: number[]; reason?: string };
+  };
   [field: string]: unknown;
 }
 
@@ -87,6 +90,13 @@ function checkRows(result: ResultLike): [string, string][] {
   if (grid) rows.push(['grid', grid]);
   if (result.convention) rows.push(['convention', result.convention]);
   if (c.gapless) rows.push(['gapless', 'yes: invariants are not defined']);
+  const proof = c.gapProof;
+  if (proof !== undefined) {
+    const how = `${proof.samples} samples on ${proof.lines.join('x')} lines`;
+    const said = proof.verdict === 'gapped' ? `proven: at least ${num(proof.lowerBound)} everywhere (${how})` : proof.verdict === 'gapless' ? `closes (${how})` : `not proven (${how})`;
+    rows.push(['gap proof', said]);
+  }
+  if (c.certified !== undefined) rows.push(['certified', c.certified ? 'yes: gap proven, lattice condition met' : 'no']);
   return rows;
 }
 

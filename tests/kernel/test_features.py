@@ -210,6 +210,10 @@ class Features(unittest.TestCase):
         # A result without a figure shows its summary alone.
         _, outputs = harness.run(self.kc, "compute({kind: 'chern', model: qwz(), params: {u: -1}, bands: 1})")
         self.assertEqual([m for m, _, _ in outputs if m in ("display_data", "execute_result")], ["execute_result"])
+        # Its summary says what was proven (the gap certificate) and whether the integer is certified.
+        summary = [c for m, c, _ in outputs if m == "execute_result"][0]["data"]["text/plain"]
+        self.assertRegex(summary, r"gap proof: proven: at least [0-9.e+-]+ everywhere \(\d+ samples on \d+x\d+ lines\)")
+        self.assertIn("certified: yes", summary)
 
     def test_display_of_a_result_updates_summary_and_figure_in_place(self):
         reply, outputs = harness.run(self.kc, "const shown = display(compute({kind: 'bands', model: qwz(), params: {u: -1}}))\nshown.update(compute({kind: 'bands', model: qwz(), params: {u: 1}}))")
