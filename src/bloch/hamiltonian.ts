@@ -139,43 +139,35 @@ export class BlochHamiltonian {
   /**
    * A bound on ||H(k + delta) - H(k)|| (spectral norm) valid at every k and every step with
    * |delta_i| <= steps[i] (reduced radians). Each term changes its matrix element by
-   * |t| |e^{-i d·delta} - 1| <= |t| min(2, sum_i |d_i| steps_i), and the spectral norm of a
-   * Hermitian matrix is at most its largest absolute row sum. With `capped` false the min(2, ...)
-   * is dropped, so steps of 1 along one axis bound sup_k ||dH/dk_i||. By Weyl's inequality every
-   * eigenvalue moves by at most this much between k and k + delta.
+   * |t| |e^{-i d·delta} - 1| <= |t| min(2, x), x = sum_i |d_i| steps_i. With `capped` false the
+   * min(2, ...) is dropped, so steps of 1 along one axis bound sup_k ||dH/dk_i||. By Weyl's
+   * inequality every eigenvalue moves by at most this much between k and k + delta.
    */
   variationBound(steps: ArrayLike<number>, capped = true): number {
-    const n = this.size, dim = this.dim;
-    const rows = new Float64Array(n);
-    const amps = this.amplitudes;
-    for (let t = 0; t < this.termFrom.length; t++) {
-      const p = this.termPhase[t];
-      let reach = 0;
-      for (let j = 0; j < dim; j++) reach += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
-      if (capped) reach = Math.min(2, reach);
-      const w = Math.hypot(amps[2 * t], amps[2 * t + 1]) * reach;
-      rows[this.termFrom[t]] += w;
-      rows[this.termTo[t]] += w;
-    }
-    let worst = 0;
-    for (let a = 0; a < n; a++) worst = Math.max(worst, rows[a]);
-    return worst;
+    return this.rowSumBound(steps, capped ? (x) => Math.min(2, x) : (x) => x);
   }
 
   /**
    * A bound on ||H(k + delta) - H(k) - sum_i delta_i dH/dk_i|| at every k for |delta_i| <= steps[i]:
-   * the second-order remainder, |e^{-ix} - 1 + ix| <= x^2/2 per term, summed by rows as in
-   * `variationBound`.
+   * the second-order remainder, |e^{-ix} - 1 + ix| <= x^2/2 per term.
    */
   remainderBound(steps: ArrayLike<number>): number {
+    return this.rowSumBound(steps, (x) => (x * x) / 2);
+  }
+
+  /**
+   * max over rows of sum of |t| change(x) over the terms touching the row, x = sum_i |d_i| steps_i:
+   * the spectral norm of a Hermitian matrix is at most its largest absolute row sum.
+   */
+  private rowSumBound(steps: ArrayLike<number>, change: (x: number) => number): number {
     const n = this.size, dim = this.dim;
     const rows = new Float64Array(n);
     const amps = this.amplitudes;
     for (let t = 0; t < this.termFrom.length; t++) {
       const p = this.termPhase[t];
-      let reach = 0;
-      for (let j = 0; j < dim; j++) reach += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
-      const w = (Math.hypot(amps[2 * t], amps[2 * t + 1]) * reach * reach) / 2;
+      let x = 0;
+      for (let j = 0; j < dim; j++) x += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
+      const w = Math.hypot(amps[2 * t], amps[2 * t + 1]) * change(x);
       rows[this.termFrom[t]] += w;
       rows[this.termTo[t]] += w;
     }

@@ -208,12 +208,13 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   // A box's corners move by at most V(half widths) <= sum over axes of V(one axis's half width)
   // (min(2, a + b) <= min(2, a) + min(2, b), row sums add), so each interval's share is computed once.
   const steps = new Array<number>(h.dim).fill(0);
-  const intervalBound = (axis: number, half: number): number => {
+  /** How far k can move when region axis `axis` moves by `half` alone. */
+  const stepsAlong = (axis: number, half: number): number[] => {
     const one = new Array<number>(d).fill(0);
     one[axis] = half;
     steps.fill(0);
     chart.reach(one, steps);
-    return h.variationBound(steps);
+    return steps;
   };
   const corners = 1 << d;
 
@@ -240,13 +241,6 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
       norms[q * d + i] = Math.max(Math.abs(derivativeValues[0]), Math.abs(derivativeValues[nb - 1]));
     }
     return norms[q * d + i];
-  };
-  const intervalRemainder = (axis: number, half: number): number => {
-    const one = new Array<number>(d).fill(0);
-    one[axis] = half;
-    steps.fill(0);
-    chart.reach(one, steps);
-    return h.remainderBound(steps);
   };
 
   const finish = (verdict: GapVerdict, lowerBound: number, reason?: string): GapCertificate => ({
@@ -275,9 +269,9 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     if ((round & (round - 1)) === 0 && round >= 4 && polish('').verdict === 'gapless') return gapless();
     checkInterrupt();
     const widths = positions.map((p) => Float64Array.from({ length: p.length - 1 }, (_, j) => p[j + 1] - p[j]));
-    const shares = widths.map((w, i) => Float64Array.from(w, (x) => intervalBound(i, x / 2)));
+    const shares = widths.map((w, i) => Float64Array.from(w, (x) => h.variationBound(stepsAlong(i, x / 2))));
     // (sum of d terms)^2 <= d (sum of squares): each interval's share of the remainder, times d.
-    const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => d * intervalRemainder(i, x / 2)));
+    const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => d * h.remainderBound(stepsAlong(i, x / 2))));
     const cornerOffsets = Array.from({ length: corners }, (_, c) => strides.reduce((a, st, i) => a + ((c >> i) & 1) * st, 0));
     // Boxes: the proven gap of each, and which intervals to split where a box is not proven.
     const split = positions.map((p) => new Uint8Array(p.length - 1));
