@@ -220,8 +220,9 @@ function outputHtml(output: Json, broken: ReadonlyMap<string, WidgetProblem>): s
       const message = `Widget ${modelId} (cell ${problem.cell}) is not live in this page: ${problem.problem}.`;
       return `<div class="output widget broken"><div class="chernel-message" data-level="error">${escapeHtml(message)}</div>${staticPicture(data)}</div>`;
     }
-    // The view tag; the runtime replaces it by the live widget.
-    const fallback = data['text/plain'] ? `<noscript><pre>${escapeHtml(text(data['text/plain']))}</pre></noscript>` : '';
+    // The view tag; the runtime replaces it by the live widget. Without JavaScript, its last picture.
+    const still = staticPicture(data) || (data['text/plain'] ? `<pre>${escapeHtml(text(data['text/plain']))}</pre>` : '');
+    const fallback = still ? `<noscript>${still}</noscript>` : '';
     return `<div class="output widget">${fallback}<script type="${WIDGET_VIEW_MIME}">${scriptSafe(JSON.stringify(data[WIDGET_VIEW_MIME]))}</script></div>`;
   }
   const image = staticPicture(data);

@@ -39,7 +39,7 @@ describe('export-html page', () => {
           cell_type: 'code',
           source: 'show(m)',
           outputs: [
-            { output_type: 'display_data', data: { 'application/vnd.jupyter.widget-view+json': { model_id: 'abc', version_major: 2, version_minor: 0 }, 'text/plain': 'w' } },
+            { output_type: 'display_data', data: { 'application/vnd.jupyter.widget-view+json': { model_id: 'abc', version_major: 2, version_minor: 0 }, 'image/png': 'iVBW', 'text/plain': 'w' } },
             { output_type: 'execute_result', data: { 'application/vnd.plotly.v1+json': { data: [] }, 'image/png': 'iVBOR', 'text/html': '<b>r</b>' } },
             { output_type: 'stream', name: 'stderr', text: 'warn <x>' },
             { output_type: 'error', ename: 'ModelError', evalue: 'bad', traceback: ['\u001b[31mModelError\u001b[0m: bad'] },
@@ -53,6 +53,8 @@ describe('export-html page', () => {
       { runtime },
     );
     expect(html).toContain('<script type="application/vnd.jupyter.widget-view+json">{"model_id":"abc","version_major":2,"version_minor":0}</script>');
+    // A reader without JavaScript sees the widget's last picture.
+    expect(html).toContain('<noscript><div class="output image"><img alt="figure" src="data:image/png;base64,iVBW"></div></noscript>');
     expect(html).toContain('<script type="application/vnd.plotly.v1+json">{"data":[]}</script><div class="plotly-fallback"><div class="output image"><img alt="figure" src="data:image/png;base64,iVBOR">');
     expect(html).toContain('<pre class="output stream stderr">warn &lt;x&gt;</pre>');
     expect(html).toContain('<pre class="output error">ModelError: bad</pre>');
