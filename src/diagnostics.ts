@@ -11,6 +11,7 @@ import { ModelError, show } from './model/errors.js';
 import { resolveParameters } from './model/expressions.js';
 import { checkRequestFields, didYouMean } from './request-fields.js';
 import type { ModelSpec, ParameterValues } from './model/spec.js';
+import type { PointFunctionFactory } from './scan/executor.js';
 import { pointFunction } from './scan/point.js';
 import { phaseMapSync, runPhaseMap } from './scan/run.js';
 import type { PhaseMapRequest, PhaseMapResult } from './scan/sweep.js';
@@ -115,9 +116,32 @@ export function checkRequest(request: DiagnosticRequest): void {
  * A 'curvature' or 'wannier-flow' request with `part: {index, count}` computes that part only;
  * `joinParts` makes the result of the whole request from all of them.
  */
-export function compute(request: DiagnosticRequest): ComputedResult {
+export function compute(request: DiagnosticRequest, options: ComputeOptions = {}): ComputedResult {
   checkRequest(request);
-  return run(request);
+  return run(request, options.onPoint);
+}
+
+export interface ComputeOptions {
+  /**
+   * A phase map calls this after each point: the points done, and the points planned (the grid;
+   * boundary refinement adds a few as it goes). Hosts draw progress with it.
+   */
+  onPoint?: (done: number, planned: number) => void;
+}
+
+/** The engine's point function, reporting each point it computes. */
+function countingPoints(request: PhaseMapRequest, onPoint: (done: number, planned: number) => void): PointFunctionFactory {
+  const grid = request.axes.reduce((n, axis) => n * axis.count, 1);
+  let done = 0;
+  return (target) => {
+    const point = pointFunction(target);
+    return (swept) => {
+      const outcome = point(swept);
+      done++;
+      onPoint(done, Math.max(grid, done));
+      return outcome;
+    };
+  };
 }
 
 /** The parameters a phase map holds fixed, resolved with defaults (its model is valid by now). */
@@ -129,9 +153,9 @@ function fixedParams(request: PhaseMapRequest): ParameterValues {
   return resolved;
 }
 
-function run(request: DiagnosticRequest): ComputedResult {
+function run(request: DiagnosticRequest, onPoint?: ComputeOptions['onPoint']): ComputedResult {
   if (request.kind === 'phase-map') {
-    const map = phaseMapSync(request, pointFunction);
+    const map = phaseMapSync(request, onPoint === undefined ? pointFunction : countingPoints(request, onPoint));
     return Object.assign(map, { params: fixedParams(request) });
   }
   const h = new BlochHamiltonian(request.model, request.params ?? {}, { convention: request.convention ?? 'lattice' });

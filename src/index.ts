@@ -20,7 +20,7 @@ export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, co
 export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
 
 // One call for every diagnostic
-export { checkRequest, compute, computeAsync, DIAGNOSTIC_KINDS, joinParts, type ComputeAsyncOptions, type ComputedResult, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
+export { checkRequest, compute, computeAsync, DIAGNOSTIC_KINDS, joinParts, type ComputeAsyncOptions, type ComputedResult, type ComputeOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
 export { computeBudget, estimateCost, setComputeBudget, type ComputeBudget, type CostEstimate } from './cost.js';
 export { closestName, REQUEST_FIELDS, requestFields } from './request-fields.js';
 

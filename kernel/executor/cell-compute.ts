@@ -8,10 +8,8 @@
  *     model's units, zone and parameter values.
  */
 import { randomUUID } from 'node:crypto';
-import type { ComputeAsyncOptions, DiagnosticRequest, DiagnosticResult } from '../../src/index.js';
+import type { ComputeAsyncOptions, ComputeOptions, DiagnosticRequest, DiagnosticResult } from '../../src/index.js';
 import { onInterruptCheck } from '../../src/interrupt.js';
-import { phaseMapCounting } from '../../widgets/src/diagnose.js';
-import type { DiagnosticRequest as WidgetRequest } from '../../widgets/src/protocol.js';
 import { REQUEST_OF } from '../display/index.js';
 import { progressBundle, type ProgressState } from '../display/progress.js';
 import type { WorkerToHost } from './channel.js';
@@ -21,7 +19,7 @@ export const SHOW_AFTER_MS = 1000;
 const REDRAW_MS = 250;
 
 export interface Engine {
-  compute(request: DiagnosticRequest): DiagnosticResult;
+  compute(request: DiagnosticRequest, options?: ComputeOptions): DiagnosticResult;
   computeAsync(request: DiagnosticRequest, options?: ComputeAsyncOptions): Promise<DiagnosticResult>;
 }
 
@@ -104,8 +102,8 @@ export function cellCompute(engine: Engine, post: (message: WorkerToHost) => voi
     // A phase map point by point, each point counted against the grid (boundary refinement adds a few more).
     const bar = new SilentProgress(post, `phase map of ${String(request.invariant ?? 'invariant')}`);
     try {
-      const result = phaseMapCounting(request as unknown as WidgetRequest, (done, total) => bar.report(done, Math.max(total, done + 1)));
-      return remember(result as unknown as DiagnosticResult, request);
+      const result = engine.compute(request, { onPoint: (done, planned) => bar.report(done, Math.max(planned, done + 1)) });
+      return remember(result, request);
     } finally {
       bar.finish();
     }

@@ -4,7 +4,7 @@
  * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
  * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
-import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, phaseMapSync, pointFunction, wannierFlow, z2Index, type ModelSpec, type PointFunctionFactory } from '../../src/index.js';
+import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, wannierFlow, z2Index, type ModelSpec } from '../../src/index.js';
 import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
@@ -60,27 +60,8 @@ const NOT_KRAMERS = /not in Kramers pairs/;
 /** Reports points done of the points planned (the grid; boundary refinement adds a few). */
 export type OnPoints = (done: number, total: number) => void;
 
-/**
- * A phase map point by point, each point reported (the engine's own sweep, with a counting point
- * function). The kernel's cells use it too (kernel/executor/cell-compute.ts).
- */
-export function phaseMapCounting(request: DiagnosticRequest, onPoints: OnPoints): DiagnosticResult {
-  const axes = Array.isArray(request.axes) ? (request.axes as { count?: unknown }[]) : [];
-  const grid = axes.reduce((n, axis) => n * (Number(axis?.count) || 1), 1);
-  let done = 0;
-  const counting: PointFunctionFactory = (target) => {
-    const point = pointFunction(target);
-    return (swept) => {
-      const outcome = point(swept);
-      onPoints(++done, Math.max(grid, done));
-      return outcome;
-    };
-  };
-  return phaseMapSync(request as unknown as Parameters<typeof phaseMapSync>[0], counting) as unknown as DiagnosticResult;
-}
-
 export function diagnose(request: DiagnosticRequest, onPoints?: OnPoints): DiagnosticResult {
-  if (request.kind === 'phase-map' && onPoints !== undefined) return phaseMapCounting(request, onPoints);
+  if (request.kind === 'phase-map' && onPoints !== undefined) return compute(request as unknown as EngineRequest, { onPoint: onPoints }) as unknown as DiagnosticResult;
   if (request.kind === 'wannier-flow') {
     // `invariant` is the widget's, not an engine option.
     const { invariant, ...flowRequest } = request;
