@@ -62,7 +62,10 @@ describe('WebWorkerExecutor in Chromium', () => {
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(String(e)));
-    const result = new Promise<Record<string, unknown>>((resolve) => page.exposeFunction('report', resolve));
+    // Exposed before the page loads: its script reports as soon as it is done.
+    let resolveResult: (r: Record<string, unknown>) => void = () => {};
+    const result = new Promise<Record<string, unknown>>((resolve) => { resolveResult = resolve; });
+    await page.exposeFunction('report', (r: Record<string, unknown>) => resolveResult(r));
     await page.goto(`${base}${path}`);
     const r = await result;
     await context.close();
