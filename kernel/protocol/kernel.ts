@@ -53,6 +53,8 @@ export class Kernel {
   private current: CurrentExecution | null = null;
   private pendingInput: { resolve: (value: string) => void; reject: (error: Error) => void } | null = null;
   private readonly shellQueue: Message[] = [];
+  /** The latest failed cell with stop_on_error: its client's execute requests sent before it are aborted. */
+  private failure: { session: string; at: number } | null = null;
   private shellBusy = false;
   private readonly shell: Record<string, Handler>;
   private readonly control: Record<string, Handler>;
@@ -224,6 +226,10 @@ export class Kernel {
   }
 
   private async execute(message: Message): Promise<void> {
+    if (this.sentBeforeFailure(message)) {
+      this.reply(message, 'shell', { status: 'aborted', execution_count: this.executionCount });
+      return;
+    }
     const code = field<string>(message, 'code', 'string');
     const silent = field<boolean>(message, 'silent', 'boolean', false);
     const storeHistory = !silent && field<boolean>(message, 'store_history', 'boolean', true);
@@ -279,7 +285,20 @@ export class Kernel {
    * stop_on_error: the execute requests the same client (session) already queued are answered
    * `aborted`, not run. Another client's queued cells do not depend on this one: they still run.
    */
+  /**
+   * Whether an execute request was sent (its header's date) by the client of the latest failed cell
+   * before that cell failed: sent with it, so aborted with the queue even if it reached the socket
+   * after the failure.
+   */
+  private sentBeforeFailure(message: Message): boolean {
+    if (this.failure === null || this.failure.session !== message.header.session) return false;
+    const sent = Date.parse(message.header.date);
+    return Number.isFinite(sent) && sent <= this.failure.at;
+  }
+
   private abortQueuedExecutions(failed: Message): void {
+    // Requests the client sent with the failed one may still be in flight: abort those when they arrive.
+    this.failure = { session: failed.header.session, at: Date.now() };
     const queued = this.shellQueue.filter((m) => m.header.msg_type === 'execute_request' && m.header.session === failed.header.session);
     for (const message of queued) {
       this.shellQueue.splice(this.shellQueue.indexOf(message), 1);
