@@ -9,7 +9,7 @@ import type { ModelSpec } from '../src/index.js';
 import { didYouMean, requestFields } from '../src/request-fields.js';
 import type { SweepQuantity } from '../src/scan/sweep.js';
 import type { WidgetKind } from '../widgets/src/protocol.js';
-import { packArrays, removeBuffers } from '../widgets/src/wire.js';
+import { packArrays } from '../widgets/src/wire.js';
 
 export const WIDGET_MODULE = 'chernel-widgets';
 /** The semver range of the front-end module the state is written for. */
@@ -87,24 +87,7 @@ export function widgetState(fields: {
   };
 }
 
-/**
- * A widget's entry in a notebook's saved widget state (`metadata.widgets[WIDGET_STATE_MIME].state`),
- * as JupyterLab writes it: binary buffers inline as base64 beside their paths.
- */
-export function savedStateEntry(state: Record<string, unknown>): Record<string, unknown> {
-  const split = removeBuffers(state);
-  return {
-    model_name: state._model_name,
-    model_module: state._model_module,
-    model_module_version: state._model_module_version,
-    state: split.state,
-    buffers: split.buffers.map((b, i) => ({
-      path: split.buffer_paths[i],
-      encoding: 'base64',
-      data: Buffer.from(b.buffer, b.byteOffset, b.byteLength).toString('base64'),
-    })),
-  };
-}
+export { savedStateEntry } from '../widgets/src/wire.js';
 
 /** Checks a parameter update against the model: known names, finite numbers, declared ranges. */
 export function checkValues(spec: ModelSpec, values: unknown, field = 'values'): Values {

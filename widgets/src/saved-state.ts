@@ -4,10 +4,9 @@
  * what its view shows, drawn by the shared rasteriser (snapshot/) on a canvas for its PNG.
  */
 import { figureFor } from './figures/index.js';
-import { base64 } from './picture.js';
 import type { DiagnosticResult, ModelSpecView } from './protocol.js';
 import { drawFigure } from './snapshot/figure.js';
-import { packArrays, removeBuffers } from './wire.js';
+import { packArrays, savedStateEntry } from './wire.js';
 
 /** What is read of a widget model here (DiagnosticModel, widget.ts). */
 export interface ModelLike {
@@ -44,18 +43,7 @@ export function liveModel(modelId: string, document: unknown): ModelLike | undef
 export function savedEntry(model: ModelLike): Record<string, unknown> {
   const state = { ...model.get_state(false) };
   state.result = packArrays(state.result);
-  const split = removeBuffers(state);
-  return {
-    model_name: state._model_name,
-    model_module: state._model_module,
-    model_module_version: state._model_module_version,
-    state: split.state,
-    buffers: split.buffers.map((b, i) => ({
-      path: split.buffer_paths[i],
-      encoding: 'base64',
-      data: base64(new Uint8Array(b.buffer, b.byteOffset, b.byteLength)),
-    })),
-  };
+  return savedStateEntry(state);
 }
 
 /** A PNG (base64) of the widget's last result as its view draws it, and a line saying what it shows. */

@@ -4,6 +4,7 @@
  * serializer lifts `buffer` out as a binary frame (or base64 in a saved notebook). The kernel side
  * (kernel/widgets.ts) writes the same shape.
  */
+import { base64 } from './picture.js';
 
 export type DType = 'float64' | 'float32' | 'int32' | 'uint32' | 'int16' | 'uint16' | 'int8' | 'uint8';
 
@@ -168,4 +169,24 @@ export function putBuffers(state: Record<string, unknown>, paths: BufferPath[], 
     if (buffer === undefined) throw new RangeError(`no buffer for path ${JSON.stringify(path)}`);
     node[path[path.length - 1]] = new DataView(buffer.buffer, buffer.byteOffset, buffer.byteLength);
   });
+}
+
+/**
+ * A widget's entry in a notebook's saved widget state (`metadata.widgets[WIDGET_STATE_MIME].state`,
+ * and the copy a chernel widget output carries), as JupyterLab writes it: binary buffers inline as
+ * base64 beside their paths. The kernel and the lab write it alike.
+ */
+export function savedStateEntry(state: Record<string, unknown>): Record<string, unknown> {
+  const split = removeBuffers(state);
+  return {
+    model_name: state._model_name,
+    model_module: state._model_module,
+    model_module_version: state._model_module_version,
+    state: split.state,
+    buffers: split.buffers.map((b, i) => ({
+      path: split.buffer_paths[i],
+      encoding: 'base64',
+      data: base64(new Uint8Array(b.buffer, b.byteOffset, b.byteLength)),
+    })),
+  };
 }
