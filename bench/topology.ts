@@ -63,33 +63,25 @@ def chern(N, m):
     F = np.angle(U1 * np.roll(U2, -1, axis=0) * np.roll(U1, -1, axis=1).conj() * U2.conj())
     return float(-F.sum() / (2 * np.pi))
 
-def flow(n_along, n_across, m):
-    k1 = -np.pi + 2 * np.pi * np.arange(n_across + 1) / n_across
+def centres_of(k1, n_along, m):
+    # Hybrid Wannier centres at each k1: Wilson loops of n_along points along k2.
     k2 = -np.pi + 2 * np.pi * np.arange(n_along) / n_along
     K = np.stack(np.meshgrid(k1, k2, indexing="ij"), -1)
     _, v = np.linalg.eigh(hamiltonians(K))
     u = v[..., :m]
     M = np.einsum("abim,abin->abmn", u.conj(), np.roll(u, -1, axis=1))
-    W = np.broadcast_to(np.eye(m, dtype=complex), (n_across + 1, m, m)).copy()
+    W = np.broadcast_to(np.eye(m, dtype=complex), (len(k1), m, m)).copy()
     for j in range(n_along):
         W = W @ M[:, j]
-    centres = np.sort(np.mod(-np.angle(np.linalg.eigvals(W)) / (2 * np.pi), 1.0), axis=1)
-    return centres
+    return np.sort(np.mod(-np.angle(np.linalg.eigvals(W)) / (2 * np.pi), 1.0), axis=1)
+
+def flow(n_along, n_across, m):
+    return centres_of(-np.pi + 2 * np.pi * np.arange(n_across + 1) / n_across, n_along, m)
 
 def z2(N):
     # Crossings of the largest-gap midline over k1 in [0, pi] (N/2 steps), loops of N points along k2.
     half = N // 2
-    k1 = np.pi * np.arange(half + 1) / half
-    k2 = -np.pi + 2 * np.pi * np.arange(N) / N
-    K = np.stack(np.meshgrid(k1, k2, indexing="ij"), -1)
-    _, v = np.linalg.eigh(hamiltonians(K))
-    m = job["m"]
-    u = v[..., :m]
-    M = np.einsum("abim,abin->abmn", u.conj(), np.roll(u, -1, axis=1))
-    W = np.broadcast_to(np.eye(m, dtype=complex), (half + 1, m, m)).copy()
-    for j in range(N):
-        W = W @ M[:, j]
-    c = np.sort(np.mod(-np.angle(np.linalg.eigvals(W)) / (2 * np.pi), 1.0), axis=1)
+    c = centres_of(np.pi * np.arange(half + 1) / half, N, job["m"])
     gaps = np.diff(np.concatenate([c, c[:, :1] + 1], axis=1), axis=1)
     i = np.argmax(gaps, axis=1)
     mid = np.mod(c[np.arange(half + 1), i] + gaps[np.arange(half + 1), i] / 2, 1.0)
