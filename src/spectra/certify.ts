@@ -281,6 +281,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     const boxWidths = new Array<number>(d);
     let lowerBound = Infinity;
     let failing = 0;
+    const fine = (b: number) => b > 0 && (options.cellCondition === undefined || options.cellCondition(b, boxWidths));
     for (let box = 0; box < boxes; box++) {
       let rest = box, base = 0, share = 0;
       for (let i = d - 1; i >= 0; i--) {
@@ -294,7 +295,6 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
       let smallest = Infinity;
       for (let c = 0; c < corners; c++) smallest = Math.min(smallest, gaps[base + cornerOffsets[c]]);
       let bound = smallest - 2 * share;
-      const fine = (b: number) => b > 0 && (options.cellCondition === undefined || options.cellCondition(b, boxWidths));
       if (!fine(bound) && remainders !== null) {
         let remainder = 0;
         for (let i = 0; i < d; i++) remainder += remainders[i][index[i]];
