@@ -23,6 +23,18 @@ export interface BlochOptions {
   convention?: BlochConvention;
 }
 
+/** A model's terms at fixed parameter values (`BlochHamiltonian.hoppings`). */
+export interface Hoppings {
+  count: number;
+  /** Components of each cell vector: every direction of the model, periodic first. */
+  cellDim: number;
+  from: Int32Array;
+  to: Int32Array;
+  cells: Int32Array;
+  re: Float64Array;
+  im: Float64Array;
+}
+
 export class BlochHamiltonian {
   readonly spec: ModelSpec;
   /** Number of orbitals: the matrix size. */
@@ -108,6 +120,24 @@ export class BlochHamiltonian {
     }
     this.params = resolved;
     return this;
+  }
+
+  /**
+   * The model's terms at the current parameter values, as plain arrays: term t is
+   * <cell(t), to(t)| H |0, from(t)> = re(t) + i im(t), with `cells` holding the spec's integer cell
+   * vector (all of the model's directions, periodic first) of term t at [t*D, (t+1)*D). Onsite terms
+   * (from = to, cell 0) appear once; every other term stands for itself and its Hermitian partner.
+   * Real-space samples and principal layers are built from this, never from H(k).
+   */
+  hoppings(): Hoppings {
+    const count = this.termFrom.length;
+    const cellDim = this.spec.vectors.length;
+    const cells = new Int32Array(count * cellDim);
+    this.spec.terms.forEach((t, i) => t.cell.forEach((c, j) => (cells[i * cellDim + j] = c)));
+    const re = new Float64Array(count);
+    const im = new Float64Array(count);
+    for (let t = 0; t < count; t++) [re[t], im[t]] = [this.amplitudes[2 * t], this.amplitudes[2 * t + 1]];
+    return { count, cellDim, from: this.termFrom.slice(), to: this.termTo.slice(), cells, re, im };
   }
 
   private computePhases(k: ArrayLike<number>): void {

@@ -38,6 +38,27 @@ describe('Bloch Hamiltonian of the Qi–Wu–Zhang model', () => {
     }
   });
 
+  it('its resolved terms rebuild the closed form at random k (Qi, Wu, Zhang 2006)', () => {
+    const t = blochHamiltonian(qwz(), { u: 0.7 }).hoppings();
+    for (let trial = 0; trial < 10; trial++) {
+      const k = [(Math.random() * 2 - 1) * Math.PI, (Math.random() * 2 - 1) * Math.PI];
+      // H_{to,from} += t e^{-ik·R}, plus the Hermitian partner for every non-onsite term.
+      const hr = [[0, 0], [0, 0]], hi = [[0, 0], [0, 0]];
+      for (let i = 0; i < t.count; i++) {
+        const phi = -(k[0] * t.cells[2 * i] + k[1] * t.cells[2 * i + 1]);
+        const re = t.re[i] * Math.cos(phi) - t.im[i] * Math.sin(phi), im = t.re[i] * Math.sin(phi) + t.im[i] * Math.cos(phi);
+        const [a, b] = [t.from[i], t.to[i]];
+        hr[b][a] += re; hi[b][a] += im;
+        if (!(a === b && t.cells[2 * i] === 0 && t.cells[2 * i + 1] === 0)) { hr[a][b] += re; hi[a][b] -= im; }
+      }
+      const dz = 0.7 + Math.cos(k[0]) + Math.cos(k[1]);
+      expect(hr[0][0]).toBeCloseTo(dz, 12);
+      expect(hr[1][1]).toBeCloseTo(-dz, 12);
+      expect(hr[1][0]).toBeCloseTo(Math.sin(k[0]), 12);
+      expect(hi[1][0]).toBeCloseTo(Math.sin(k[1]), 12);
+    }
+  });
+
   it('derivative equals a central finite difference', () => {
     const h = blochHamiltonian(qwz(), { u: -1.3 });
     const d = new Float64Array(8), plus = new Float64Array(8), minus = new Float64Array(8);
