@@ -20,7 +20,7 @@ import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from
 import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
-import { checkRequestFields } from '../src/request-fields.js';
+import { checkRequestShape } from '../src/request.js';
 import { pointTarget, validatePhaseMapRequest, type PhaseMapRequest } from '../src/scan/sweep.js';
 import { sbatchScript, type SlurmOptions } from './slurm.js';
 
@@ -116,7 +116,7 @@ function loadRequest(path: string): PhaseMapRequest {
   if (raw !== null && typeof raw === 'object' && typeof raw.model === 'string') raw.model = catalogueModel(raw.model);
   const request = validatePhaseMapRequest(raw);
   // The engine's point function runs every point: the request takes exactly its options.
-  checkRequestFields(request);
+  checkRequestShape(request);
   return request;
 }
 

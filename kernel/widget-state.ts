@@ -6,7 +6,8 @@
  */
 
 import type { ModelSpec } from '../src/index.js';
-import { didYouMean, requestFields } from '../src/request-fields.js';
+import { didYouMean } from '../src/model/field-names.js';
+import { requestFields } from '../src/request.js';
 import type { SweepQuantity } from '../src/scan/sweep.js';
 import type { WidgetKind } from '../widgets/src/protocol.js';
 import { packArrays } from '../widgets/src/wire.js';
@@ -36,7 +37,7 @@ export class WidgetOptionError extends Error {
   }
 }
 
-/** The widget's own options; the rest are its diagnostic's request fields (src/request-fields.ts). */
+/** The widget's own options; the rest are its diagnostic's request fields (src/request.ts). */
 const OWN_OPTIONS = ['kind', 'values', 'title'];
 
 /**

@@ -20,9 +20,12 @@ export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, co
 export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
 
 // One call for every diagnostic
-export { checkRequest, compute, computeAsync, DIAGNOSTIC_KINDS, joinParts, type ComputeAsyncOptions, type ComputedResult, type ComputeOptions, type DiagnosticKind, type DiagnosticRequest, type DiagnosticResult } from './diagnostics.js';
-export { computeBudget, estimateCost, setComputeBudget, type ComputeBudget, type CostEstimate } from './cost.js';
-export { closestName, REQUEST_FIELDS, requestFields } from './request-fields.js';
+export { compute, computeAsync, computeOn, joinParts, type ComputeAsyncOptions, type ComputedResult, type ComputeOptions, type DiagnosticResult } from './compute.js';
+export { checkRequest, DIAGNOSTIC_KINDS, estimateCost, requestFields, type DiagnosticKind, type DiagnosticRequest } from './request.js';
+export { DIAGNOSTICS, diagnosticOf, KIND_NAMES, splits, type KindName, type KindRequest, type KindResult, type SplitKind } from './diagnostics/registry.js';
+export { type Diagnostic, type PointOutcome, type ResultBase } from './diagnostics/diagnostic.js';
+export { computeBudget, setComputeBudget, type ComputeBudget, type CostEstimate } from './cost.js';
+export { closestName } from './model/field-names.js';
 
 // Spectra
 export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
@@ -47,7 +50,7 @@ export { hallConductivity, ELEMENTARY_CHARGE, PLANCK_CONSTANT, HALL_CONDUCTANCE_
 
 // Sweeps, phase maps, cluster plans
 export { runPhaseMap, phaseMapSync, makeCheckpoint, CHECKPOINT_FORMAT, type RunPhaseMapOptions, type SweepCheckpoint, type SweepProgress, type PointRecord } from './scan/run.js';
-export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointOutcome, type PointTarget } from './scan/sweep.js';
+export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointTarget } from './scan/sweep.js';
 export { InProcessExecutor, PointError, type SweepExecutor, type StopSignal, type EvaluateHooks, type PointFunctionFactory } from './scan/executor.js';
 export { WorkerPoolExecutor, serveSweepWorker, type WorkerPort } from './scan/pool.js';
 export { pointFunction } from './scan/point.js';

@@ -11,7 +11,7 @@ import { magneticFlux } from './builders/flux.js';
 import { wireStack } from './builders/wires.js';
 import { ModelError, show } from './errors.js';
 import type { ModelSpec } from './spec.js';
-import { checkFields, closestName } from '../request-fields.js';
+import { checkFields, closestName } from './field-names.js';
 
 /** The unit of a model's energies: its own energy scale, named (e.g. 'energy (units of t)'). */
 const energyIn = (scale: string): string => `energy (units of ${scale})`;

@@ -22,7 +22,7 @@ import {
   unaryPlusDependencies, type EvalFunction, type MathNode,
 } from 'mathjs';
 import { ModelError, show } from './errors.js';
-import { didYouMean } from '../request-fields.js';
+import { didYouMean } from './field-names.js';
 import type { Amplitude, ModelSpec, ParameterValues } from './spec.js';
 
 /** The functions an amplitude may call: arithmetic, elementary functions and complex parts. */

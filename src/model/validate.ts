@@ -7,7 +7,7 @@ import { ModelError, show } from './errors.js';
 import { numericValue } from './amplitude.js';
 import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type ModelSpec } from './spec.js';
-import { checkModelFields } from '../request-fields.js';
+import { checkModelFields } from './field-names.js';
 
 function isFiniteArray(x: unknown, length: number): x is number[] {
   return Array.isArray(x) && x.length === length && x.every((v) => typeof v === 'number' && Number.isFinite(v));

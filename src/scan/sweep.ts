@@ -12,11 +12,13 @@ import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { validateModel } from '../model/validate.js';
 import { canonicalJson, digest } from './checksum.js';
-import { didYouMean } from '../request-fields.js';
+import { didYouMean } from '../model/field-names.js';
 
-/** What a point of a phase map computes: a quantised invariant, or the gap itself. */
-export type SweepQuantity = 'chern' | 'z2' | 'winding' | 'majorana' | 'gap';
-export const SWEEP_QUANTITIES: readonly SweepQuantity[] = ['chern', 'z2', 'winding', 'majorana', 'gap'];
+import type { PointOutcome } from '../diagnostics/diagnostic.js';
+import { SWEEP_QUANTITIES, type SweepQuantity } from '../diagnostics/registry.js';
+
+/** What a point of a phase map computes: a kind with a scalar per point (diagnostics/registry.ts). */
+export { SWEEP_QUANTITIES, type PointOutcome, type SweepQuantity };
 
 /** One swept parameter: `count` evenly spaced values from `from` to `to` inclusive. */
 export interface SweepAxis {
@@ -57,14 +59,6 @@ export interface PointTarget {
   model: ModelSpec;
   params?: ParameterValues;
   [option: string]: unknown;
-}
-
-/** What one point yields: the invariant (null when the bands are not gapped there) and the gap. */
-export interface PointOutcome {
-  value: number | null;
-  gap: number;
-  /** Set when the diagnostic flagged its own result (grid too coarse, not converged): kept, but warned about. */
-  doubtful?: boolean;
 }
 
 /** Evaluates one point, given the swept parameters' values (the target's fixed ones are merged in). */

@@ -8,7 +8,7 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { BlochHamiltonian } from '../../src/bloch/hamiltonian.js';
-import { computeAsync } from '../../src/diagnostics.js';
+import { computeAsync } from '../../src/compute.js';
 import { lattice } from '../../src/model/builder.js';
 import { bhz, haldane, kaneMele, qwz, weyl2band } from '../../src/model/catalogue.js';
 import { compileAmplitude } from '../../src/model/expressions.js';

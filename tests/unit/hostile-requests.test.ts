@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkWidgetOptions, WidgetOptionError } from '../../kernel/widget-state.js';
 import {
-  compute, haldane, setComputeBudget, type ComputeBudget, kaneMele, kitaevChain, ModelError, qwz, REQUEST_FIELDS, ssh, weyl2band, type DiagnosticRequest, type ModelSpec,
+  compute, haldane, setComputeBudget, type ComputeBudget, kaneMele, kitaevChain, ModelError, qwz, requestFields, ssh, weyl2band, type DiagnosticRequest, type ModelSpec,
 } from '../../src/index.js';
 import * as catalogueFunctions from '../../src/model/catalogue.js';
 
@@ -68,8 +68,7 @@ function typo(name: string): string {
 }
 
 function fieldsOf(request: DiagnosticRequest): string[] {
-  const own = REQUEST_FIELDS[request.kind];
-  return request.kind === 'phase-map' ? [...own, ...REQUEST_FIELDS.chern] : [...own];
+  return [...requestFields(request.kind, request.kind === 'phase-map' ? 'chern' : undefined)];
 }
 
 const cases: Case[] = [];

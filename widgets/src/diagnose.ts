@@ -4,7 +4,7 @@
  * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
  * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
  */
-import { bands, BlochHamiltonian, checkRequest, compute, curvatureMap, wannierFlow, z2Index, type ModelSpec } from '../../src/index.js';
+import { BlochHamiltonian, checkRequest, compute, computeOn, type KindRequest, type ModelSpec } from '../../src/index.js';
 import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
 import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
 
@@ -13,16 +13,8 @@ type EngineRequest = Parameters<typeof compute>[0];
 /**
  * A drag changes parameter values only: keep the last model compiled (validation and the mathjs
  * expressions cost ~15-20 ms for a 4-band model, a third of a 100x100 map) and re-evaluate its
- * amplitudes. These kinds take a compiled model directly; the others go through compute().
+ * amplitudes. Every kind but the phase map (which compiles once per sweep) runs on it.
  */
-const ON_COMPILED = {
-  curvature: curvatureMap,
-  'wannier-flow': wannierFlow,
-  bands,
-  // The Z2 count beside a flow (below): same model, same values, no second compilation.
-  z2: z2Index,
-} as const;
-
 let compiled: { key: string; hamiltonian: BlochHamiltonian } | null = null;
 
 function compiledFor(request: Record<string, unknown>): BlochHamiltonian {
@@ -37,17 +29,11 @@ function compiledFor(request: Record<string, unknown>): BlochHamiltonian {
 }
 
 function run(request: Record<string, unknown>): DiagnosticResult {
-  const kind = request.kind as string;
-  if (Object.hasOwn(ON_COMPILED, kind) && request.params !== null && typeof request.params === 'object') {
-    const { kind: _kind, model: _model, params: _params, convention: _convention, ...options } = request;
-    // The same checks compute() makes (field names, cost), then the compiled model.
-    checkRequest(request as unknown as EngineRequest);
-    const diagnostic = ON_COMPILED[kind as keyof typeof ON_COMPILED] as (h: BlochHamiltonian, o: object) => object;
-    const hamiltonian = compiledFor(request);
-    return Object.assign(diagnostic(hamiltonian, options), { params: { ...hamiltonian.params } }) as unknown as DiagnosticResult;
-  }
-  // Widget state is untyped JSON; compute() validates the request and names any bad field.
-  return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;
+  // Widget state is untyped JSON: the engine's one check names any bad field first.
+  checkRequest(request as unknown as EngineRequest);
+  if (request.kind === 'phase-map') return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;
+  const hamiltonian = compiledFor(request);
+  return Object.assign(computeOn(hamiltonian, request as unknown as KindRequest), { params: { ...hamiltonian.params } }) as unknown as DiagnosticResult;
 }
 
 /**

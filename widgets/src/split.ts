@@ -1,16 +1,16 @@
 /**
  * How a view shares one request among several engine workers: a curvature map by rows, a
  * Wannier-centre flow by across-momenta, each worker computing one part (the engine's `part`
- * option), joined here by the engine's own join (src/topology/parts.ts: a light module, no model
- * compilation), which reproduces the unsplit result exactly. Other requests go whole to one worker.
+ * option), joined here by the engine's own join (src/topology/parts.ts), which reproduces the
+ * unsplit result exactly. Which kinds split, and how many rows they have, is the registry's word
+ * (src/diagnostics/registry.ts); other requests go whole to one worker.
  */
+import { diagnosticOf, splits } from '../../src/diagnostics/registry.js';
 import { joinParts, type DiagnosticPart } from '../../src/topology/parts.js';
 import type { SplitPlan } from './compute-client.js';
 import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
-import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
+import type { DiagnosticResult } from './protocol.js';
 
-/** The engine's default grid for these kinds (src/topology/curvature.ts, wilson.ts). */
-const DEFAULT_GRID = 64;
 /** Fewer rows per part than this: splitting costs more (the extra edge row, the messages) than it saves. */
 const MIN_ROWS_PER_PART = 8;
 
@@ -19,18 +19,12 @@ export function engineWorkers(cores = globalThis.navigator?.hardwareConcurrency 
   return Math.min(4, Math.max(1, Math.floor(cores)));
 }
 
-function rowsOf(request: DiagnosticRequest): number {
-  const grid = request.grid;
-  if (typeof grid === 'number') return grid;
-  if (Array.isArray(grid) && grid.every((n) => typeof n === 'number')) return Math.min(...(grid as number[]));
-  return DEFAULT_GRID;
-}
-
 export function splitPlan(workers: number): SplitPlan {
   return {
     parts(request) {
-      const splittable = request.kind === 'curvature' || request.kind === 'wannier-flow';
-      return splittable ? Math.max(1, Math.min(workers, Math.floor(rowsOf(request) / MIN_ROWS_PER_PART))) : 1;
+      if (!splits(request.kind)) return 1;
+      const rows = diagnosticOf(request.kind).splitRows?.(request) ?? 1;
+      return Math.max(1, Math.min(workers, Math.floor(rows / MIN_ROWS_PER_PART)));
     },
     partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
     join: (_request, parts) => {
