@@ -13,7 +13,7 @@ import { execFileSync } from 'node:child_process';
 import { pathToFileURL } from 'node:url';
 import { lattice } from '../src/model/builder.js';
 import type { ModelSpec } from '../src/model/spec.js';
-import { NodeWorkerExecutor } from '../src/scan/node-workers.js';
+import { NodeWorkerExecutor } from '../cluster/node-workers.js';
 import { pointFunction } from '../src/scan/point.js';
 import { phaseMapSync, runPhaseMap } from '../src/scan/run.js';
 import type { PhaseMapRequest } from '../src/scan/sweep.js';

@@ -17,7 +17,7 @@ import { InterruptedError } from '../src/interrupt.js';
 import { catalogueModel } from '../src/model/catalogue.js';
 import { ModelError, show } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
-import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from '../src/scan/node-workers.js';
+import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from './node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
 import { checkRequestShape } from '../src/request.js';

@@ -9,9 +9,8 @@ import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { basename, dirname, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { validateModel } from '../src/model/validate.js';
-import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
-import { diagnosticStateProblem } from '../widgets/src/state-check.js';
-import { WIDGET_MODULE } from './widget-state.js';
+import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_MODULE, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../contract/protocol.js';
+import { diagnosticStateProblem } from '../contract/state-check.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {

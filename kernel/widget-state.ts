@@ -9,13 +9,9 @@ import type { ModelSpec } from '../src/index.js';
 import { didYouMean } from '../src/model/field-names.js';
 import { requestFields } from '../src/request.js';
 import type { SweepQuantity } from '../src/scan/sweep.js';
-import type { WidgetKind } from '../widgets/src/protocol.js';
-import { packArrays } from '../widgets/src/wire.js';
+import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_RANGE, WIDGET_VIEW_NAME, type WidgetKind } from '../contract/protocol.js';
+import { packArrays } from '../contract/wire.js';
 
-export const WIDGET_MODULE = 'chernel-widgets';
-/** The semver range of the front-end module the state is written for. */
-export const WIDGET_MODULE_VERSION = '^0.1.0';
-export const WIDGET_PROTOCOL_VERSION = '2.1.0';
 
 export type Values = Record<string, number>;
 export type Result = Record<string, unknown> & { kind: string };
@@ -65,12 +61,13 @@ export function widgetState(fields: {
   title: string;
 }): Record<string, unknown> {
   return {
-    _model_name: 'DiagnosticModel',
+    _model_name: WIDGET_MODEL_NAME,
     _model_module: WIDGET_MODULE,
-    _model_module_version: WIDGET_MODULE_VERSION,
-    _view_name: 'DiagnosticView',
+    // The semver range of the front-end module the state is written for.
+    _model_module_version: WIDGET_MODULE_RANGE,
+    _view_name: WIDGET_VIEW_NAME,
     _view_module: WIDGET_MODULE,
-    _view_module_version: WIDGET_MODULE_VERSION,
+    _view_module_version: WIDGET_MODULE_RANGE,
     _view_count: null,
     _dom_classes: [],
     tabbable: null,
@@ -88,7 +85,7 @@ export function widgetState(fields: {
   };
 }
 
-export { savedStateEntry } from '../widgets/src/wire.js';
+export { savedStateEntry } from '../contract/wire.js';
 
 /** Checks a parameter update against the model: known names, finite numbers, declared ranges. */
 export function checkValues(spec: ModelSpec, values: unknown, field = 'values'): Values {

@@ -8,23 +8,22 @@
  */
 
 import { resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
-import { diagnose } from '../widgets/src/diagnose.js';
-import type { DiagnosticRequest } from '../widgets/src/protocol.js';
+import { computeView } from '../src/views.js';
+import type { DiagnosticRequest } from '../contract/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { figureOutput, MIME_BUNDLE } from './display/index.js';
 import { latticePicture } from './display/lattice.js';
 import type { ResultLike } from './display/summary.js';
-import type { LatticePicture } from '../widgets/src/figures/lattice.js';
+import type { LatticePicture } from '../figures/lattice.js';
 import { figurePng } from './display/pictures.js';
-import { integerOrValue } from '../widgets/src/figures/curvature.js';
-import { figureFor } from '../widgets/src/figures/index.js';
-import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../widgets/src/protocol.js';
-import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../widgets/src/wire.js';
+import { integerOrValue } from '../figures/curvature.js';
+import { figureFor } from '../figures/index.js';
+import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_PROTOCOL_VERSION, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../contract/protocol.js';
+import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../contract/wire.js';
 import {
   checkValues,
   checkWidgetOptions,
   savedStateEntry,
-  WIDGET_PROTOCOL_VERSION,
   WidgetOptionError,
   widgetState,
   type Result,
@@ -39,7 +38,7 @@ function describeError(err: unknown): string {
 }
 
 /** A live widget: its state mirrors the front end's; display it to show a view. */
-export class TopologyWidget {
+export class DiagnosticWidget {
   readonly kind: WidgetKind;
   readonly spec: ModelSpec;
   readonly options: Record<string, unknown>;
@@ -49,7 +48,7 @@ export class TopologyWidget {
   private resultValues: Values | null;
   private lastError: string;
   private readonly comm: Comm;
-  private readonly listeners: ((widget: TopologyWidget) => void)[] = [];
+  private readonly listeners: ((widget: DiagnosticWidget) => void)[] = [];
 
   constructor(model: unknown, options: WidgetOptions = {}) {
     const { kind = 'curvature', values = {}, title = '', ...requestOptions } = options;
@@ -121,7 +120,7 @@ export class TopologyWidget {
   }
 
   /** Called after every change synced from the front end. */
-  onChange(listener: (widget: TopologyWidget) => void): this {
+  onChange(listener: (widget: DiagnosticWidget) => void): this {
     this.listeners.push(listener);
     return this;
   }
@@ -162,7 +161,7 @@ export class TopologyWidget {
 
   private computeNow(values: Values): Result {
     const request = { ...this.options, kind: this.kind, model: this.spec, params: values } as unknown as DiagnosticRequest;
-    return diagnose(request) as Result;
+    return computeView(request) as Result;
   }
 
   /** The full synced state (typed arrays packed, not yet lifted out as buffers). */
@@ -222,11 +221,11 @@ export interface LatticeOptions {
  * of the model's lattice instead: sites, bonds coloured by the phase of their amplitude, the unit cell.
  */
 export function show(model: unknown, options: LatticeOptions): LatticeDrawing;
-export function show(model: unknown, options?: WidgetOptions): TopologyWidget;
-export function show(model: unknown, options: WidgetOptions | LatticeOptions = {}): TopologyWidget | LatticeDrawing {
+export function show(model: unknown, options?: WidgetOptions): DiagnosticWidget;
+export function show(model: unknown, options: WidgetOptions | LatticeOptions = {}): DiagnosticWidget | LatticeDrawing {
   if (options.kind === 'lattice') {
     const spec = validateModel(model);
     return new LatticeDrawing(latticePicture(spec, checkValues(spec, options.values ?? {})));
   }
-  return new TopologyWidget(model, options as WidgetOptions);
+  return new DiagnosticWidget(model, options as WidgetOptions);
 }

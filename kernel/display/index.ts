@@ -5,7 +5,7 @@
  *   2. a model description (`format: 'chernel.model'`): a summary table, and a picture of a few
  *      cells of its lattice (sites, bonds by amplitude and phase, the unit cell);
  *   3. an engine result (`kind` + `checks`): a summary (text and HTML) and, when its kind has a
- *      figure (widgets/src/figures/), a second output with the figure: plotly's JSON, which the
+ *      figure (figures/), a second output with the figure: plotly's JSON, which the
  *      lab draws live, and a PNG of it, which every viewer shows (trusted or not, with or without
  *      JavaScript). Two outputs, because a viewer shows one MIME type of each, and the summary's
  *      HTML would hide the picture;
@@ -14,9 +14,9 @@
 
 import { inspect } from 'node:util';
 import { resolveParameters, type ModelSpec } from '../../src/index.js';
-import { figureFor, hasFigure, type Figure, type FigureContext } from '../../widgets/src/figures/index.js';
-import { rasterImage } from '../../widgets/src/picture.js';
-import { PLOTLY_MIME, type DiagnosticResult, type ModelSpecView } from '../../widgets/src/protocol.js';
+import { figureFor, hasFigure, type Figure, type FigureContext } from '../../figures/index.js';
+import { rasterImage } from '../../figures/picture.js';
+import { PLOTLY_MIME, type DiagnosticResult, type ModelSpecView } from '../../contract/protocol.js';
 import type { DisplayOutput, MimeBundle } from '../executor/channel.js';
 import { latticePicture } from './lattice.js';
 import { figurePng } from './pictures.js';

@@ -1,12 +1,12 @@
 /**
- * A few cells of a model's lattice as plain data, for its picture (widgets/src/figures/lattice.ts):
+ * A few cells of a model's lattice as plain data, for its picture (figures/lattice.ts):
  * sites at their Cartesian positions (the first two coordinates), every hopping as a bond with its
  * amplitude at the given parameter values, and the unit cell. Amplitudes are evaluated by the
  * engine's own compiler, so the picture shows exactly the terms the Hamiltonian uses.
  */
 import { compileAmplitude } from '../../src/model/expressions.js';
 import { resolveParameters, type ModelSpec } from '../../src/index.js';
-import type { LatticeBond, LatticePicture, LatticeSite } from '../../widgets/src/figures/lattice.js';
+import type { LatticeBond, LatticePicture, LatticeSite } from '../../figures/lattice.js';
 
 /** Cells drawn along each periodic direction: the home cell and one on each side (two in 3D). */
 function cellRange(periodic: number): number[][] {

@@ -1,9 +1,9 @@
 /**
  * Static pictures of figures for the kernel's outputs: the figure drawn by the shared rasteriser
- * (widgets/src/snapshot/) and encoded as PNG, which every notebook viewer shows, trusted or not,
+ * (figures/snapshot/) and encoded as PNG, which every notebook viewer shows, trusted or not,
  * with or without JavaScript.
  */
-import { drawFigure, type DrawableFigure } from '../../widgets/src/snapshot/figure.js';
+import { drawFigure, type DrawableFigure } from '../../figures/snapshot/figure.js';
 import { encodePng } from '../png.js';
 
 /** The figure as a base64 PNG (what an `image/png` output holds). */

@@ -1,9 +1,11 @@
 /**
  * Compact summaries of engine results and model descriptions, as text and HTML. Written against
  * the result contract (`kind`, `checks: {minGap, minGapAt?, grid?, warnings, gapless?}`) and
- * otherwise generic: scalar fields of a result are shown by name, arrays by their length, so new
- * result kinds display sensibly without changes here.
+ * otherwise generic: the fields that answer the question come first (each kind's `headline`,
+ * src/diagnostics/), then the other scalar fields by name, arrays by their length, so new result
+ * kinds display sensibly without changes here.
  */
+import { DIAGNOSTICS } from '../../src/diagnostics/registry.js';
 
 export interface ResultLike {
   kind: string;
@@ -71,10 +73,17 @@ function kAt(at: unknown): string | null {
 
 const SKIP = new Set(['kind', 'checks', 'convention', 'model', 'request']);
 
-/** Fields worth a line: scalars first (invariants), in the order the engine wrote them. */
+/** The fields that answer a result's question, first (the registry's headline), then the rest in the engine's order. */
+function fieldOrder(result: ResultLike): string[] {
+  const headline: readonly string[] = Object.hasOwn(DIAGNOSTICS, result.kind) ? DIAGNOSTICS[result.kind as keyof typeof DIAGNOSTICS].headline : [];
+  return [...headline.filter((k) => Object.hasOwn(result, k)), ...Object.keys(result).filter((k) => !headline.includes(k))];
+}
+
+/** Fields worth a line: the headline, then scalars and short arrays. */
 function fields(result: ResultLike): [string, string][] {
   const rows: [string, string][] = [];
-  for (const [key, value] of Object.entries(result)) {
+  for (const key of fieldOrder(result)) {
+    const value = result[key];
     if (SKIP.has(key)) continue;
     const text = brief(value);
     if (text !== null) rows.push([key, text]);

@@ -40,8 +40,6 @@ export const optionNames = <O>(table: Exact<OwnOptions<O>>): readonly string[] =
 export interface Diagnostic<O = object, R extends ResultBase = ResultBase> {
   /** The request's `kind`, and the result's. */
   readonly kind: string;
-  /** How figures, widgets and summaries name it. */
-  readonly title: string;
   /** The options a request may carry besides kind, model, params and convention (`optionNames`). */
   readonly options: readonly string[];
   /** The fields of options that are objects, by option. */

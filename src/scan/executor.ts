@@ -1,8 +1,8 @@
 /**
  * Executors compute batches of sweep points. One interface, three homes: in this thread
- * (`InProcessExecutor`, here), Node worker threads (`node-workers.ts`) and browser Web Workers
- * (`web-workers.ts`). The sweep never knows which one it runs on, and all give identical numbers
- * because every one of them calls the same point function.
+ * (`InProcessExecutor`, here), Node worker threads (`cluster/node-workers.ts`) and browser Web
+ * Workers (`widgets/src/web-workers.ts`). The sweep never knows which one it runs on, and all give
+ * identical numbers because every one of them calls the same point function.
  */
 import { InterruptedError, checkInterrupt } from '../interrupt.js';
 import { show } from '../model/errors.js';

@@ -1,7 +1,8 @@
 /**
  * A pool of workers computing sweep points, written once for both hosts: Node worker threads and
  * browser Web Workers differ only in how a worker is started and messaged (`WorkerPort`), which the
- * adapters `node-workers.ts` and `web-workers.ts` supply. The worker side is `serveSweepWorker`.
+ * adapters `cluster/node-workers.ts` and `widgets/src/web-workers.ts` supply. The worker side is
+ * `serveSweepWorker`.
  *
  * Points go out in small chunks to whichever worker is free, so fast and slow regions of a phase
  * diagram balance themselves. Stopping raises a shared interrupt flag that every worker's engine

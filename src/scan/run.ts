@@ -1,8 +1,9 @@
 /**
  * Running a phase map: the schedule of `advanceSweep`, its pending points sent to an executor,
  * progress reported, stoppable, and checkpointed as plain JSON so a stopped or killed sweep resumes
- * without computing any finished point again. File I/O is the host's business (`node-workers.ts`
- * writes checkpoint files); here a checkpoint is a value handed to `onCheckpoint`.
+ * without computing any finished point again. File I/O is the host's business
+ * (`cluster/node-workers.ts` writes checkpoint files); here a checkpoint is a value handed to
+ * `onCheckpoint`.
  */
 import { InterruptedError } from '../interrupt.js';
 import { ModelError, show } from '../model/errors.js';

@@ -114,6 +114,27 @@ function provenOverStrips(parts: readonly { proof: StripProof }[], checks: Spect
   return false;
 }
 
+/** The engine's default grid of the kinds that split (curvature.ts, wilson.ts). */
+export const DEFAULT_SPLIT_GRID = 64;
+
+/** The rows a split grid request has: the smaller grid count (the default when not given). */
+function gridRows(request: Readonly<Record<string, unknown>>): number {
+  const grid = request.grid;
+  if (typeof grid === 'number') return grid;
+  if (Array.isArray(grid) && grid.every((n) => typeof n === 'number')) return Math.min(...(grid as number[]));
+  return DEFAULT_SPLIT_GRID;
+}
+
+/**
+ * The kinds whose requests split into parts, and the rows each request has to share. The registry's
+ * kind modules point here (src/diagnostics/kinds/), and so does a page's main thread, which plans
+ * and joins parts without loading the engine (this module is light).
+ */
+export const SPLIT_ROWS = {
+  curvature: gridRows,
+  'wannier-flow': gridRows,
+} as const;
+
 /** First and one-past-last row of part `index` of `count` over `rows` rows. */
 export function partBounds(index: number, count: number, rows: number): [number, number] {
   return [Math.floor((index * rows) / count), Math.floor(((index + 1) * rows) / count)];

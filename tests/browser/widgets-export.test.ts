@@ -78,7 +78,7 @@ describe('exported notebook page', () => {
   it('draws the saved curvature map and flow plot without computing', async () => {
     await expect.poll(() => page.locator('.chernel-widget').count()).toBe(3);
     const haldane = widget(0);
-    // The map is a picture under the axes (widgets/src/raster.ts).
+    // The map is a picture under the axes (figures/picture.ts).
     await haldane.locator('.chernel-plot .imagelayer image').first().waitFor();
     expect(await haldane.locator('.chernel-status').textContent()).toContain('saved result');
     expect(await haldane.locator('.chernel-summary').getAttribute('data-invariant')).toBe(String(haldaneChern(0.2)));
@@ -208,7 +208,7 @@ describe('exported notebook page', () => {
     const [svg] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="svg"]').click()]);
     const svgText = readFileSync((await svg.path())!, 'utf8');
     expect(svgText).toMatch(/^<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
-    // The map travels inside the figure file (widgets/src/picture.ts), not as a link.
+    // The map travels inside the figure file (figures/picture.ts), not as a link.
     expect(svgText).toContain('data:image/bmp;base64,');
 
     const [json] = await Promise.all([page.waitForEvent('download'), haldane.locator('button[data-export="json"]').click()]);

@@ -9,10 +9,10 @@ import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { exportHtmlCommand } from '../../kernel/export-html.js';
 import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
-import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../widgets/src/protocol.js';
+import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../contract/protocol.js';
 import { compute, haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
-import { diagnose } from '../../widgets/src/diagnose.js';
-import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
+import { computeView } from '../../src/views.js';
+import type { DiagnosticRequest } from '../../contract/protocol.js';
 
 export const projectDir = resolve(import.meta.dirname, '../..');
 export const artifactsDir = resolve(process.env.CHERNEL_ARTIFACTS ?? join(projectDir, 'test-artifacts'));
@@ -76,7 +76,7 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
   widgets.forEach((w, i) => {
     const values = resolveParameters(w.spec, w.values ?? {});
     const request = { ...w.options, kind: w.kind, model: w.spec, params: values } as unknown as DiagnosticRequest;
-    const result = diagnose(request);
+    const result = computeView(request);
     state[w.id] = savedStateEntry(
       widgetState({ kind: w.kind, spec: w.spec, options: w.options, values, result, error: '', title: w.title ?? '' }),
     );

@@ -1,4 +1,4 @@
-// A model's lattice as drawn (kernel/display/lattice.ts -> widgets/src/figures/lattice.ts), and the
+// A model's lattice as drawn (kernel/display/lattice.ts -> figures/lattice.ts), and the
 // density-of-states figure. Geometry of the honeycomb lattice (second neighbours sqrt(3) times as
 // far as first neighbours) is common practice; the Haldane model's hoppings (t1 real, t2 e^{±i phi}
 // on the two sublattices) are from Haldane, PRL 61, 2015 (1988); the SSH chain's (v inside the
@@ -8,9 +8,9 @@ import { displayOutputs } from '../../kernel/display/index.js';
 import { latticePicture } from '../../kernel/display/lattice.js';
 import { show } from '../../kernel/widgets.js';
 import { BlochHamiltonian, densityOfStates, haldane, ssh } from '../../src/index.js';
-import { figureFor } from '../../widgets/src/figures/index.js';
-import { phaseColour } from '../../widgets/src/figures/lattice.js';
-import type { DiagnosticResult } from '../../widgets/src/protocol.js';
+import { figureFor } from '../../figures/index.js';
+import { phaseColour } from '../../figures/lattice.js';
+import type { DiagnosticResult } from '../../contract/protocol.js';
 
 const length = (b: { x0: number; y0: number; x1: number; y1: number }) => Math.hypot(b.x1 - b.x0, b.y1 - b.y0);
 

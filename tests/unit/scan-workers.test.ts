@@ -8,7 +8,7 @@ import { InterruptedError } from '../../src/interrupt.js';
 import { lattice } from '../../src/model/builder.js';
 import { qwz } from '../../src/model/catalogue.js';
 import { PointError } from '../../src/scan/executor.js';
-import { NodeWorkerExecutor, runPhaseMapWithCheckpointFile } from '../../src/scan/node-workers.js';
+import { NodeWorkerExecutor, runPhaseMapWithCheckpointFile } from '../../cluster/node-workers.js';
 import { pointFunction } from '../../src/scan/point.js';
 import { phaseMapSync, runPhaseMap } from '../../src/scan/run.js';
 import type { PhaseMapRequest } from '../../src/scan/sweep.js';

@@ -1,4 +1,4 @@
-// The still pictures of figures (widgets/src/snapshot/) and their PNG encoding (kernel/png.ts):
+// The still pictures of figures (figures/snapshot/) and their PNG encoding (kernel/png.ts):
 // geometry checked against what was asked for (a line where its data says, a heatmap's cells in
 // their quadrants, antialiased strokes of the asked width), the PNG decoded back with zlib (PNG
 // format: RFC 2083; zlib: RFC 1950), and every figure kind drawn from a real engine result.
@@ -8,12 +8,12 @@ import { inflateSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { figurePng } from '../../kernel/display/pictures.js';
 import { haldane, kaneMele, qwz } from '../../src/index.js';
-import { diagnose } from '../../widgets/src/diagnose.js';
-import { figureFor, type Figure } from '../../widgets/src/figures/index.js';
-import type { DiagnosticRequest, ModelSpecView } from '../../widgets/src/protocol.js';
-import { drawable, glyph, GLYPH_HEIGHT, textWidth } from '../../widgets/src/snapshot/font.js';
-import { drawFigure, niceTicks } from '../../widgets/src/snapshot/figure.js';
-import { parseColour, Pixels } from '../../widgets/src/snapshot/pixels.js';
+import { computeView } from '../../src/views.js';
+import { figureFor, type Figure } from '../../figures/index.js';
+import type { DiagnosticRequest, ModelSpecView } from '../../contract/protocol.js';
+import { drawable, glyph, GLYPH_HEIGHT, textWidth } from '../../figures/snapshot/font.js';
+import { drawFigure, niceTicks } from '../../figures/snapshot/figure.js';
+import { parseColour, Pixels } from '../../figures/snapshot/pixels.js';
 
 const RED = { rgb: [255, 0, 0] as [number, number, number], alpha: 1 };
 
@@ -163,7 +163,7 @@ describe('figure pictures', () => {
 
   function draw(spec: ModelSpecView, kind: string, options: Record<string, unknown>, params: Record<string, number> = {}): { figure: Figure; px: Pixels } {
     const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-    const result = diagnose({ ...options, kind, model: spec, params: values } as DiagnosticRequest);
+    const result = computeView({ ...options, kind, model: spec, params: values } as DiagnosticRequest);
     const figure = figureFor(result, { spec, values, options });
     return { figure, px: drawFigure(figure) };
   }

@@ -2,7 +2,8 @@
 // while a message is pending, newer updates replace older ones; common practice).
 import { describe, expect, it } from 'vitest';
 import { LatestWinsClient, type Outcome, type SplitPlan, type WorkerLike } from '../../widgets/src/compute-client.js';
-import type { ComputeMessage, ComputeReply, DiagnosticRequest } from '../../widgets/src/protocol.js';
+import type { DiagnosticRequest } from '../../contract/protocol.js';
+import type { ComputeMessage, ComputeReply } from '../../widgets/src/worker-messages.js';
 
 /** A worker whose replies the test releases by hand, to order events exactly. */
 class HeldWorker implements WorkerLike {

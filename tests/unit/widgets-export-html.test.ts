@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { exportHtmlCommand, markdownToHtml, NotebookFormatError, notebookToHtml } from '../../kernel/export-html.js';
 import { checkValues, savedStateEntry, widgetState, WidgetOptionError } from '../../kernel/widget-state.js';
 import { qwz } from '../../src/index.js';
-import { putBuffers, unpackArrays } from '../../widgets/src/wire.js';
+import { putBuffers, unpackArrays } from '../../contract/wire.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'chernel-export-test-'));
 const runtime = join(dir, 'runtime.js');

@@ -3,19 +3,19 @@
 // 085308 (2006); Kane & Mele, PRL 95, 226801 (2005).
 import { describe, expect, it } from 'vitest';
 import { haldane, kaneMele, qwz } from '../../src/index.js';
-import { diagnose } from '../../widgets/src/diagnose.js';
-import { gapAbove } from '../../widgets/src/figures/bands.js';
-import { integerOrValue } from '../../widgets/src/figures/curvature.js';
-import { wrapBreaks } from '../../widgets/src/figures/flow.js';
-import { figureFor, tableFor, toCsv, type FigureContext } from '../../widgets/src/figures/index.js';
-import { phaseColours } from '../../widgets/src/figures/phase-map.js';
-import type { DiagnosticRequest, DiagnosticResult, ModelSpecView } from '../../widgets/src/protocol.js';
+import { computeView } from '../../src/views.js';
+import { gapAbove } from '../../figures/bands.js';
+import { integerOrValue } from '../../figures/curvature.js';
+import { wrapBreaks } from '../../figures/flow.js';
+import { figureFor, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
+import { phaseColours } from '../../figures/phase-map.js';
+import type { DiagnosticRequest, DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
 
 type Trace = Record<string, unknown> & { name?: string; type?: string };
 
 function run(spec: ModelSpecView, kind: DiagnosticRequest['kind'], options: Record<string, unknown>, params: Record<string, number> = {}) {
   const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-  const result = diagnose({ ...options, kind, model: spec, params: values });
+  const result = computeView({ ...options, kind, model: spec, params: values });
   const ctx: FigureContext = { spec, values, options };
   return { result, ctx, figure: figureFor(result, ctx), traces: figureFor(result, ctx).data as Trace[] };
 }

@@ -1,6 +1,6 @@
 // Brillouin-zone drawing geometry.
 import { describe, expect, it } from 'vitest';
-import { boundaryReduced, reciprocal2d, wignerSeitz } from '../../widgets/src/geometry.js';
+import { boundaryReduced, reciprocal2d, wignerSeitz } from '../../figures/geometry.js';
 
 const dot = (a: number[], b: number[]) => a[0] * b[0] + a[1] * b[1];
 

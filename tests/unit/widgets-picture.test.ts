@@ -3,8 +3,8 @@
 // BMP file (layout: Microsoft's BITMAPFILEHEADER + BITMAPINFOHEADER, 24-bit, negative height =
 // top-down rows, rows padded to 4 bytes; common practice, from memory).
 import { describe, expect, it } from 'vitest';
-import { DIVERGING } from '../../widgets/src/figures/common.js';
-import { colourTable, rasterBitmap, rasterImage, type Raster } from '../../widgets/src/picture.js';
+import { DIVERGING } from '../../figures/common.js';
+import { colourTable, rasterBitmap, rasterImage, type Raster } from '../../figures/picture.js';
 
 const rgb = (hex: string) => [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16));
 

@@ -1,10 +1,10 @@
 // Sharing one widget request among engine workers: each part computed by the worker's own code path
-// (widgets/src/diagnose.ts), joined by the plan, must equal the request computed whole. Models:
+// (src/views.ts), joined by the plan, must equal the request computed whole. Models:
 // Qi, Wu, Zhang, PRB 74, 085308 (2006) (C = +1 for -2 < u < 0); Kane & Mele, PRL 95, 226801 (2005).
 import { describe, expect, it } from 'vitest';
 import { kaneMele, qwz } from '../../src/index.js';
-import { diagnose } from '../../widgets/src/diagnose.js';
-import type { DiagnosticRequest } from '../../widgets/src/protocol.js';
+import { computeView } from '../../src/views.js';
+import type { DiagnosticRequest } from '../../contract/protocol.js';
 import { engineWorkers, splitPlan } from '../../widgets/src/split.js';
 
 function request(kind: DiagnosticRequest['kind'], spec: ReturnType<typeof qwz>, options: Record<string, unknown>, values: Record<string, number> = {}): DiagnosticRequest {
@@ -15,7 +15,7 @@ function request(kind: DiagnosticRequest['kind'], spec: ReturnType<typeof qwz>, 
 function viaParts(r: DiagnosticRequest, workers: number) {
   const plan = splitPlan(workers);
   const count = plan.parts(r);
-  const parts = Array.from({ length: count }, (_, i) => structuredClone(diagnose(plan.partRequest(r, i, count))));
+  const parts = Array.from({ length: count }, (_, i) => structuredClone(computeView(plan.partRequest(r, i, count))));
   return { count, joined: count === 1 ? parts[0] : plan.join(r, parts) };
 }
 
@@ -24,7 +24,7 @@ describe('split plan', () => {
     const r = request('curvature', qwz(), { grid: 40, bands: 1 }, { u: -1 });
     const { count, joined } = viaParts(r, 4);
     expect(count).toBe(4);
-    const whole = diagnose(r);
+    const whole = computeView(r);
     expect(joined).toEqual(whole);
     expect(whole.total).toBeCloseTo(1, 9);
   });
@@ -33,13 +33,13 @@ describe('split plan', () => {
     const r = request('wannier-flow', kaneMele(), { grid: [33, 33], bands: 2 });
     const { count, joined } = viaParts(r, 3);
     expect(count).toBe(3);
-    const whole = diagnose(r);
+    const whole = computeView(r);
     expect(joined).toEqual(whole);
     // Kane–Mele at its defaults (lambda_v = 0.1 < 3√3 lambda_SO = 0.31): Z2 = 1 (PRL 95, 226801).
     expect(whole.z2).toBe(1);
     const asked = request('wannier-flow', kaneMele(), { grid: [33, 33], bands: 2, invariant: 'winding' });
-    expect(viaParts(asked, 3).joined).toEqual(diagnose(asked));
-    expect('z2' in diagnose(asked)).toBe(false);
+    expect(viaParts(asked, 3).joined).toEqual(computeView(asked));
+    expect('z2' in computeView(asked)).toBe(false);
   });
 
   it('goes whole where splitting does not pay or does not apply', () => {

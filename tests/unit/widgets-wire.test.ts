@@ -2,7 +2,7 @@
 // out as ipywidgets' remove_buffers/put_buffers do (format: Jupyter widget message spec 2.x,
 // "buffer_paths"; common practice).
 import { describe, expect, it } from 'vitest';
-import { packArrays, putBuffers, removeBuffers, transferablesOf, unpackArrays } from '../../widgets/src/wire.js';
+import { packArrays, putBuffers, removeBuffers, transferablesOf, unpackArrays } from '../../contract/wire.js';
 
 describe('widget state wire format', () => {
   it('round-trips every dtype through buffers, respecting byteOffset and byteLength', () => {

@@ -4,7 +4,8 @@
  * stale one is dropped, never sent), so the plot follows the hand instead of a queue. A request the
  * split plan divides goes out in parts, one per worker, computed side by side and joined on return.
  */
-import type { ComputeMessage, ComputeProgress, ComputeReply, DiagnosticRequest, DiagnosticResult } from './protocol.js';
+import type { DiagnosticRequest, DiagnosticResult } from '../../contract/protocol.js';
+import type { ComputeMessage, ComputeProgress, ComputeReply } from './worker-messages.js';
 
 export interface Outcome {
   request: DiagnosticRequest;

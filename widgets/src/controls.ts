@@ -3,7 +3,7 @@
  * accepts typed values; a value that is not a number or outside the range is refused with a message
  * naming the field and what was typed, and the box goes back to the value in use.
  */
-import type { ParameterDecl } from './protocol.js';
+import type { ParameterDecl } from '../../contract/protocol.js';
 
 export interface ParameterControls {
   element: HTMLElement;

@@ -5,8 +5,9 @@
  */
 import { HTMLManager } from '@jupyter-widgets/html-manager/lib/htmlmanager.js';
 import Plotly, { TRACE_TYPES, type Data, type Layout } from './plotly.js';
-import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from './protocol.js';
-import { DiagnosticModel, DiagnosticView, MODULE_NAME } from './widget.js';
+import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../../contract/protocol.js';
+import { WIDGET_MODULE } from '../../contract/protocol.js';
+import { DiagnosticModel, DiagnosticView } from './widget.js';
 
 
 function failure(where: Element, message: string): void {
@@ -22,7 +23,7 @@ export async function renderSavedWidgets(root: ParentNode = document): Promise<n
   if (stateTag === null) return 0;
   const manager = new HTMLManager({
     loader: async (moduleName: string, moduleVersion: string) => {
-      if (moduleName === MODULE_NAME) return { DiagnosticModel, DiagnosticView };
+      if (moduleName === WIDGET_MODULE) return { DiagnosticModel, DiagnosticView };
       throw new Error(`this page carries no widget module "${moduleName}" (${moduleVersion})`);
     },
   });

@@ -1,5 +1,6 @@
 /** chernel-widgets: the JupyterLab extension (default export) and the widget classes. */
 import { widgetsPlugin } from './plugin.js';
 
-export { DiagnosticModel, DiagnosticView, MODULE_NAME, MODULE_VERSION } from './widget.js';
+export { DiagnosticModel, DiagnosticView } from './widget.js';
+export { WIDGET_MODULE, WIDGET_MODULE_VERSION } from '../../contract/protocol.js';
 export default widgetsPlugin;

@@ -18,7 +18,7 @@ import type { IRenderMime } from '@jupyterlab/rendermime-interfaces';
 import { Widget } from '@lumino/widgets';
 import type { Message } from '@lumino/messaging';
 import Plotly, { type Data, type Layout } from './plotly.js';
-import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from './protocol.js';
+import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../../contract/protocol.js';
 import { liveModel, savedEntry, viewPicture } from './saved-state.js';
 
 /** Renderer ranks (lower wins): before the widget manager's own (-10), before HTML (50) and images (90). */

@@ -5,7 +5,8 @@
 import { IJupyterWidgetRegistry } from '@jupyter-widgets/base';
 import type { JupyterFrontEnd, JupyterFrontEndPlugin } from '@jupyterlab/application';
 import { watchNotebooks } from './notebook-outputs.js';
-import { DiagnosticModel, DiagnosticView, MODULE_NAME, MODULE_VERSION } from './widget.js';
+import { WIDGET_MODULE, WIDGET_MODULE_VERSION } from '../../contract/protocol.js';
+import { DiagnosticModel, DiagnosticView } from './widget.js';
 
 export const widgetsPlugin: JupyterFrontEndPlugin<void> = {
   id: 'chernel-widgets:plugin',
@@ -14,8 +15,8 @@ export const widgetsPlugin: JupyterFrontEndPlugin<void> = {
   autoStart: true,
   activate: (app: JupyterFrontEnd, registry: IJupyterWidgetRegistry) => {
     registry.registerWidget({
-      name: MODULE_NAME,
-      version: MODULE_VERSION,
+      name: WIDGET_MODULE,
+      version: WIDGET_MODULE_VERSION,
       exports: { DiagnosticModel, DiagnosticView },
     });
     // Figures drawn live, widgets restored from and saved into their own outputs.

@@ -6,8 +6,8 @@
  * scatter traces hidden. Reads plotly's drawing only through its public layout (axis ranges), its
  * 'plotly_afterplot' event and the class names of its plot area, plot layers and title.
  */
-import type { Figure } from './figures/index.js';
-import { rasterPixels, type Raster, type Sketch } from './picture.js';
+import type { Figure } from '../../figures/index.js';
+import { rasterPixels, type Raster, type Sketch } from '../../figures/picture.js';
 
 /** Where plotly's plot area is (pixels, in its svg container) and the axis ranges it shows. */
 interface PlotGeometry {

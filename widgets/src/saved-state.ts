@@ -3,10 +3,10 @@
  * widget state has for it (the kernel writes the same, kernel/widget-state.ts), and the picture of
  * what its view shows, drawn by the shared rasteriser (snapshot/) on a canvas for its PNG.
  */
-import { figureFor } from './figures/index.js';
-import type { DiagnosticResult, ModelSpecView } from './protocol.js';
-import { drawFigure } from './snapshot/figure.js';
-import { packArrays, savedStateEntry } from './wire.js';
+import { figureFor } from '../../figures/index.js';
+import type { DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
+import { drawFigure } from '../../figures/snapshot/figure.js';
+import { packArrays, savedStateEntry } from '../../contract/wire.js';
 
 /** What is read of a widget model here (DiagnosticModel, widget.ts). */
 export interface ModelLike {

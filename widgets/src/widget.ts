@@ -9,28 +9,19 @@ import { LatestWinsClient, type Outcome, type WorkerLike } from './compute-clien
 import { createParameterControls, formatValue, type ParameterControls } from './controls.js';
 import { spawnEngineWorker } from './engine-worker.js';
 import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
-import { figureFor, tableFor, toCsv, type Figure, type FigureContext } from './figures/index.js';
-import { PHASE_POINT_SHAPE } from './figures/phase-map.js';
-import Plotly, { type Config, type PlotlyHTMLElement } from './plotly.js';
-import { rasterImage } from './picture.js';
+import { figureFor, figureTitle, tableFor, toCsv, type Figure, type FigureContext } from '../../figures/index.js';
+import { PHASE_POINT_SHAPE } from '../../figures/phase-map.js';
+import Plotly, { plotlyTraces, type Config, type PlotlyHTMLElement } from './plotly.js';
+import { rasterImage } from '../../figures/picture.js';
 import { DragPreview } from './preview.js';
 import { forgetLiveModel, registerLiveModel } from './saved-state.js';
-import type { DiagnosticRequest, DiagnosticResult, ModelSpecView, WidgetKind } from './protocol.js';
+import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_VERSION, WIDGET_VIEW_NAME, type DiagnosticRequest, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../../contract/protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
-import { diagnosticStateProblem } from './state-check.js';
-import { packArrays, unpackArrays } from './wire.js';
+import { diagnosticStateProblem } from '../../contract/state-check.js';
+import { packArrays, unpackArrays } from '../../contract/wire.js';
 
-export const MODULE_NAME = 'chernel-widgets';
-export const MODULE_VERSION = '0.1.0';
 
-export const KIND_TITLES: Record<WidgetKind, string> = {
-  curvature: 'Berry curvature',
-  'wannier-flow': 'Wannier-centre flow',
-  bands: 'Band structure',
-  ribbon: 'Ribbon spectrum',
-  'phase-map': 'Phase map',
-};
 
 export type Values = Record<string, number>;
 
@@ -44,12 +35,12 @@ export class DiagnosticModel extends DOMWidgetModel {
   override defaults(): Backbone.ObjectHash {
     return {
       ...super.defaults(),
-      _model_name: 'DiagnosticModel',
-      _model_module: MODULE_NAME,
-      _model_module_version: MODULE_VERSION,
-      _view_name: 'DiagnosticView',
-      _view_module: MODULE_NAME,
-      _view_module_version: MODULE_VERSION,
+      _model_name: WIDGET_MODEL_NAME,
+      _model_module: WIDGET_MODULE,
+      _model_module_version: WIDGET_MODULE_VERSION,
+      _view_name: WIDGET_VIEW_NAME,
+      _view_module: WIDGET_MODULE,
+      _view_module_version: WIDGET_MODULE_VERSION,
       title: '',
       kind: 'curvature',
       spec: null,
@@ -258,7 +249,7 @@ export class DiagnosticView extends DOMWidgetView {
     this.controls?.dispose();
     const spec = this.spec;
     const kind = this.model.get('kind') as WidgetKind;
-    this.titleEl.textContent = this.model.get('title') || `${KIND_TITLES[kind] ?? kind} · ${spec?.name ?? 'no model'}`;
+    this.titleEl.textContent = this.model.get('title') || `${figureTitle(kind)} · ${spec?.name ?? 'no model'}`;
     this.live = { ...(this.model.get('values') as Values) };
     if (!spec) return;
     const ordered = Object.fromEntries(this.parameterOrder().map((k) => [k, spec.parameters[k]]));
@@ -543,7 +534,7 @@ export class DiagnosticView extends DOMWidgetView {
     const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
     const layout = { ...figure.layout, images: figure.raster ? [rasterImage(figure.raster)] : [] };
     this.drawnFrameKey = null;
-    return Plotly.react(this.plot, figure.data, layout, config).then(() => {
+    return Plotly.react(this.plot, plotlyTraces(figure.data), layout, config).then(() => {
       this.preview.hide();
       if (!this.attached) return;
       this.bindPlotEvents();

@@ -7,9 +7,10 @@ const PROGRESS_MS = 100;
  * the engine from ../../src and inlined into the widget bundle as a blob URL, so it also runs from
  * a file:// page.
  */
-import { diagnose } from './diagnose.js';
-import type { ComputeMessage, ComputeProgress, ComputeReply, DiagnosticResult } from './protocol.js';
-import { transferablesOf } from './wire.js';
+import { computeView } from '../../src/views.js';
+import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ComputeMessage, ComputeProgress, ComputeReply } from './worker-messages.js';
+import { transferablesOf } from '../../contract/wire.js';
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<ComputeMessage>) => void) | null;
@@ -30,7 +31,8 @@ scope.onmessage = (event) => {
       reported = now;
       scope.postMessage({ id, progress: { done, total } });
     };
-    const result: DiagnosticResult = diagnose(request, onPoints);
+    // Every engine result carries the checks the contract's result shape names.
+    const result = computeView(request, onPoints) as DiagnosticResult;
     reply = { id, ok: true, result, ms: performance.now() - started };
   } catch (err) {
     const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };

@@ -5,7 +5,6 @@ import { optionNames, type Diagnostic } from '../diagnostic.js';
 
 export const bands: Diagnostic<BandsOptions, BandsResult> = {
   kind: 'bands',
-  title: 'Band structure',
   options: optionNames<BandsOptions>({ bands: true, tolerance: true, path: true, pointsPerSegment: true }),
   run: bandsAlongPath,
   cost(request, n) {

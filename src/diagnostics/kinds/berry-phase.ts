@@ -5,7 +5,6 @@ import { optionNames, type Diagnostic } from '../diagnostic.js';
 
 export const berryPhase: Diagnostic<BerryPhaseOptions, BerryPhaseResult> = {
   kind: 'berry-phase',
-  title: 'Berry phase',
   options: optionNames<BerryPhaseOptions>({ bands: true, gapTolerance: true, loop: true, wraps: true, points: true }),
   run: phaseAroundLoop,
   cost(request, n) {

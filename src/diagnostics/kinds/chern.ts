@@ -13,7 +13,6 @@ export function chernGridCost(request: RequestFields, n: number): CostEstimate {
 
 export const chern: SweptDiagnostic<ChernOptions, ChernResult> = {
   kind: 'chern',
-  title: 'Chern number',
   options: optionNames<ChernOptions>({ bands: true, gapTolerance: true, grid: true, plane: true, maxGrid: true }),
   nested: { plane: ['normal', 'at'] },
   run: chernNumber,

@@ -5,7 +5,6 @@ import { gapGridCost } from './gap.js';
 
 export const gapClosings: Diagnostic<GapClosingOptions, GapClosingResult> = {
   kind: 'gap-closings',
-  title: 'Gap closings',
   options: optionNames<GapClosingOptions>({ bands: true, grid: true, tolerance: true, maxCandidates: true }),
   run: findGapClosings,
   cost: gapGridCost,

@@ -9,7 +9,6 @@ export const gapGridCost = (request: Readonly<Record<string, unknown>>, n: numbe
 
 export const gap: SweptDiagnostic<GapOptions, GapResult> = {
   kind: 'gap',
-  title: 'Gap',
   options: optionNames<GapOptions>({ bands: true, grid: true, tolerance: true }),
   run: directGap,
   cost: gapGridCost,

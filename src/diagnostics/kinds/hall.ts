@@ -5,7 +5,6 @@ import { chernGridCost } from './chern.js';
 
 export const hall: Diagnostic<HallOptions, HallResult> = {
   kind: 'hall',
-  title: 'Hall conductivity',
   options: optionNames<HallOptions>({ bands: true, gapTolerance: true, mu: true, grid: true, plane: true }),
   nested: { plane: ['normal', 'at'] },
   run: hallConductivity,

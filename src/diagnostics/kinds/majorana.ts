@@ -8,7 +8,6 @@ type MajoranaOptions = Omit<TopologyOptions, 'bands'>;
 
 export const majorana: SweptDiagnostic<MajoranaOptions, MajoranaResult> = {
   kind: 'majorana',
-  title: 'Majorana number',
   options: optionNames<MajoranaOptions>({ gapTolerance: true }),
   run: majoranaNumber,
   cost: (_request, n) => ({ bytes: denseBytes(n), seconds: 4 * solveSeconds(n) }),

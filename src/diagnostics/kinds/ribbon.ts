@@ -5,7 +5,6 @@ import { optionNames, type Diagnostic } from '../diagnostic.js';
 
 export const ribbon: Diagnostic<RibbonSpectrumOptions, RibbonSpectrumResult> = {
   kind: 'ribbon',
-  title: 'Ribbon spectrum',
   options: optionNames<RibbonSpectrumOptions>({ direction: true, width: true, nk: true, edgeLayers: true, path: true }),
   run: ribbonSpectrum,
   cost(request, n, dim) {

@@ -6,7 +6,6 @@ import { chernGridCost } from './chern.js';
 
 export const spinChern: Diagnostic<ChernOptions, SpinChernResult> = {
   kind: 'spin-chern',
-  title: 'Spin Chern number',
   options: optionNames<ChernOptions>({ bands: true, gapTolerance: true, grid: true, plane: true, maxGrid: true }),
   nested: { plane: ['normal', 'at'] },
   run: spinChernNumber,

@@ -1,13 +1,11 @@
 /** Hybrid Wannier centres from Wilson loops, as they flow across the zone; splits into parts. */
 import { gridCost, gridCounts, groupSize } from '../../cost.js';
 import { wannierFlow as flowOfCentres, type WannierFlowOptions, type WannierFlowResult } from '../../topology/wilson.js';
-import type { WannierFlowPart } from '../../topology/parts.js';
+import { DEFAULT_SPLIT_GRID, SPLIT_ROWS, type WannierFlowPart } from '../../topology/parts.js';
 import { optionNames, type SplitDiagnostic } from '../diagnostic.js';
-import { DEFAULT_SPLIT_GRID, gridRows } from './curvature.js';
 
 export const wannierFlow: SplitDiagnostic<WannierFlowOptions, WannierFlowResult | WannierFlowPart> = {
   kind: 'wannier-flow',
-  title: 'Wannier-centre flow',
   options: optionNames<WannierFlowOptions>({ bands: true, gapTolerance: true, grid: true, plane: true, part: true }),
   nested: { plane: ['normal', 'at'], part: ['index', 'count'] },
   // With `part`, one part of the grid (joined by topology/parts.ts).
@@ -17,6 +15,6 @@ export const wannierFlow: SplitDiagnostic<WannierFlowOptions, WannierFlowResult 
     const [along, across] = gridCounts(request.grid, 2, DEFAULT_SPLIT_GRID);
     return gridCost(n, m, [along, across + 1], 24 * m);
   },
-  splitRows: gridRows,
+  splitRows: SPLIT_ROWS['wannier-flow'],
   headline: ['winding'],
 };

@@ -5,7 +5,6 @@ import { gapGridCost } from './gap.js';
 
 export const weyl: Diagnostic<WeylOptions, WeylResult> = {
   kind: 'weyl',
-  title: 'Weyl points',
   options: optionNames<WeylOptions>({ bands: true, gapTolerance: true, grid: true, radius: true, sphere: true, maxCandidates: true }),
   run: weylPoints,
   cost: gapGridCost,

@@ -5,7 +5,6 @@ import { optionNames, pointOutcome, type SweptDiagnostic } from '../diagnostic.j
 
 export const winding: SweptDiagnostic<WindingOptions, WindingResult> = {
   kind: 'winding',
-  title: 'Winding number',
   options: optionNames<WindingOptions>({ gapTolerance: true, sublattice: true, points: true }),
   run: windingNumber,
   cost(request, n) {

@@ -5,7 +5,6 @@ import { optionNames, pointOutcome, type SweptDiagnostic } from '../diagnostic.j
 
 export const z2: SweptDiagnostic<Z2Options, Z2Result> = {
   kind: 'z2',
-  title: 'Z2 index',
   options: optionNames<Z2Options>({ bands: true, gapTolerance: true, method: true, grid: true, maxGrid: true, inversion: true }),
   run: z2Index,
   cost(request, n, dim) {

@@ -2,7 +2,7 @@
  * Density of states per unit cell against energy (src/spectra/dos.ts), with how it was computed:
  * linear interpolation on simplices (no broadening) or Gaussian broadening of a stated width.
  */
-import type { DiagnosticResult } from '../protocol.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, fmt, numberArray, titled, type Figure, type Table } from './common.js';
 
 function read(result: DiagnosticResult): { energy: ArrayLike<number>; density: ArrayLike<number> } {

@@ -5,8 +5,8 @@
  * home cell's bonds drawn strongest, and the unit cell outlined. The kernel builds the picture's
  * data from the model (kernel/display/lattice.ts); this draws it.
  */
-import type { Data } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, fmt, titled, type Figure, type Table } from './common.js';
 
 export interface LatticeSite {

@@ -1,14 +1,19 @@
 /**
- * A widget's request -> the engine. Most widgets are one engine request; the flow widget adds the
- * engine's Z2 count to the flow it draws (asked for with `invariant: 'z2'`, and by default for a
- * time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone). Runs in
- * the page's worker and in the kernel (kernel/widgets.ts), so both compute the same thing.
+ * What a view of a result computes (a widget, in the page's worker and in the kernel, so both
+ * compute the same thing). Most views are one engine request; a Wannier-centre flow also reads the
+ * engine's Z2 count beside the flow it shows (asked for with `invariant: 'z2'`, and by default for
+ * a time-reversal-symmetric band group; `invariant: 'winding'` keeps the winding alone).
  */
-import { BlochHamiltonian, checkRequest, compute, computeOn, type KindRequest, type ModelSpec } from '../../src/index.js';
-import { withZ2, Z2_OF_PARTS } from './flow-z2.js';
-import type { DiagnosticRequest, DiagnosticResult } from './protocol.js';
+import { BlochHamiltonian } from './bloch/hamiltonian.js';
+import { compute, computeOn } from './compute.js';
+import type { KindRequest } from './diagnostics/registry.js';
+import type { ModelSpec } from './model/spec.js';
+import { checkRequest, type DiagnosticRequest } from './request.js';
+import { withZ2, Z2_OF_PARTS, type ViewResult } from './topology/flow-z2.js';
 
-type EngineRequest = Parameters<typeof compute>[0];
+/** A view's request as it arrives: untyped JSON shaped like a diagnostic request. */
+export type ViewRequest = Readonly<Record<string, unknown>> & { kind: string };
+export type { ViewResult };
 
 /**
  * A drag changes parameter values only: keep the last model compiled (validation and the mathjs
@@ -17,7 +22,7 @@ type EngineRequest = Parameters<typeof compute>[0];
  */
 let compiled: { key: string; hamiltonian: BlochHamiltonian } | null = null;
 
-function compiledFor(request: Record<string, unknown>): BlochHamiltonian {
+function compiledFor(request: ViewRequest): BlochHamiltonian {
   const convention = request.convention === 'orbital' ? 'orbital' : 'lattice';
   const key = `${convention}\n${JSON.stringify(request.model)}`;
   const params = (request.params ?? {}) as Record<string, number>;
@@ -28,12 +33,12 @@ function compiledFor(request: Record<string, unknown>): BlochHamiltonian {
   return hamiltonian;
 }
 
-function run(request: Record<string, unknown>): DiagnosticResult {
-  // Widget state is untyped JSON: the engine's one check names any bad field first.
-  checkRequest(request as unknown as EngineRequest);
-  if (request.kind === 'phase-map') return compute(request as unknown as EngineRequest) as unknown as DiagnosticResult;
+function run(request: ViewRequest): ViewResult {
+  // Untyped JSON: the engine's one check names any bad field first.
+  checkRequest(request as unknown as DiagnosticRequest);
+  if (request.kind === 'phase-map') return compute(request as unknown as DiagnosticRequest) as unknown as ViewResult;
   const hamiltonian = compiledFor(request);
-  return Object.assign(computeOn(hamiltonian, request as unknown as KindRequest), { params: { ...hamiltonian.params } }) as unknown as DiagnosticResult;
+  return Object.assign(computeOn(hamiltonian, request as unknown as KindRequest), { params: { ...hamiltonian.params } }) as unknown as ViewResult;
 }
 
 /**
@@ -46,15 +51,15 @@ const NOT_KRAMERS = /not in Kramers pairs/;
 /** Reports points done of the points planned (the grid; boundary refinement adds a few). */
 export type OnPoints = (done: number, total: number) => void;
 
-export function diagnose(request: DiagnosticRequest, onPoints?: OnPoints): DiagnosticResult {
-  if (request.kind === 'phase-map' && onPoints !== undefined) return compute(request as unknown as EngineRequest, { onPoint: onPoints }) as unknown as DiagnosticResult;
+export function computeView(request: ViewRequest, onPoints?: OnPoints): ViewResult {
+  if (request.kind === 'phase-map' && onPoints !== undefined) return compute(request as unknown as DiagnosticRequest, { onPoint: onPoints }) as unknown as ViewResult;
   if (request.kind === 'wannier-flow') {
     // `invariant` is the widget's, not an engine option.
     const { invariant, ...flowRequest } = request;
     const flow = run(flowRequest);
     const part = request.part as { index?: number } | undefined;
     if (invariant === 'winding' || (part !== undefined && part.index !== 0)) return flow;
-    let z2: DiagnosticResult;
+    let z2: ViewResult;
     try {
       z2 = run({ kind: 'z2', model: request.model, params: request.params, bands: request.bands, method: 'flow' });
     } catch (err) {

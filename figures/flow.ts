@@ -2,8 +2,8 @@
  * Wannier-centre flow: hybrid Wannier centres (Wilson loops along k2) against the transverse
  * momentum k1, the largest-gap line, and the winding (Chern number) or Z2 index in the title.
  */
-import type { Data } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, gapText, numberArray, optionalNumber, titled, type Figure, type FigureContext, type Table } from './common.js';
 import { integerOrValue } from './curvature.js';
 

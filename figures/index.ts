@@ -1,5 +1,9 @@
-/** Rendering by result kind: result -> plotly figure, and result -> data table for export. */
-import type { DiagnosticResult } from '../protocol.js';
+/**
+ * The figure library: by result kind, its name, the figure (result -> plotly's figure JSON) and the
+ * data table for export. Pure (no DOM): the widgets, the kernel's outputs, the exported pages and
+ * the still pictures (snapshot/) all draw a kind with the same module, so it looks the same in each.
+ */
+import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Figure, FigureContext, Table } from './common.js';
 import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
@@ -13,20 +17,27 @@ import { ribbonFigure, ribbonTable } from './ribbon.js';
 export type { Figure, FigureContext, Table } from './common.js';
 
 interface Renderer {
+  /** What the kind is called in a widget's header and a summary's caption. */
+  title: string;
   figure(result: DiagnosticResult, ctx: FigureContext): Figure;
   table(result: DiagnosticResult, ctx: FigureContext): Table;
 }
 
 const RENDERERS: Record<string, Renderer> = {
-  curvature: { figure: curvatureFigure, table: curvatureTable },
-  'wannier-flow': { figure: flowFigure, table: flowTable },
-  bands: { figure: bandsFigure, table: bandsTable },
-  ribbon: { figure: ribbonFigure, table: ribbonTable },
-  'phase-map': { figure: phaseMapFigure, table: phaseMapTable },
-  gap: { figure: gapFigure, table: gapTable },
-  dos: { figure: dosFigure, table: dosTable },
-  lattice: { figure: latticeFigure, table: latticeTable },
+  curvature: { title: 'Berry curvature', figure: curvatureFigure, table: curvatureTable },
+  'wannier-flow': { title: 'Wannier-centre flow', figure: flowFigure, table: flowTable },
+  bands: { title: 'Band structure', figure: bandsFigure, table: bandsTable },
+  ribbon: { title: 'Ribbon spectrum', figure: ribbonFigure, table: ribbonTable },
+  'phase-map': { title: 'Phase map', figure: phaseMapFigure, table: phaseMapTable },
+  gap: { title: 'Direct gap', figure: gapFigure, table: gapTable },
+  dos: { title: 'Density of states', figure: dosFigure, table: dosTable },
+  lattice: { title: 'Lattice', figure: latticeFigure, table: latticeTable },
 };
+
+/** The name of a kind with a figure, or the kind itself. */
+export function figureTitle(kind: string): string {
+  return Object.hasOwn(RENDERERS, kind) ? RENDERERS[kind].title : kind;
+}
 
 /** Whether results of this kind have a figure. */
 export function hasFigure(kind: string): boolean {

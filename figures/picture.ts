@@ -8,7 +8,8 @@
  * - a sketch: dots and lines that stand in for scatter traces while a drag goes on.
  * Plain data and encoding here; preview.ts draws them in the page.
  */
-import type { Layout } from './plotly.js';
+import { base64 } from '../contract/wire.js';
+import type { Layout } from './plotly-json.js';
 
 export interface Raster {
   /** Bricks across and down. */
@@ -116,30 +117,6 @@ export function rasterBitmap(raster: Raster): Uint8Array {
   return bytes;
 }
 
-const BASE64 = new TextEncoder().encode('ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/');
-
-/** Base64 of bytes, built as ASCII codes and decoded once (a string built char by char is slower). */
-export function base64(bytes: Uint8Array): string {
-  const out = new Uint8Array(4 * Math.ceil(bytes.length / 3));
-  let o = 0;
-  let i = 0;
-  for (; i + 2 < bytes.length; i += 3) {
-    const v = (bytes[i] << 16) | (bytes[i + 1] << 8) | bytes[i + 2];
-    out[o++] = BASE64[v >> 18];
-    out[o++] = BASE64[(v >> 12) & 63];
-    out[o++] = BASE64[(v >> 6) & 63];
-    out[o++] = BASE64[v & 63];
-  }
-  if (i < bytes.length) {
-    const two = i + 1 < bytes.length;
-    const v = (bytes[i] << 16) | (two ? bytes[i + 1] << 8 : 0);
-    out[o++] = BASE64[v >> 18];
-    out[o++] = BASE64[(v >> 12) & 63];
-    out[o++] = two ? BASE64[(v >> 6) & 63] : 61; // '='
-    out[o++] = 61;
-  }
-  return new TextDecoder().decode(out);
-}
 
 /** The raster as a plotly layout image in data coordinates, below the traces. */
 export function rasterImage(raster: Raster): Partial<LayoutImage> {

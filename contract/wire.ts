@@ -4,8 +4,6 @@
  * serializer lifts `buffer` out as a binary frame (or base64 in a saved notebook). The kernel side
  * (kernel/widgets.ts) writes the same shape.
  */
-import { base64 } from './picture.js';
-
 export type DType = 'float64' | 'float32' | 'int32' | 'uint32' | 'int16' | 'uint16' | 'int8' | 'uint8';
 
 export type NumericArray =
@@ -189,4 +187,29 @@ export function savedStateEntry(state: Record<string, unknown>): Record<string, 
       data: base64(new Uint8Array(b.buffer, b.byteOffset, b.byteLength)),
     })),
   };
+}
+
+const BASE64 = new TextEncoder().encode('ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/');
+
+/** Base64 of bytes, built as ASCII codes and decoded once (a string built char by char is slower). */
+export function base64(bytes: Uint8Array): string {
+  const out = new Uint8Array(4 * Math.ceil(bytes.length / 3));
+  let o = 0;
+  let i = 0;
+  for (; i + 2 < bytes.length; i += 3) {
+    const v = (bytes[i] << 16) | (bytes[i + 1] << 8) | bytes[i + 2];
+    out[o++] = BASE64[v >> 18];
+    out[o++] = BASE64[(v >> 12) & 63];
+    out[o++] = BASE64[(v >> 6) & 63];
+    out[o++] = BASE64[v & 63];
+  }
+  if (i < bytes.length) {
+    const two = i + 1 < bytes.length;
+    const v = (bytes[i] << 16) | (two ? bytes[i + 1] << 8 : 0);
+    out[o++] = BASE64[v >> 18];
+    out[o++] = BASE64[(v >> 12) & 63];
+    out[o++] = two ? BASE64[(v >> 6) & 63] : 61; // '='
+    out[o++] = 61;
+  }
+  return new TextDecoder().decode(out);
 }

@@ -3,8 +3,8 @@
  * as contour lines, gapless grid points crossed out, refined boundary points, and the current
  * parameter point as a marker the user can drag (the view enables shape dragging for this figure).
  */
-import type { Data, Layout } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data, Layout } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface Axis {

@@ -1,8 +1,20 @@
 /**
- * What the widgets send to the engine and read back. The request is the engine's own
- * `DiagnosticRequest` (src/diagnostics.ts); the result types below list only the fields the
- * figures draw, so a saved notebook from an older engine still opens.
+ * The contract between the kernel and the widgets, which both import and neither owns: the widget
+ * kinds, the names and versions of the widget's model and view, the MIME types of the outputs, and
+ * the shapes of a widget's request and result as they travel (the request is the engine's own
+ * `DiagnosticRequest`, src/request.ts; the result types list only the fields the figures draw, so a
+ * saved notebook from an older engine still opens). Typed arrays travel packed (wire.ts).
  */
+
+/** The front-end module, its version, and the semver range the kernel writes into widget state. */
+export const WIDGET_MODULE = 'chernel-widgets';
+export const WIDGET_MODULE_VERSION = '0.1.0';
+export const WIDGET_MODULE_RANGE = `^${WIDGET_MODULE_VERSION}`;
+/** The Jupyter widget model and view classes of every chernel widget (saved notebooks name them). */
+export const WIDGET_MODEL_NAME = 'DiagnosticModel';
+export const WIDGET_VIEW_NAME = 'DiagnosticView';
+/** The version of the Jupyter widget messaging protocol the kernel speaks (@jupyter-widgets/base 6). */
+export const WIDGET_PROTOCOL_VERSION = '2.1.0';
 
 export const WIDGET_KINDS = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map'] as const;
 export type WidgetKind = (typeof WIDGET_KINDS)[number];
@@ -58,20 +70,3 @@ export interface DiagnosticResult {
   convention?: 'lattice' | 'orbital';
   [field: string]: unknown;
 }
-
-/** Main thread -> worker. */
-export interface ComputeMessage {
-  id: number;
-  request: DiagnosticRequest;
-}
-
-/** Worker -> main thread, while a long request (a phase map) computes: points done of those planned. */
-export interface ComputeProgress {
-  id: number;
-  progress: { done: number; total: number };
-}
-
-/** Worker -> main thread. */
-export type ComputeReply =
-  | { id: number; ok: true; result: DiagnosticResult; ms: number }
-  | { id: number; ok: false; error: { name: string; message: string } };

@@ -2,8 +2,8 @@
  * Ribbon spectrum: energies of the cut-open model against the momentum along the ribbon, each
  * state coloured by where it lives: red on the first edge, blue on the last, grey in the bulk.
  */
-import type { Data } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface RibbonData {

@@ -3,10 +3,10 @@
  * reciprocal lattice), a diverging colour scale pinned to zero, the Chern number and minimum gap
  * in the title, the first-zone boundary on non-square lattices, and the gap-closing k when gapless.
  */
-import { boundaryReduced } from '../geometry.js';
-import type { Data } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
-import type { Raster } from '../picture.js';
+import { boundaryReduced } from './geometry.js';
+import type { Data } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
+import type { Raster } from './picture.js';
 import {
   BASE_LAYOUT,
   CLOSING_MARKER,

@@ -3,12 +3,12 @@
 // shortcut checked here against the engine's own path).
 import { describe, expect, it } from 'vitest';
 import { compute, haldane, qwz } from '../../src/index.js';
-import { diagnose } from '../../widgets/src/diagnose.js';
-import type { DiagnosticRequest, DiagnosticResult } from '../../widgets/src/protocol.js';
+import { computeView } from '../../src/views.js';
+import type { DiagnosticRequest, DiagnosticResult } from '../../contract/protocol.js';
 
 const viaCompute = (r: Record<string, unknown>) => compute(r as unknown as Parameters<typeof compute>[0]) as unknown as DiagnosticResult;
 
-describe('diagnose', () => {
+describe('computeView (src/views.ts)', () => {
   it('equals compute() along a drag and across a change of model', () => {
     const steps: Record<string, unknown>[] = [
       { kind: 'curvature', model: haldane(), grid: 12, bands: 1, params: { M: 0.2 } },
@@ -19,7 +19,7 @@ describe('diagnose', () => {
       { kind: 'curvature', model: haldane(), grid: 12, bands: 1, params: { M: 0.2 } },
     ];
     for (const step of steps) {
-      const ours = diagnose(step as DiagnosticRequest);
+      const ours = computeView(step as DiagnosticRequest);
       const theirs = viaCompute(step);
       expect(ours).toEqual(theirs);
     }
@@ -27,8 +27,8 @@ describe('diagnose', () => {
 
   it('a refused value is the engine error, and the next good value works', () => {
     const good = { kind: 'curvature', model: qwz(), grid: 8, bands: 1, params: { u: -1 } } as DiagnosticRequest;
-    diagnose(good);
-    expect(() => diagnose({ ...good, params: { u: 99 } })).toThrow(/u.*99/);
-    expect(diagnose(good)).toEqual(viaCompute(good));
+    computeView(good);
+    expect(() => computeView({ ...good, params: { u: 99 } })).toThrow(/u.*99/);
+    expect(computeView(good)).toEqual(viaCompute(good));
   });
 });

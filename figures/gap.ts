@@ -3,8 +3,8 @@
  * reduced zone in 2D (dark where the gap is small), with the smallest gap marked, crossed out when
  * the gap closes. A 3D gap is drawn on the k3 plane through its minimum.
  */
-import type { Data } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, gapText, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 /** Light where the gap is wide, dark where it closes. */

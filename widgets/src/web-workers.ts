@@ -1,6 +1,6 @@
 /**
- * Browser host for sweeps: an executor on Web Workers. Not part of the pure engine (excluded from
- * tsconfig.engine.json): it uses the DOM's Worker.
+ * Browser host for sweeps: an executor on Web Workers. A host adapter of the page, outside the
+ * pure engine: it uses the DOM's Worker.
  *
  * The page makes the workers (bundlers each have their own way to name a worker script), e.g.
  *
@@ -12,8 +12,8 @@
  * Stopping uses a shared interrupt flag when the page is cross-origin isolated, and otherwise
  * terminates the workers and starts new ones.
  */
-import type { PointFunctionFactory } from './executor.js';
-import { WorkerPoolExecutor, serveSweepWorker, type FromSweepWorker, type ToSweepWorker, type WorkerPort } from './pool.js';
+import type { PointFunctionFactory } from '../../src/scan/executor.js';
+import { WorkerPoolExecutor, serveSweepWorker, type FromSweepWorker, type ToSweepWorker, type WorkerPort } from '../../src/scan/pool.js';
 
 // The parts of the DOM's Worker used here, typed structurally so this file needs no DOM library.
 interface BrowserWorker {
@@ -69,7 +69,7 @@ export class WebWorkerExecutor extends WorkerPoolExecutor {
 export function serveWebSweepWorker(scope: WorkerScope): void {
   const handle = serveSweepWorker(
     (m) => scope.postMessage(m),
-    async (): Promise<PointFunctionFactory> => (await import('./point.js')).pointFunction,
+    async (): Promise<PointFunctionFactory> => (await import('../../src/scan/point.js')).pointFunction,
     (url) => import(/* webpackIgnore: true */ /* @vite-ignore */ url) as Promise<{ pointFunction?: PointFunctionFactory }>,
   );
   let queue: Promise<void> = Promise.resolve();

@@ -2,8 +2,8 @@
  * Band structure along a k-path: labelled high-symmetry ticks, the chosen bands highlighted and
  * the gap above them shaded and annotated.
  */
-import type { Data, Layout } from '../plotly.js';
-import type { DiagnosticResult } from '../protocol.js';
+import type { Data, Layout } from './plotly-json.js';
+import type { DiagnosticResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface PathInfo {

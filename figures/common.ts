@@ -1,8 +1,8 @@
 /** What every figure builder returns, and helpers for reading results defensively. */
-import type { Data, Layout } from '../plotly.js';
-import type { DiagnosticResult, ModelSpecView } from '../protocol.js';
-import type { Raster, Sketch } from '../picture.js';
-import type { NumericArray } from '../wire.js';
+import type { Data, Layout } from './plotly-json.js';
+import type { DiagnosticResult, ModelSpecView } from '../contract/protocol.js';
+import type { Raster, Sketch } from './picture.js';
+import type { NumericArray } from '../contract/wire.js';
 
 export interface FigureContext {
   spec: ModelSpecView;

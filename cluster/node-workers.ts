@@ -1,7 +1,7 @@
 /**
  * Node host for sweeps: an executor on worker threads (all cores by default) and checkpoint files.
- * This file is also the worker's entry point. Not part of the pure engine (excluded from
- * tsconfig.engine.json): it imports node:*.
+ * This file is also the worker's entry point. A host adapter beside its users (the sweep command,
+ * the bench), outside the pure engine: it imports node:*.
  */
 import { closeSync, existsSync, fsyncSync, openSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { open, readFile, rename } from 'node:fs/promises';
@@ -9,10 +9,10 @@ import { availableParallelism, hostname } from 'node:os';
 import { dirname } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker, isMainThread, parentPort, workerData } from 'node:worker_threads';
-import type { PointFunctionFactory } from './executor.js';
-import { WorkerPoolExecutor, serveSweepWorker, type FromSweepWorker, type ToSweepWorker, type WorkerPort } from './pool.js';
-import { runPhaseMap, type RunPhaseMapOptions, type SweepCheckpoint } from './run.js';
-import type { PhaseMapRequest, PhaseMapResult } from './sweep.js';
+import type { PointFunctionFactory } from '../src/scan/executor.js';
+import { WorkerPoolExecutor, serveSweepWorker, type FromSweepWorker, type ToSweepWorker, type WorkerPort } from '../src/scan/pool.js';
+import { runPhaseMap, type RunPhaseMapOptions, type SweepCheckpoint } from '../src/scan/run.js';
+import type { PhaseMapRequest, PhaseMapResult } from '../src/scan/sweep.js';
 
 const ROLE = 'chernel-sweep-worker';
 
@@ -26,7 +26,7 @@ export interface NodeWorkerOptions {
 /** Run TypeScript sources in a worker the way the parent runs them (see scripts/register-ts.js). */
 function workerExecArgv(): string[] {
   if (!import.meta.url.endsWith('.ts')) return [];
-  const hooks = new URL('../../scripts/register-ts.js', import.meta.url);
+  const hooks = new URL('../scripts/register-ts.js', import.meta.url);
   return existsSync(fileURLToPath(hooks)) ? ['--import', hooks.href] : [];
 }
 
@@ -216,7 +216,7 @@ export async function runPhaseMapWithCheckpointFile(
 
 if (!isMainThread && (workerData as { role?: string } | null)?.role === ROLE && parentPort !== null) {
   const port = parentPort;
-  const engine = async (): Promise<PointFunctionFactory> => (await import('./point.js')).pointFunction;
+  const engine = async (): Promise<PointFunctionFactory> => (await import('../src/scan/point.js')).pointFunction;
   const handle = serveSweepWorker(
     (m) => port.postMessage(m),
     engine,
