@@ -9,8 +9,8 @@
  */
 
 import { install, remove, type InstallTarget } from './kernelspec.js';
-import { startKernel } from './main.js';
-import { KERNEL_VERSION } from './protocol/kernel.js';
+import { startKernel } from '../kernel/main.js';
+import { KERNEL_VERSION } from '../kernel/protocol/kernel.js';
 
 const USAGE = `usage:
   chernel start <connection-file>      start the kernel (Jupyter does this); also: chernel -f <file>

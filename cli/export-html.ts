@@ -11,12 +11,12 @@ import { fileURLToPath } from 'node:url';
 import { validateModel } from '../src/model/validate.js';
 import { PLOTLY_MIME, SAVED_WIDGET_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../widgets/src/protocol.js';
 import { diagnosticStateProblem } from '../widgets/src/state-check.js';
-import { WIDGET_MODULE } from './widget-state.js';
+import { WIDGET_MODULE } from '../kernel/widget-state.js';
 
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {
   const here = dirname(fileURLToPath(import.meta.url));
-  // From kernel/ (sources) or dist/kernel/ (compiled).
+  // From cli/ (sources) or dist/cli/ (compiled).
   for (const up of ['..', '../..']) {
     const candidate = resolve(here, up, 'widgets', 'dist', 'embed.js');
     if (existsSync(candidate)) return candidate;
