@@ -1,11 +1,13 @@
 #!/usr/bin/env node
 /**
- * `chernel`: start the kernel from a connection file, or install / remove its kernelspec.
+ * `chernel`: start the kernel from a connection file, install / remove its kernelspec, run sweeps,
+ * export a notebook as a standalone page.
  *
- *   chernel start <connection-file>        (also: chernel -f <connection-file>)
+ *   chernel start <connection-file>        (also: chernel -f <connection-file>; kernel/main.ts)
  *   chernel install [--user | --prefix DIR | --sys-prefix]
  *   chernel remove  [--user | --prefix DIR | --sys-prefix]
  *   chernel sweep plan|run|merge|status|submit ...   (cluster/sweep-cli.ts)
+ *   chernel export-html <notebook.ipynb> [-o page.html]
  */
 
 import { install, remove, type InstallTarget } from './kernelspec.js';

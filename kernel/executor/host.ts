@@ -253,12 +253,12 @@ export class ExecutionHost implements CellExecutor {
     return answer?.names ?? null;
   }
 
-  /** An engine export is shown with its documentation (from the engine's type declarations), a user's value by its summary. */
+  /** An engine export shows its documentation (from the engine's type declarations), a user's value its summary. */
   async inspect(path: string[]): Promise<string | null> {
     const answer = await this.ask({ type: 'describe', id: this.nextId++, path });
     const description = answer?.description;
     if (!description?.found) return null;
-    if (description.engineExport) return (await engineDocs())[path[0]] ?? description.summary;
+    if (description.engineExport) return (await engineDocs())[path[0]] || description.summary;
     return description.summary;
   }
 

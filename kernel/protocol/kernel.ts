@@ -1,7 +1,8 @@
 /**
  * The protocol layer: a dispatch table of message handlers between a Transport and a CellExecutor
- * (both interfaces: messages.ts, executor.ts), each handler bracketed by busy/idle status on iopub. Shell requests run one at a time in arrival order;
- * control requests (interrupt, shutdown, kernel_info) are answered at once, even while a cell runs.
+ * (both interfaces: messages.ts, executor.ts), each handler bracketed by busy/idle status on iopub.
+ * Shell requests run one at a time in arrival order; control requests (interrupt, shutdown,
+ * kernel_info) are answered at once, even while a cell runs.
  */
 
 import { randomUUID } from 'node:crypto';
