@@ -15,8 +15,8 @@ interface Figures {
 }
 
 export async function benchKernel(): Promise<BenchRow[]> {
-  if (!existsSync(fileURLToPath(new URL('../dist/kernel/cli.js', import.meta.url)))) {
-    throw new Error('bench kernel: dist/kernel/cli.js is missing; run `npm run build` first');
+  if (!existsSync(fileURLToPath(new URL('../dist/cli/main.js', import.meta.url)))) {
+    throw new Error('bench kernel: dist/cli/main.js is missing; run `npm run build` first');
   }
   const script = fileURLToPath(new URL('./kernel_bench.py', import.meta.url));
   const { stdout } = await promisify(execFile)('/usr/bin/python3', [script], { maxBuffer: 1 << 20, timeout: 15 * 60_000 });

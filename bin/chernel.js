@@ -1,3 +1,3 @@
 #!/usr/bin/env node
-// The `chernel` command: the compiled kernel CLI (build with `npm run build`).
-import '../dist/kernel/cli.js';
+// The `chernel` command: the compiled command line, cli/main.ts (build with `npm run build`).
+import '../dist/cli/main.js';

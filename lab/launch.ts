@@ -131,8 +131,8 @@ function newestMtime(dirs: string[]): number {
 /**
  * Writes the chernel kernelspec under .jupyter-local/share/jupyter/kernels/chernel through the
  * kernel's own `chernel install --prefix`, compiling the kernel first (`npm run build` at the
- * root) when dist/ is missing or older than src/ or kernel/. Does not throw: a missing or broken
- * kernel leaves the lab usable with the other kernels, so it is reported and skipped.
+ * root) when dist/ is missing or older than src/, kernel/ or cli/. Does not throw: a missing or
+ * broken kernel leaves the lab usable with the other kernels, so it is reported and skipped.
  */
 export function registerChernelKernel(log: Log = console.log): KernelRegistration {
   const skip = (reason: string): KernelRegistration => {
@@ -140,8 +140,8 @@ export function registerChernelKernel(log: Log = console.log): KernelRegistratio
     return { registered: false, reason };
   };
   if (!existsSync(kernelCli)) return skip(`${relative(projectDir, kernelCli)} not found`);
-  const compiled = join(projectDir, 'dist', 'kernel', 'cli.js');
-  if (!existsSync(compiled) || newestMtime([join(projectDir, 'src'), join(projectDir, 'kernel')]) > statSync(compiled).mtimeMs) {
+  const compiled = join(projectDir, 'dist', 'cli', 'main.js');
+  if (!existsSync(compiled) || newestMtime(['src', 'kernel', 'cli'].map(part => join(projectDir, part))) > statSync(compiled).mtimeMs) {
     try {
       run('npm', ['run', 'build', '--silent'], projectDir, log);
     } catch (error) {

@@ -3,24 +3,16 @@
  * Plain structured-clone data; binary comm buffers travel as Uint8Array.
  */
 
-export type MimeBundle = Record<string, unknown>;
+import type { CommPayload, DisplayOutput } from '../protocol/executor.js';
 
-export interface DisplayOutput {
-  data: MimeBundle;
-  metadata: Record<string, unknown>;
-}
+export type { CommPayload, DisplayOutput };
+
+export type MimeBundle = Record<string, unknown>;
 
 export interface SerializedError {
   name: string;
   message: string;
   stack: string;
-}
-
-export interface CommPayload {
-  commId: string;
-  data: Record<string, unknown>;
-  metadata: Record<string, unknown>;
-  buffers: Uint8Array[];
 }
 
 /** What to describe for `inspect` / complete after a dot: a dotted path from the global scope. */

@@ -13,11 +13,13 @@
 
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
+import { engineDocs } from '../docs/index.js';
 import { log } from '../log.js';
+import type { CellExecutor, CommEvent, ExecuteOutcome, ExecutorEvents } from '../protocol/executor.js';
 import { cellLimits } from './limits.js';
 import type { CellProcessNotice } from './cell-process.js';
-import type { CommPayload, Description, DisplayOutput, HostToWorker, WorkerToHost } from './channel.js';
-import { CellRegistry, type FormattedError } from './traceback.js';
+import type { HostToWorker, WorkerToHost } from './channel.js';
+import { CellRegistry } from './traceback.js';
 import { CellSyntaxError, compileCell } from './transpile.js';
 
 /** How long a cell may ignore an interrupt before its worker is replaced. */
@@ -33,20 +35,6 @@ const ADDRESS_SPACE_OVERHEAD_MB = 24 * 1024;
 const STREAM_FLUSH_MS = 20;
 const QUERY_TIMEOUT_MS = 1500;
 
-export type CommEvent = ({ type: 'comm_open'; targetName: string } & CommPayload) | ({ type: 'comm_msg' | 'comm_close' } & CommPayload);
-
-/** Where the executor's output goes (the protocol layer turns these into iopub messages). */
-export interface ExecutorEvents {
-  stream(name: 'stdout' | 'stderr', text: string): void;
-  display(output: DisplayOutput, displayId: string | null, update: boolean): void;
-  clearOutput(wait: boolean): void;
-  comm(event: CommEvent): void;
-  /** A cell asks for input; rejects when the front end cannot provide it. */
-  input(prompt: string, password: boolean): Promise<string>;
-}
-
-export type ExecuteOutcome = { status: 'ok'; result: DisplayOutput | null } | ({ status: 'error' } & FormattedError);
-
 interface Running {
   id: number;
   resolve: (outcome: ExecuteOutcome) => void;
@@ -54,7 +42,7 @@ interface Running {
 
 const KERNEL_DIR = fileURLToPath(new URL('..', import.meta.url));
 
-export class ExecutionHost {
+export class ExecutionHost implements CellExecutor {
   private worker!: ChildProcess;
   private ready!: Promise<void>;
   /** Why the current cell process is dying, when it said so before exiting. */
@@ -265,9 +253,13 @@ export class ExecutionHost {
     return answer?.names ?? null;
   }
 
-  async describe(path: string[]): Promise<Description | null> {
+  /** An engine export shows its documentation (from the engine's type declarations), a user's value its summary. */
+  async inspect(path: string[]): Promise<string | null> {
     const answer = await this.ask({ type: 'describe', id: this.nextId++, path });
-    return answer?.description ?? null;
+    const description = answer?.description;
+    if (!description?.found) return null;
+    if (description.engineExport) return (await engineDocs())[path[0]] || description.summary;
+    return description.summary;
   }
 
   /** A comm message from the front end, for the worker's comm registry; resolves once handled. */

@@ -11,18 +11,13 @@ import type { SourceMap } from 'node:module';
 import { homedir } from 'node:os';
 import { basename, resolve, sep } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import type { CellError } from '../protocol/executor.js';
 import type { SerializedError } from './channel.js';
 import { mapLine } from './transpile.js';
 
 const RED = '\x1b[31m';
 const GREEN = '\x1b[32m';
 const RESET = '\x1b[0m';
-
-export interface FormattedError {
-  ename: string;
-  evalue: string;
-  traceback: string[];
-}
 
 interface CellRecord {
   label: string;
@@ -86,7 +81,7 @@ export class CellRegistry {
     return text === undefined ? '' : `${GREEN}${String(line).padStart(6)} |${RESET} ${text}`;
   }
 
-  syntaxError(label: string, source: string, message: string, line: number, column: number): FormattedError {
+  syntaxError(label: string, source: string, message: string, line: number, column: number): CellError {
     const lines = source.split('\n');
     return {
       ename: 'SyntaxError',
@@ -100,7 +95,7 @@ export class CellRegistry {
     };
   }
 
-  format(error: SerializedError, note?: string): FormattedError {
+  format(error: SerializedError, note?: string): CellError {
     const message = this.scrub(error.message);
     const traceback = [`${RED}${error.name}${RESET}: ${message}`];
     /** The engine functions of the current run of engine frames, innermost first. */

@@ -1,16 +1,16 @@
 /**
- * The protocol layer: a dispatch table of message handlers over a Transport, each handler
- * bracketed by busy/idle status on iopub. Shell requests run one at a time in arrival order;
- * control requests (interrupt, shutdown, kernel_info) are answered at once, even while a cell runs.
+ * The protocol layer: a dispatch table of message handlers between a Transport and a CellExecutor
+ * (both interfaces: messages.ts, executor.ts), each handler bracketed by busy/idle status on iopub.
+ * Shell requests run one at a time in arrival order; control requests (interrupt, shutdown,
+ * kernel_info) are answered at once, even while a cell runs.
  */
 
 import { randomUUID } from 'node:crypto';
 import { userInfo } from 'node:os';
 import { version as esbuildVersion } from 'esbuild';
-import { engineDocs } from '../docs/index.js';
-import type { ExecutorEvents, ExecutionHost, CommEvent } from '../executor/host.js';
 import { log } from '../log.js';
 import { codePointLength, codePointsToIndex, completionContext, isComplete, KEYWORDS, pathAt } from './code.js';
+import type { CellExecutor, CommEvent, ExecutorEvents, ExecutorFactory } from './executor.js';
 import { History } from './history.js';
 import { PROTOCOL_VERSION, type Channel, type Dict, type Header, type Message, type Transport } from './messages.js';
 
@@ -45,7 +45,7 @@ export class Kernel {
       return 'chernel';
     }
   })();
-  private readonly executor: ExecutionHost;
+  private readonly executor: CellExecutor;
   private readonly history = new History();
   private executionCount = 0;
   /** Parent of iopub output from user code: the shell request being handled (or the last one). */
@@ -61,7 +61,7 @@ export class Kernel {
 
   constructor(
     private readonly transport: Transport,
-    createExecutor: (events: ExecutorEvents) => ExecutionHost,
+    createExecutor: ExecutorFactory,
     private readonly onShutdown: (restart: boolean) => void,
   ) {
     this.executor = createExecutor(this.executorEvents());
@@ -282,10 +282,6 @@ export class Kernel {
   }
 
   /**
-   * stop_on_error: the execute requests the same client (session) already queued are answered
-   * `aborted`, not run. Another client's queued cells do not depend on this one: they still run.
-   */
-  /**
    * Whether an execute request was sent (its header's date) by the client of the latest failed cell
    * before that cell failed: sent with it, so aborted with the queue even if it reached the socket
    * after the failure.
@@ -296,6 +292,10 @@ export class Kernel {
     return Number.isFinite(sent) && sent <= this.failure.at;
   }
 
+  /**
+   * stop_on_error: the execute requests the same client (session) already queued are answered
+   * `aborted`, not run. Another client's queued cells do not depend on this one: they still run.
+   */
   private abortQueuedExecutions(failed: Message): void {
     // Requests the client sent with the failed one may still be in flight: abort those when they arrive.
     this.failure = { session: failed.header.session, at: Date.now() };
@@ -326,15 +326,10 @@ export class Kernel {
     const code = field<string>(message, 'code', 'string');
     const cursor = field<number>(message, 'cursor_pos', 'number', codePointLength(code));
     const path = pathAt(code, codePointsToIndex(code, cursor));
-    const description = path.length ? await this.executor.describe(path) : null;
-    if (!description?.found) {
+    const text = path.length ? await this.executor.inspect(path) : null;
+    if (text === null) {
       this.reply(message, 'shell', { status: 'ok', found: false, data: {}, metadata: {} });
       return;
-    }
-    let text = description.summary;
-    if (description.engineExport) {
-      const doc = (await engineDocs())[path[0]];
-      if (doc) text = doc;
     }
     this.reply(message, 'shell', { status: 'ok', found: true, data: { 'text/plain': text }, metadata: {} });
   }

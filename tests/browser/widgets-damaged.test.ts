@@ -4,7 +4,7 @@
 // (The widget state format is the Jupyter widget state schema 2.0; common practice.)
 import { readFileSync, writeFileSync } from 'node:fs';
 import { afterEach, describe, expect, it } from 'vitest';
-import { exportHtmlCommand } from '../../kernel/export-html.js';
+import { exportHtmlCommand } from '../../cli/export-html.js';
 import { artifactPath, demoWidgets, exportDemo, openPage, type OpenedPage } from './widgets-harness.js';
 
 const STATE_MIME = 'application/vnd.jupyter.widget-state+json';

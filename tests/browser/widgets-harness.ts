@@ -7,7 +7,7 @@ import { join, resolve } from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { displayOutputs } from '../../kernel/display/index.js';
-import { exportHtmlCommand } from '../../kernel/export-html.js';
+import { exportHtmlCommand } from '../../cli/export-html.js';
 import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
 import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../contract/protocol.js';
 import { compute, haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';

@@ -12,7 +12,7 @@ import type { Locator } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openLab, type CellOutput, type LabSession, type NotebookHandle } from './lab-harness.js';
 import { openPage, projectDir } from './widgets-harness.js';
-import { exportHtmlCommand } from '../../kernel/export-html.js';
+import { exportHtmlCommand } from '../../cli/export-html.js';
 
 const haldaneChern = (M: number) => (Math.abs(M) < 3 * Math.sqrt(3) * 0.1 ? -1 : 0);
 const kernelReady = existsSync(join(projectDir, 'bin', 'chernel.js')) && existsSync(join(projectDir, 'dist', 'kernel', 'cli.js'));

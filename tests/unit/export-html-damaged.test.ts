@@ -6,7 +6,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { exportHtmlCommand, renderNotebook } from '../../kernel/export-html.js';
+import { exportHtmlCommand, renderNotebook } from '../../cli/export-html.js';
 import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
 import { compute, qwz } from '../../src/index.js';
 

@@ -5,7 +5,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { exportHtmlCommand, markdownToHtml, NotebookFormatError, notebookToHtml } from '../../kernel/export-html.js';
+import { exportHtmlCommand, markdownToHtml, NotebookFormatError, notebookToHtml } from '../../cli/export-html.js';
 import { checkValues, savedStateEntry, widgetState, WidgetOptionError } from '../../kernel/widget-state.js';
 import { qwz } from '../../src/index.js';
 import { putBuffers, unpackArrays } from '../../contract/wire.js';

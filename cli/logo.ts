@@ -3,7 +3,7 @@
  * alternate between two sublattice colours, on a dark rounded square.
  */
 
-import { encodePng } from './png.js';
+import { encodePng } from '../kernel/png.js';
 
 type RGB = [number, number, number];
 const BACKGROUND: RGB = [27, 38, 59];

@@ -1,16 +1,18 @@
 #!/usr/bin/env node
 /**
- * `chernel`: start the kernel from a connection file, or install / remove its kernelspec.
+ * `chernel`: start the kernel from a connection file, install / remove its kernelspec, run sweeps,
+ * export a notebook as a standalone page.
  *
- *   chernel start <connection-file>        (also: chernel -f <connection-file>)
+ *   chernel start <connection-file>        (also: chernel -f <connection-file>; kernel/main.ts)
  *   chernel install [--user | --prefix DIR | --sys-prefix]
  *   chernel remove  [--user | --prefix DIR | --sys-prefix]
  *   chernel sweep plan|run|merge|status|submit ...   (cluster/sweep-cli.ts)
+ *   chernel export-html <notebook.ipynb> [-o page.html]
  */
 
 import { install, remove, type InstallTarget } from './kernelspec.js';
-import { startKernel } from './main.js';
-import { KERNEL_VERSION } from './protocol/kernel.js';
+import { startKernel } from '../kernel/main.js';
+import { KERNEL_VERSION } from '../kernel/protocol/kernel.js';
 
 const USAGE = `usage:
   chernel start <connection-file>      start the kernel (Jupyter does this); also: chernel -f <file>

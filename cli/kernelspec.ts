@@ -46,7 +46,7 @@ export function dataDir(target: InstallTarget): string {
 
 export function kernelJson(): Record<string, unknown> {
   return {
-    argv: [process.execPath, fileURLToPath(new URL('./cli.js', import.meta.url)), 'start', '{connection_file}'],
+    argv: [process.execPath, fileURLToPath(new URL('./main.js', import.meta.url)), 'start', '{connection_file}'],
     display_name: DISPLAY_NAME,
     language: 'typescript',
     interrupt_mode: 'message',

@@ -15,7 +15,7 @@ import { diagnosticStateProblem } from '../contract/state-check.js';
 /** Where the page runtime is found: built by `npm run build` in widgets/. */
 export function defaultRuntimePath(): string {
   const here = dirname(fileURLToPath(import.meta.url));
-  // From kernel/ (sources) or dist/kernel/ (compiled).
+  // From cli/ (sources) or dist/cli/ (compiled).
   for (const up of ['..', '../..']) {
     const candidate = resolve(here, up, 'widgets', 'dist', 'embed.js');
     if (existsSync(candidate)) return candidate;
