@@ -7,6 +7,7 @@
 
 import type { ModelSpec } from '../src/index.js';
 import { didYouMean } from '../src/model/field-names.js';
+import { checkParameterValues } from '../src/model/parameters.js';
 import { requestFields } from '../src/request.js';
 import type { SweepQuantity } from '../src/scan/sweep.js';
 import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_RANGE, WIDGET_VIEW_NAME, type WidgetKind } from '../contract/protocol.js';
@@ -89,23 +90,5 @@ export { savedStateEntry } from '../contract/wire.js';
 
 /** Checks a parameter update against the model: known names, finite numbers, declared ranges. */
 export function checkValues(spec: ModelSpec, values: unknown, field = 'values'): Values {
-  if (values === null || typeof values !== 'object' || Array.isArray(values)) {
-    throw new WidgetOptionError(field, `expected an object of parameter values. Value: ${JSON.stringify(values)}`);
-  }
-  const out: Values = {};
-  for (const [name, value] of Object.entries(values)) {
-    const decl = Object.hasOwn(spec.parameters, name) ? spec.parameters[name] : undefined;
-    if (decl === undefined) {
-      const known = Object.keys(spec.parameters);
-      throw new WidgetOptionError(`${field}.${name}`, `not a parameter of model "${spec.name}"${didYouMean(name, known)} (parameters: ${known.join(', ') || 'none'})`);
-    }
-    if (typeof value !== 'number' || !Number.isFinite(value)) {
-      throw new WidgetOptionError(`${field}.${name}`, `expected a finite number. Value: ${JSON.stringify(value)}`);
-    }
-    if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
-      throw new WidgetOptionError(`${field}.${name}`, `outside its range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`);
-    }
-    out[name] = value;
-  }
-  return out;
+  return checkParameterValues(spec, values, field);
 }

@@ -75,7 +75,7 @@ const widgetsBuild: BuildStep = {
   dir: widgetsDir,
   inputs: () => [
     ...inputsUnder(widgetsDir, ['package.json', 'package-lock.json', 'build.mjs', 'tsconfig.json', 'src', 'labextension-core']),
-    ...inputsUnder(projectDir, ['src']),
+    ...inputsUnder(projectDir, ['src', 'contract', 'figures']),
   ].sort(),
   output: join(widgetsDir, 'labextension', 'package.json'),
   stamp: join(widgetsDir, 'dist', '.inputs-stamp'),
@@ -131,7 +131,7 @@ function newestMtime(dirs: string[]): number {
 /**
  * Writes the chernel kernelspec under .jupyter-local/share/jupyter/kernels/chernel through the
  * kernel's own `chernel install --prefix`, compiling the kernel first (`npm run build` at the
- * root) when dist/ is missing or older than src/, kernel/ or cli/. Does not throw: a missing or
+ * root) when dist/ is missing or older than the parts it is built from. Does not throw: a missing or
  * broken kernel leaves the lab usable with the other kernels, so it is reported and skipped.
  */
 export function registerChernelKernel(log: Log = console.log): KernelRegistration {
@@ -141,7 +141,7 @@ export function registerChernelKernel(log: Log = console.log): KernelRegistratio
   };
   if (!existsSync(kernelCli)) return skip(`${relative(projectDir, kernelCli)} not found`);
   const compiled = join(projectDir, 'dist', 'cli', 'main.js');
-  if (!existsSync(compiled) || newestMtime(['src', 'kernel', 'cli'].map(part => join(projectDir, part))) > statSync(compiled).mtimeMs) {
+  if (!existsSync(compiled) || newestMtime(['src', 'contract', 'figures', 'kernel', 'cluster', 'cli'].map(part => join(projectDir, part))) > statSync(compiled).mtimeMs) {
     try {
       run('npm', ['run', 'build', '--silent'], projectDir, log);
     } catch (error) {

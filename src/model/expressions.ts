@@ -22,7 +22,7 @@ import {
   unaryPlusDependencies, type EvalFunction, type MathNode,
 } from 'mathjs';
 import { ModelError, show } from './errors.js';
-import { didYouMean } from './field-names.js';
+import { checkParameterValues } from './parameters.js';
 import type { Amplitude, ModelSpec, ParameterValues } from './spec.js';
 
 /** The functions an amplitude may call: arithmetic, elementary functions and complex parts. */
@@ -194,19 +194,5 @@ export function compileAmplitude(amplitude: Amplitude, field: string, parameters
 export function resolveParameters(spec: ModelSpec, values: ParameterValues = {}): ParameterValues {
   const resolved: ParameterValues = {};
   for (const [name, p] of Object.entries(spec.parameters)) resolved[name] = p.default;
-  if (values === null || typeof values !== 'object' || Array.isArray(values)) throw new ModelError('params', `expected an object of parameter values. Value: ${show(values)}`);
-  for (const [name, value] of Object.entries(values)) {
-    // Own properties only: "toString" or "constructor" must not find Object.prototype's.
-    const p = Object.hasOwn(spec.parameters, name) ? spec.parameters[name] : undefined;
-    if (p === undefined) {
-      const known = Object.keys(spec.parameters);
-      throw new ModelError(`params.${name}`, `model "${spec.name}" has no parameter ${JSON.stringify(name)}${didYouMean(name, known)} (it has: ${known.length ? known.join(', ') : 'none'})`);
-    }
-    if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelError(`params.${name}`, `must be a finite number. Value: ${show(value)}`);
-    if (p.range !== undefined && (value < p.range[0] || value > p.range[1])) {
-      throw new ModelError(`params.${name}`, `value ${value} is outside the declared range [${p.range[0]}, ${p.range[1]}]`);
-    }
-    resolved[name] = value;
-  }
-  return resolved;
+  return Object.assign(resolved, checkParameterValues(spec, values, 'params'));
 }

@@ -8,6 +8,7 @@ import { numericValue } from './amplitude.js';
 import { compileAmplitude, RESERVED_NAMES } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type ModelSpec } from './spec.js';
 import { checkModelFields } from './field-names.js';
+import { parameterValueProblem } from './parameters.js';
 
 function isFiniteArray(x: unknown, length: number): x is number[] {
   return Array.isArray(x) && x.length === length && x.every((v) => typeof v === 'number' && Number.isFinite(v));
@@ -53,7 +54,8 @@ export function validateModel(spec: unknown): ModelSpec {
     }
     if (p.range !== undefined) {
       if (!isFiniteArray(p.range, 2) || !(p.range[0] < p.range[1])) throw new ModelError(`${field}.range`, `expected [low, high] with low < high. Value: ${show(p.range)}`);
-      if (p.default < p.range[0] || p.default > p.range[1]) throw new ModelError(`${field}.default`, `value ${p.default} is outside the declared range [${p.range[0]}, ${p.range[1]}]`);
+      const problem = parameterValueProblem(p.default, { range: [p.range[0], p.range[1]] });
+      if (problem !== null) throw new ModelError(`${field}.default`, problem);
     }
   }
   const parameterNames = new Set(Object.keys(m.parameters));

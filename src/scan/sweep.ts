@@ -12,7 +12,7 @@ import { ModelError, show } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { validateModel } from '../model/validate.js';
 import { canonicalJson, digest } from './checksum.js';
-import { didYouMean } from '../model/field-names.js';
+import { checkParameterValues, parameterValueProblem } from '../model/parameters.js';
 
 import type { PointOutcome } from '../diagnostics/diagnostic.js';
 import { SWEEP_QUANTITIES, type SweepQuantity } from '../diagnostics/registry.js';
@@ -179,13 +179,7 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
   if (!SWEEP_QUANTITIES.includes(r.invariant as SweepQuantity)) {
     throw new ModelError('invariant', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${show(r.invariant)}`);
   }
-  if (r.params !== undefined && (r.params === null || typeof r.params !== 'object' || Array.isArray(r.params))) {
-    throw new ModelError('params', `expected an object of parameter values. Value: ${show(r.params)}`);
-  }
-  for (const [name, value] of Object.entries(r.params ?? {})) {
-    if (!Object.hasOwn(model.parameters, name)) throw new ModelError(`params.${name}`, `model "${model.name}" has no parameter ${JSON.stringify(name)}${didYouMean(name, Object.keys(model.parameters))}`);
-    if (typeof value !== 'number' || !Number.isFinite(value)) throw new ModelError(`params.${name}`, `must be a finite number. Value: ${show(value)}`);
-  }
+  if (r.params !== undefined) checkParameterValues(model, r.params, 'params');
   if (!Array.isArray(r.axes) || r.axes.length < 1 || r.axes.length > 2) {
     throw new ModelError('axes', `expected one or two swept parameters. Value: ${show(r.axes)}`);
   }
@@ -200,11 +194,8 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);
     seen.add(a.param);
     for (const end of ['from', 'to'] as const) {
-      const v = a[end];
-      if (typeof v !== 'number' || !Number.isFinite(v)) throw new ModelError(`${field}.${end}`, `must be a finite number. Value: ${show(v)}`);
-      if (spec.range !== undefined && (v < spec.range[0] || v > spec.range[1])) {
-        throw new ModelError(`${field}.${end}`, `value ${v} is outside the declared range of "${a.param}", [${spec.range[0]}, ${spec.range[1]}]`);
-      }
+      const problem = parameterValueProblem(a[end], spec);
+      if (problem !== null) throw new ModelError(`${field}.${end}`, `${a.param}: ${problem}`);
     }
     if (typeof a.count !== 'number' || !Number.isInteger(a.count) || a.count < 1) {
       throw new ModelError(`${field}.count`, `the grid is empty: expected a whole number of points >= 1. Value: ${show(a.count)}`);

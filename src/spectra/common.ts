@@ -71,6 +71,10 @@ export interface BandGroup {
 
 export function compileSource(source: SpectrumSource, options: SourceOptions = {}): BlochHamiltonian {
   if (source instanceof BlochHamiltonian) {
+    // A compiled model's convention is fixed when it is compiled: a different one asked for is an error, not ignored.
+    if (options.convention !== undefined && options.convention !== source.convention) {
+      throw new ModelError('convention', `the model was compiled in the "${source.convention}" convention; compile it with {convention: "${options.convention}"} for that one. Value: ${show(options.convention)}`);
+    }
     if (options.params !== undefined) source.setParameters(options.params);
     return source;
   }

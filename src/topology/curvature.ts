@@ -18,12 +18,13 @@ import { planeFlux } from './chern.js';
 import { gapTolerance } from './checks.js';
 import {
   bandGroup, compileSource, FrameSampler, orientation2D, resolvePlane, stripProof, uniformLines,
-  type BandGroup, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
+  type BandGroup, type PlaneSpec, type TopologyOptions, type TopologySource,
 } from './common.js';
-import { gridMomentum, joinCurvatureParts, resolvePart, type CurvaturePart, type PartSpec } from './parts.js';
+import { gridMomentum, joinCurvatureParts, resolvePart, type CurvatureChecks, type CurvatureMethod, type CurvaturePart, type CurvatureResult, type PartSpec } from './parts.js';
+
+export type { CurvatureChecks, CurvatureMethod, CurvatureResult };
 import { resolvePair } from './wilson.js';
 
-export type CurvatureMethod = 'lattice' | 'kubo';
 
 export interface CurvatureOptions extends TopologyOptions {
   method?: CurvatureMethod;
@@ -36,30 +37,7 @@ export interface CurvatureOptions extends TopologyOptions {
   part?: PartSpec;
 }
 
-export interface CurvatureChecks extends TopologyChecks {
-  maxPlaquettePhase?: number;
-  coarse?: boolean;
-}
 
-export interface CurvatureResult {
-  kind: 'curvature';
-  method: CurvatureMethod;
-  convention: 'lattice' | 'orbital';
-  bands: [number, number];
-  plane: { axes: [number, number]; normal?: number; at?: number };
-  /** [n1, n2]; values[b * n1 + a] belongs to k1[a], k2[b]. */
-  grid: [number, number];
-  /** Momenta of the samples (radians): plaquette centres ('lattice') or grid points ('kubo'). */
-  k1: Float64Array;
-  k2: Float64Array;
-  /** Curvature of the group (per rad^2). */
-  values: Float64Array;
-  /** With perBand: band-major, one map per band of the group (band lo first). */
-  perBand?: Float64Array;
-  /** (1/2pi) sum of values times the cell area: the Chern number ('lattice': an integer exactly); null when gapless. */
-  total: number | null;
-  checks: CurvatureChecks;
-}
 
 /** Kubo-formula curvature of every band and of a group, at one k; preallocated. */
 export class KuboCurvature {

@@ -15,12 +15,66 @@
 import { ModelError, show } from '../model/errors.js';
 import { COARSE_LINK, COARSE_PLAQUETTE_PHASE, formatK, gapChecks, gapTolerance, mergeGaps, type GapRecord } from './checks.js';
 import type { SpectrumChecks } from '../spectra/common.js';
-import type { CurvatureChecks, CurvatureMethod, CurvatureResult } from './curvature.js';
-import type { WannierFlowChecks, WannierFlowResult } from './wilson.js';
 
 export type { GapRecord } from './checks.js';
 
 /** Which part of a split request to compute: part `index` (from 0) of `count`. */
+/** The results a grid request makes, whole or joined from its parts (curvature.ts, wilson.ts). */
+export type CurvatureMethod = 'lattice' | 'kubo';
+
+export interface CurvatureChecks extends SpectrumChecks {
+  maxPlaquettePhase?: number;
+  coarse?: boolean;
+}
+
+export interface CurvatureResult {
+  kind: 'curvature';
+  method: CurvatureMethod;
+  convention: 'lattice' | 'orbital';
+  bands: [number, number];
+  plane: { axes: [number, number]; normal?: number; at?: number };
+  /** [n1, n2]; values[b * n1 + a] belongs to k1[a], k2[b]. */
+  grid: [number, number];
+  /** Momenta of the samples (radians): plaquette centres ('lattice') or grid points ('kubo'). */
+  k1: Float64Array;
+  k2: Float64Array;
+  /** Curvature of the group (per rad^2). */
+  values: Float64Array;
+  /** With perBand: band-major, one map per band of the group (band lo first). */
+  perBand?: Float64Array;
+  /** (1/2pi) sum of values times the cell area: the Chern number ('lattice': an integer exactly); null when gapless. */
+  total: number | null;
+  checks: CurvatureChecks;
+}
+
+export interface WannierFlowChecks extends SpectrumChecks {
+  /** Smallest link modulus along / across; below 0.9 the grid is too coarse in that direction. */
+  minLinkAlong: number;
+  minLinkAcross: number;
+  /** Largest jump of the sum of centres between neighbouring across-points (in units of 1). */
+  maxStep: number;
+  coarse?: boolean;
+}
+
+export interface WannierFlowResult {
+  kind: 'wannier-flow';
+  convention: 'lattice' | 'orbital';
+  bands: [number, number];
+  /** Reduced axes: Wilson loops run along axes[1]; the flow is drawn against axes[0]. */
+  plane: { axes: [number, number]; normal?: number; at?: number };
+  /** Across-momenta k1 (radians), -pi to pi inclusive (nAcross + 1 points). */
+  across: Float64Array;
+  /** Hybrid Wannier centres in [0, 1), m per across point, ascending within each. */
+  centres: Float64Array;
+  /** Sum of the centres at each across point, unwrapped to be continuous. */
+  sum: Float64Array;
+  /** Midpoint of the largest gap between centres at each across point. */
+  gapMidpoint: Float64Array;
+  /** Net advance of the sum over the zone (the Chern number of the group), null when gapless. */
+  winding: number | null;
+  checks: WannierFlowChecks;
+}
+
 export interface PartSpec {
   index: number;
   count: number;

@@ -11,11 +11,13 @@ import { multiply } from '../linalg/cmatrix.js';
 import { ModelError, show } from '../model/errors.js';
 import {
   bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane, stripProof, uniformLines,
-  type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
+  type Plane, type PlaneSpec, type TopologyOptions, type TopologySource,
 } from './common.js';
 import { gapTolerance } from './checks.js';
 import { determinantInPlace, fraction, overlapMatrix, UnitaryPhases } from './links.js';
-import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type WannierFlowPart } from './parts.js';
+import { acrossMomentum, joinWannierFlowParts, resolvePart, type PartSpec, type WannierFlowChecks, type WannierFlowPart, type WannierFlowResult } from './parts.js';
+
+export type { WannierFlowChecks, WannierFlowResult };
 
 /**
  * Wilson loops along one axis of a plane, one column (fixed across-momentum) at a time. Keeps the
@@ -189,33 +191,7 @@ export interface WannierFlowOptions extends TopologyOptions {
   part?: PartSpec;
 }
 
-export interface WannierFlowChecks extends TopologyChecks {
-  /** Smallest link modulus along / across; below 0.9 the grid is too coarse in that direction. */
-  minLinkAlong: number;
-  minLinkAcross: number;
-  /** Largest jump of the sum of centres between neighbouring across-points (in units of 1). */
-  maxStep: number;
-  coarse?: boolean;
-}
 
-export interface WannierFlowResult {
-  kind: 'wannier-flow';
-  convention: 'lattice' | 'orbital';
-  bands: [number, number];
-  /** Reduced axes: Wilson loops run along axes[1]; the flow is drawn against axes[0]. */
-  plane: { axes: [number, number]; normal?: number; at?: number };
-  /** Across-momenta k1 (radians), -pi to pi inclusive (nAcross + 1 points). */
-  across: Float64Array;
-  /** Hybrid Wannier centres in [0, 1), m per across point, ascending within each. */
-  centres: Float64Array;
-  /** Sum of the centres at each across point, unwrapped to be continuous. */
-  sum: Float64Array;
-  /** Midpoint of the largest gap between centres at each across point. */
-  gapMidpoint: Float64Array;
-  /** Net advance of the sum over the zone (the Chern number of the group), null when gapless. */
-  winding: number | null;
-  checks: WannierFlowChecks;
-}
 
 export function resolvePair(grid: [number, number] | number | undefined, defaults: [number, number], field = 'grid'): [number, number] {
   const pair = grid === undefined ? defaults : typeof grid === 'number' ? [grid, grid] : grid;

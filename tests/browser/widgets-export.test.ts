@@ -183,12 +183,12 @@ describe('exported notebook page', () => {
   it('refuses a typed value outside the declared range or not a number, naming the parameter and the value, and puts the value in use back', async () => {
     const fragile = widget(2);
     await typeValue(fragile, 'u', 99);
-    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: outside its range [-4, 4]. Value: 99; kept -1');
+    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: outside its declared range [-4, 4]. Value: 99; kept -1');
     expect(await control(fragile, 'u').slider.inputValue()).toBe('-1');
     expect(await control(fragile, 'u').box.inputValue()).toBe('-1');
     await control(fragile, 'u').box.fill('abc');
     await control(fragile, 'u').box.press('Enter');
-    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: not a number. Value: "abc"; kept -1');
+    expect(await fragile.locator('.chernel-message').textContent()).toBe('u: must be a finite number. Value: "abc"; kept -1');
     expect(await control(fragile, 'u').box.inputValue()).toBe('-1');
   });
 

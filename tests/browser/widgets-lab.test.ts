@@ -79,7 +79,7 @@ describe.skipIf(!kernelReady)('chernel widget in the lab with the chernel kernel
   });
 
   it('a value the model refuses is an error naming the parameter, and the kernel lives on', async () => {
-    expect(text(await notebook.runCell(4, 'w.setValues({ M: 9 })'))).toMatch(/setValues\.M: outside its range \[-2, 2\]\. Value: 9/);
+    expect(text(await notebook.runCell(4, 'w.setValues({ M: 9 })'))).toMatch(/setValues\.M: outside its declared range \[-2, 2\]\. Value: 9/);
     expect(text(await notebook.runCell(5, 'w.values.M'))).toBe('0.1');
   });
 

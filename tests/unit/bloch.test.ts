@@ -77,7 +77,7 @@ describe('Bloch Hamiltonian of the Qi–Wu–Zhang model', () => {
     const out = new Float64Array(8);
     h.setParameters({ u: 2 }).fill([0, 0], out);
     expect(out[0]).toBeCloseTo(4, 14);
-    expect(() => h.setParameters({ u: 9 })).toThrow(/params\.u: value 9 is outside the declared range \[-4, 4\]/);
+    expect(() => h.setParameters({ u: 9 })).toThrow(/params\.u: outside its declared range \[-4, 4\]\. Value: 9/);
     expect(() => h.setParameters({ w: 1 })).toThrow(ModelError);
   });
 

@@ -60,7 +60,7 @@ describe('lattice picture', () => {
     expect(Object.keys(outputs[1].data).sort()).toEqual(['application/vnd.plotly.v1+json', 'image/png', 'text/plain']);
     const drawing = show(ssh(), { kind: 'lattice', values: { v: 0.2 } });
     expect(drawing.picture.bonds.filter((b) => b.home).map((b) => b.re).sort()).toEqual([0.2, 1]);
-    expect(() => show(ssh(), { kind: 'lattice', values: { v: 9 } })).toThrow('values.v: outside its range [-2, 2]. Value: 9');
+    expect(() => show(ssh(), { kind: 'lattice', values: { v: 9 } })).toThrow('values.v: outside its declared range [-2, 2]. Value: 9');
   });
 });
 

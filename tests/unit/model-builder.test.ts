@@ -76,7 +76,7 @@ describe('builder: Pauli-string blocks and harmonics', () => {
     expect(() => square().hop('a', 'a', [0, 0], 1)).toThrow(/hop\("a", "a"\)\.cell: a hopping within the cell from "a" to itself is an onsite term/);
     expect(() => square().harmonic('s', [0, 0], { cos: { z: 1 } })).toThrow(/harmonic\("s", \[0,0\]\)\.cell: a harmonic needs a non-zero cell/);
     expect(() => square().hopMatrix('s', 'a', [1, 0], [[1, 2, 3]])).toThrow(/hopMatrix\("s", "a"\): expected a 1 x 2 matrix/);
-    expect(() => square().parameter('w', { default: 5, range: [0, 1] }).build()).toThrow(/parameters\.w\.default: value 5 is outside the declared range \[0, 1\]/);
+    expect(() => square().parameter('w', { default: 5, range: [0, 1] }).build()).toThrow(/parameters\.w\.default: outside its declared range \[0, 1\]\. Value: 5/);
   });
 });
 
@@ -94,7 +94,7 @@ describe('validation of a model description', () => {
     expect(() => validateModel({ ...good, terms: [{ from: 'a', to: 'b', cell: [1, 0], amplitude: 'u + lambda' }] }))
       .toThrow(/terms\[0\]\.amplitude: expression "u \+ lambda" uses undefined parameter "lambda"/);
     expect(() => validateModel({ ...good, orbitals: good.orbitals.map((o) => ({ ...o, layer: -1 })) })).toThrow(/orbitals\[0\]\.layer: expected a non-negative integer\. Value: -1/);
-    expect(() => resolveParameters(good, { u: 4.5 })).toThrow(/params\.u: value 4\.5 is outside the declared range \[-4, 4\]/);
+    expect(() => resolveParameters(good, { u: 4.5 })).toThrow(/params\.u: outside its declared range \[-4, 4\]\. Value: 4\.5/);
   });
 
   it('an onsite term given by an expression is checked when parameters are known', () => {

@@ -121,7 +121,7 @@ describe('phase-map validation (fails before any compute, naming the field)', ()
     [{ axes: [{ param: 'x', from: 0, to: 1, count: 0 }] }, 'axes[0].count', /grid is empty/],
     [{ axes: [] }, 'axes', /one or two/],
     [{ axes: [{ param: 'z', from: 0, to: 1, count: 3 }] }, 'axes[0].param', /no parameter "z"/],
-    [{ axes: [{ param: 'x', from: 0, to: 11, count: 3 }] }, 'axes[0].to', /outside the declared range/],
+    [{ axes: [{ param: 'x', from: 0, to: 11, count: 3 }] }, 'axes[0].to', /outside its declared range/],
     [{ invariant: 'hall' as never }, 'invariant', /"hall"/],
     [{ invariant: 'gap' as const, refine: { tolerance: 0.1 } }, 'refine', /quantised invariant/],
     [{ refine: { tolerance: 0 } }, 'refine.tolerance', /positive/],

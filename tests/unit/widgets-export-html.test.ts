@@ -6,8 +6,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { exportHtmlCommand, markdownToHtml, NotebookFormatError, notebookToHtml } from '../../cli/export-html.js';
-import { checkValues, savedStateEntry, widgetState, WidgetOptionError } from '../../kernel/widget-state.js';
-import { qwz } from '../../src/index.js';
+import { checkValues, savedStateEntry, widgetState } from '../../kernel/widget-state.js';
+import { ModelError, qwz } from '../../src/index.js';
 import { putBuffers, unpackArrays } from '../../contract/wire.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'chernel-export-test-'));
@@ -105,9 +105,9 @@ describe('saved widget state', () => {
   it('checks values against the model, naming the field and value', () => {
     const spec = qwz();
     expect(checkValues(spec, { u: 1.5 })).toEqual({ u: 1.5 });
-    expect(() => checkValues(spec, { v: 1 })).toThrow(new WidgetOptionError('values.v', `not a parameter of model "${spec.name}" (parameters: u)`));
-    expect(() => checkValues(spec, { u: 'a' })).toThrow('values.u: expected a finite number. Value: "a"');
-    expect(() => checkValues(spec, { u: 9 }, 'setValues')).toThrow('setValues.u: outside its range [-4, 4]. Value: 9');
+    expect(() => checkValues(spec, { v: 1 })).toThrow(new ModelError('values.v', `model "${spec.name}" has no parameter "v" (it has: u)`));
+    expect(() => checkValues(spec, { u: 'a' })).toThrow('values.u: must be a finite number. Value: "a"');
+    expect(() => checkValues(spec, { u: 9 }, 'setValues')).toThrow('setValues.u: outside its declared range [-4, 4]. Value: 9');
     expect(() => checkValues(spec, [1])).toThrow('values: expected an object of parameter values. Value: [1]');
   });
 });

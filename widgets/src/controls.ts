@@ -4,6 +4,7 @@
  * naming the field and what was typed, and the box goes back to the value in use.
  */
 import type { ParameterDecl } from '../../contract/protocol.js';
+import { parameterValueProblem } from '../../src/model/parameters.js';
 
 export interface ParameterControls {
   element: HTMLElement;
@@ -98,13 +99,11 @@ export function createParameterControls(
     const commit = () => {
       if (box.value === committed) return; // Enter, then blur: one commit
       const typed = box.value.trim();
-      const value = Number(typed);
-      if (typed === '' || !Number.isFinite(value)) {
-        refuse(`not a number. Value: ${JSON.stringify(typed)}`);
-        return;
-      }
-      if (decl.range && (value < decl.range[0] || value > decl.range[1])) {
-        refuse(`outside its range [${formatValue(decl.range[0])}, ${formatValue(decl.range[1])}]. Value: ${typed}`);
+      const value = typed === '' ? Number.NaN : Number(typed);
+      // The engine's own check and message (src/model/parameters.ts); a non-number shows as typed.
+      const problem = parameterValueProblem(Number.isFinite(value) ? value : typed, decl);
+      if (problem !== null) {
+        refuse(problem);
         return;
       }
       committed = box.value;

@@ -1,5 +1,5 @@
 /**
- * The runtime of an exported notebook page (kernel/export-html.ts writes the page): the saved
+ * The runtime of an exported notebook page (cli/export-html.ts writes the page): the saved
  * widget state is loaded into an HTMLManager, each widget-view tag becomes a live view, and the
  * controls keep recomputing in the page's own engine worker. No kernel, works from file://.
  */

@@ -1,0 +1,159 @@
+/** Every request whole, on one worker. */
+export const WHOLE = {
+    parts: () => 1,
+    partRequest: (request) => request,
+    join: (_request, parts) => parts[0],
+};
+export class LatestWinsClient {
+    spawn;
+    deliver;
+    plan;
+    progress;
+    workers = [];
+    inFlight = null;
+    waiting = null;
+    nextId = 1;
+    /** Requests replaced before they were sent (for tests and the bench). */
+    dropped = 0;
+    constructor(spawn, deliver, plan = WHOLE, 
+    /** Progress of the request in flight (a phase map), as a fraction of the points planned. */
+    progress = () => undefined) {
+        this.spawn = spawn;
+        this.deliver = deliver;
+        this.plan = plan;
+        this.progress = progress;
+    }
+    /**
+     * Stops the request in flight and drops any waiting: its workers are ended (a computation cannot
+     * be interrupted inside a worker) and started afresh for the next request. Returns the stopped request.
+     */
+    stop() {
+        const stopped = this.inFlight?.silent === false ? this.inFlight.request : (this.waiting?.request ?? null);
+        for (const worker of this.workers)
+            worker?.terminate();
+        this.workers = [];
+        this.inFlight = null;
+        this.waiting = null;
+        return stopped;
+    }
+    submit(request) {
+        const pending = { request, submitted: performance.now() };
+        if (this.inFlight === null) {
+            this.send(pending);
+        }
+        else {
+            if (this.waiting !== null)
+                this.dropped++;
+            this.waiting = pending;
+        }
+    }
+    /**
+     * Computes `request` without delivering it, when nothing else is pending: the workers start and
+     * compile the model, and their JIT warms up, before the hand starts dragging.
+     */
+    warm(request) {
+        if (this.inFlight === null && this.waiting === null)
+            this.send({ request, submitted: performance.now() }, true);
+    }
+    /** True while a request is computing or waiting. */
+    get busy() {
+        return this.inFlight !== null || this.waiting !== null;
+    }
+    dispose() {
+        for (const worker of this.workers)
+            worker?.terminate();
+        this.workers = [];
+        this.inFlight = null;
+        this.waiting = null;
+    }
+    send(pending, silent = false) {
+        const count = Math.max(1, this.plan.parts(pending.request));
+        const ids = Array.from({ length: count }, () => this.nextId++);
+        this.inFlight = { ...pending, silent, ids, replies: new Array(count).fill(undefined), remaining: count };
+        ids.forEach((id, index) => {
+            const request = count === 1 ? pending.request : this.plan.partRequest(pending.request, index, count);
+            this.ensureWorker(index).postMessage({ id, request });
+        });
+    }
+    ensureWorker(index) {
+        const existing = this.workers[index];
+        if (existing)
+            return existing;
+        const worker = this.spawn();
+        worker.onmessage = (event) => {
+            const data = event.data;
+            if ('progress' in data)
+                this.progressed(data);
+            else
+                this.receive(data);
+        };
+        worker.onerror = (event) => this.crashed(worker, event.message || 'the engine worker failed to start');
+        this.workers[index] = worker;
+        return worker;
+    }
+    progressed(message) {
+        const current = this.inFlight;
+        if (current === null || current.silent || !current.ids.includes(message.id))
+            return;
+        const { done, total } = message.progress;
+        this.progress(total > 0 ? Math.min(1, done / total) : 0, current.request);
+    }
+    receive(reply) {
+        const current = this.inFlight;
+        const part = current === null ? -1 : current.ids.indexOf(reply.id);
+        if (current === null || part < 0 || current.replies[part] !== undefined)
+            return;
+        current.replies[part] = reply;
+        if (--current.remaining > 0)
+            return;
+        this.inFlight = null;
+        const outcome = current.silent ? null : this.finish(current, current.replies);
+        // Start the next computation before drawing this one: the workers compute while the page draws.
+        this.sendWaiting();
+        if (outcome !== null)
+            this.deliver(outcome);
+    }
+    finish(current, replies) {
+        const latency = () => performance.now() - current.submitted;
+        const failed = replies.find((r) => !r.ok);
+        if (failed !== undefined && !failed.ok)
+            return { request: current.request, latency: latency(), computeMs: 0, error: failed.error };
+        const results = replies.map((r) => (r.ok ? r.result : null));
+        const slowest = Math.max(...replies.map((r) => (r.ok ? r.ms : 0)));
+        const started = performance.now();
+        try {
+            const result = results.length === 1 ? results[0] : this.plan.join(current.request, results);
+            return { request: current.request, latency: latency(), computeMs: slowest + performance.now() - started, result };
+        }
+        catch (err) {
+            const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };
+            return { request: current.request, latency: latency(), computeMs: 0, error };
+        }
+    }
+    /** A worker that dies (bad bundle, out of memory) is replaced on the next request. */
+    crashed(worker, message) {
+        const index = this.workers.indexOf(worker);
+        if (index < 0)
+            return;
+        worker.terminate();
+        this.workers[index] = null;
+        const current = this.inFlight;
+        this.inFlight = null;
+        if (current !== null && !current.silent) {
+            this.deliver({
+                request: current.request,
+                latency: performance.now() - current.submitted,
+                computeMs: 0,
+                error: { name: 'WorkerError', message },
+            });
+        }
+        this.sendWaiting();
+    }
+    sendWaiting() {
+        const next = this.waiting;
+        this.waiting = null;
+        if (next !== null)
+            this.send(next);
+    }
+}
+//# sourceMappingURL=compute-client.js.map

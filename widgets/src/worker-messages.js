@@ -1,0 +1,2 @@
+export {};
+//# sourceMappingURL=worker-messages.js.map
