@@ -2,7 +2,7 @@
  * The Slurm job-array script for one round of a sweep: task i runs shard i of N. Requeued tasks
  * (pre-emption, node failure) resume from their shard's own output.
  */
-import { ModelError, show } from '../src/model/errors.js';
+import { ModelError, valueText } from '../src/model/errors.js';
 
 export interface SlurmOptions {
   partition?: string;
@@ -31,7 +31,7 @@ function quote(word: string): string {
 }
 
 function checkOption(field: string, value: string | undefined, pattern: RegExp, example: string): void {
-  if (value !== undefined && !pattern.test(value)) throw new ModelError(field, `expected something like ${example}. Value: ${show(value)}`);
+  if (value !== undefined && !pattern.test(value)) throw new ModelError(field, `expected something like ${example}. Value: ${valueText(value)}`);
 }
 
 export function sbatchScript(o: ScriptOptions): string {
@@ -40,7 +40,7 @@ export function sbatchScript(o: ScriptOptions): string {
   checkOption('mem', o.mem, /^\d+[KMGT]?$/, '"2G"');
   checkOption('account', o.account, /^[A-Za-z0-9_.-]+$/, '"myproject"');
   if (o.cpusPerTask !== undefined && (!Number.isInteger(o.cpusPerTask) || o.cpusPerTask < 1)) {
-    throw new ModelError('cpus-per-task', `expected a whole number >= 1. Value: ${show(o.cpusPerTask)}`);
+    throw new ModelError('cpus-per-task', `expected a whole number >= 1. Value: ${valueText(o.cpusPerTask)}`);
   }
   const lines = [
     '#!/bin/bash',

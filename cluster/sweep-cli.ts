@@ -15,7 +15,7 @@ import { basename, dirname, join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { InterruptedError } from '../src/interrupt.js';
 import { catalogueModel } from '../src/model/catalogue.js';
-import { ModelError, show } from '../src/model/errors.js';
+import { ModelError, valueText } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
 import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from './node-workers.js';
 import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
@@ -73,7 +73,7 @@ function intFlag(p: Parsed, name: string): number | undefined {
   const v = p.flags.get(name);
   if (v === undefined) return undefined;
   const n = Number(v);
-  if (v === true || !Number.isInteger(n)) throw new ModelError(name, `expected a whole number. Value: ${show(v)}`);
+  if (v === true || !Number.isInteger(n)) throw new ModelError(name, `expected a whole number. Value: ${valueText(v)}`);
   return n;
 }
 
@@ -139,7 +139,7 @@ function shardFromArgsOrEnv(p: Parsed): { shard: number; shards: number } {
     const v = env[name];
     if (v === undefined || v === '') return undefined;
     const n = Number(v);
-    if (!Number.isInteger(n)) throw new ModelError(name, `expected a whole number. Value: ${show(v)}`);
+    if (!Number.isInteger(n)) throw new ModelError(name, `expected a whole number. Value: ${valueText(v)}`);
     return n;
   };
   const taskId = fromEnv('SLURM_ARRAY_TASK_ID');
@@ -419,7 +419,7 @@ export async function runSweepCli(args: string[], out: (s: string) => void = (s)
         out(USAGE + '\n');
         return command === undefined ? 2 : 0;
       default:
-        throw new UsageError(`unknown command ${show(command)}`);
+        throw new UsageError(`unknown command ${valueText(command)}`);
     }
   } catch (err) {
     if (err instanceof UsageError || err instanceof ModelError || err instanceof ShardLockedError) {

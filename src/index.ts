@@ -12,7 +12,7 @@ export { lattice, LatticeBuilder, type Harmonic, type OrbitalMatrix, type SpinMa
 export { supercell, type SupercellOptions } from './model/builders/supercell.js';
 export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/builders/open.js';
 export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
-export { bogoliubov, type BdgOptions } from './model/builders/bdg.js';
+export { bogoliubov, type BogoliubovOptions } from './model/builders/bdg.js';
 export { wireStack, type WireStackOptions } from './model/builders/wires.js';
 export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
 

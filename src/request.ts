@@ -9,7 +9,7 @@
 import { computeBudget, fits, formatBytes, formatSeconds, POINT_BYTES, product, count, type CostEstimate } from './cost.js';
 import { COMMON_FIELDS, type RequestFields } from './diagnostics/diagnostic.js';
 import { diagnosticOf, KIND_NAMES, SWEEP_QUANTITIES, unknownKind, type KindRequest, type SweepQuantity } from './diagnostics/registry.js';
-import { ModelError, show } from './model/errors.js';
+import { ModelError, valueText } from './model/errors.js';
 import { checkFields, isObject } from './model/field-names.js';
 import type { PhaseMapRequest } from './scan/sweep.js';
 
@@ -36,7 +36,7 @@ function checkRequestFields(r: RequestFields): void {
   const kind = r.kind as DiagnosticKind;
   const mapped = kind === 'phase-map';
   const swept = mapped && (SWEEP_QUANTITIES as readonly unknown[]).includes(r.invariant) ? diagnosticOf(r.invariant) : null;
-  checkFields(r, requestFields(kind, swept?.kind as SweepQuantity | undefined), '', mapped ? `a phase-map request of ${show(r.invariant)}` : `a "${kind}" request`);
+  checkFields(r, requestFields(kind, swept?.kind as SweepQuantity | undefined), '', mapped ? `a phase-map request of ${valueText(r.invariant)}` : `a "${kind}" request`);
   const nested = { ...(mapped ? PHASE_MAP_NESTED : {}), ...((mapped ? swept : diagnosticOf(kind))?.nested ?? {}) };
   for (const [option, fields] of Object.entries(nested)) {
     const value = r[option];
@@ -46,7 +46,7 @@ function checkRequestFields(r: RequestFields): void {
   // The one option of many kinds whose shape varies; each diagnostic checks its values.
   const grid = r.grid;
   if (grid !== undefined && typeof grid !== 'number' && grid !== 'auto' && !(Array.isArray(grid) && grid.length > 0)) {
-    throw new ModelError('grid', `expected a number of k-points, one per direction, or "auto". Value: ${show(grid)}`);
+    throw new ModelError('grid', `expected a number of k-points, one per direction, or "auto". Value: ${valueText(grid)}`);
   }
 }
 
@@ -127,11 +127,11 @@ function checkCost(request: DiagnosticRequest): CostEstimate {
 
 /** Checks a request's kind, the names of its fields and the shape of its parameter values. */
 export function checkRequestShape(request: DiagnosticRequest): void {
-  if (!isObject(request)) throw new ModelError('request', `expected a diagnostic request object. Value: ${show(request)}`);
+  if (!isObject(request)) throw new ModelError('request', `expected a diagnostic request object. Value: ${valueText(request)}`);
   if (!(DIAGNOSTIC_KINDS as readonly unknown[]).includes(request.kind)) throw unknownKind(request.kind, 'kind', DIAGNOSTIC_KINDS);
   checkRequestFields(request as unknown as RequestFields);
   if (request.params !== undefined && !isObject(request.params)) {
-    throw new ModelError('params', `expected an object of parameter values. Value: ${show(request.params)}`);
+    throw new ModelError('params', `expected an object of parameter values. Value: ${valueText(request.params)}`);
   }
 }
 

@@ -7,7 +7,7 @@
  * (and e^{-ik·(R + r_b - r_a)} in the 'orbital' convention, where |k,a> carries e^{ik·r_a}).
  */
 import type { CMatrix } from '../linalg/cmatrix.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { compileAmplitude, resolveParameters, type AmplitudeEvaluator } from '../model/expressions.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { validateModel } from '../model/validate.js';
@@ -66,7 +66,7 @@ export class BlochHamiltonian {
     this.dim = spec.periodic;
     this.convention = options.convention ?? 'lattice';
     if (this.convention !== 'lattice' && this.convention !== 'orbital') {
-      throw new ModelError('convention', `expected "lattice" or "orbital". Value: ${show(this.convention)}`);
+      throw new ModelError('convention', `expected "lattice" or "orbital". Value: ${valueText(this.convention)}`);
     }
     const index = new Map(spec.orbitals.map((o, i) => [o.label, i]));
     const parameterNames = new Set(Object.keys(spec.parameters));
@@ -142,7 +142,7 @@ export class BlochHamiltonian {
 
   private computePhases(k: ArrayLike<number>): void {
     const dim = this.dim;
-    if (k.length < dim) throw new ModelError('k', `expected ${dim} components. Value: ${show(Array.from(k))}`);
+    if (k.length < dim) throw new ModelError('k', `expected ${dim} components. Value: ${valueText(Array.from(k))}`);
     const v = this.phaseVectors;
     const ph = this.phases;
     for (let p = 0; p < this.phaseCount; p++) {

@@ -4,7 +4,7 @@
  * cluster shards, the widget worker, the split plan and the summaries all read this table.
  */
 import type { BlochConvention } from '../bloch/hamiltonian.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { didYouMean } from '../model/field-names.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import type { Diagnostic, OwnOptions } from './diagnostic.js';
@@ -69,7 +69,7 @@ export type SplitKind = { [K in KindName]: Registry[K] extends { splitRows: unkn
 /** The error for a kind that is not one of `among`, naming `field` and the closest kind. */
 export function unknownKind(kind: unknown, field: string, among: readonly string[]): ModelError {
   const hint = typeof kind === 'string' ? didYouMean(kind, among) : '';
-  return new ModelError(field, `unknown diagnostic ${show(kind)}${hint} (expected one of ${among.map((k) => `"${k}"`).join(', ')})`);
+  return new ModelError(field, `unknown diagnostic ${valueText(kind)}${hint} (expected one of ${among.map((k) => `"${k}"`).join(', ')})`);
 }
 
 /** The module of a registered kind, or an error naming `field` and the closest kind. */

@@ -23,7 +23,7 @@
  * partner of an existing term is folded into it), so harmonics, hoppings and onsite terms combine.
  */
 import { addAmplitudes, fromComplex, isZero, multiplyAmplitudes, numericValue } from './amplitude.js';
-import { ModelError, show } from './errors.js';
+import { ModelError, valueText } from './errors.js';
 import { compileAmplitude } from './expressions.js';
 import { MODEL_FORMAT, MODEL_VERSION, type Amplitude, type ModelSpec, type OrbitalSpec, type ParameterSpec, type TermSpec } from './spec.js';
 import { TermSet } from './terms.js';
@@ -76,14 +76,14 @@ function denseMatrix(m: OrbitalMatrix, rows: number, cols: number, field: string
   const out: Dense = Array.from({ length: rows }, () => new Array<Amplitude | null>(cols).fill(null));
   if (isRows(m)) {
     if (m.length !== rows || !m.every((r) => Array.isArray(r) && r.length === cols)) {
-      throw new ModelError(field, `expected a ${rows} x ${cols} matrix (rows = "to" orbitals, columns = "from"). Value: ${show(m)}`);
+      throw new ModelError(field, `expected a ${rows} x ${cols} matrix (rows = "to" orbitals, columns = "from"). Value: ${valueText(m)}`);
     }
     m.forEach((r, i) => r.forEach((e, j) => (out[i][j] = isZero(e) ? null : e)));
     return out;
   }
-  if (m === null || typeof m !== 'object') throw new ModelError(field, `expected Pauli strings with amplitudes or matrix rows. Value: ${show(m)}`);
+  if (m === null || typeof m !== 'object') throw new ModelError(field, `expected Pauli strings with amplitudes or matrix rows. Value: ${valueText(m)}`);
   for (const [key, coefficient] of Object.entries(m as Record<string, Amplitude>)) {
-    if (!/^[0xyz]+$/.test(key)) throw new ModelError(`${field}.${key}`, `a Pauli string is made of the letters 0, x, y, z. Value: ${show(key)}`);
+    if (!/^[0xyz]+$/.test(key)) throw new ModelError(`${field}.${key}`, `a Pauli string is made of the letters 0, x, y, z. Value: ${valueText(key)}`);
     if (rows !== cols || 2 ** key.length !== rows) {
       throw new ModelError(`${field}.${key}`, `a Pauli string of ${key.length} letters acts on ${2 ** key.length} orbitals, but this block is ${rows} x ${cols}`);
     }
@@ -130,7 +130,7 @@ export class LatticeBuilder {
 
   /** Add a site at a reduced position; with `{ spin: true }` it holds two orbitals, `label.up` and `label.dn`. */
   site(label: string, position: number[], options: { spin?: boolean } = {}): this {
-    if (this.sites.has(label)) throw new ModelError(`site(${show(label)})`, 'a site with this label exists already');
+    if (this.sites.has(label)) throw new ModelError(`site(${valueText(label)})`, 'a site with this label exists already');
     const spin = options.spin ?? false;
     const labels = spin ? SPIN_SUFFIX.map((s) => label + s) : [label];
     this.sites.set(label, labels);
@@ -143,18 +143,18 @@ export class LatticeBuilder {
    * `block('s', ['a', 'b'])` on spinful a, b orders the orbitals a.up, a.dn, b.up, b.dn.
    */
   block(name: string, members: string[]): this {
-    const where = `block(${show(name)})`;
-    if (this.blocks.has(name) || this.sites.has(name)) throw new ModelError(where, `the name ${show(name)} is taken by a block or site`);
-    if (!Array.isArray(members) || members.length === 0) throw new ModelError(`${where}.members`, `expected a non-empty list of sites or orbitals. Value: ${show(members)}`);
+    const where = `block(${valueText(name)})`;
+    if (this.blocks.has(name) || this.sites.has(name)) throw new ModelError(where, `the name ${valueText(name)} is taken by a block or site`);
+    if (!Array.isArray(members) || members.length === 0) throw new ModelError(`${where}.members`, `expected a non-empty list of sites or orbitals. Value: ${valueText(members)}`);
     const orbitals = members.flatMap((m, i) => this.resolve(m, `${where}.members[${i}]`));
-    if (new Set(orbitals).size !== orbitals.length) throw new ModelError(`${where}.members`, `an orbital appears twice. Value: ${show(orbitals)}`);
+    if (new Set(orbitals).size !== orbitals.length) throw new ModelError(`${where}.members`, `an orbital appears twice. Value: ${valueText(orbitals)}`);
     this.blocks.set(name, orbitals);
     return this;
   }
 
   /** An onsite energy; on a spinful site, times a Hermitian spin matrix (default identity). */
   onsite(site: string, amplitude: Amplitude, spin: SpinMatrix = '0'): this {
-    const where = `onsite(${show(site)})`;
+    const where = `onsite(${valueText(site)})`;
     const orbs = this.siteOrbitals(site, where);
     this.pending.push({ field: `${where}.amplitude`, amplitude });
     if (orbs.length === 1) return this.addTerm(site, site, this.zeroCell(), amplitude);
@@ -168,7 +168,7 @@ export class LatticeBuilder {
    * Hermitian partner is implied).
    */
   hop(from: string, to: string, cell: number[], amplitude: Amplitude, spin: SpinMatrix = '0'): this {
-    const where = `hop(${show(from)}, ${show(to)})`;
+    const where = `hop(${valueText(from)}, ${valueText(to)})`;
     const a = this.siteOrbitals(from, `${where}.from`);
     const b = this.siteOrbitals(to, `${where}.to`);
     if (a.length !== b.length) throw new ModelError(where, 'cannot hop between a spinful and a spinless site');
@@ -182,7 +182,7 @@ export class LatticeBuilder {
 
   /** A Hermitian matrix of onsite terms on a block: `onsiteMatrix('s', { z: 'm', x: 'Delta' })`. */
   onsiteMatrix(block: string, matrix: OrbitalMatrix): this {
-    const where = `onsiteMatrix(${show(block)})`;
+    const where = `onsiteMatrix(${valueText(block)})`;
     const orbs = this.resolve(block, where);
     const m = denseMatrix(matrix, orbs.length, orbs.length, where);
     this.checkEntries(matrix, where);
@@ -195,7 +195,7 @@ export class LatticeBuilder {
    * partner implied).
    */
   hopMatrix(from: string, to: string, cell: number[], matrix: OrbitalMatrix): this {
-    const where = `hopMatrix(${show(from)}, ${show(to)})`;
+    const where = `hopMatrix(${valueText(from)}, ${valueText(to)})`;
     const a = this.resolve(from, `${where}.from`);
     const b = this.resolve(to, `${where}.to`);
     this.checkCell(cell, `${where}.cell`);
@@ -212,12 +212,12 @@ export class LatticeBuilder {
    * amplitude on cell R is (M_cos + i M_sin)/2 and its partner on -R supplies the conjugate.
    */
   harmonic(block: string, cell: number[], parts: Harmonic): this {
-    const where = `harmonic(${show(block)}, ${show(cell)})`;
+    const where = `harmonic(${valueText(block)}, ${valueText(cell)})`;
     const orbs = this.resolve(block, where);
     this.checkCell(cell, `${where}.cell`);
-    if (cell.every((c) => c === 0)) throw new ModelError(`${where}.cell`, `a harmonic needs a non-zero cell (use onsiteMatrix for R = 0). Value: ${show(cell)}`);
+    if (cell.every((c) => c === 0)) throw new ModelError(`${where}.cell`, `a harmonic needs a non-zero cell (use onsiteMatrix for R = 0). Value: ${valueText(cell)}`);
     if (parts === null || typeof parts !== 'object' || (parts.cos === undefined && parts.sin === undefined)) {
-      throw new ModelError(where, `expected { cos?, sin? } matrices. Value: ${show(parts)}`);
+      throw new ModelError(where, `expected { cos?, sin? } matrices. Value: ${valueText(parts)}`);
     }
     const n = orbs.length;
     const c = parts.cos === undefined ? null : denseMatrix(parts.cos, n, n, `${where}.cos`);
@@ -238,7 +238,7 @@ export class LatticeBuilder {
 
   /** A raw term between orbitals (not sites), for what the helpers above do not cover. */
   term(term: TermSpec): this {
-    const where = `term(${show(term?.from)}, ${show(term?.to)})`;
+    const where = `term(${valueText(term?.from)}, ${valueText(term?.to)})`;
     this.resolve(term.from, `${where}.from`);
     this.resolve(term.to, `${where}.to`);
     this.checkCell(term.cell, `${where}.cell`);
@@ -277,7 +277,7 @@ export class LatticeBuilder {
 
   private resolve(name: string, where: string): string[] {
     const found = this.blocks.get(name) ?? this.sites.get(name) ?? (this.orbitals.some((o) => o.label === name) ? [name] : undefined);
-    if (found === undefined) throw new ModelError(where, `unknown block, site or orbital ${show(name)}`);
+    if (found === undefined) throw new ModelError(where, `unknown block, site or orbital ${valueText(name)}`);
     return found;
   }
 
@@ -289,13 +289,13 @@ export class LatticeBuilder {
 
   private siteOrbitals(label: string, where: string): string[] {
     const orbs = this.sites.get(label);
-    if (orbs === undefined) throw new ModelError(where, `unknown site ${show(label)} (declare it with .site() first)`);
+    if (orbs === undefined) throw new ModelError(where, `unknown site ${valueText(label)} (declare it with .site() first)`);
     return orbs;
   }
 
   private checkCell(cell: unknown, field: string): void {
     if (!Array.isArray(cell) || cell.length !== this.periodic || !cell.every((c) => Number.isInteger(c))) {
-      throw new ModelError(field, `expected ${this.periodic} integers (one per periodic direction). Value: ${show(cell)}`);
+      throw new ModelError(field, `expected ${this.periodic} integers (one per periodic direction). Value: ${valueText(cell)}`);
     }
   }
 
@@ -303,7 +303,7 @@ export class LatticeBuilder {
   private checkNotOnsite(from: string[], to: string[], cell: number[], where: string, instead: string): void {
     if (cell.some((c) => c !== 0)) return;
     const shared = from.filter((o) => to.includes(o));
-    if (shared.length > 0) throw new ModelError(`${where}.cell`, `a hopping within the cell from ${show(shared[0])} to itself is an onsite term; use .${instead}(). Value: ${show(cell)}`);
+    if (shared.length > 0) throw new ModelError(`${where}.cell`, `a hopping within the cell from ${valueText(shared[0])} to itself is an onsite term; use .${instead}(). Value: ${valueText(cell)}`);
   }
 
   /** Lower triangle and diagonal of a Hermitian onsite block (the upper triangle is the implied partner). */
@@ -351,7 +351,7 @@ function checkHermitian(m: Dense, field: string, names: ReadonlySet<string>, def
       const b = value(m[j][i], `${field}[${j}][${i}]`);
       const scale = Math.max(1, Math.hypot(...a), Math.hypot(...b));
       if (Math.abs(a[0] - b[0]) > 1e-12 * scale || Math.abs(a[1] + b[1]) > 1e-12 * scale) {
-        const entry = (e: Amplitude | null): string => (e === null ? '0' : show(e));
+        const entry = (e: Amplitude | null): string => (e === null ? '0' : valueText(e));
         throw new ModelError(
           field,
           `matrix must be Hermitian (a non-Hermitian onsite block or harmonic): [${i}][${j}] = ${entry(m[i][j])}, [${j}][${i}] = ${entry(m[j][i])}` +

@@ -9,7 +9,7 @@ import { lattice } from './builder.js';
 import { bogoliubov } from './builders/bdg.js';
 import { magneticFlux } from './builders/flux.js';
 import { wireStack } from './builders/wires.js';
-import { ModelError, show } from './errors.js';
+import { ModelError, valueText } from './errors.js';
 import type { ModelSpec } from './spec.js';
 import { checkFields, closestName } from './field-names.js';
 
@@ -26,7 +26,7 @@ function refuseOptions(name: string, given: IArguments, make: () => ModelSpec): 
   const first = given[0] as unknown;
   const keys = first !== null && typeof first === 'object' ? Object.keys(first) : [];
   const hint = keys.length ? ` (did you mean params: {${keys.map((k) => `${closestName(k, known) ?? k}: ...`).join(', ')}} in the request?)` : '';
-  throw new ModelError(name, `${name}() takes no options. Value: ${show(first)}; set its parameters (${known.join(', ') || 'none'}) with params in a request or values in show()${hint}`);
+  throw new ModelError(name, `${name}() takes no options. Value: ${valueText(first)}; set its parameters (${known.join(', ') || 'none'}) with params in a request or values in valueText()${hint}`);
 }
 const SQRT3 = Math.sqrt(3);
 
@@ -202,7 +202,7 @@ export function bhz(): ModelSpec {
  */
 export function hofstadter(p = 1, q = 3): ModelSpec {
   for (const [field, value] of [['p', p], ['q', q]] as const) {
-    if (typeof value !== 'number') throw new ModelError(`hofstadter.${field}`, `expected a whole number (hofstadter(p, q): flux p/q per plaquette). Value: ${show(value)}`);
+    if (typeof value !== 'number') throw new ModelError(`hofstadter.${field}`, `expected a whole number (hofstadter(p, q): flux p/q per plaquette). Value: ${valueText(value)}`);
   }
   const square = lattice('square lattice', [[1, 0], [0, 1]])
     .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'nearest-neighbour hopping (H has -t)' })
@@ -236,7 +236,7 @@ export interface CoupledWireOptions {
  * convention, either sign of g), 0 for |delta| > |g|.
  */
 export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
-  if (options === null || typeof options !== 'object' || Array.isArray(options)) throw new ModelError('coupledWires', `expected an options object {wires, boundary}. Value: ${show(options)}`);
+  if (options === null || typeof options !== 'object' || Array.isArray(options)) throw new ModelError('coupledWires', `expected an options object {wires, boundary}. Value: ${valueText(options)}`);
   checkFields(options, ['wires', 'boundary'], 'coupledWires.', 'coupledWires() options');
   const chain = lattice('dimerized wire', [[1]])
     .parameter('t', { default: 1, range: [0.6, 2], unit: energyIn('t'), doc: 'mean hopping along a wire' })
@@ -300,6 +300,6 @@ export const CATALOGUE: Readonly<Record<string, () => ModelSpec>> = {
 /** A catalogue model by name; the error lists what exists. */
 export function catalogueModel(name: string): ModelSpec {
   const make = Object.hasOwn(CATALOGUE, name) ? CATALOGUE[name] : undefined;
-  if (make === undefined) throw new ModelError('catalogue', `no model ${show(name)} (known: ${Object.keys(CATALOGUE).join(', ')})`);
+  if (make === undefined) throw new ModelError('catalogue', `no model ${valueText(name)} (known: ${Object.keys(CATALOGUE).join(', ')})`);
   return make();
 }

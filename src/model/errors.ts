@@ -9,7 +9,7 @@ export class ModelError extends Error {
 }
 
 /** Render a user value for an error message, briefly. */
-export function show(value: unknown): string {
+export function valueText(value: unknown): string {
   if (typeof value === 'string') return JSON.stringify(value);
   if (typeof value === 'number') return String(value);
   try {

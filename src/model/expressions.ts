@@ -21,7 +21,7 @@ import {
   squareDependencies, subtractDependencies, tanDependencies, tanhDependencies, unaryMinusDependencies,
   unaryPlusDependencies, type EvalFunction, type MathNode,
 } from 'mathjs';
-import { ModelError, show } from './errors.js';
+import { ModelError, valueText } from './errors.js';
 import { checkParameterValues } from './parameters.js';
 import type { Amplitude, ModelSpec, ParameterValues } from './spec.js';
 
@@ -81,20 +81,20 @@ interface NodeFields {
 /** Refuses anything but numbers, known names, arithmetic and allowed calls, and deep nesting. */
 function checkNode(node: MathNode, depth: number, expr: string, field: string, parameters: ReadonlySet<string>): void {
   const n = node as unknown as NodeFields;
-  if (depth > MAX_EXPRESSION_DEPTH) throw new ModelError(field, `expression ${show(expr.slice(0, 80))} nests deeper than ${MAX_EXPRESSION_DEPTH} levels`);
+  if (depth > MAX_EXPRESSION_DEPTH) throw new ModelError(field, `expression ${valueText(expr.slice(0, 80))} nests deeper than ${MAX_EXPRESSION_DEPTH} levels`);
   if (!ALLOWED_NODES.has(n.type)) {
-    throw new ModelError(field, `expression ${show(expr)} uses ${describeNode(n)}, which a model may not use (only numbers, parameters, i, pi, e, sqrt3, + - * / ^ and the functions ${EXPRESSION_FUNCTIONS.join(', ')})`);
+    throw new ModelError(field, `expression ${valueText(expr)} uses ${describeNode(n)}, which a model may not use (only numbers, parameters, i, pi, e, sqrt3, + - * / ^ and the functions ${EXPRESSION_FUNCTIONS.join(', ')})`);
   }
-  if (n.type === 'ConstantNode' && typeof n.value !== 'number') throw new ModelError(field, `expression ${show(expr)} contains ${show(n.value)}; only numbers are allowed`);
+  if (n.type === 'ConstantNode' && typeof n.value !== 'number') throw new ModelError(field, `expression ${valueText(expr)} contains ${valueText(n.value)}; only numbers are allowed`);
   if (n.type === 'SymbolNode' && !CONSTANTS.has(n.name!) && !parameters.has(n.name!)) {
-    throw new ModelError(field, `expression ${show(expr)} uses undefined parameter "${n.name}"`);
+    throw new ModelError(field, `expression ${valueText(expr)} uses undefined parameter "${n.name}"`);
   }
-  if (n.type === 'OperatorNode' && !ALLOWED_OPERATORS.has(n.fn as string)) throw new ModelError(field, `expression ${show(expr)} uses the operator "${(n as { op?: string }).op}", which a model may not use`);
+  if (n.type === 'OperatorNode' && !ALLOWED_OPERATORS.has(n.fn as string)) throw new ModelError(field, `expression ${valueText(expr)} uses the operator "${(n as { op?: string }).op}", which a model may not use`);
   if (n.type === 'FunctionNode') {
     const fn = n.fn as unknown as NodeFields;
     if (fn.type !== 'SymbolNode' || !FUNCTION_NAMES.has(fn.name!)) {
       const name = fn.type === 'SymbolNode' ? fn.name! : 'a computed function';
-      throw new ModelError(field, `expression ${show(expr)} calls "${name}", which a model may not use (allowed: ${EXPRESSION_FUNCTIONS.join(', ')})`);
+      throw new ModelError(field, `expression ${valueText(expr)} calls "${name}", which a model may not use (allowed: ${EXPRESSION_FUNCTIONS.join(', ')})`);
     }
   }
   for (const child of n.args ?? []) checkNode(child, depth + 1, expr, field, parameters);
@@ -127,7 +127,7 @@ function compileScalar(expr: number | string, field: string, parameters: Readonl
     if (!Number.isFinite(expr)) throw new ModelError(field, `amplitude must be finite. Value: ${expr}`);
     return expr;
   }
-  if (typeof expr !== 'string') throw new ModelError(field, `expected a number or an expression string. Value: ${show(expr)}`);
+  if (typeof expr !== 'string') throw new ModelError(field, `expected a number or an expression string. Value: ${valueText(expr)}`);
   if (expr.length > MAX_EXPRESSION_LENGTH) {
     throw new ModelError(field, `expression is ${expr.length} characters long; the limit is ${MAX_EXPRESSION_LENGTH} (split the term, or give the value as a parameter)`);
   }
@@ -135,7 +135,7 @@ function compileScalar(expr: number | string, field: string, parameters: Readonl
   try {
     node = parseExpression(expr);
   } catch (err) {
-    throw new ModelError(field, `cannot parse expression ${show(expr)}: ${(err as Error).message}`);
+    throw new ModelError(field, `cannot parse expression ${valueText(expr)}: ${(err as Error).message}`);
   }
   checkNode(node, 0, expr, field, parameters);
   return node.compile();
@@ -154,7 +154,7 @@ function evaluateScalar(compiled: EvalFunction | number, scope: Record<string, n
     const c = value as { re: number; im: number };
     return [c.re, c.im];
   }
-  throw new ModelError(field, `expression must give a number. Value: ${show(value)}`);
+  throw new ModelError(field, `expression must give a number. Value: ${valueText(value)}`);
 }
 
 /** Compile an amplitude once; the evaluator throws a ModelError naming `field` on NaN or Infinity. */
@@ -165,7 +165,7 @@ export function compileAmplitude(amplitude: Amplitude, field: string, parameters
   } else if (amplitude !== null && typeof amplitude === 'object' && 're' in amplitude && 'im' in amplitude) {
     parts = [compileScalar(amplitude.re, `${field}.re`, parameters), compileScalar(amplitude.im, `${field}.im`, parameters)];
   } else {
-    throw new ModelError(field, `expected a number, {re, im} or an expression string. Value: ${show(amplitude)}`);
+    throw new ModelError(field, `expected a number, {re, im} or an expression string. Value: ${valueText(amplitude)}`);
   }
   const [reExpr, imExpr] = parts;
   if (typeof reExpr === 'number' && typeof imExpr === 'number') {
@@ -180,7 +180,7 @@ export function compileAmplitude(amplitude: Amplitude, field: string, parameters
     const re = ar - bi;
     const im = ai + br;
     if (!Number.isFinite(re) || !Number.isFinite(im)) {
-      throw new ModelError(field, `amplitude ${show(amplitude)} is not finite for parameters ${show(values)}: (${re}, ${im})`);
+      throw new ModelError(field, `amplitude ${valueText(amplitude)} is not finite for parameters ${valueText(values)}: (${re}, ${im})`);
     }
     out[offset] = re;
     out[offset + 1] = im;

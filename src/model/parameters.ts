@@ -3,7 +3,7 @@
  * request's `params`, a model's defaults, a widget's slider box, a cell's `setValues`, a swept
  * axis. Light (no mathjs), so a page's main thread checks typed values with it too.
  */
-import { ModelError, show } from './errors.js';
+import { ModelError, valueText } from './errors.js';
 import { didYouMean } from './field-names.js';
 
 export interface ParameterBounds {
@@ -12,7 +12,7 @@ export interface ParameterBounds {
 
 /** What is wrong with `value` as a value of a parameter declared as `decl`, or null. */
 export function parameterValueProblem(value: unknown, decl: ParameterBounds): string | null {
-  if (typeof value !== 'number' || !Number.isFinite(value)) return `must be a finite number. Value: ${show(value)}`;
+  if (typeof value !== 'number' || !Number.isFinite(value)) return `must be a finite number. Value: ${valueText(value)}`;
   if (decl.range !== undefined && (value < decl.range[0] || value > decl.range[1])) {
     return `outside its declared range [${decl.range[0]}, ${decl.range[1]}]. Value: ${value}`;
   }
@@ -25,7 +25,7 @@ export function checkParameterValues(
   values: unknown,
   field: string,
 ): Record<string, number> {
-  if (values === null || typeof values !== 'object' || Array.isArray(values)) throw new ModelError(field, `expected an object of parameter values. Value: ${show(values)}`);
+  if (values === null || typeof values !== 'object' || Array.isArray(values)) throw new ModelError(field, `expected an object of parameter values. Value: ${valueText(values)}`);
   const checked: Record<string, number> = {};
   for (const [name, value] of Object.entries(values)) {
     // Own properties only: "toString" or "constructor" must not find Object.prototype's.

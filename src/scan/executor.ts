@@ -5,7 +5,7 @@
  * identical numbers because every one of them calls the same point function.
  */
 import { InterruptedError, checkInterrupt } from '../interrupt.js';
-import { show } from '../model/errors.js';
+import { valueText } from '../model/errors.js';
 import type { ParameterValues } from '../model/spec.js';
 import type { PointFunction, PointOutcome, PointTarget } from './sweep.js';
 
@@ -43,7 +43,7 @@ export class PointError extends Error {
   readonly params: ParameterValues;
   constructor(params: ParameterValues, cause: unknown) {
     const reason = cause instanceof Error ? `${cause.name}: ${cause.message}` : String(cause);
-    super(`sweep point ${show(params)}: ${reason}`, { cause });
+    super(`sweep point ${valueText(params)}: ${reason}`, { cause });
     this.name = 'PointError';
     this.params = params;
   }

@@ -5,7 +5,7 @@
  * either finishes the phase map or writes the plan of the next round. All pure: the file I/O and
  * the Slurm side live in cluster/.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { canonicalJson, digest } from './checksum.js';
 import { PointError, type SweepExecutor } from './executor.js';
 import { pointsToRecords, recordsToPoints, type PointRecord } from './run.js';
@@ -104,30 +104,30 @@ function prefixed<T>(prefix: string, run: () => T): T {
  * grid), and that its points are exactly the round its known points call for. Errors name the field.
  */
 export function validatePlan(plan: unknown): SweepPlan {
-  if (plan === null || typeof plan !== 'object' || Array.isArray(plan)) throw new ModelError('plan', `expected a sweep plan object. Value: ${show(plan)}`);
+  if (plan === null || typeof plan !== 'object' || Array.isArray(plan)) throw new ModelError('plan', `expected a sweep plan object. Value: ${valueText(plan)}`);
   const p = plan as Partial<SweepPlan>;
-  if (p.format !== PLAN_FORMAT) throw new ModelError('format', `expected "${PLAN_FORMAT}". Value: ${show(p.format)}`);
-  if (p.version !== SWEEP_FILE_VERSION) throw new ModelError('version', `this engine reads version ${SWEEP_FILE_VERSION}. Value: ${show(p.version)}`);
+  if (p.format !== PLAN_FORMAT) throw new ModelError('format', `expected "${PLAN_FORMAT}". Value: ${valueText(p.format)}`);
+  if (p.version !== SWEEP_FILE_VERSION) throw new ModelError('version', `this engine reads version ${SWEEP_FILE_VERSION}. Value: ${valueText(p.version)}`);
   const request = prefixed('request', () => validatePhaseMapRequest(p.request));
-  if (p.fingerprint !== requestFingerprint(request)) throw new ModelError('fingerprint', `does not match the request (the plan was edited?). Value: ${show(p.fingerprint)}`);
-  if (!Array.isArray(p.known)) throw new ModelError('known', `expected an array of point records. Value: ${show(p.known)}`);
+  if (p.fingerprint !== requestFingerprint(request)) throw new ModelError('fingerprint', `does not match the request (the plan was edited?). Value: ${valueText(p.fingerprint)}`);
+  if (!Array.isArray(p.known)) throw new ModelError('known', `expected an array of point records. Value: ${valueText(p.known)}`);
   const known = recordsToPoints(p.known, request.axes.length, 'known');
   const step = advanceSweep(request, known);
   if (step.done) throw new ModelError('points', 'the known points already finish this sweep: there is nothing to compute');
   if (p.round !== step.round || p.stage !== step.stage) {
-    throw new ModelError('round', `the known points call for ${step.stage} round ${step.round}. Value: ${show(p.round)} (${show(p.stage)})`);
+    throw new ModelError('round', `the known points call for ${step.stage} round ${step.round}. Value: ${valueText(p.round)} (${valueText(p.stage)})`);
   }
   if (!Array.isArray(p.points) || canonicalJson(p.points) !== canonicalJson(step.pending)) {
-    throw new ModelError('points', `expected the ${step.pending.length} points of ${step.stage} round ${step.round}. Value: ${show(p.points)}`);
+    throw new ModelError('points', `expected the ${step.pending.length} points of ${step.stage} round ${step.round}. Value: ${valueText(p.points)}`);
   }
   return p as SweepPlan;
 }
 
 /** Check a shard index and count (from arguments or the scheduler's environment), naming the field. */
 export function checkShard(shard: unknown, shards: unknown): { shard: number; shards: number } {
-  if (typeof shards !== 'number' || !Number.isInteger(shards) || shards < 1) throw new ModelError('shards', `expected a whole number >= 1. Value: ${show(shards)}`);
+  if (typeof shards !== 'number' || !Number.isInteger(shards) || shards < 1) throw new ModelError('shards', `expected a whole number >= 1. Value: ${valueText(shards)}`);
   if (typeof shard !== 'number' || !Number.isInteger(shard) || shard < 0 || shard >= shards) {
-    throw new ModelError('shard', `expected a shard index from 0 to ${shards - 1}. Value: ${show(shard)}`);
+    throw new ModelError('shard', `expected a shard index from 0 to ${shards - 1}. Value: ${valueText(shard)}`);
   }
   return { shard, shards };
 }
@@ -172,13 +172,13 @@ export function readShardOutput(
 ): { ok: true; known: Map<string, PointOutcome>; failures: ShardFailure[]; complete: boolean } | { ok: false; problem: string } {
   if (output === null || typeof output !== 'object') return { ok: false, problem: `not a shard output object` };
   const o = output as Partial<ShardOutput>;
-  if (o.format !== SHARD_FORMAT || o.version !== SWEEP_FILE_VERSION) return { ok: false, problem: `format/version ${show(o.format)}/${show(o.version)}, expected "${SHARD_FORMAT}"/${SWEEP_FILE_VERSION}` };
-  if (o.plan !== planId(plan)) return { ok: false, problem: `computed for another plan (${show(o.plan)}, this plan is ${planId(plan)})` };
-  if (o.shard !== shard || o.shards !== shards) return { ok: false, problem: `is shard ${show(o.shard)} of ${show(o.shards)}, expected ${shard} of ${shards}` };
+  if (o.format !== SHARD_FORMAT || o.version !== SWEEP_FILE_VERSION) return { ok: false, problem: `format/version ${valueText(o.format)}/${valueText(o.version)}, expected "${SHARD_FORMAT}"/${SWEEP_FILE_VERSION}` };
+  if (o.plan !== planId(plan)) return { ok: false, problem: `computed for another plan (${valueText(o.plan)}, this plan is ${planId(plan)})` };
+  if (o.shard !== shard || o.shards !== shards) return { ok: false, problem: `is shard ${valueText(o.shard)} of ${valueText(o.shards)}, expected ${shard} of ${shards}` };
   if (!Array.isArray(o.records) || !Array.isArray(o.failures)) return { ok: false, problem: 'records or failures missing' };
-  if (o.count !== o.records.length + o.failures.length) return { ok: false, problem: `record count ${show(o.count)} but ${o.records.length + o.failures.length} records present (truncated or edited)` };
+  if (o.count !== o.records.length + o.failures.length) return { ok: false, problem: `record count ${valueText(o.count)} but ${o.records.length + o.failures.length} records present (truncated or edited)` };
   const { checksum, ...body } = o as ShardOutput;
-  if (checksum !== checksumOf(body)) return { ok: false, problem: `checksum mismatch (file ${show(checksum)}, content ${checksumOf(body)}): corrupt or edited` };
+  if (checksum !== checksumOf(body)) return { ok: false, problem: `checksum mismatch (file ${valueText(checksum)}, content ${checksumOf(body)}): corrupt or edited` };
   let known: Map<string, PointOutcome>;
   try {
     known = recordsToPoints(o.records, plan.request.axes.length, 'records');
@@ -187,7 +187,7 @@ export function readShardOutput(
   }
   const assigned = new Set(shardPoints(plan, shard, shards).map(pointKey));
   for (const key of known.keys()) if (!assigned.has(key)) return { ok: false, problem: `holds point (${key}), which is not assigned to this shard` };
-  for (const f of o.failures) if (!assigned.has(pointKey(f.coords))) return { ok: false, problem: `reports a failure at (${show(f.coords)}), which is not assigned to this shard` };
+  for (const f of o.failures) if (!assigned.has(pointKey(f.coords))) return { ok: false, problem: `reports a failure at (${valueText(f.coords)}), which is not assigned to this shard` };
   return { ok: true, known, failures: o.failures, complete: o.complete === true && known.size + o.failures.length === assigned.size };
 }
 

@@ -6,7 +6,7 @@
  * `onCheckpoint`.
  */
 import { InterruptedError } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { InProcessExecutor, checkStopped, PointError, type PointFunctionFactory, type StopSignal, type SweepExecutor } from './executor.js';
 import {
   advanceSweep,
@@ -63,15 +63,15 @@ export interface RunPhaseMapOptions {
 
 /** Read the points of a checkpoint, refusing one that belongs to another request or is malformed. */
 export function checkpointPoints(checkpoint: unknown, request: PhaseMapRequest): Map<string, PointOutcome> {
-  if (checkpoint === null || typeof checkpoint !== 'object') throw new ModelError('checkpoint', `expected a checkpoint object. Value: ${show(checkpoint)}`);
+  if (checkpoint === null || typeof checkpoint !== 'object') throw new ModelError('checkpoint', `expected a checkpoint object. Value: ${valueText(checkpoint)}`);
   const c = checkpoint as Partial<SweepCheckpoint>;
-  if (c.format !== CHECKPOINT_FORMAT) throw new ModelError('checkpoint.format', `expected "${CHECKPOINT_FORMAT}". Value: ${show(c.format)}`);
-  if (c.version !== CHECKPOINT_VERSION) throw new ModelError('checkpoint.version', `this engine reads version ${CHECKPOINT_VERSION}. Value: ${show(c.version)}`);
+  if (c.format !== CHECKPOINT_FORMAT) throw new ModelError('checkpoint.format', `expected "${CHECKPOINT_FORMAT}". Value: ${valueText(c.format)}`);
+  if (c.version !== CHECKPOINT_VERSION) throw new ModelError('checkpoint.version', `this engine reads version ${CHECKPOINT_VERSION}. Value: ${valueText(c.version)}`);
   const expected = requestFingerprint(request);
   if (c.fingerprint !== expected) {
-    throw new ModelError('checkpoint.fingerprint', `the checkpoint belongs to another sweep (${show(c.fingerprint)}; this request is ${expected})`);
+    throw new ModelError('checkpoint.fingerprint', `the checkpoint belongs to another sweep (${valueText(c.fingerprint)}; this request is ${expected})`);
   }
-  if (!Array.isArray(c.points)) throw new ModelError('checkpoint.points', `expected an array. Value: ${show(c.points)}`);
+  if (!Array.isArray(c.points)) throw new ModelError('checkpoint.points', `expected an array. Value: ${valueText(c.points)}`);
   return recordsToPoints(c.points, request.axes.length, 'checkpoint.points');
 }
 
@@ -87,7 +87,7 @@ export function recordsToPoints(records: readonly unknown[], dims: number, field
       rec[0].every((x: unknown) => typeof x === 'number' && Number.isFinite(x)) &&
       (rec[1] === null || typeof rec[1] === 'number') &&
       (typeof rec[2] === 'number' || rec[2] === null);
-    if (!ok) throw new ModelError(`${field}[${n}]`, `expected [[${dims} coordinates], value or null, gap]. Value: ${show(rec)}`);
+    if (!ok) throw new ModelError(`${field}[${n}]`, `expected [[${dims} coordinates], value or null, gap]. Value: ${valueText(rec)}`);
     const [coords, value, gap, flag] = rec as [number[], number | null, number | null, 1 | undefined];
     known.set(pointKey(coords), flag === 1 ? { value, gap: gap ?? Number.NaN, doubtful: true } : { value, gap: gap ?? Number.NaN });
   });

@@ -8,7 +8,7 @@
  * executors compute the pending points, a checkpoint is just the known points, resuming is replaying
  * the schedule with them, and a cluster round is one batch of pending points split into shards.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { validateModel } from '../model/validate.js';
 import { canonicalJson, digest } from './checksum.js';
@@ -166,9 +166,9 @@ export function pointTarget(request: PhaseMapRequest): PointTarget {
  * its value. Returns the request (typed).
  */
 export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
-  if (request === null || typeof request !== 'object') throw new ModelError('request', `expected a phase-map request object. Value: ${show(request)}`);
+  if (request === null || typeof request !== 'object') throw new ModelError('request', `expected a phase-map request object. Value: ${valueText(request)}`);
   const r = request as Partial<PhaseMapRequest>;
-  if (r.kind !== 'phase-map') throw new ModelError('kind', `expected "phase-map". Value: ${show(r.kind)}`);
+  if (r.kind !== 'phase-map') throw new ModelError('kind', `expected "phase-map". Value: ${valueText(r.kind)}`);
   let model: ModelSpec;
   try {
     model = validateModel(r.model);
@@ -177,19 +177,19 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     throw err;
   }
   if (!SWEEP_QUANTITIES.includes(r.invariant as SweepQuantity)) {
-    throw new ModelError('invariant', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${show(r.invariant)}`);
+    throw new ModelError('invariant', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${valueText(r.invariant)}`);
   }
   if (r.params !== undefined) checkParameterValues(model, r.params, 'params');
   if (!Array.isArray(r.axes) || r.axes.length < 1 || r.axes.length > 2) {
-    throw new ModelError('axes', `expected one or two swept parameters. Value: ${show(r.axes)}`);
+    throw new ModelError('axes', `expected one or two swept parameters. Value: ${valueText(r.axes)}`);
   }
   const seen = new Set<string>();
   r.axes.forEach((a, i) => {
     const field = `axes[${i}]`;
-    if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${show(a)}`);
+    if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${valueText(a)}`);
     const spec = typeof a.param === 'string' && Object.hasOwn(model.parameters, a.param) ? model.parameters[a.param] : undefined;
     if (typeof a.param !== 'string' || spec === undefined) {
-      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${show(a.param)} (it has: ${Object.keys(model.parameters).join(', ') || 'none'})`);
+      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} (it has: ${Object.keys(model.parameters).join(', ') || 'none'})`);
     }
     if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);
     seen.add(a.param);
@@ -198,18 +198,18 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
       if (problem !== null) throw new ModelError(`${field}.${end}`, `${a.param}: ${problem}`);
     }
     if (typeof a.count !== 'number' || !Number.isInteger(a.count) || a.count < 1) {
-      throw new ModelError(`${field}.count`, `the grid is empty: expected a whole number of points >= 1. Value: ${show(a.count)}`);
+      throw new ModelError(`${field}.count`, `the grid is empty: expected a whole number of points >= 1. Value: ${valueText(a.count)}`);
     }
     if (a.count > 1 && a.from === a.to) throw new ModelError(`${field}.to`, `equals from (${a.from}) with count ${a.count}: the points would coincide`);
   });
   if (r.refine !== undefined) {
-    if (r.refine === null || typeof r.refine !== 'object') throw new ModelError('refine', `expected {tolerance}. Value: ${show(r.refine)}`);
+    if (r.refine === null || typeof r.refine !== 'object') throw new ModelError('refine', `expected {tolerance}. Value: ${valueText(r.refine)}`);
     const { tolerance, maxRounds } = r.refine;
     if (typeof tolerance !== 'number' || !(tolerance > 0) || !Number.isFinite(tolerance)) {
-      throw new ModelError('refine.tolerance', `expected a positive number. Value: ${show(tolerance)}`);
+      throw new ModelError('refine.tolerance', `expected a positive number. Value: ${valueText(tolerance)}`);
     }
     if (maxRounds !== undefined && (!Number.isInteger(maxRounds) || maxRounds < 0)) {
-      throw new ModelError('refine.maxRounds', `expected a whole number >= 0. Value: ${show(maxRounds)}`);
+      throw new ModelError('refine.maxRounds', `expected a whole number >= 0. Value: ${valueText(maxRounds)}`);
     }
     if (r.invariant === 'gap') {
       throw new ModelError('refine', 'boundaries are refined between different values of a quantised invariant; a gap map has none (drop refine, or sweep an invariant)');
@@ -333,10 +333,10 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
   const doubtful = outcomes.findIndex((o) => o.doubtful === true);
   if (doubtful >= 0) {
     const count = outcomes.filter((o) => o.doubtful === true).length;
-    warnings.unshift(`${count} of ${outcomes.length} grid points were flagged by the ${request.invariant} diagnostic (k-grid too coarse or not converged), first at ${show(sweptParams(axes, gridCoords[doubtful]))}; use a finer grid`);
+    warnings.unshift(`${count} of ${outcomes.length} grid points were flagged by the ${request.invariant} diagnostic (k-grid too coarse or not converged), first at ${valueText(sweptParams(axes, gridCoords[doubtful]))}; use a finer grid`);
   }
   if (gaplessCount > 0) {
-    warnings.unshift(`${gaplessCount} of ${outcomes.length} grid points are gapless (no invariant there); the smallest gap is ${outcomes[minIndex].gap} at ${show(sweptParams(axes, gridCoords[minIndex]))}`);
+    warnings.unshift(`${gaplessCount} of ${outcomes.length} grid points are gapless (no invariant there); the smallest gap is ${outcomes[minIndex].gap} at ${valueText(sweptParams(axes, gridCoords[minIndex]))}`);
   }
   const result: PhaseMapResult = {
     kind: 'phase-map',

@@ -22,7 +22,7 @@
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
 import { BandSampler, groupGap, type BandGroup, type GapProof } from './common.js';
 import { nelderMead } from './gap.js';
@@ -120,7 +120,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   const maxLines = options.maxLines ?? 4096;
   const maxSamples = options.maxSamples ?? Math.round(Math.min(400_000, Math.max(4 * (start + 1) ** d, 4e10 / nb ** 3)));
   if (options.tolerance !== undefined && !(options.tolerance >= 0 && Number.isFinite(options.tolerance))) {
-    throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${show(options.tolerance)}`);
+    throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${valueText(options.tolerance)}`);
   }
   const bands = options.solve === undefined ? new BandSampler(h) : null;
   const solve = options.solve ?? ((kk: Float64Array) => bands!.solve(kk));

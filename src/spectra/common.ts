@@ -4,7 +4,7 @@
  */
 import { BlochHamiltonian, type BlochConvention } from '../bloch/hamiltonian.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 
 /** A model description, or one already compiled (re-used as is; `params`, if given, are applied to it). */
@@ -73,7 +73,7 @@ export function compileSource(source: SpectrumSource, options: SourceOptions = {
   if (source instanceof BlochHamiltonian) {
     // A compiled model's convention is fixed when it is compiled: a different one asked for is an error, not ignored.
     if (options.convention !== undefined && options.convention !== source.convention) {
-      throw new ModelError('convention', `the model was compiled in the "${source.convention}" convention; compile it with {convention: "${options.convention}"} for that one. Value: ${show(options.convention)}`);
+      throw new ModelError('convention', `the model was compiled in the "${source.convention}" convention; compile it with {convention: "${options.convention}"} for that one. Value: ${valueText(options.convention)}`);
     }
     if (options.params !== undefined) source.setParameters(options.params);
     return source;
@@ -89,18 +89,18 @@ export function bandGroup(selection: BandSelection | undefined, bandCount: numbe
   }
   if (typeof selection === 'number') {
     if (!Number.isInteger(selection) || selection < 1 || selection >= bandCount) {
-      throw new ModelError(field, `expected a whole number of lowest bands from 1 to ${bandCount - 1}. Value: ${show(selection)}`);
+      throw new ModelError(field, `expected a whole number of lowest bands from 1 to ${bandCount - 1}. Value: ${valueText(selection)}`);
     }
     return { lo: 0, hi: selection - 1 };
   }
-  if (!Array.isArray(selection) || selection.length === 0) throw new ModelError(field, `expected a band count or a non-empty array of band indices. Value: ${show(selection)}`);
+  if (!Array.isArray(selection) || selection.length === 0) throw new ModelError(field, `expected a band count or a non-empty array of band indices. Value: ${valueText(selection)}`);
   const sorted = [...selection].sort((a, b) => a - b);
   sorted.forEach((b, i) => {
-    if (!Number.isInteger(b) || b < 0 || b >= bandCount) throw new ModelError(`${field}[${i}]`, `expected a band index from 0 to ${bandCount - 1}. Value: ${show(b)}`);
-    if (i > 0 && b !== sorted[i - 1] + 1) throw new ModelError(field, `band indices must be contiguous. Value: ${show(selection)}`);
+    if (!Number.isInteger(b) || b < 0 || b >= bandCount) throw new ModelError(`${field}[${i}]`, `expected a band index from 0 to ${bandCount - 1}. Value: ${valueText(b)}`);
+    if (i > 0 && b !== sorted[i - 1] + 1) throw new ModelError(field, `band indices must be contiguous. Value: ${valueText(selection)}`);
   });
   const group = { lo: sorted[0], hi: sorted[sorted.length - 1] };
-  if (group.lo === 0 && group.hi === bandCount - 1) throw new ModelError(field, `the group holds every band, so there is no gap to measure. Value: ${show(selection)}`);
+  if (group.lo === 0 && group.hi === bandCount - 1) throw new ModelError(field, `the group holds every band, so there is no gap to measure. Value: ${valueText(selection)}`);
   return group;
 }
 

@@ -11,7 +11,7 @@
  * evaluated at the bin centres.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler, compileSource, type SourceOptions, type SpectrumChecks, type SpectrumSource } from './common.js';
 import { gridEnergies, resolveGrid } from './grid.js';
 
@@ -47,7 +47,7 @@ const DOS_GRID = [1, 2000, 200, 40];
 /** Density of states of a periodic model on a k-grid. */
 export function densityOfStates(source: SpectrumSource, options: DosOptions = {}): DosResult {
   const method = options.method ?? 'linear';
-  if (method !== 'linear' && method !== 'gaussian') throw new ModelError('method', `expected "linear" or "gaussian". Value: ${show(method)}`);
+  if (method !== 'linear' && method !== 'gaussian') throw new ModelError('method', `expected "linear" or "gaussian". Value: ${valueText(method)}`);
   const sampler = new BandSampler(compileSource(source, options));
   const nb = sampler.bandCount;
   const dim = sampler.dim;
@@ -58,11 +58,11 @@ export function densityOfStates(source: SpectrumSource, options: DosOptions = {}
   for (const e of energies) { lo = Math.min(lo, e); hi = Math.max(hi, e); }
   const span = Math.max(hi - lo, 1e-9 * Math.max(1, Math.abs(hi)));
   const width = method === 'gaussian' ? options.width ?? 0.02 * span : null;
-  if (width !== null && !(width > 0 && Number.isFinite(width))) throw new ModelError('width', `expected a positive number. Value: ${show(width)}`);
+  if (width !== null && !(width > 0 && Number.isFinite(width))) throw new ModelError('width', `expected a positive number. Value: ${valueText(width)}`);
   const pad = width !== null ? Math.max(0.05 * span, 5 * width) : 0.05 * span;
   const bins = options.energies ?? { from: lo - pad, to: hi + pad, count: 400 };
-  if (!(Number.isFinite(bins.from) && Number.isFinite(bins.to) && bins.from < bins.to)) throw new ModelError('energies', `expected finite from < to. Value: ${show(bins)}`);
-  if (!Number.isInteger(bins.count) || bins.count < 1 || bins.count > 1_000_000) throw new ModelError('energies.count', `expected a whole number from 1 to 1000000. Value: ${show(bins.count)}`);
+  if (!(Number.isFinite(bins.from) && Number.isFinite(bins.to) && bins.from < bins.to)) throw new ModelError('energies', `expected finite from < to. Value: ${valueText(bins)}`);
+  if (!Number.isInteger(bins.count) || bins.count < 1 || bins.count > 1_000_000) throw new ModelError('energies.count', `expected a whole number from 1 to 1000000. Value: ${valueText(bins.count)}`);
   const binWidth = (bins.to - bins.from) / bins.count;
   const energy = new Float64Array(bins.count);
   for (let j = 0; j < bins.count; j++) energy[j] = bins.from + (j + 0.5) * binWidth;

@@ -8,7 +8,7 @@
  * (the cone |d(k)| is not differentiable at its tip, its square is).
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler, bandGroup, compileSource, groupGap, type BandGroup, type BandSelection, type KPoint, type SourceOptions, type SpectrumChecks, type SpectrumSource } from './common.js';
 import { gridEnergies, gridPoint, resolveGrid } from './grid.js';
 import { kPointFromReduced, reciprocalVectors } from './lattice.js';
@@ -63,7 +63,7 @@ export interface GapClosingResult {
 
 function tolerance(options: GapOptions): number {
   const tol = options.tolerance ?? 1e-6;
-  if (typeof tol !== 'number' || !(tol > 0) || !Number.isFinite(tol)) throw new ModelError('tolerance', `expected a positive number. Value: ${show(tol)}`);
+  if (typeof tol !== 'number' || !(tol > 0) || !Number.isFinite(tol)) throw new ModelError('tolerance', `expected a positive number. Value: ${valueText(tol)}`);
   return tol;
 }
 
@@ -145,7 +145,7 @@ function wrap(x: number): number {
 export function findGapClosings(source: SpectrumSource, options: GapClosingOptions = {}): GapClosingResult {
   const tol = tolerance(options);
   const maxCandidates = options.maxCandidates ?? 8;
-  if (!Number.isInteger(maxCandidates) || maxCandidates < 1) throw new ModelError('maxCandidates', `expected a positive whole number. Value: ${show(maxCandidates)}`);
+  if (!Number.isInteger(maxCandidates) || maxCandidates < 1) throw new ModelError('maxCandidates', `expected a positive whole number. Value: ${valueText(maxCandidates)}`);
   const { sampler, group, grid, gap } = gapMap(source, options);
   const nb = sampler.bandCount;
   const d = grid.length;

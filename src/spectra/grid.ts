@@ -4,7 +4,7 @@
  * the last direction fastest.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { BandSampler } from './common.js';
 
 const DEFAULT_GRID = [1, 256, 64, 24];
@@ -13,9 +13,9 @@ const DEFAULT_GRID = [1, 256, 64, 24];
 export function resolveGrid(grid: number | number[] | undefined, dim: number, field = 'grid', defaults = DEFAULT_GRID): number[] {
   if (dim < 1) throw new ModelError('periodic', `a k-grid needs at least one periodic direction. Value: ${dim}`);
   const counts = grid === undefined ? new Array<number>(dim).fill(defaults[dim]) : typeof grid === 'number' ? new Array<number>(dim).fill(grid) : grid;
-  if (!Array.isArray(counts) || counts.length !== dim) throw new ModelError(field, `expected a number or ${dim} numbers. Value: ${show(grid)}`);
+  if (!Array.isArray(counts) || counts.length !== dim) throw new ModelError(field, `expected a number or ${dim} numbers. Value: ${valueText(grid)}`);
   counts.forEach((n, i) => {
-    if (!Number.isInteger(n) || n < 2 || n > 1_000_000) throw new ModelError(dim === 1 && typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 2 to 1000000. Value: ${show(n)}`);
+    if (!Number.isInteger(n) || n < 2 || n > 1_000_000) throw new ModelError(dim === 1 && typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 2 to 1000000. Value: ${valueText(n)}`);
   });
   return [...counts];
 }

@@ -6,7 +6,7 @@
  * k_i = 2 pi f_i. Fractions depend only on the metric of the lattice, not on its orientation, so
  * the points below are right however the lattice is rotated.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
 import type { KPoint } from './common.js';
 
@@ -64,7 +64,7 @@ export function highSymmetryPoints(model: Pick<ModelSpec, 'vectors' | 'periodic'
   const cos = (i: number, j: number) => dot(a[i], a[j]) / (len[i] * len[j]);
   const same = (x: number, y: number) => Math.abs(x - y) <= TOL * Math.max(x, y);
   const G = new Array<number>(p).fill(0);
-  if (p === 0) throw new ModelError('periodic', `a model with no periodic direction has no Brillouin zone. Value: ${show(p)}`);
+  if (p === 0) throw new ModelError('periodic', `a model with no periodic direction has no Brillouin zone. Value: ${valueText(p)}`);
   if (p === 1) return { family: 'chain', points: { 'Γ': [0], X: [0.5] }, path: ['X', 'Γ', 'X'] };
   if (p === 2) {
     const c = cos(0, 1);
@@ -112,7 +112,7 @@ function invert(m: number[][], field: string): number[][] {
     let pivot = col;
     for (let r = col + 1; r < n; r++) if (Math.abs(a[r][col]) > Math.abs(a[pivot][col])) pivot = r;
     if (!(Math.abs(a[pivot][col]) > 1e-14 * scale)) {
-      throw new ModelError(field, `periodic lattice vectors are linearly dependent. Value: ${show(m)}`);
+      throw new ModelError(field, `periodic lattice vectors are linearly dependent. Value: ${valueText(m)}`);
     }
     [a[col], a[pivot]] = [a[pivot], a[col]];
     const d = a[col][col];

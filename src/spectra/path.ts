@@ -6,7 +6,7 @@
  * of the model's `vectors`, so segments of different true length get their true share of the axis.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
 import { highSymmetryPoints, reciprocalVectors } from './lattice.js';
 
@@ -55,7 +55,7 @@ function resolvePath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, spec: PathS
     named ??= highSymmetryPoints(model).points;
     const key = label === 'G' || label === 'Gamma' ? 'Γ' : label;
     const k = named[key];
-    if (k === undefined) throw new ModelError(field, `unknown point ${show(label)} for this lattice; known: ${Object.keys(named).join(', ')} (or give {label, k})`);
+    if (k === undefined) throw new ModelError(field, `unknown point ${valueText(label)} for this lattice; known: ${Object.keys(named).join(', ')} (or give {label, k})`);
     return { label: key, k };
   };
   const items: (string | PathPoint)[] = spec === undefined
@@ -63,14 +63,14 @@ function resolvePath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, spec: PathS
     : typeof spec === 'string'
       ? spec.replace(/\|/g, ' | ').split(/[\s,\-–]+/).filter((s) => s.length > 0)
       : spec;
-  if (!Array.isArray(items)) throw new ModelError('path', `expected a string of point labels or an array of points. Value: ${show(spec)}`);
+  if (!Array.isArray(items)) throw new ModelError('path', `expected a string of point labels or an array of points. Value: ${valueText(spec)}`);
   return items.map((item, i) => {
     const field = `path[${i}]`;
     if (item === '|') return '|';
     if (typeof item === 'string') return lookup(item, field);
-    if (item === null || typeof item !== 'object' || typeof item.label !== 'string') throw new ModelError(field, `expected a label or {label, k}. Value: ${show(item)}`);
+    if (item === null || typeof item !== 'object' || typeof item.label !== 'string') throw new ModelError(field, `expected a label or {label, k}. Value: ${valueText(item)}`);
     if (!Array.isArray(item.k) || item.k.length !== dim || !item.k.every((x) => typeof x === 'number' && Number.isFinite(x))) {
-      throw new ModelError(`${field}.k`, `expected ${dim} finite numbers (units of the reciprocal lattice vectors). Value: ${show(item.k)}`);
+      throw new ModelError(`${field}.k`, `expected ${dim} finite numbers (units of the reciprocal lattice vectors). Value: ${valueText(item.k)}`);
     }
     return { label: item.label, k: [...item.k] };
   });
@@ -82,7 +82,7 @@ export function kPath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, options: P
   // A finite system (flake, open chain) has one "k": the empty one.
   if (dim === 0) return { kind: 'k-path', units: 'reciprocal-lattice', dim, count: 1, fractions: new Float64Array(0), distance: new Float64Array(1), labels: [], breaks: [] };
   const per = options.pointsPerSegment ?? 60;
-  if (!Number.isInteger(per) || per < 1 || per > 100000) throw new ModelError('pointsPerSegment', `expected a whole number from 1 to 100000. Value: ${show(per)}`);
+  if (!Number.isInteger(per) || per < 1 || per > 100000) throw new ModelError('pointsPerSegment', `expected a whole number from 1 to 100000. Value: ${valueText(per)}`);
   const items = resolvePath(model, options.path);
   // Pieces: runs of points between jumps; each needs at least two points.
   const pieces: PathPoint[][] = [[]];
@@ -91,7 +91,7 @@ export function kPath(model: Pick<ModelSpec, 'vectors' | 'periodic'>, options: P
     else pieces[pieces.length - 1].push(item);
   }
   pieces.forEach((piece, i) => {
-    if (piece.length < 2) throw new ModelError('path', `each piece between jumps needs at least two points; piece ${i} has ${piece.length}. Value: ${show(options.path)}`);
+    if (piece.length < 2) throw new ModelError('path', `each piece between jumps needs at least two points; piece ${i} has ${piece.length}. Value: ${valueText(options.path)}`);
   });
   const b = reciprocalVectors(model.vectors, dim);
   const count = pieces.reduce((n, piece) => n + (piece.length - 1) * per + 1, 0);

@@ -11,7 +11,7 @@
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { ribbon } from '../model/builders/open.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler, type SourceOptions, type SpectrumChecks, type SpectrumSource } from './common.js';
 import { kPath, type KPath, type PathSpec } from './path.js';
 
@@ -55,7 +55,7 @@ export interface RibbonSpectrumResult {
 
 /** Cut the model open along `direction` and compute its spectrum with edge weights. */
 export function ribbonSpectrum(source: SpectrumSource, options: RibbonSpectrumOptions): RibbonSpectrumResult {
-  if (options === null || typeof options !== 'object') throw new ModelError('options', `expected {direction, width, ...}. Value: ${show(options)}`);
+  if (options === null || typeof options !== 'object') throw new ModelError('options', `expected {direction, width, ...}. Value: ${valueText(options)}`);
   const bulk = source instanceof BlochHamiltonian ? source.spec : source;
   const params = options.params ?? (source instanceof BlochHamiltonian ? source.params : {});
   const { direction, width } = options;
@@ -63,7 +63,7 @@ export function ribbonSpectrum(source: SpectrumSource, options: RibbonSpectrumOp
   const hamiltonian = new BlochHamiltonian(spec, params, { convention: options.convention ?? 'lattice' });
   const edgeLayers = options.edgeLayers ?? Math.max(1, Math.floor(width / 10));
   if (!Number.isInteger(edgeLayers) || edgeLayers < 1 || edgeLayers > width) {
-    throw new ModelError('edgeLayers', `expected a whole number from 1 to the width ${width}. Value: ${show(edgeLayers)}`);
+    throw new ModelError('edgeLayers', `expected a whole number from 1 to the width ${width}. Value: ${valueText(edgeLayers)}`);
   }
   const path = ribbonPath(spec.periodic, spec, options);
   const sampler = new BandSampler(hamiltonian);
@@ -114,7 +114,7 @@ export function ribbonSpectrum(source: SpectrumSource, options: RibbonSpectrumOp
 
 function ribbonPath(periodic: number, spec: Parameters<typeof kPath>[0], options: RibbonSpectrumOptions): KPath {
   const nk = options.nk ?? (periodic >= 2 ? 40 : 201);
-  if (!Number.isInteger(nk) || nk < (periodic === 1 ? 2 : 1) || nk > 100000) throw new ModelError('nk', `expected a whole number from 2 to 100000. Value: ${show(nk)}`);
+  if (!Number.isInteger(nk) || nk < (periodic === 1 ? 2 : 1) || nk > 100000) throw new ModelError('nk', `expected a whole number from 2 to 100000. Value: ${valueText(nk)}`);
   if (periodic === 0) return kPath(spec);
   if (periodic === 1) {
     const edge = [{ label: 'X', k: [-0.5] }, { label: 'Γ', k: [0] }, { label: 'X', k: [0.5] }];

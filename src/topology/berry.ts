@@ -7,7 +7,7 @@
  */
 import { checkInterrupt } from '../interrupt.js';
 import { multiply } from '../linalg/cmatrix.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import {
   bandGroup, compileSource, embeddingFor, formatK, FrameSampler,
   type TopologyChecks, type TopologyOptions, type TopologySource,
@@ -51,10 +51,10 @@ export interface BerryPhaseResult {
 }
 
 function checkLoop(loop: unknown, dim: number): number[][] {
-  if (!Array.isArray(loop) || loop.length < 3) throw new ModelError('loop', `expected at least 3 momenta. Value: ${show(loop)}`);
+  if (!Array.isArray(loop) || loop.length < 3) throw new ModelError('loop', `expected at least 3 momenta. Value: ${valueText(loop)}`);
   loop.forEach((k, i) => {
     if (!Array.isArray(k) || k.length !== dim || !k.every((x) => typeof x === 'number' && Number.isFinite(x))) {
-      throw new ModelError(`loop[${i}]`, `expected ${dim} finite reduced momenta (radians). Value: ${show(k)}`);
+      throw new ModelError(`loop[${i}]`, `expected ${dim} finite reduced momenta (radians). Value: ${valueText(k)}`);
     }
   });
   return loop as number[][];
@@ -62,7 +62,7 @@ function checkLoop(loop: unknown, dim: number): number[][] {
 
 function checkWraps(wraps: unknown, dim: number): number[] {
   if (!Array.isArray(wraps) || wraps.length !== dim || !wraps.every((x) => Number.isInteger(x))) {
-    throw new ModelError('wraps', `expected ${dim} integers. Value: ${show(wraps)}`);
+    throw new ModelError('wraps', `expected ${dim} integers. Value: ${valueText(wraps)}`);
   }
   return wraps as number[];
 }
@@ -134,7 +134,7 @@ export function berryPhase(source: TopologySource, options: BerryPhaseOptions = 
         if (delta < 1e-8 || count >= 8192) break;
       }
     } else {
-      if (!Number.isInteger(requested) || requested < 3 || requested > 1_000_000) throw new ModelError('points', `expected a whole number from 3 to 1000000 or "auto". Value: ${show(requested)}`);
+      if (!Number.isInteger(requested) || requested < 3 || requested > 1_000_000) throw new ModelError('points', `expected a whole number from 3 to 1000000 or "auto". Value: ${valueText(requested)}`);
       count = requested;
       product = zoneLoop(count);
     }

@@ -4,7 +4,7 @@
  * the join of a split diagnostic (parts.ts) builds its checks on a main thread with the very code
  * the unsplit computation uses.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { GapCertificate } from '../spectra/certify.js';
 import type { BandGroup, GapProof, SpectrumChecks } from '../spectra/common.js';
 
@@ -32,7 +32,7 @@ export function formatK(k: ArrayLike<number>): string {
 /** The gap tolerance in force: the explicit one, or 1e-9 times the energy scale seen. */
 export function gapTolerance(explicit: number | undefined, energyScale: number): number {
   if (explicit !== undefined) {
-    if (!(explicit >= 0) || !Number.isFinite(explicit)) throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${show(explicit)}`);
+    if (!(explicit >= 0) || !Number.isFinite(explicit)) throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${valueText(explicit)}`);
     return explicit;
   }
   return 1e-9 * Math.max(energyScale, 1e-300);

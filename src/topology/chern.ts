@@ -7,7 +7,7 @@
  * C = (1/2pi) sum of fluxes; a1 x a2 < 0 flips the sign so C keeps the Cartesian orientation.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import {
   bandGroup, bisectLines, compileSource, embedding, formatK, FRAME_MEMORY, FrameSampler, orientation2D, resolvePlane, uniformLines,
   type Plane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource,
@@ -167,9 +167,9 @@ export function planeFlux(
 function resolveGridOption(grid: ChernOptions['grid'], field = 'grid'): [number, number] | 'auto' {
   if (grid === undefined || grid === 'auto') return 'auto';
   const pair = typeof grid === 'number' ? [grid, grid] : grid;
-  if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points, two numbers, or "auto". Value: ${show(grid)}`);
+  if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points, two numbers, or "auto". Value: ${valueText(grid)}`);
   pair.forEach((x, i) => {
-    if (!Number.isInteger(x) || x < 3 || x > 100_000) throw new ModelError(typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 3 to 100000. Value: ${show(x)}`);
+    if (!Number.isInteger(x) || x < 3 || x > 100_000) throw new ModelError(typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 3 to 100000. Value: ${valueText(x)}`);
   });
   return [pair[0], pair[1]];
 }
@@ -200,7 +200,7 @@ export function chernNumber(source: TopologySource, options: ChernOptions = {}):
   // An automatic sum runs on the gap proof's own lines: the frames solved for the proof are kept.
   const sampler = grid === 'auto' ? new FrameSampler(h, group).remember(FRAME_MEMORY) : new FrameSampler(h, group);
   const maxGrid = options.maxGrid ?? 512;
-  if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${show(maxGrid)}`);
+  if (!Number.isInteger(maxGrid) || maxGrid < AUTO_START) throw new ModelError('maxGrid', `expected a whole number of at least ${AUTO_START}. Value: ${valueText(maxGrid)}`);
   const sign = h.dim === 2 ? orientation2D(h.spec) : 1;
   const planeInfo = h.dim === 2 ? { axes: plane.axes } : { axes: plane.axes, normal: options.plane!.normal, at: options.plane!.at };
   const what = 'the Chern number';

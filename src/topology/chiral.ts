@@ -16,7 +16,7 @@
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { ComplexPfaffian } from '../linalg/pfaffian.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { certifyGap, derivativeBounds } from '../spectra/certify.js';
 import { certificateChecks } from './checks.js';
 import { compileSource, formatK, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
@@ -70,7 +70,7 @@ function findSublattices(h: BlochHamiltonian): boolean[] {
           colour[b] = -colour[a] as 1 | -1;
           stack.push(b);
         } else if (colour[b] === colour[a]) {
-          throw new ModelError('sublattice', `no chiral (sublattice) symmetry: H couples ${show(h.spec.orbitals[a].label)} to ${show(h.spec.orbitals[b].label)} within one sublattice (or has an onsite energy), so the winding number is not defined`);
+          throw new ModelError('sublattice', `no chiral (sublattice) symmetry: H couples ${valueText(h.spec.orbitals[a].label)} to ${valueText(h.spec.orbitals[b].label)} within one sublattice (or has an onsite energy), so the winding number is not defined`);
         }
       }
     }
@@ -87,9 +87,9 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
   const labels = h.spec.orbitals.map((o) => o.label);
   let inA: boolean[];
   if (options.sublattice !== undefined) {
-    if (!Array.isArray(options.sublattice)) throw new ModelError('sublattice', `expected an array of orbital labels. Value: ${show(options.sublattice)}`);
+    if (!Array.isArray(options.sublattice)) throw new ModelError('sublattice', `expected an array of orbital labels. Value: ${valueText(options.sublattice)}`);
     options.sublattice.forEach((l, i) => {
-      if (!labels.includes(l)) throw new ModelError(`sublattice[${i}]`, `unknown orbital ${show(l)}`);
+      if (!labels.includes(l)) throw new ModelError(`sublattice[${i}]`, `unknown orbital ${valueText(l)}`);
     });
     inA = labels.map((l) => options.sublattice!.includes(l));
   } else inA = findSublattices(h);
@@ -145,7 +145,7 @@ export function windingNumber(source: TopologySource, options: WindingOptions = 
   let ks: ArrayLike<number>;
   if (requested === 'auto') ks = cert.positions[0];
   else {
-    if (!Number.isInteger(requested) || requested < 3 || requested > 1 << 22) throw new ModelError('points', `expected a whole number from 3 to ${1 << 22} or "auto". Value: ${show(requested)}`);
+    if (!Number.isInteger(requested) || requested < 3 || requested > 1 << 22) throw new ModelError('points', `expected a whole number from 3 to ${1 << 22} or "auto". Value: ${valueText(requested)}`);
     ks = Float64Array.from({ length: requested + 1 }, (_, j) => -Math.PI + (2 * Math.PI * j) / requested);
   }
   const N = ks.length - 1;

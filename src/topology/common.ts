@@ -5,7 +5,7 @@
  */
 import type { BlochHamiltonian, BlochConvention } from '../bloch/hamiltonian.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { groupGap, type BandGroup, type BandSelection, type SpectrumChecks, type SpectrumSource } from '../spectra/common.js';
 import { certifyGap } from '../spectra/certify.js';
@@ -237,13 +237,13 @@ export interface PlaneSpec {
 
 export function resolvePlane(dim: number, plane: PlaneSpec | undefined, field = 'plane'): Plane {
   if (dim === 2) {
-    if (plane !== undefined) throw new ModelError(field, `a 2D model has one plane, the whole zone; omit "${field}". Value: ${show(plane)}`);
+    if (plane !== undefined) throw new ModelError(field, `a 2D model has one plane, the whole zone; omit "${field}". Value: ${valueText(plane)}`);
     return { axes: [0, 1], origin: [0, 0] };
   }
   if (dim !== 3) throw new ModelError('periodic', `a Brillouin-zone plane needs a 2D or 3D model. Value: ${dim}`);
-  if (plane === undefined || typeof plane !== 'object') throw new ModelError(field, `a 3D model needs {normal: 0|1|2, at: k (radians)}. Value: ${show(plane)}`);
-  if (![0, 1, 2].includes(plane.normal)) throw new ModelError(`${field}.normal`, `expected 0, 1 or 2. Value: ${show(plane.normal)}`);
-  if (typeof plane.at !== 'number' || !Number.isFinite(plane.at)) throw new ModelError(`${field}.at`, `expected a finite momentum in radians. Value: ${show(plane.at)}`);
+  if (plane === undefined || typeof plane !== 'object') throw new ModelError(field, `a 3D model needs {normal: 0|1|2, at: k (radians)}. Value: ${valueText(plane)}`);
+  if (![0, 1, 2].includes(plane.normal)) throw new ModelError(`${field}.normal`, `expected 0, 1 or 2. Value: ${valueText(plane.normal)}`);
+  if (typeof plane.at !== 'number' || !Number.isFinite(plane.at)) throw new ModelError(`${field}.at`, `expected a finite momentum in radians. Value: ${valueText(plane.at)}`);
   const origin = [0, 0, 0];
   origin[plane.normal] = plane.at;
   const axes: [number, number] = [(plane.normal + 1) % 3, (plane.normal + 2) % 3];

@@ -13,7 +13,7 @@
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { adjointTimes, multiply } from '../linalg/cmatrix.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { planeFlux } from './chern.js';
 import { gapTolerance } from './checks.js';
 import {
@@ -126,7 +126,7 @@ function curvaturePart(source: TopologySource, options: CurvatureOptions): Curva
   const plane = resolvePlane(h.dim, options.plane);
   const group = bandGroup(options.bands, h.size);
   const method = options.method ?? 'lattice';
-  if (method !== 'lattice' && method !== 'kubo') throw new ModelError('method', `expected "lattice" or "kubo". Value: ${show(method)}`);
+  if (method !== 'lattice' && method !== 'kubo') throw new ModelError('method', `expected "lattice" or "kubo". Value: ${valueText(method)}`);
   const [n1, n2] = resolvePair(options.grid as [number, number] | number | undefined, [64, 64]);
   gapTolerance(options.gapTolerance, 0); // a bad tolerance fails here, not in the join
   const { index, count, lo, hi } = resolvePart(options.part, n2);

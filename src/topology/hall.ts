@@ -7,7 +7,7 @@
  * with the Kubo curvature of each band; in a gap above a group it equals that group's C.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { chernNumber, type ChernOptions, type ChernResult } from './chern.js';
 import { compileSource, FrameSampler, orientation2D, resolvePlane, type PlaneSpec, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
 import { KuboCurvature } from './curvature.js';
@@ -48,13 +48,13 @@ export function hallConductivity(source: TopologySource, options: HallOptions = 
     return { kind: 'hall', sigma, siemens: sigma === null ? null : sigma * HALL_CONDUCTANCE_QUANTUM, chern, unit: 'e^2/h', checks: chern.checks };
   }
   if (!Array.isArray(options.mu) || options.mu.length === 0 || !options.mu.every((x) => typeof x === 'number' && Number.isFinite(x))) {
-    throw new ModelError('mu', `expected a non-empty array of chemical potentials. Value: ${show(options.mu)}`);
+    throw new ModelError('mu', `expected a non-empty array of chemical potentials. Value: ${valueText(options.mu)}`);
   }
   const plane = resolvePlane(h.dim, options.plane);
   const grid = options.grid === undefined ? 128 : options.grid;
   if (grid === 'auto') throw new ModelError('grid', 'the Fermi-sea integral needs an explicit grid (a metal has no integer to converge to). Value: "auto"');
   const [n1, n2] = typeof grid === 'number' ? [grid, grid] : grid;
-  if (![n1, n2].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000. Value: ${show(grid)}`);
+  if (![n1, n2].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000. Value: ${valueText(grid)}`);
   const nb = h.size;
   // Every band's curvature: the "group" is band 0 (any group works; only the per-band values are used).
   const sampler = new FrameSampler(h, { lo: 0, hi: 0 });

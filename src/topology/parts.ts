@@ -12,7 +12,7 @@
  * This module is light (no model compilation, no mathjs, no linear algebra): a main thread can
  * import it to join parts computed in workers.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { COARSE_LINK, COARSE_PLAQUETTE_PHASE, formatK, gapChecks, gapTolerance, mergeGaps, type GapRecord } from './checks.js';
 import type { SpectrumChecks } from '../spectra/common.js';
 
@@ -197,13 +197,13 @@ export function partBounds(index: number, count: number, rows: number): [number,
 /** A validated part over `rows` rows (default: the whole, part 0 of 1) with its bounds. */
 export function resolvePart(part: PartSpec | undefined, rows: number, field = 'part'): PartSpec & { lo: number; hi: number } {
   if (part === undefined) return { index: 0, count: 1, lo: 0, hi: rows };
-  if (part === null || typeof part !== 'object') throw new ModelError(field, `expected {index, count}. Value: ${show(part)}`);
+  if (part === null || typeof part !== 'object') throw new ModelError(field, `expected {index, count}. Value: ${valueText(part)}`);
   const { index, count } = part;
   if (!Number.isInteger(count) || count < 1 || count > rows) {
-    throw new ModelError(`${field}.count`, `expected a whole number from 1 to ${rows} (the rows to share). Value: ${show(count)}`);
+    throw new ModelError(`${field}.count`, `expected a whole number from 1 to ${rows} (the rows to share). Value: ${valueText(count)}`);
   }
   if (!Number.isInteger(index) || index < 0 || index >= count) {
-    throw new ModelError(`${field}.index`, `expected a whole number from 0 to ${count - 1}. Value: ${show(index)}`);
+    throw new ModelError(`${field}.index`, `expected a whole number from 0 to ${count - 1}. Value: ${valueText(index)}`);
   }
   const [lo, hi] = partBounds(index, count, rows);
   return { index, count, lo, hi };
@@ -219,7 +219,7 @@ export function acrossMomentum(i: number, nAcross: number): number {
   return -Math.PI + (2 * Math.PI * i) / nAcross;
 }
 
-/** A field's value as text, to compare parts and to quote in an error. */
+/** A field's value as text, to compare parts and to valueText in an error. */
 function describe(value: unknown): string {
   return JSON.stringify(value) ?? String(value);
 }
@@ -231,27 +231,27 @@ function describe(value: unknown): string {
 function orderParts<P extends DiagnosticPart>(
   parts: readonly P[], kind: P['kind'], same: readonly (keyof P & string)[], rowsOf: (p: P) => number, span: (p: P) => [number, number],
 ): P[] {
-  if (!Array.isArray(parts) || parts.length === 0) throw new ModelError('parts', `expected a nonempty array of parts. Value: ${show(parts)}`);
+  if (!Array.isArray(parts) || parts.length === 0) throw new ModelError('parts', `expected a nonempty array of parts. Value: ${valueText(parts)}`);
   const first = parts[0];
   parts.forEach((p, i) => {
-    if (p === null || typeof p !== 'object' || p.kind !== kind) throw new ModelError(`parts[${i}].kind`, `expected "${kind}". Value: ${show(p?.kind ?? p)}`);
-    if (p.part === null || typeof p.part !== 'object') throw new ModelError(`parts[${i}].part`, `expected {index, count}. Value: ${show(p.part)}`);
-    if (p.gap === null || typeof p.gap !== 'object' || typeof p.gap.minGap !== 'number') throw new ModelError(`parts[${i}].gap`, `expected a gap record. Value: ${show(p.gap)}`);
+    if (p === null || typeof p !== 'object' || p.kind !== kind) throw new ModelError(`parts[${i}].kind`, `expected "${kind}". Value: ${valueText(p?.kind ?? p)}`);
+    if (p.part === null || typeof p.part !== 'object') throw new ModelError(`parts[${i}].part`, `expected {index, count}. Value: ${valueText(p.part)}`);
+    if (p.gap === null || typeof p.gap !== 'object' || typeof p.gap.minGap !== 'number') throw new ModelError(`parts[${i}].gap`, `expected a gap record. Value: ${valueText(p.gap)}`);
     for (const key of same) {
       if (describe(p[key]) !== describe(first[key])) {
         throw new ModelError(`parts[${i}].${key}`, `differs from parts[0].${key} = ${describe(first[key])}: not parts of one request. Value: ${describe(p[key])}`);
       }
     }
     if (p.part.count !== first.part.count) {
-      throw new ModelError(`parts[${i}].part.count`, `differs from parts[0].part.count = ${show(first.part.count)}: not parts of one split. Value: ${show(p.part.count)}`);
+      throw new ModelError(`parts[${i}].part.count`, `differs from parts[0].part.count = ${valueText(first.part.count)}: not parts of one split. Value: ${valueText(p.part.count)}`);
     }
   });
   const count = first.part.count;
-  if (parts.length !== count) throw new ModelError('parts', `expected ${show(count)} parts (their part.count), got ${parts.length}`);
+  if (parts.length !== count) throw new ModelError('parts', `expected ${valueText(count)} parts (their part.count), got ${parts.length}`);
   const ordered = new Array<P | undefined>(count);
   parts.forEach((p, i) => {
     const index = p.part.index;
-    if (!Number.isInteger(index) || index < 0 || index >= count) throw new ModelError(`parts[${i}].part.index`, `expected a whole number from 0 to ${count - 1}. Value: ${show(index)}`);
+    if (!Number.isInteger(index) || index < 0 || index >= count) throw new ModelError(`parts[${i}].part.index`, `expected a whole number from 0 to ${count - 1}. Value: ${valueText(index)}`);
     if (ordered[index] !== undefined) throw new ModelError(`parts[${i}].part.index`, `part ${index} of ${count} appears twice`);
     ordered[index] = p;
     const want = partBounds(index, count, rowsOf(p));
@@ -263,12 +263,12 @@ function orderParts<P extends DiagnosticPart>(
 
 function expectLength(array: unknown, length: number, field: string): void {
   if (!(array instanceof Float64Array) || array.length !== length) {
-    throw new ModelError(field, `expected a Float64Array of length ${length}. Value: ${array instanceof Float64Array ? `length ${array.length}` : show(array)}`);
+    throw new ModelError(field, `expected a Float64Array of length ${length}. Value: ${array instanceof Float64Array ? `length ${array.length}` : valueText(array)}`);
   }
 }
 
 function expectNumber(value: unknown, field: string): number {
-  if (typeof value !== 'number' || Number.isNaN(value)) throw new ModelError(field, `expected a number. Value: ${show(value)}`);
+  if (typeof value !== 'number' || Number.isNaN(value)) throw new ModelError(field, `expected a number. Value: ${valueText(value)}`);
   return value;
 }
 
@@ -303,7 +303,7 @@ export function joinCurvatureParts(parts: readonly CurvaturePart[]): CurvatureRe
     if (withBands) {
       for (let j = 0; j < m; j++) {
         const band = mergeGaps(ordered.map((p, i) => {
-          if (p.bandGaps?.length !== m) throw new ModelError(`parts[${i}].bandGaps`, `expected one gap record per band (${m}). Value: ${show(p.bandGaps)}`);
+          if (p.bandGaps?.length !== m) throw new ModelError(`parts[${i}].bandGaps`, `expected one gap record per band (${m}). Value: ${valueText(p.bandGaps)}`);
           return p.bandGaps[j];
         }));
         const c = gapChecks(band, { lo: lo + j, hi: lo + j }, [n1, n2], tolerance, `the curvature of band ${lo + j}`);
@@ -418,9 +418,9 @@ export function joinParts(parts: readonly CurvaturePart[]): CurvatureResult;
 export function joinParts(parts: readonly WannierFlowPart[]): WannierFlowResult;
 export function joinParts(parts: readonly DiagnosticPart[]): CurvatureResult | WannierFlowResult;
 export function joinParts(parts: readonly DiagnosticPart[]): CurvatureResult | WannierFlowResult {
-  if (!Array.isArray(parts) || parts.length === 0) throw new ModelError('parts', `expected a nonempty array of parts. Value: ${show(parts)}`);
+  if (!Array.isArray(parts) || parts.length === 0) throw new ModelError('parts', `expected a nonempty array of parts. Value: ${valueText(parts)}`);
   const kind = (parts[0] as { kind?: unknown } | null)?.kind;
   if (kind === 'curvature-part') return joinCurvatureParts(parts as readonly CurvaturePart[]);
   if (kind === 'wannier-flow-part') return joinWannierFlowParts(parts as readonly WannierFlowPart[]);
-  throw new ModelError('parts[0].kind', `expected "curvature-part" or "wannier-flow-part". Value: ${show(kind)}`);
+  throw new ModelError('parts[0].kind', `expected "curvature-part" or "wannier-flow-part". Value: ${valueText(kind)}`);
 }

@@ -7,7 +7,7 @@
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { certifyGap, type CertifyRegion } from '../spectra/certify.js';
 import { findGapClosings } from '../spectra/gap.js';
 import { bandGroup, compileSource, FrameSampler, orientation3D, type BandGroup, type TopologyChecks, type TopologyOptions, type TopologySource } from './common.js';
@@ -130,8 +130,8 @@ export function weylPoints(source: TopologySource, options: WeylOptions = {}): W
   if (h.dim !== 3) throw new ModelError('periodic', `Weyl points are located in 3D models. Value: ${h.dim}`);
   const group: BandGroup = bandGroup(options.bands, h.size);
   const [nTheta, nPhi] = options.sphere ?? [24, 48];
-  if (![nTheta, nPhi].every((x) => Number.isInteger(x) && x >= 4 && x <= 4096)) throw new ModelError('sphere', `expected [theta points, phi points], whole numbers from 4 to 4096. Value: ${show(options.sphere)}`);
-  if (options.radius !== undefined && !(options.radius > 0 && options.radius < Math.PI)) throw new ModelError('radius', `expected a radius between 0 and pi (radians). Value: ${show(options.radius)}`);
+  if (![nTheta, nPhi].every((x) => Number.isInteger(x) && x >= 4 && x <= 4096)) throw new ModelError('sphere', `expected [theta points, phi points], whole numbers from 4 to 4096. Value: ${valueText(options.sphere)}`);
+  if (options.radius !== undefined && !(options.radius > 0 && options.radius < Math.PI)) throw new ModelError('radius', `expected a radius between 0 and pi (radians). Value: ${valueText(options.radius)}`);
   const located = findGapClosings(h, {
     bands: options.bands,
     ...(options.grid !== undefined ? { grid: options.grid } : {}),

@@ -8,7 +8,7 @@
  */
 import { checkInterrupt } from '../interrupt.js';
 import { multiply } from '../linalg/cmatrix.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import {
   bandGroup, compileSource, embedding, FrameSampler, orientation2D, resolvePlane, stripProof, uniformLines,
   type Plane, type PlaneSpec, type TopologyOptions, type TopologySource,
@@ -195,9 +195,9 @@ export interface WannierFlowOptions extends TopologyOptions {
 
 export function resolvePair(grid: [number, number] | number | undefined, defaults: [number, number], field = 'grid'): [number, number] {
   const pair = grid === undefined ? defaults : typeof grid === 'number' ? [grid, grid] : grid;
-  if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points or [along, across]. Value: ${show(grid)}`);
+  if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points or [along, across]. Value: ${valueText(grid)}`);
   pair.forEach((x, i) => {
-    if (!Number.isInteger(x) || x < 3 || x > 100_000) throw new ModelError(typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 3 to 100000. Value: ${show(x)}`);
+    if (!Number.isInteger(x) || x < 3 || x > 100_000) throw new ModelError(typeof grid === 'number' ? field : `${field}[${i}]`, `expected a whole number of k-points from 3 to 100000. Value: ${valueText(x)}`);
   });
   return [pair[0], pair[1]];
 }

@@ -13,7 +13,7 @@
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { checkInterrupt } from '../interrupt.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
 import { chernNumber, type ChernOptions, type ChernResult } from './chern.js';
 import { certifyGap, type GapCertificate } from '../spectra/certify.js';
@@ -201,7 +201,7 @@ function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Re
   const planes = h.dim === 2 ? [undefined] : [0, 1, 2].flatMap((normal) => [{ normal, at: 0 }, { normal, at: Math.PI }]);
   const grid = options.grid ?? 'auto';
   const maxGrid = options.maxGrid ?? 512;
-  if (!Number.isInteger(maxGrid) || maxGrid < 16) throw new ModelError('maxGrid', `expected a whole number of at least 16. Value: ${show(maxGrid)}`);
+  if (!Number.isInteger(maxGrid) || maxGrid < 16) throw new ModelError('maxGrid', `expected a whole number of at least 16. Value: ${valueText(maxGrid)}`);
   const results: Z2Plane[] = [];
   const warnings: string[] = [];
   let coarse = false;
@@ -216,7 +216,7 @@ function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Re
     let cert: GapCertificate;
     if (grid !== 'auto') {
       const [nAlong, nHalf] = typeof grid === 'number' ? [grid, Math.max(2, Math.round(grid / 2))] : grid;
-      if (![nAlong, nHalf].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000, or "auto". Value: ${show(grid)}`);
+      if (![nAlong, nHalf].every((x) => Number.isInteger(x) && x >= 3 && x <= 100_000)) throw new ModelError('grid', `expected whole numbers of k-points from 3 to 100000, or "auto". Value: ${valueText(grid)}`);
       cert = certifyGap(h, group, { axes: plane.axes, origin: plane.origin, ranges: [[0, Math.PI], [-Math.PI, Math.PI]] }, { tolerance: options.gapTolerance });
       const sampled = cert.verdict === 'gapped' ? flowCrossings(new FrameSampler(h, group), plane, nAlong, nHalf) : null;
       count = sampled;
@@ -264,16 +264,16 @@ function z2Flow(h: BlochHamiltonian, group: BandGroup, options: Z2Options): Z2Re
 
 /** The inversion operator as an interleaved complex matrix, checked for size. */
 function inversionMatrix(p: MatrixEntry[][], n: number): Float64Array {
-  if (!Array.isArray(p) || p.length !== n) throw new ModelError('inversion', `expected a ${n} x ${n} matrix (one row per orbital). Value: ${show(p)}`);
+  if (!Array.isArray(p) || p.length !== n) throw new ModelError('inversion', `expected a ${n} x ${n} matrix (one row per orbital). Value: ${valueText(p)}`);
   const out = new Float64Array(2 * n * n);
   p.forEach((row, i) => {
-    if (!Array.isArray(row) || row.length !== n) throw new ModelError(`inversion[${i}]`, `expected ${n} entries. Value: ${show(row)}`);
+    if (!Array.isArray(row) || row.length !== n) throw new ModelError(`inversion[${i}]`, `expected ${n} entries. Value: ${valueText(row)}`);
     row.forEach((x, j) => {
       if (typeof x === 'number' && Number.isFinite(x)) out[2 * (i * n + j)] = x;
       else if (x !== null && typeof x === 'object' && Number.isFinite(x.re) && Number.isFinite(x.im)) {
         out[2 * (i * n + j)] = x.re;
         out[2 * (i * n + j) + 1] = x.im;
-      } else throw new ModelError(`inversion[${i}][${j}]`, `expected a number or {re, im}. Value: ${show(x)}`);
+      } else throw new ModelError(`inversion[${i}][${j}]`, `expected a number or {re, im}. Value: ${valueText(x)}`);
     });
   });
   return out;
@@ -441,7 +441,7 @@ export function z2Index(source: TopologySource, options: Z2Options = {}): Z2Resu
   const method = options.method ?? 'flow';
   if (method === 'flow') return z2Flow(h, group, options);
   if (method === 'parity') return z2Parity(h, group, options);
-  throw new ModelError('method', `expected "flow" or "parity". Value: ${show(method)}`);
+  throw new ModelError('method', `expected "flow" or "parity". Value: ${valueText(method)}`);
 }
 
 export interface SpinChernResult {
@@ -474,7 +474,7 @@ export function spinChern(source: TopologySource, options: ChernOptions = {}): S
   const h = compileSource(source, options);
   const spec = h.spec;
   const untagged = spec.orbitals.findIndex((o) => o.spin === undefined);
-  if (untagged >= 0) throw new ModelError(`orbitals[${untagged}].spin`, `the spin Chern number needs every orbital tagged "up" or "down". Value: undefined (orbital ${show(spec.orbitals[untagged].label)})`);
+  if (untagged >= 0) throw new ModelError(`orbitals[${untagged}].spin`, `the spin Chern number needs every orbital tagged "up" or "down". Value: undefined (orbital ${valueText(spec.orbitals[untagged].label)})`);
   const n = h.size;
   const mat = new Float64Array(2 * n * n);
   for (const probe of PROBES) {
@@ -492,7 +492,7 @@ export function spinChern(source: TopologySource, options: ChernOptions = {}): S
     }
   }
   const group = bandGroup(options.bands, n);
-  if (group.lo !== 0) throw new ModelError('bands', `the spin Chern number is for the lowest bands (an occupied group). Value: ${show(options.bands)}`);
+  if (group.lo !== 0) throw new ModelError('bands', `the spin Chern number is for the lowest bands (an occupied group). Value: ${valueText(options.bands)}`);
   // How many of the occupied bands each spin holds: count block eigenvalues below the gap at one k.
   const k0 = new Array<number>(h.dim).fill(0.1234);
   h.fill(k0, mat);

@@ -244,7 +244,7 @@ class Features(unittest.TestCase):
         reply, _ = harness.run(self.kc, "function ask() { return compute({kind: 'chern', model: qwz(), params: {u: 9}}) }\nask()")
         self.assertEqual(reply["status"], "error")
         text = "\n".join(reply["traceback"]) + reply["evalue"]
-        self.assertIn("at compute (chernel engine, in resolveParameters)", text)
+        self.assertIn("at compute (chernel engine, in checkParameterValues)", text)
         self.assertIn("at ask (In [", text)
         for private in {str(harness.ROOT), os.path.expanduser("~"), "file://", "dist/src", "node:internal"}:
             self.assertNotIn(private, text)

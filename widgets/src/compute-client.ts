@@ -1,7 +1,7 @@
 /**
  * A view's line to its engine workers. A drag fires many input events; only the newest matters.
  * At most one request is in flight; a newer request waiting behind it replaces an older one (the
- * stale one is dropped, never sent), so the plot follows the hand instead of a queue. A request the
+ * stale one is dropped, never sent), so the plot follows the pointer instead of a queue. A request the
  * split plan divides goes out in parts, one per worker, computed side by side and joined on return.
  */
 import type { DiagnosticRequest, DiagnosticResult } from '../../contract/protocol.js';
@@ -93,7 +93,7 @@ export class LatestWinsClient {
 
   /**
    * Computes `request` without delivering it, when nothing else is pending: the workers start and
-   * compile the model, and their JIT warms up, before the hand starts dragging.
+   * compile the model, and their JIT warms up, before the pointer starts dragging.
    */
   warm(request: DiagnosticRequest): void {
     if (this.inFlight === null && this.waiting === null) this.send({ request, submitted: performance.now() }, true);

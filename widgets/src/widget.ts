@@ -450,7 +450,7 @@ export class DiagnosticView extends DOMWidgetView {
     const result = outcome.result as DiagnosticResult;
     this.model.set({ result, result_values: values, error: '', values: { ...this.live } }, { updated_view: this });
     // During a drag the kernel hears once the drag rests (with the full redraw), not on every step:
-    // a result is tens of kilobytes, and the page would serialise each one while the hand moves.
+    // a result is tens of kilobytes, and the page would serialise each one while the pointer moves.
     if (!this.draw(result, values, outcome)) this.sync();
   }
 
@@ -530,7 +530,7 @@ export class DiagnosticView extends DOMWidgetView {
 
   /** The whole figure through plotly (traces, axes, colour bar), with its raster as an image. */
   private plotFull(figure: Figure): Promise<unknown> {
-    // A phase map's only shape is its current point: let the hand move it directly.
+    // A phase map's only shape is its current point: let the pointer move it directly.
     const config = this.model.sweptParameters().length > 0 ? { ...PLOT_CONFIG, edits: { shapePosition: true } } : PLOT_CONFIG;
     const layout = { ...figure.layout, images: figure.raster ? [rasterImage(figure.raster)] : [] };
     this.drawnFrameKey = null;

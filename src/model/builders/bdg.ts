@@ -17,13 +17,13 @@
  * the hole of `A.up` is the hole of that same orbital (no (c_dn^dagger, -c_up^dagger) reordering).
  */
 import { conjugateAmplitude, negateAmplitude } from '../amplitude.js';
-import { ModelError, show } from '../errors.js';
+import { ModelError, valueText } from '../errors.js';
 import { compileAmplitude } from '../expressions.js';
 import type { Amplitude, ModelSpec, OrbitalSpec, ParameterSpec, TermSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
 import { validateModel } from '../validate.js';
 
-export interface BdgOptions {
+export interface BogoliubovOptions {
   /** Pairing terms, see above. */
   pairing: TermSpec[];
   /** Chemical potential subtracted from the particle block (and added to the hole block). */
@@ -36,7 +36,7 @@ export interface BdgOptions {
 export const PARTICLE_SUFFIX = '.e';
 export const HOLE_SUFFIX = '.h';
 
-export function bogoliubov(model: ModelSpec, options: BdgOptions): ModelSpec {
+export function bogoliubov(model: ModelSpec, options: BogoliubovOptions): ModelSpec {
   const spec = validateModel(model);
   if (spec.orbitals.some((o) => o.nambu !== undefined)) throw new ModelError('bdg.model', `"${spec.name}" is already in Nambu form`);
   const parameters = { ...spec.parameters, ...(options.parameters ?? {}) };
@@ -63,16 +63,16 @@ export function bogoliubov(model: ModelSpec, options: BdgOptions): ModelSpec {
       set.add(h(o.label), h(o.label), zero, options.chemicalPotential);
     }
   }
-  if (!Array.isArray(options.pairing)) throw new ModelError('bdg.pairing', `expected an array of pairing terms. Value: ${show(options.pairing)}`);
+  if (!Array.isArray(options.pairing)) throw new ModelError('bdg.pairing', `expected an array of pairing terms. Value: ${valueText(options.pairing)}`);
   options.pairing.forEach((p, n) => {
     const field = `bdg.pairing[${n}]`;
-    if (p === null || typeof p !== 'object') throw new ModelError(field, `expected {from, to, cell, amplitude}. Value: ${show(p)}`);
-    if (!labels.has(p.from)) throw new ModelError(`${field}.from`, `unknown orbital ${show(p.from)}`);
-    if (!labels.has(p.to)) throw new ModelError(`${field}.to`, `unknown orbital ${show(p.to)}`);
+    if (p === null || typeof p !== 'object') throw new ModelError(field, `expected {from, to, cell, amplitude}. Value: ${valueText(p)}`);
+    if (!labels.has(p.from)) throw new ModelError(`${field}.from`, `unknown orbital ${valueText(p.from)}`);
+    if (!labels.has(p.to)) throw new ModelError(`${field}.to`, `unknown orbital ${valueText(p.to)}`);
     if (!Array.isArray(p.cell) || p.cell.length !== spec.periodic || !p.cell.every((c) => Number.isInteger(c))) {
-      throw new ModelError(`${field}.cell`, `expected ${spec.periodic} integers. Value: ${show(p.cell)}`);
+      throw new ModelError(`${field}.cell`, `expected ${spec.periodic} integers. Value: ${valueText(p.cell)}`);
     }
-    if (p.from === p.to && p.cell.every((c) => c === 0)) throw new ModelError(field, `pairing an orbital with itself in the same cell vanishes (Pauli). Value: ${show(p)}`);
+    if (p.from === p.to && p.cell.every((c) => c === 0)) throw new ModelError(field, `pairing an orbital with itself in the same cell vanishes (Pauli). Value: ${valueText(p)}`);
     compileAmplitude(p.amplitude, `${field}.amplitude`, names);
     set.add(h(p.from), e(p.to), p.cell, p.amplitude);
     set.add(h(p.to), e(p.from), p.cell.map((c) => -c), negateAmplitude(p.amplitude));

@@ -17,7 +17,7 @@
  */
 import { withPhase } from '../amplitude.js';
 import { checkModelSize } from '../../cost.js';
-import { ModelError, show } from '../errors.js';
+import { ModelError, valueText } from '../errors.js';
 import type { ModelSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
 import { validateModel } from '../validate.js';
@@ -35,13 +35,13 @@ export interface FluxOptions {
 export function magneticFlux(model: ModelSpec, options: FluxOptions): ModelSpec {
   const spec = validateModel(model);
   const { p, q } = options;
-  if (!Number.isInteger(q) || q < 1) throw new ModelError('flux.q', `expected a positive integer. Value: ${show(q)}`);
-  if (!Number.isInteger(p)) throw new ModelError('flux.p', `expected an integer. Value: ${show(p)}`);
+  if (!Number.isInteger(q) || q < 1) throw new ModelError('flux.q', `expected a positive integer. Value: ${valueText(q)}`);
+  if (!Number.isInteger(p)) throw new ModelError('flux.p', `expected an integer. Value: ${valueText(p)}`);
   checkModelSize(q * spec.orbitals.length, 'flux.q', q, spec.orbitals.length, 'q');
   if (spec.periodic < 2) throw new ModelError('flux.model', `needs two periodic directions; "${spec.name}" has ${spec.periodic}`);
   const [i, j] = options.plane ?? [0, 1];
   if (!Number.isInteger(i) || !Number.isInteger(j) || i === j || i < 0 || j < 0 || i >= spec.periodic || j >= spec.periodic) {
-    throw new ModelError('flux.plane', `expected two different periodic directions of "${spec.name}". Value: ${show(options.plane)}`);
+    throw new ModelError('flux.plane', `expected two different periodic directions of "${spec.name}". Value: ${valueText(options.plane)}`);
   }
   const d = spec.periodic;
   const matrix = Array.from({ length: d }, (_, r) => Array.from({ length: d }, (_, c) => (r === c ? (r === i ? q : 1) : 0)));

@@ -2,7 +2,7 @@
  * Small integer-lattice helpers shared by the model builders: exact inverses of integer matrices,
  * decomposition of a cell into supercell translation + cell inside the supercell.
  */
-import { ModelError, show } from '../errors.js';
+import { ModelError, valueText } from '../errors.js';
 
 /** Label of an orbital copied into cell `cell` of a larger model: `a@1,0`. */
 export function copyLabel(label: string, cell: readonly number[]): string {
@@ -36,10 +36,10 @@ function adjugate(m: number[][]): number[][] {
 /** Checks an integer supercell matrix (rows = new vectors in units of the old ones). */
 export function checkIntegerMatrix(m: unknown, dim: number, field: string): number[][] {
   if (!Array.isArray(m) || m.length !== dim || !m.every((r) => Array.isArray(r) && r.length === dim && r.every((x) => Number.isInteger(x)))) {
-    throw new ModelError(field, `expected a ${dim} x ${dim} integer matrix (one row per new lattice vector). Value: ${show(m)}`);
+    throw new ModelError(field, `expected a ${dim} x ${dim} integer matrix (one row per new lattice vector). Value: ${valueText(m)}`);
   }
   const rows = m as number[][];
-  if (determinant(rows) === 0) throw new ModelError(field, `the matrix is singular (its rows are linearly dependent). Value: ${show(m)}`);
+  if (determinant(rows) === 0) throw new ModelError(field, `the matrix is singular (its rows are linearly dependent). Value: ${valueText(m)}`);
   return rows.map((r) => [...r]);
 }
 

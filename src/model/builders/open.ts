@@ -9,7 +9,7 @@
  * that basis, so the coordinate along the opened direction runs from 0 to `width`.
  */
 import { checkModelSize } from '../../cost.js';
-import { ModelError, show } from '../errors.js';
+import { ModelError, valueText } from '../errors.js';
 import type { ModelSpec, OrbitalSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
 import { validateModel } from '../validate.js';
@@ -26,7 +26,7 @@ export interface FlakeOptions {
 }
 
 function checkWidth(width: unknown, field: string): number {
-  if (typeof width !== 'number' || !Number.isInteger(width) || width < 1) throw new ModelError(field, `expected a positive integer number of cells. Value: ${show(width)}`);
+  if (typeof width !== 'number' || !Number.isInteger(width) || width < 1) throw new ModelError(field, `expected a positive integer number of cells. Value: ${valueText(width)}`);
   return width;
 }
 
@@ -85,7 +85,7 @@ function openDirections(spec: ModelSpec, dirs: number[], widths: number[], name:
 export function ribbon(model: ModelSpec, direction: number, width: number, options: RibbonOptions = {}): ModelSpec {
   const spec = validateModel(model);
   if (!Number.isInteger(direction) || direction < 0 || direction >= spec.periodic) {
-    throw new ModelError('ribbon.direction', `expected a periodic direction from 0 to ${spec.periodic - 1} of "${spec.name}". Value: ${show(direction)}`);
+    throw new ModelError('ribbon.direction', `expected a periodic direction from 0 to ${spec.periodic - 1} of "${spec.name}". Value: ${valueText(direction)}`);
   }
   checkWidth(width, 'ribbon.width');
   checkModelSize(width * spec.orbitals.length, 'ribbon.width', width, spec.orbitals.length, 'width');
@@ -96,7 +96,7 @@ export function ribbon(model: ModelSpec, direction: number, width: number, optio
 export function flake(model: ModelSpec, sizes: number[], options: FlakeOptions = {}): ModelSpec {
   const spec = validateModel(model);
   if (!Array.isArray(sizes) || sizes.length !== spec.periodic) {
-    throw new ModelError('flake.sizes', `expected ${spec.periodic} cell counts (one per periodic direction of "${spec.name}"). Value: ${show(sizes)}`);
+    throw new ModelError('flake.sizes', `expected ${spec.periodic} cell counts (one per periodic direction of "${spec.name}"). Value: ${valueText(sizes)}`);
   }
   sizes.forEach((s, i) => checkWidth(s, `flake.sizes[${i}]`));
   const cells = sizes.reduce((a, b) => a * b, 1);

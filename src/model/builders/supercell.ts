@@ -5,7 +5,7 @@
  * of the result are those of the original folded into the smaller Brillouin zone.
  */
 import { checkModelSize } from '../../cost.js';
-import { ModelError, show } from '../errors.js';
+import { ModelError, valueText } from '../errors.js';
 import type { ModelSpec, TermSpec } from '../spec.js';
 import { TermSet } from '../terms.js';
 import { validateModel } from '../validate.js';
@@ -68,7 +68,7 @@ export function supercellDetailed(
   }
   const out: ModelSpec = {
     ...spec,
-    name: options.name ?? `${spec.name} supercell ${show(m)}`,
+    name: options.name ?? `${spec.name} supercell ${valueText(m)}`,
     vectors,
     orbitals,
     terms: set.list(),

@@ -1,2 +1,0 @@
-export {};
-//# sourceMappingURL=worker-messages.js.map
