@@ -31,7 +31,7 @@ export { closestName } from './model/field-names.js';
 export { type BandGroup, type BandSelection, type KPoint, type SpectrumChecks, type SpectrumSource } from './spectra/common.js';
 export { reciprocalVectors, cartesianMomentum, highSymmetryPoints, type HighSymmetryPoints, type LatticeFamily } from './spectra/lattice.js';
 export { kPath, type KPath, type PathOptions, type PathPoint, type PathSpec } from './spectra/path.js';
-export { bands, type BandsOptions, type BandsResult } from './spectra/bands.js';
+export { bandStructure, type BandsOptions, type BandsResult } from './spectra/bands.js';
 export { directGap, findGapClosings, type GapClosing, type GapClosingOptions, type GapClosingResult, type GapOptions, type GapResult } from './spectra/gap.js';
 export { densityOfStates, type DosOptions, type DosResult } from './spectra/dos.js';
 export { ribbonSpectrum, type RibbonSpectrumOptions, type RibbonSpectrumResult } from './spectra/ribbon.js';

@@ -24,7 +24,7 @@ export interface BandsResult {
 }
 
 /** Energies along a path (default: the lattice's customary high-symmetry path). */
-export function bands(source: SpectrumSource, options: BandsOptions = {}): BandsResult {
+export function bandStructure(source: SpectrumSource, options: BandsOptions = {}): BandsResult {
   const hamiltonian = compileSource(source, options);
   const path = kPath(hamiltonian.spec, options);
   const sampler = new BandSampler(hamiltonian);

@@ -122,7 +122,9 @@ export class FrameSampler {
   private keep(k: ArrayLike<number>): void {
     const size = this.n + this.frameLength;
     if (this.slabUsed + size > this.slab.length) {
-      this.slab = new Float64Array(Math.max(size, Math.min(this.memoRoom, 1 << 16)));
+      // Slabs grow from room for 256 k-points, doubling up to 2^16 numbers: a small proof allocates little.
+      const grown = Math.min(1 << 16, Math.max(256 * size, 2 * this.slab.length));
+      this.slab = new Float64Array(Math.max(size, Math.min(this.memoRoom, grown)));
       this.slabUsed = 0;
     }
     const kept = this.slab.subarray(this.slabUsed, this.slabUsed + size);

@@ -1,7 +1,7 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import {
-  bands, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice, qwz as catalogueQwz, ribbonSpectrum, ssh, weyl2band,
+  bandStructure, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice, qwz as catalogueQwz, ribbonSpectrum, ssh, weyl2band,
 } from '../../src/index.js';
 
 // Qi–Wu–Zhang, H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz (Qi, Wu, Zhang, PRB 74, 085308 (2006)).
@@ -175,7 +175,7 @@ describe('square-lattice tight binding, E = -2t(cos kx + cos ky) (common practic
     expect(path.labels.map((l) => l.label)).toEqual(['Γ', 'X', 'M', 'Γ']);
     expect(path.labels.map((l) => l.distance)).toEqual([0, Math.PI / a, (2 * Math.PI) / a, expect.closeTo(((2 + Math.SQRT2) * Math.PI) / a, 12)]);
     // Bands along it follow the dispersion: -4t at Γ, 0 at X, +4t at M.
-    const b = bands(model, { path: 'G X M G', pointsPerSegment: 10 });
+    const b = bandStructure(model, { path: 'G X M G', pointsPerSegment: 10 });
     expect(b.energies[0]).toBeCloseTo(-4 * t, 12);
     expect(b.energies[10]).toBeCloseTo(0, 12);
     expect(b.energies[20]).toBeCloseTo(4 * t, 12);

@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import {
-  bands, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, installInterruptFlag, InterruptedError,
+  bandStructure, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, installInterruptFlag, InterruptedError,
   kPath, lattice, reciprocalVectors, ribbonSpectrum,
 } from '../../src/index.js';
 import { nelderMead } from '../../src/spectra/gap.js';
@@ -113,11 +113,11 @@ describe('bands', () => {
     const ssh = lattice('SSH', [[1, 0], [0, 1]], 1).parameter('v', { default: 1 }).parameter('w', { default: 0.5 })
       .site('a', [0, 0]).site('b', [0.5, 0]).hop('a', 'b', [0], 'v').hop('b', 'a', [1], 'w').build();
     const h = blochHamiltonian(ssh);
-    const first = bands(h, { params: { v: 1, w: 0.5 }, pointsPerSegment: 20 });
+    const first = bandStructure(h, { params: { v: 1, w: 0.5 }, pointsPerSegment: 20 });
     // E = ±|v + w e^{ik}|: gap 2|v - w| at the zone edge (Su, Schrieffer, Heeger, PRL 42, 1698 (1979)).
     expect(first.checks.minGap).toBeCloseTo(1, 12);
     expect(first.checks.minGapAt).toEqual([0.5]);
-    const closing = bands(h, { params: { v: 0.7, w: 0.7 }, pointsPerSegment: 20 });
+    const closing = bandStructure(h, { params: { v: 0.7, w: 0.7 }, pointsPerSegment: 20 });
     expect(closing.checks.gapless).toBe(true);
     expect(closing.checks.warnings[0]).toMatch(/closes on the path/);
     expect(closing.energies.length).toBe(closing.path.count * 2);
@@ -125,7 +125,7 @@ describe('bands', () => {
 
   it('of a finite model (a flake) is its spectrum at the single empty k', () => {
     const dimer = lattice('dimer', [[1]], 0).site('a', [0]).site('b', [0.5]).hop('a', 'b', [], -1).build();
-    const b = bands(dimer);
+    const b = bandStructure(dimer);
     expect(b.path.count).toBe(1);
     expect(Array.from(b.energies)).toEqual([expect.closeTo(-1, 14), expect.closeTo(1, 14)]);
     expect(b.checks.minGap).toBeCloseTo(2, 14);
@@ -135,7 +135,7 @@ describe('bands', () => {
     const flag = new Int32Array(new SharedArrayBuffer(4));
     installInterruptFlag(flag);
     Atomics.store(flag, 0, 1);
-    expect(() => bands(chain([[1, 0], [0, 1]]))).toThrow(InterruptedError);
+    expect(() => bandStructure(chain([[1, 0], [0, 1]]))).toThrow(InterruptedError);
   });
   afterEach(() => installInterruptFlag(null));
 });
