@@ -3,7 +3,7 @@
  * loops (modified Gram–Schmidt for unitaries), independently of the code under test.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
@@ -186,7 +186,6 @@ export function orthonormalityError(n: number, v: Float64Array): number {
 }
 
 export const PYTHON = '/usr/bin/python3';
-export const HAVE_NUMPY = existsSync(PYTHON) && spawnSync(PYTHON, ['-c', 'import numpy'], { encoding: 'utf8' }).status === 0;
 
 /**
  * Run `code` under Debian's numpy with `inp` (a dict of the given arrays as complex numpy arrays
