@@ -16,5 +16,14 @@ export function pointFunction(target: PointTarget): PointFunction {
   const sweep = diagnostic.sweep;
   if (sweep === undefined) throw new ModelError('invariant', `a "${kind}" result has no value per point to sweep`);
   const h = new BlochHamiltonian(model, fixed, { convention: convention ?? 'lattice' });
-  return (swept: ParameterValues) => sweep(diagnostic.run(h, { ...options, params: { ...fixed, ...swept } }));
+  return (swept: ParameterValues) => {
+    // A swept name is a model parameter, or else an option of the point's request (sweep.ts).
+    const params = { ...fixed };
+    const request: Record<string, unknown> = { ...options };
+    for (const [name, value] of Object.entries(swept)) {
+      if (Object.hasOwn(h.spec.parameters, name)) params[name] = value;
+      else request[name] = value;
+    }
+    return sweep(diagnostic.run(h, { ...request, params }));
+  };
 }

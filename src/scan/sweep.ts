@@ -15,12 +15,16 @@ import { canonicalJson, digest } from './checksum.js';
 import { checkParameterValues, parameterValueProblem } from '../model/parameters.js';
 
 import type { PointOutcome } from '../diagnostics/diagnostic.js';
-import { SWEEP_QUANTITIES, type SweepQuantity } from '../diagnostics/registry.js';
+import { diagnosticOf, SWEEP_QUANTITIES, type SweepQuantity } from '../diagnostics/registry.js';
 
 /** What a point of a phase map computes: a kind with a scalar per point (diagnostics/registry.ts). */
 export { SWEEP_QUANTITIES, type PointOutcome, type SweepQuantity };
 
-/** One swept parameter: `count` evenly spaced values from `from` to `to` inclusive. */
+/**
+ * One swept parameter: `count` evenly spaced values from `from` to `to` inclusive. `param` names a
+ * parameter of the model, or else a numeric option of the swept kind (a disorder strength, say),
+ * which each point sets in its request.
+ */
 export interface SweepAxis {
   param: string;
   from: number;
@@ -188,13 +192,15 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     const field = `axes[${i}]`;
     if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${valueText(a)}`);
     const spec = typeof a.param === 'string' && Object.hasOwn(model.parameters, a.param) ? model.parameters[a.param] : undefined;
-    if (typeof a.param !== 'string' || spec === undefined) {
-      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} (it has: ${Object.keys(model.parameters).join(', ') || 'none'})`);
+    const options = diagnosticOf(r.invariant, 'invariant').options;
+    if (typeof a.param !== 'string' || (spec === undefined && !options.includes(a.param))) {
+      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} and a "${r.invariant}" request no such option (parameters: ${Object.keys(model.parameters).join(', ') || 'none'}; options: ${options.join(', ')})`);
     }
     if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);
     seen.add(a.param);
     for (const end of ['from', 'to'] as const) {
-      const problem = parameterValueProblem(a[end], spec);
+      // An option's values are the diagnostic's to check, at each point; here only that they are numbers.
+      const problem = parameterValueProblem(a[end], spec ?? {});
       if (problem !== null) throw new ModelError(`${field}.${end}`, `${a.param}: ${problem}`);
     }
     if (typeof a.count !== 'number' || !Number.isInteger(a.count) || a.count < 1) {
