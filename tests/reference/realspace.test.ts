@@ -7,10 +7,15 @@ import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { blochHamiltonian } from '../../src/bloch/hamiltonian.js';
 import { eigh } from '../../src/linalg/eigh.js';
-import { qwz } from '../../src/model/catalogue.js';
+import { bhz, haldane, kaneMele, qwz, ssh } from '../../src/model/catalogue.js';
+import { bottIndex, bottOfSample } from '../../src/realspace/bott.js';
+import { markerOfSample, localMarker } from '../../src/realspace/marker.js';
 import { SeededRandom } from '../../src/realspace/random.js';
 import { buildSample } from '../../src/realspace/sample.js';
+import { spinBottIndex } from '../../src/realspace/spin-bott.js';
 import { toDense } from '../../src/realspace/sparse.js';
+import { chainWinding } from '../../src/realspace/winding.js';
+import { windingNumber } from '../../src/topology/chiral.js';
 
 const PYTHON = '/usr/bin/python3';
 
@@ -108,5 +113,114 @@ describe('samples', () => {
     expect(spread).toBeGreaterThan(0.5);
     // displaced positions stay within D/2 of the lattice positions (square lattice: reduced = Cartesian)
     for (let i = 0; i < 2 * n; i++) expect(Math.abs(a.positions[i] - a.cells[i])).toBeLessThanOrEqual(0.1);
+  });
+});
+
+describe('dense invariants', () => {
+  it('Bott index = Chern number of the Qi–Wu–Zhang model in each phase (Qi, Wu & Zhang, PRB 74, 085308 (2006); values in shared/references.md)', () => {
+    const published: [number, number][] = [[-3, 0], [-1.5, 1], [-0.5, 1], [0.5, -1], [1.5, -1], [3, 0]];
+    for (const [u, c] of published) {
+      const r = bottIndex(blochHamiltonian(qwz(), { u }), { sizes: [10, 10] });
+      expect(r.bott, `u = ${u}, open 10x10`).toBe(c);
+      expect(Math.abs(r.raw! - c)).toBeLessThan(1e-9);
+      expect(r.checks.gapless).toBe(false);
+    }
+    const p = bottIndex(blochHamiltonian(qwz(), { u: -1 }), { sizes: [8, 8], boundary: 'periodic' });
+    expect(p.bott).toBe(1);
+    // a clean periodic sample keeps the bulk gap (|2 - |u|| * 2 = 2 at u = -1, reached at k = 0 on an 8x8 grid)
+    expect(p.checks.spectralGap).toBeCloseTo(2, 9);
+    expect(p.checks.minEigenvalueModulus).toBeGreaterThan(0.5);
+  });
+
+  it('Bott index = Chern number of the Haldane model: -sign(sin phi) inside |M| < 3 sqrt3 t2 |sin phi|, 0 outside (Haldane, PRL 61, 2015 (1988))', () => {
+    expect(bottIndex(blochHamiltonian(haldane(), { t2: 0.1, phi: Math.PI / 2, M: 0.2 }), { sizes: [10, 10] }).bott).toBe(-1);
+    expect(bottIndex(blochHamiltonian(haldane(), { t2: 0.1, phi: -Math.PI / 2, M: 0.2 }), { sizes: [10, 10] }).bott).toBe(1);
+    expect(bottIndex(blochHamiltonian(haldane(), { t2: 0.1, phi: Math.PI / 2, M: 1 }), { sizes: [10, 10] }).bott).toBe(0);
+  });
+
+  it('spin Bott index: |1| in the quantum spin Hall phase, 0 outside (Kane & Mele, PRL 95, 226801 (2005); BHZ, Science 314, 1757 (2006); method of Huang & Liu, PRL 120, 126401 (2018))', () => {
+    const km = (lambda_v: number) => spinBottIndex(blochHamiltonian(kaneMele(), { lambda_SO: 0.06, lambda_R: 0, lambda_v }), { sizes: [8, 8] });
+    const topological = km(0.1);
+    expect(Math.abs(topological.spinBott!)).toBe(1);
+    // time reversal: the two sectors carry opposite Bott indices
+    expect(topological.sectorBott![0]).toBe(-topological.sectorBott![1]);
+    expect(topological.checks.spinGap).toBeGreaterThan(0.5);
+    expect(km(0.5).spinBott).toBe(0); // |lambda_v| > 3 sqrt3 lambda_SO = 0.312
+    for (const [M, z2] of [[-1, 0], [1, 1], [3, 1], [9, 0]]) {
+      expect(Math.abs(spinBottIndex(blochHamiltonian(bhz(), { M }), { sizes: [8, 8] }).spinBott!), `BHZ M/B = ${M}`).toBe(z2);
+    }
+    expect(() => spinBottIndex(blochHamiltonian(qwz()), { sizes: [4, 4] })).toThrow(/model: .*spins/);
+  });
+
+  it('chain winding of SSH: 1 for |v| < |w|, 0 for |v| > |w| (Su, Schrieffer & Heeger, PRL 42, 1698 (1979)), same sign as the k-space winding', () => {
+    for (const v of [0.5, 1.5]) {
+      const h = blochHamiltonian(ssh(), { v, w: 1 });
+      const k = windingNumber(h).winding!;
+      expect(Math.abs(k)).toBe(v < 1 ? 1 : 0);
+      for (const boundary of ['open', 'periodic'] as const) {
+        const r = chainWinding(h, { sizes: [40], boundary });
+        expect(r.nearestInteger, `v = ${v} ${boundary}`).toBe(k);
+        expect(Math.abs(r.winding! - k)).toBeLessThan(1e-4);
+      }
+    }
+    // open topological chain: two end modes at zero energy (Su, Schrieffer & Heeger)
+    expect(chainWinding(blochHamiltonian(ssh(), { v: 0.5, w: 1 }), { sizes: [40] }).checks.zeroModes).toBe(2);
+    // bond disorder keeps chiral symmetry (Mondragon-Shem et al., PRL 113, 046802 (2014)); onsite disorder breaks it
+    expect(chainWinding(blochHamiltonian(ssh(), { v: 0.5, w: 1 }), { sizes: [60], bondDisorder: 0.8, seed: 4 }).nearestInteger).toBe(1);
+    const broken = chainWinding(blochHamiltonian(ssh(), { v: 0.5, w: 1 }), { sizes: [20], onsiteDisorder: 0.5 });
+    expect(broken.winding).toBeNull();
+    expect(broken.checks.warnings.join()).toMatch(/chiral symmetry is broken/);
+  });
+
+  it('local marker: the bulk of a clean flake gives C, the whole open flake sums to 0 (Bianco & Resta, PRB 84, 241106(R) (2011))', () => {
+    for (const [u, c] of [[-1, 1], [1, -1], [-3, 0]]) {
+      const r = localMarker(blochHamiltonian(qwz(), { u }), { sizes: [16, 16] });
+      expect(Math.abs(r.total!)).toBeLessThan(1e-8);
+      // tolerance 1e-3 at 5 or more cells from the edge (correlation length ~ 1 cell at |u| = 1)
+      r.marker.forEach((x, i) => { if (r.edgeDistance[i] >= 5) expect(Math.abs(x - c), `u = ${u}, cell ${i}`).toBeLessThan(1e-3); });
+    }
+  });
+
+  it('Bott index and local marker agree with numpy running the same algorithms on the same seeded disordered sample', () => {
+    const h = blochHamiltonian(qwz(), { u: -1 });
+    const sample = buildSample(h, { sizes: [8, 9], onsiteDisorder: 3, bondDisorder: 0.3, vacancies: 0.05, displacement: 0.1, seed: 77 });
+    const bott = bottOfSample(sample);
+    const marker = markerOfSample(sample, {}, null);
+    const script = String.raw`
+import json, sys
+import numpy as np
+d = json.load(sys.stdin)
+n = d['n']
+H = np.zeros((n, n), complex)
+v = np.array(d['values']); rs = d['rowStart']; cols = d['columns']
+for i in range(n):
+    for e in range(rs[i], rs[i + 1]):
+        H[i, cols[e]] = v[2 * e] + 1j * v[2 * e + 1]
+pos = np.array(d['positions']).reshape(n, 2)
+E, W = np.linalg.eigh(H)
+m = n // 2
+P = W[:, :m] @ W[:, :m].conj().T
+Q = np.eye(n) - P
+L1, L2 = d['sizes']
+U = np.diag(np.exp(2j * np.pi * pos[:, 0] / L1)); V = np.diag(np.exp(2j * np.pi * pos[:, 1] / L2))
+u = W[:, :m].conj().T @ U @ W[:, :m]; w = W[:, :m].conj().T @ V @ W[:, :m]
+lam = np.linalg.eigvals(w @ u @ w.conj().T @ u.conj().T)
+bott = np.sum(np.angle(lam)) / (2 * np.pi)
+X = np.diag(pos[:, 0]); Y = np.diag(pos[:, 1])
+local = -4 * np.pi * np.imag(np.diag(P @ X @ Q @ Y @ P))
+cells = np.array(d['cells']).reshape(n, 2)
+marker = np.zeros(L1 * L2)
+for r in range(n):
+    marker[cells[r, 0] + L1 * cells[r, 1]] += local[r]
+print(json.dumps({'bott': bott, 'marker': marker.tolist(), 'fermi': (E[m - 1] + E[m]) / 2}))
+`;
+    const theirs = python(script, {
+      n: sample.size, values: Array.from(sample.hamiltonian.values), rowStart: Array.from(sample.hamiltonian.rowStart),
+      columns: Array.from(sample.hamiltonian.columns), positions: Array.from(sample.positions), cells: Array.from(sample.cells), sizes: sample.sizes,
+    }) as { bott: number; marker: number[]; fermi: number };
+    expect(bott.bott).not.toBeNull();
+    expect(Math.abs(bott.raw! - theirs.bott)).toBeLessThan(1e-8);
+    expect(bott.checks.fermiEnergy).toBeCloseTo(theirs.fermi, 10);
+    theirs.marker.forEach((x, c) => expect(Math.abs(marker.marker[c] - x), `cell ${c}`).toBeLessThan(1e-8));
   });
 });
