@@ -37,9 +37,13 @@ export class SeededRandom {
   private s2: number;
   private s3: number;
 
-  constructor(seed: number) {
+  /**
+   * `stream` picks one of 256 independent streams of one seed (0: samples, 1: the Chebyshev path's
+   * random probe vectors): splitmix64 starts from seed + stream * 2^56.
+   */
+  constructor(seed: number, stream = 0) {
     checkSeed(seed);
-    const [a, b] = splitmix64(BigInt(seed), 2);
+    const [a, b] = splitmix64(BigInt(seed) + (BigInt(stream) << 56n), 2);
     this.s0 = Number(a & 0xffffffffn) | 0;
     this.s1 = Number(a >> 32n) | 0;
     this.s2 = Number(b & 0xffffffffn) | 0;

@@ -12,6 +12,9 @@ import { bottIndex, bottOfSample } from '../../src/realspace/bott.js';
 import { markerOfSample, localMarker } from '../../src/realspace/marker.js';
 import { SeededRandom } from '../../src/realspace/random.js';
 import { buildSample } from '../../src/realspace/sample.js';
+import { chebyshevMarker } from '../../src/realspace/kpm-marker.js';
+import { localDensity } from '../../src/realspace/ldos.js';
+import { matvec } from '../../src/realspace/sparse.js';
 import { spinBottIndex } from '../../src/realspace/spin-bott.js';
 import { toDense } from '../../src/realspace/sparse.js';
 import { chainWinding } from '../../src/realspace/winding.js';
@@ -222,5 +225,59 @@ print(json.dumps({'bott': bott, 'marker': marker.tolist(), 'fermi': (E[m - 1] + 
     expect(Math.abs(bott.raw! - theirs.bott)).toBeLessThan(1e-8);
     expect(bott.checks.fermiEnergy).toBeCloseTo(theirs.fermi, 10);
     theirs.marker.forEach((x, c) => expect(Math.abs(marker.marker[c] - x), `cell ${c}`).toBeLessThan(1e-8));
+  });
+});
+
+describe('kernel polynomial method (Weisse, Wellein, Alvermann & Fehske, RMP 78, 275 (2006))', () => {
+  const h = blochHamiltonian(qwz(), { u: -1 });
+
+  it('the sparse product equals the dense one', () => {
+    const sample = buildSample(h, { sizes: [5, 4], onsiteDisorder: 1, bondDisorder: 0.5, boundary: ['periodic', 'open'], seed: 8 });
+    const n = sample.size, d = toDense(sample.hamiltonian);
+    const rng = new SeededRandom(1);
+    const x = Float64Array.from({ length: 2 * n }, () => rng.centred(2));
+    const y = matvec(sample.hamiltonian, x, new Float64Array(2 * n), 0.3, 2);
+    for (let i = 0; i < n; i++) {
+      let re = -0.3 * x[2 * i], im = -0.3 * x[2 * i + 1];
+      for (let j = 0; j < n; j++) {
+        re += d[2 * (i * n + j)] * x[2 * j] - d[2 * (i * n + j) + 1] * x[2 * j + 1];
+        im += d[2 * (i * n + j)] * x[2 * j + 1] + d[2 * (i * n + j) + 1] * x[2 * j];
+      }
+      expect(Math.abs(y[2 * i] - re / 2) + Math.abs(y[2 * i + 1] - im / 2)).toBeLessThan(1e-13);
+    }
+  });
+
+  it('LDOS by the Chebyshev recursion equals the same damped series on the exact eigenpairs; the stochastic map lies within its error bars', () => {
+    const base = { sizes: [10, 10], onsiteDisorder: 1, seed: 5, energy: 0.1, order: 128 };
+    const cells = [[5, 5], [0, 5], [2, 3]];
+    const kpm = localDensity(h, { ...base, cells });
+    const dense = localDensity(h, { ...base, cells, method: 'dense' });
+    kpm.density.forEach((x, c) => expect(Math.abs(x - dense.density[c])).toBeLessThan(1e-10 * Math.max(1, dense.density[c])));
+    const exact = localDensity(h, { ...base, method: 'dense' });
+    const map = localDensity(h, { ...base, probes: 64 });
+    expect(map.method).toBe('chebyshev-stochastic');
+    // 100 cells: every deviation within 5 standard errors (common practice for a stochastic trace)
+    map.density.forEach((x, c) => expect(Math.abs(x - exact.density[c]) / map.standardError![c], `cell ${c}`).toBeLessThan(5));
+  });
+
+  it('LDOS in the bulk gap lives on the edge of a Chern insulator flake (bulk–boundary correspondence, common practice)', () => {
+    const r = localDensity(h, { sizes: [16, 16], energy: 0.2, order: 256, cells: [[8, 8], [0, 8], [8, 15]] });
+    expect(r.density[1]).toBeGreaterThan(100 * r.density[0]);
+    expect(r.density[2]).toBeGreaterThan(100 * r.density[0]);
+  });
+
+  it('Chebyshev local marker agrees with the dense marker on a disordered flake, and is C in the bulk of a clean one', () => {
+    const opts = { sizes: [16, 16], onsiteDisorder: 2, seed: 5, fermiEnergy: 0 };
+    const cells = [[8, 8], [5, 9], [3, 8]];
+    const dense = localMarker(h, { ...opts, cells });
+    const kpm = chebyshevMarker(h, { ...opts, cells, order: 1000 });
+    kpm.marker.forEach((x, c) => expect(Math.abs(x - dense.marker[c]), `cell ${cells[c]}`).toBeLessThan(1e-3));
+    expect(kpm.checks.orderChange).toBeLessThan(1e-2);
+    // clean 40x40 flake, centre 20 cells from the edge: C = +1 at u = -1 (Qi, Wu & Zhang), tolerance 1e-3
+    const clean = chebyshevMarker(h, { sizes: [40, 40], order: 600 });
+    expect(clean.checks.fermiRule).toMatch(/clean crystal/);
+    expect(clean.fermiEnergy).toBeCloseTo(0, 12);
+    expect(Math.abs(clean.marker[0] - 1)).toBeLessThan(1e-3);
+    expect(clean.checks.warnings).toEqual([]);
   });
 });
