@@ -12,6 +12,9 @@ import { bottIndex, bottOfSample } from '../../src/realspace/bott.js';
 import { markerOfSample, localMarker } from '../../src/realspace/marker.js';
 import { SeededRandom } from '../../src/realspace/random.js';
 import { buildSample } from '../../src/realspace/sample.js';
+import { setComputeBudget } from '../../src/cost.js';
+import { ModelError } from '../../src/model/errors.js';
+import { disorderEnsemble, joinEnsembles } from '../../src/realspace/ensemble.js';
 import { chebyshevMarker } from '../../src/realspace/kpm-marker.js';
 import { localDensity } from '../../src/realspace/ldos.js';
 import { matvec } from '../../src/realspace/sparse.js';
@@ -279,5 +282,88 @@ describe('kernel polynomial method (Weisse, Wellein, Alvermann & Fehske, RMP 78,
     expect(clean.fermiEnergy).toBeCloseTo(0, 12);
     expect(Math.abs(clean.marker[0] - 1)).toBeLessThan(1e-3);
     expect(clean.checks.warnings).toEqual([]);
+  });
+});
+
+describe('ensembles', () => {
+  const h = blochHamiltonian(qwz(), { u: -1 });
+
+  it('strong disorder drives the averaged Bott index to 0, weak disorder keeps C = 1 (common practice: Anderson localisation of every state)', () => {
+    const weak = disorderEnsemble(h, { of: 'bott', sizes: [10, 10], onsiteDisorder: 1, samples: 6 });
+    expect(weak.mean).toBe(1);
+    expect(weak.standardError).toBe(0);
+    const strong = disorderEnsemble(h, { of: 'bott', sizes: [10, 10], onsiteDisorder: 20, samples: 6 });
+    expect(Math.abs(strong.mean!)).toBeLessThan(0.2);
+    expect(Array.from(strong.seeds)).toEqual([0, 1, 2, 3, 4, 5]);
+  });
+
+  it('shards resume by member index and join to the unsplit ensemble', () => {
+    const opts = { of: 'chebyshev-marker' as const, sizes: [12, 12], onsiteDisorder: 4, order: 200, seed: 40 };
+    const whole = disorderEnsemble(h, { ...opts, samples: 5 });
+    const joined = joinEnsembles([disorderEnsemble(h, { ...opts, first: 3, samples: 2 }), disorderEnsemble(h, { ...opts, samples: 3 })]);
+    expect(joined.values).toEqual(whole.values);
+    expect(joined.seeds).toEqual(whole.seeds);
+    expect(joined.mean).toBe(whole.mean);
+    expect(joined.standardError).toBe(whole.standardError);
+    const mean = Array.from(whole.values).reduce((a, b) => a + b, 0) / 5;
+    const sd = Math.sqrt(Array.from(whole.values).reduce((a, b) => a + (b - mean) ** 2, 0) / 4);
+    expect(whole.standardError).toBeCloseTo(sd / Math.sqrt(5), 14);
+  });
+});
+
+describe('bad input: a ModelError naming the field, nothing built', () => {
+  const h = blochHamiltonian(qwz(), { u: -1 });
+  const field = (f: () => unknown): string => {
+    try {
+      f();
+    } catch (err) {
+      expect(err).toBeInstanceOf(ModelError);
+      expect((err as Error).message.startsWith(`${(err as ModelError).field}: `)).toBe(true);
+      return (err as Error).message;
+    }
+    throw new Error('no error');
+  };
+
+  it('refuses negative disorder, non-integer seeds, bad sizes and options', () => {
+    expect(field(() => bottIndex(h, { sizes: [6, 6], onsiteDisorder: -1 }))).toMatch(/^onsiteDisorder: .*Value: -1/);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], seed: 1.5 }))).toMatch(/^seed: .*Value: 1.5/);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], seed: -2 }))).toMatch(/^seed: /);
+    expect(field(() => bottIndex(h, { sizes: [6, 0] }))).toMatch(/^sizes\[1\]: .*Value: 0/);
+    expect(field(() => bottIndex(h, { sizes: [6] }))).toMatch(/^sizes: /);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], vacancies: 1 }))).toMatch(/^vacancies: /);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], boundary: 'twisted' as 'open' }))).toMatch(/^boundary: /);
+    expect(field(() => chebyshevMarker(h, { sizes: [6, 6], order: 1.5 }))).toMatch(/^order: /);
+    expect(field(() => localMarker(h, { sizes: [6, 6], cells: [[6, 0]] }))).toMatch(/^cells\[0\]: /);
+    expect(field(() => disorderEnsemble(h, { of: 'chern' as 'bott', sizes: [4, 4], samples: 2 }))).toMatch(/^of: /);
+    expect(field(() => chainWinding(blochHamiltonian(ssh()), { sizes: [10], window: 0 }))).toMatch(/^window: /);
+  });
+
+  it('refuses a Fermi energy or an energy outside the spectrum', () => {
+    expect(field(() => bottIndex(h, { sizes: [6, 6], fermiEnergy: 10 }))).toMatch(/^fermiEnergy: outside the sample's spectrum .*Value: 10/);
+    expect(field(() => chebyshevMarker(h, { sizes: [6, 6], fermiEnergy: -50 }))).toMatch(/^fermiEnergy: outside/);
+    expect(field(() => localDensity(h, { sizes: [6, 6], energy: 99 }))).toMatch(/^energy: outside/);
+  });
+
+  it('refuses a sample too large for the budget, with the estimate and the largest that fits, before building it', () => {
+    const previous = setComputeBudget({ memoryBytes: 64 * 2 ** 20 });
+    try {
+      const message = field(() => bottIndex(h, { sizes: [40, 40] }));
+      expect(message).toMatch(/^sizes: the dense Bott index on 40x40 cells needs about .* more than the budget of 64.0 MiB; the largest sample of this shape that fits is (\d+)x\1 cells/);
+      const fits = Number(/fits is (\d+)x/.exec(message)![1]);
+      expect(fits).toBeGreaterThan(5);
+      expect(fits).toBeLessThan(40);
+      expect(() => bottIndex(h, { sizes: [fits, fits], fermiEnergy: 0.01 })).not.toThrow();
+      expect(field(() => chebyshevMarker(h, { sizes: [2000, 2000] }))).toMatch(/^sizes: the Chebyshev local marker on 2000x2000 cells/);
+    } finally {
+      setComputeBudget(previous);
+    }
+  });
+
+  it('gives no invariant when an eigenvalue sits at the Fermi energy', () => {
+    // a clean periodic QWZ sample at u = -1 has eigenvalues +-1 at k = (pi, 0): E_F = 1 lies on one
+    const r = bottIndex(h, { sizes: [4, 4], boundary: 'periodic', fermiEnergy: 1 });
+    expect(r.bott).toBeNull();
+    expect(r.checks.gapless).toBe(true);
+    expect(r.checks.warnings.join()).toMatch(/eigenvalue lies at the Fermi energy/);
   });
 });
