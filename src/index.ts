@@ -73,6 +73,7 @@ export { spinBottIndex, spinBottOfSample, type SpinBottOptions, type SpinBottRes
 export { chainWinding, chainWindingCost, type ChainWindingOptions, type ChainWindingResult } from './realspace/winding.js';
 export { localMarker, markerOfSample, localMarkerCost, type LocalMarkerOptions, type LocalMarkerResult } from './realspace/marker.js';
 export { chebyshevMarker, chebyshevMarkerOfSample, chebyshevMarkerCost, cleanGapMiddle, type ChebyshevMarkerOptions } from './realspace/kpm-marker.js';
+export { chernMarker, chernMarkerCost, type ChernMarkerOptions } from './realspace/chern-marker.js';
 export { localDensity, densityOfSample, localDensityCost, type LocalDensityOptions, type LocalDensityResult } from './realspace/ldos.js';
 export { chebyshevScaling, chebyshevApply, jacksonKernel, stepCoefficients, deltaCoefficients, localMoments, type ChebyshevScaling } from './realspace/kpm.js';
 export { disorderEnsemble, ensembleOf, joinEnsembles, ensembleCost, type EnsembleDiagnostic, type EnsembleOptions, type EnsembleResult } from './realspace/ensemble.js';

@@ -132,7 +132,17 @@ export function chebyshevMarkerOfSample(sample: Sample, fermiEnergy: number, fer
   }
   chosen.forEach((c, k) => (distance[k] = edgeDistance(c, sample.sizes)));
   const warnings: string[] = [];
-  const change = marker.reduce((w, m, k) => Math.max(w, Math.abs(m - halfMarker[k])), 0);
+  const present = new Set<number>();
+  for (let r = 0; r < n; r++) {
+    const k = index.get(Array.from(sample.cells.subarray(r * dim, (r + 1) * dim)).join(','));
+    if (k !== undefined) present.add(k);
+  }
+  chosen.forEach((c, k) => {
+    if (present.has(k)) return;
+    marker[k] = halfMarker[k] = NaN;
+    warnings.push(`cell ${JSON.stringify(c)} is vacant: no marker`);
+  });
+  const change = marker.reduce((w, m, k) => (Number.isNaN(m) ? w : Math.max(w, Math.abs(m - halfMarker[k]))), 0);
   if (change > 0.05) warnings.push(`the marker changes by ${change.toPrecision(3)} between orders ${half} and ${order}: not converged; raise the order`);
   const resolution = (Math.PI * s.halfWidth) / order;
   // A cell's states spread evenly over the spectrum would give (orbitals per cell) / width.

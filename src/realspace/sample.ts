@@ -16,8 +16,8 @@
  *   the bond's Cartesian vector before and after displacement.
  * Draw order, stated so a reference can reproduce it: sites in cell order (direction 0 fastest),
  * model sites in order, 2 + dim uniforms each (vacancy, potential, displacement components) drawn
- * whatever is enabled; then bonds in cell order and term order, one uniform per bond on its first
- * appearance. So a sample at W and at 2W has the same configuration, scaled.
+ * whatever is enabled; then, when B > 0, bonds in cell order and term order, one uniform per bond
+ * on its first appearance (bonds leaving an open sample included). So a sample at W and at 2W has the same configuration, scaled.
  */
 import type { BlochHamiltonian, Hoppings } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';

@@ -15,6 +15,7 @@ import { buildSample } from '../../src/realspace/sample.js';
 import { setComputeBudget } from '../../src/cost.js';
 import { ModelError } from '../../src/model/errors.js';
 import { disorderEnsemble, joinEnsembles } from '../../src/realspace/ensemble.js';
+import { chernMarker } from '../../src/realspace/chern-marker.js';
 import { chebyshevMarker } from '../../src/realspace/kpm-marker.js';
 import { localDensity } from '../../src/realspace/ldos.js';
 import { matvec } from '../../src/realspace/sparse.js';
@@ -282,6 +283,17 @@ describe('kernel polynomial method (Weisse, Wellein, Alvermann & Fehske, RMP 78,
     expect(clean.fermiEnergy).toBeCloseTo(0, 12);
     expect(Math.abs(clean.marker[0] - 1)).toBeLessThan(1e-3);
     expect(clean.checks.warnings).toEqual([]);
+  });
+
+  it('one marker diagnostic: dense for small samples, Chebyshev above 2000 orbitals; a vacant cell has no marker', () => {
+    expect(chernMarker(h, { sizes: [6, 6] }).method).toBe('dense');
+    const big = chernMarker(h, { sizes: [40, 40], order: 100 });
+    expect(big.method).toBe('chebyshev');
+    expect(Array.from(big.cells)).toEqual([20, 20]);
+    const holes = chernMarker(h, { sizes: [12, 12], vacancies: 0.5, seed: 1, method: 'chebyshev', order: 50, cells: [[0, 0], [1, 0], [2, 0], [3, 0], [4, 0], [5, 0]] });
+    const vacant = Array.from(holes.marker).filter(Number.isNaN).length;
+    expect(vacant).toBeGreaterThan(0);
+    expect(holes.checks.warnings.filter((w) => /is vacant/.test(w))).toHaveLength(vacant);
   });
 });
 
