@@ -82,30 +82,64 @@ export function chebyshevApply(
   h: SparseMatrix, s: ChebyshevScaling, coefficients: Float64Array[], v: Float64Array, outs: Float64Array[],
   work: [Float64Array, Float64Array, Float64Array], probe: { index: number; moments: Float64Array } | null = null,
 ): void {
+  if (coefficients.length !== outs.length || coefficients.length < 1 || coefficients.length > 2) throw new RangeError('chebyshevApply: one or two coefficient sets, one output each');
   const len = 2 * h.n;
   const order = Math.max(...coefficients.map((c) => c.length));
+  const [c0, c1] = coefficients;
+  const o0 = outs[0], o1 = outs.length > 1 ? outs[1] : null;
   let [prev, cur, next] = work;
-  for (const o of outs) o.fill(0, 0, len);
   prev.set(v.subarray(0, len));
-  const add = (n: number, t: Float64Array) => {
-    for (let k = 0; k < coefficients.length; k++) {
-      const c = coefficients[k];
-      if (n >= c.length) continue;
-      const cn = c[n], o = outs[k];
-      for (let i = 0; i < len; i++) o[i] += cn * t[i];
-    }
-    if (probe !== null && n < probe.moments.length) probe.moments[n] = t[2 * probe.index];
-  };
-  add(0, prev);
+  for (let i = 0; i < len; i++) o0[i] = c0[0] * prev[i];
+  if (o1 !== null) for (let i = 0; i < len; i++) o1[i] = c1[0] * prev[i];
+  if (probe !== null) probe.moments[0] = prev[2 * probe.index];
   if (order < 2) return;
   matvec(h, prev, cur, s.centre, s.halfWidth);
-  add(1, cur);
+  const k0 = c0.length > 1 ? c0[1] : 0;
+  for (let i = 0; i < len; i++) o0[i] += k0 * cur[i];
+  if (o1 !== null) {
+    const k1 = c1.length > 1 ? c1[1] : 0;
+    for (let i = 0; i < len; i++) o1[i] += k1 * cur[i];
+  }
+  if (probe !== null && probe.moments.length > 1) probe.moments[1] = cur[2 * probe.index];
   for (let n = 2; n < order; n++) {
-    matvec(h, cur, next, s.centre, s.halfWidth);
-    for (let i = 0; i < len; i++) next[i] = 2 * next[i] - prev[i];
-    add(n, next);
+    chebyshevStep(h, cur, prev, next, s.centre, 2 / s.halfWidth, o0, n < c0.length ? c0[n] : 0, o1, o1 !== null && n < c1.length ? c1[n] : 0);
+    if (probe !== null && n < probe.moments.length) probe.moments[n] = next[2 * probe.index];
     [prev, cur, next] = [cur, next, prev];
     if ((n & 63) === 0) checkInterrupt();
+  }
+}
+
+/**
+ * One step of the recursion, fused with the accumulation so each vector is read once:
+ * next = f (H - shift) cur - prev (f = 2/a), o0 += k0 next and, when o1 is given, o1 += k1 next.
+ */
+function chebyshevStep(
+  h: SparseMatrix, cur: Float64Array, prev: Float64Array, next: Float64Array, shift: number, f: number,
+  o0: Float64Array, k0: number, o1: Float64Array | null, k1: number,
+): void {
+  const { n, rowStart, columns, values } = h;
+  let e = 0;
+  for (let i = 0; i < n; i++) {
+    let re = -shift * cur[2 * i];
+    let im = -shift * cur[2 * i + 1];
+    const end = rowStart[i + 1];
+    for (; e < end; e++) {
+      const c = columns[e] << 1;
+      const vr = values[2 * e], vi = values[2 * e + 1];
+      const xr = cur[c], xi = cur[c + 1];
+      re += vr * xr - vi * xi;
+      im += vr * xi + vi * xr;
+    }
+    const nr = f * re - prev[2 * i];
+    const ni = f * im - prev[2 * i + 1];
+    next[2 * i] = nr;
+    next[2 * i + 1] = ni;
+    o0[2 * i] += k0 * nr;
+    o0[2 * i + 1] += k0 * ni;
+    if (o1 !== null) {
+      o1[2 * i] += k1 * nr;
+      o1[2 * i + 1] += k1 * ni;
+    }
   }
 }
 

@@ -18,6 +18,7 @@ import { disorderEnsemble, joinEnsembles } from '../../src/realspace/ensemble.js
 import { chernMarker } from '../../src/realspace/chern-marker.js';
 import { chebyshevMarker } from '../../src/realspace/kpm-marker.js';
 import { localDensity } from '../../src/realspace/ldos.js';
+import { adjointMultiplyRect, compressDiagonal, multiplyAdjoint, multiplyRect } from '../../src/realspace/products.js';
 import { matvec } from '../../src/realspace/sparse.js';
 import { spinBottIndex } from '../../src/realspace/spin-bott.js';
 import { toDense } from '../../src/realspace/sparse.js';
@@ -120,6 +121,50 @@ describe('samples', () => {
     expect(spread).toBeGreaterThan(0.5);
     // displaced positions stay within D/2 of the lattice positions (square lattice: reduced = Cartesian)
     for (let i = 0; i < 2 * n; i++) expect(Math.abs(a.positions[i] - a.cells[i])).toBeLessThanOrEqual(0.1);
+  });
+});
+
+describe('dense products (blocked) against the textbook sums', () => {
+  it('A B, A^dagger B, A B^dagger and Psi^dagger D Psi on odd sizes across block edges', () => {
+    const rng = new SeededRandom(9);
+    const rand = (len: number) => Float64Array.from({ length: 2 * len }, () => rng.centred(2));
+    const at = (x: Float64Array, cols: number, i: number, j: number): [number, number] => [x[2 * (i * cols + j)], x[2 * (i * cols + j) + 1]];
+    const close = (got: [number, number], want: [number, number]) => expect(Math.hypot(got[0] - want[0], got[1] - want[1])).toBeLessThan(1e-12);
+    const [p, q, r] = [19, 35, 17];
+    const a = rand(p * q), b = rand(q * r), c = rand(q * p);
+    const ab = multiplyRect(p, q, r, a, b, new Float64Array(2 * p * r));
+    const cb = adjointMultiplyRect(p, q, r, c, b, new Float64Array(2 * p * r));
+    for (let i = 0; i < p; i++) for (let j = 0; j < r; j++) {
+      let [x, y, u, v] = [0, 0, 0, 0];
+      for (let k = 0; k < q; k++) {
+        const [ar, ai] = at(a, q, i, k), [br, bi] = at(b, r, k, j), [cr, ci] = at(c, p, k, i);
+        x += ar * br - ai * bi; y += ar * bi + ai * br;
+        u += cr * br + ci * bi; v += cr * bi - ci * br;
+      }
+      close(at(ab, r, i, j), [x, y]);
+      close(at(cb, r, i, j), [u, v]);
+    }
+    const m = 21, s1 = rand(m * m), s2 = rand(m * m);
+    const sh = multiplyAdjoint(m, s1, s2, new Float64Array(2 * m * m));
+    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
+      let [x, y] = [0, 0];
+      for (let k = 0; k < m; k++) {
+        const [ar, ai] = at(s1, m, i, k), [br, bi] = at(s2, m, j, k);
+        x += ar * br + ai * bi; y += ai * br - ar * bi;
+      }
+      close(at(sh, m, i, j), [x, y]);
+    }
+    const n = 23, psi = rand(n * m), dr = Float64Array.from({ length: n }, () => rng.centred(2)), di = Float64Array.from({ length: n }, () => rng.centred(2));
+    const comp = compressDiagonal(n, m, psi, dr, di, new Float64Array(2 * m * m));
+    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) {
+      let [x, y] = [0, 0];
+      for (let k = 0; k < n; k++) {
+        const [pr, pi] = at(psi, m, k, i), [qr, qi] = at(psi, m, k, j);
+        const [tr, ti] = [dr[k] * qr - di[k] * qi, dr[k] * qi + di[k] * qr];
+        x += pr * tr + pi * ti; y += pr * ti - pi * tr;
+      }
+      close(at(comp, m, i, j), [x, y]);
+    }
   });
 });
 
