@@ -10,17 +10,19 @@ import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
 import { ModelError, show } from '../model/errors.js';
 import { bottCost, bottIndex, type BottOptions } from './bott.js';
-import { chebyshevMarker, chebyshevMarkerCost, type ChebyshevMarkerOptions } from './kpm-marker.js';
-import { localMarker, localMarkerCost, type LocalMarkerOptions } from './marker.js';
+import { chernMarker, chernMarkerCost, type ChernMarkerOptions } from './chern-marker.js';
 import { checkSeed } from './random.js';
 import { spinBottIndex, type SpinBottOptions } from './spin-bott.js';
 import { chainWinding, chainWindingCost, type ChainWindingOptions } from './winding.js';
 
 /** The diagnostics an ensemble can average, and the number each contributes. */
-export type EnsembleDiagnostic = 'bott' | 'spin-bott' | 'chain-winding' | 'local-marker' | 'chebyshev-marker';
+export type EnsembleDiagnostic = 'bott' | 'spin-bott' | 'chain-winding' | 'local-marker';
 
-export type EnsembleOptions = (BottOptions & SpinBottOptions & ChainWindingOptions & LocalMarkerOptions & ChebyshevMarkerOptions) & {
-  /** Which diagnostic: the Bott index, spin Bott index, chain winding, or the mean marker over `cells`. */
+export type EnsembleOptions = (BottOptions & SpinBottOptions & ChainWindingOptions & ChernMarkerOptions) & {
+  /**
+   * Which diagnostic: the Bott index, spin Bott index, chain winding, or the local Chern marker
+   * (chern-marker.ts, dense or Chebyshev by `method`) averaged over `cells` (default: the centre cell).
+   */
   of: EnsembleDiagnostic;
   /** Members to compute. */
   samples: number;
@@ -47,9 +49,13 @@ const DIAGNOSTICS: Record<EnsembleDiagnostic, { run: (h: BlochHamiltonian, o: En
   bott: { run: (h, o) => bottIndex(h, o).bott, cost: (h, o) => bottCost(h.size, o) },
   'spin-bott': { run: (h, o) => spinBottIndex(h, o).spinBott, cost: (h, o) => bottCost(h.size, o) },
   'chain-winding': { run: (h, o) => chainWinding(h, o).winding, cost: (h, o) => chainWindingCost(h.size, o) },
-  'local-marker': { run: (h, o) => meanOf(localMarker(h, o).marker), cost: (h, o) => localMarkerCost(h.size, o) },
-  'chebyshev-marker': { run: (h, o) => meanOf(chebyshevMarker(h, o).marker), cost: (h, o) => chebyshevMarkerCost(h.size, h.spec.terms.length, o) },
+  'local-marker': { run: (h, o) => meanOf(chernMarker(h, withCentre(o)).marker), cost: (h, o) => chernMarkerCost(h.size, h.spec.terms.length, withCentre(o)) },
 };
+
+/** The marker's cells, or the centre cell (a dense marker would otherwise average the whole sample, which is 0). */
+function withCentre(o: EnsembleOptions): EnsembleOptions {
+  return o.cells !== undefined || !Array.isArray(o.sizes) ? o : { ...o, cells: [o.sizes.map((s) => Math.floor(s / 2))] };
+}
 
 function meanOf(x: Float64Array): number | null {
   const mean = x.reduce((a, b) => a + b, 0) / x.length;

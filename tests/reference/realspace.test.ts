@@ -355,7 +355,7 @@ describe('ensembles', () => {
   });
 
   it('shards resume by member index and join to the unsplit ensemble', () => {
-    const opts = { of: 'chebyshev-marker' as const, sizes: [12, 12], onsiteDisorder: 4, order: 200, seed: 40 };
+    const opts = { of: 'local-marker' as const, method: 'chebyshev' as const, sizes: [12, 12], onsiteDisorder: 4, order: 200, seed: 40 };
     const whole = disorderEnsemble(h, { ...opts, samples: 5 });
     const joined = joinEnsembles([disorderEnsemble(h, { ...opts, first: 3, samples: 2 }), disorderEnsemble(h, { ...opts, samples: 3 })]);
     expect(joined.values).toEqual(whole.values);
