@@ -6,7 +6,9 @@
  * Fermi energy rule (default): half filling, the floor(n/2) lowest states of the n orbitals kept,
  * and E_F in the middle between the highest of them and the next. An explicit E_F outside the
  * sample's spectrum is refused; one on an eigenvalue (within the gap tolerance) makes the
- * projector ambiguous and every invariant built on it null.
+ * projector ambiguous and every invariant built on it null. A nearly closed gap is warned about on
+ * periodic samples only: an open sample of a topological phase always has edge states at E_F, and
+ * its gap there is their level spacing, which says nothing about the bulk.
  */
 import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ModelError, show } from '../model/errors.js';
