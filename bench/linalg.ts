@@ -132,7 +132,7 @@ const TASKSET = '/usr/bin/taskset';
  * sides on different CPUs the ratio would measure that instead of the solvers. Without Linux's
  * taskset, nothing is pinned.
  */
-async function sameCpu<T>(run: (cpu: string | null) => Promise<T>): Promise<T> {
+export async function sameCpu<T>(run: (cpu: string | null) => Promise<T>): Promise<T> {
   const pid = String(process.pid);
   const current = existsSync(TASKSET) ? spawnSync(TASKSET, ['-pc', pid], { encoding: 'utf8' }) : null;
   const allowed = current?.status === 0 ? current.stdout.split(':').pop()?.trim() ?? '' : '';

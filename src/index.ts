@@ -65,3 +65,18 @@ export { ComplexPfaffian, pfaffian } from './linalg/pfaffian.js';
 
 // Interruption of long loops
 export { InterruptedError, checkInterrupt, installInterruptFlag } from './interrupt.js';
+
+// Real-space samples and invariants (disorder, finite samples, Chebyshev expansion)
+export { SeededRandom, checkSeed } from './realspace/random.js';
+export { matvec, toDense, gershgorinBounds, TripletList, type SparseMatrix } from './realspace/sparse.js';
+export { buildSample, sampleCost, checkSampleOptions, type Sample, type SampleOptions, type Boundary, type DisorderDescription } from './realspace/sample.js';
+export { occupiedStates, spectrumAtFermi, type FermiOptions, type SpectrumAtFermi, type OccupiedStates } from './realspace/occupied.js';
+export { bottIndex, bottOfSample, bottCost, type BottOptions, type BottResult, type BottChecks } from './realspace/bott.js';
+export { spinBottIndex, spinBottOfSample, type SpinBottOptions, type SpinBottResult, type SpinBottChecks } from './realspace/spin-bott.js';
+export { chainWinding, chainWindingCost, type ChainWindingOptions, type ChainWindingResult } from './realspace/winding.js';
+export { localMarker, markerOfSample, localMarkerCost, type LocalMarkerOptions, type LocalMarkerResult } from './realspace/marker.js';
+export { chebyshevMarker, chebyshevMarkerOfSample, chebyshevMarkerCost, cleanGapMiddle, type ChebyshevMarkerOptions } from './realspace/kpm-marker.js';
+export { chernMarker, chernMarkerCost, type ChernMarkerOptions } from './realspace/chern-marker.js';
+export { localDensity, densityOfSample, localDensityCost, type LocalDensityOptions, type LocalDensityResult } from './realspace/ldos.js';
+export { chebyshevScaling, chebyshevApply, jacksonKernel, stepCoefficients, deltaCoefficients, localMoments, type ChebyshevScaling } from './realspace/kpm.js';
+export { disorderEnsemble, ensembleOf, joinEnsembles, ensembleCost, type EnsembleDiagnostic, type EnsembleOptions, type EnsembleResult } from './realspace/ensemble.js';
