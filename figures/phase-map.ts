@@ -2,6 +2,8 @@
  * Phase map over one or two parameters: the invariant as discrete colours with a legend, the gap
  * as contour lines, gapless grid points crossed out, refined boundary points, and the current
  * parameter point as a marker the user can drag (the view enables shape dragging for this figure).
+ * A map of a quantity that is not quantised (a gap, a disorder average) is drawn as a continuous
+ * colour map instead, with a colour bar.
  */
 import type { Data, Layout } from './plotly-json.js';
 import type { DiagnosticResult } from '../contract/protocol.js';
@@ -14,6 +16,7 @@ interface Axis {
 
 interface PhaseMapData {
   invariant: string;
+  quantised: boolean;
   axes: Axis[];
   values: (number | null)[];
   gaps: number[];
@@ -30,6 +33,8 @@ function read(result: DiagnosticResult): PhaseMapData {
   }
   return {
     invariant: typeof result.invariant === 'string' ? result.invariant : 'invariant',
+    // Older saved maps carry no flag: only their gap maps were continuous.
+    quantised: typeof result.quantised === 'boolean' ? result.quantised : result.invariant !== 'gap',
     axes,
     values,
     gaps: Array.from(gaps),
@@ -37,7 +42,11 @@ function read(result: DiagnosticResult): PhaseMapData {
   };
 }
 
-const SYMBOL: Record<string, string> = { chern: 'C', z2: 'Z₂', winding: 'W', majorana: 'M', gap: 'gap' };
+const SYMBOL: Record<string, string> = {
+  chern: 'C', z2: 'Z₂', winding: 'W', majorana: 'M', gap: 'gap', bott: 'B', 'spin-bott': 'B_s', 'chain-winding': 'W', ensemble: 'mean',
+};
+/** A continuous map's colours: low light, high dark. */
+const CONTINUOUS: [number, string][] = [[0, '#f4f1ea'], [0.5, '#7fa6c9'], [1, '#1f3d63']];
 /** Colours per invariant value: trivial (0) light, the others distinct. */
 const TRIVIAL = '#e9e6df';
 const PALETTE = ['#3b6ea8', '#d9822b', '#4f9a5a', '#b5445b', '#7d5ba6', '#8c6d31', '#5b9aa8', '#c4a000'];
@@ -54,6 +63,7 @@ export const PHASE_POINT_SHAPE = 'current-point';
 
 export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
   const m = read(result);
+  if (!m.quantised) return continuousMapFigure(m, ctx);
   const sym = SYMBOL[m.invariant] ?? m.invariant;
   const distinct = [...new Set(m.values.filter((v): v is number => v !== null))].sort((a, b) => a - b);
   const colours = phaseColours(distinct);
@@ -178,6 +188,42 @@ export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Fi
     invariant: here ?? null,
     // Gapless grid points are part of the picture (crossed out); the flag is for the current point.
     gapless: here === null,
+  };
+}
+
+/** A map of a quantity that is not quantised: values as a colour map (2D) or a curve (1D). */
+function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
+  const sym = SYMBOL[m.invariant] ?? m.invariant;
+  const [ax0, ax1] = m.axes;
+  const unitOf = (param: string) => ctx.spec.parameters[param]?.unit ?? '';
+  const finite = m.values.filter((v): v is number => v !== null && Number.isFinite(v));
+  const range = finite.length ? `${fmt(Math.min(...finite))} to ${fmt(Math.max(...finite))}` : 'no value';
+  const n0 = ax0.values.length;
+  const data: Data[] = ax1 === undefined
+    ? [{ type: 'scatter', mode: 'lines+markers', x: ax0.values, y: m.values, line: { color: PALETTE[0] }, name: sym, hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g}<extra></extra>` }]
+    : [{
+        type: 'heatmap',
+        x: ax0.values,
+        y: ax1.values,
+        z: ax1.values.map((_, j) => ax0.values.map((__, i) => m.values[j * n0 + i])),
+        colorscale: CONTINUOUS,
+        colorbar: { title: { text: sym } },
+        name: sym,
+        hovertemplate: `${ax0.param} = %{x:.4g}<br>${ax1.param} = %{y:.4g}<br>${sym} = %{z:.4g}<extra></extra>`,
+      }];
+  const here = locate(m, ctx.values);
+  const hereText = here === undefined ? '' : ` · here: ${here === null ? 'none' : fmt(here)}`;
+  return {
+    data,
+    layout: {
+      ...BASE_LAYOUT,
+      title: titled(`Map of ${sym} — ${range}`),
+      xaxis: { title: { text: withUnit(ax0.param, unitOf(ax0.param)) }, zeroline: false },
+      yaxis: { title: { text: ax1 ? withUnit(ax1.param, unitOf(ax1.param)) : sym }, zeroline: false },
+    },
+    summary: `${sym}: ${range}${hereText}`,
+    invariant: null,
+    gapless: false,
   };
 }
 

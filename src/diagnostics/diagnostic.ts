@@ -53,6 +53,11 @@ export interface Diagnostic<O = object, R extends ResultBase = ResultBase> {
   /** What a phase map reads at each point; absent when the kind cannot be swept. */
   sweep?(result: R): PointOutcome;
   /**
+   * False when the swept value is not quantised (a gap, an average): its phase map is a continuous
+   * map, with no boundaries between values to locate. Default true.
+   */
+  readonly quantised?: boolean;
+  /**
    * Results computed in parts (the `part: {index, count}` option) and joined exactly: the rows a
    * request has, so a host knows how many parts are worth making. Absent when it does not split.
    */

@@ -10,13 +10,19 @@ import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import type { Diagnostic, OwnOptions } from './diagnostic.js';
 import { bands } from './kinds/bands.js';
 import { berryPhase } from './kinds/berry-phase.js';
+import { bott } from './kinds/bott.js';
+import { chainWinding } from './kinds/chain-winding.js';
 import { chern } from './kinds/chern.js';
 import { curvature } from './kinds/curvature.js';
+import { ensemble } from './kinds/ensemble.js';
 import { gapClosings } from './kinds/gap-closings.js';
 import { gap } from './kinds/gap.js';
 import { hall } from './kinds/hall.js';
+import { localDensity } from './kinds/local-density.js';
+import { localMarker } from './kinds/local-marker.js';
 import { majorana } from './kinds/majorana.js';
 import { ribbon } from './kinds/ribbon.js';
+import { spinBott } from './kinds/spin-bott.js';
 import { spinChern } from './kinds/spin-chern.js';
 import { wannierFlow } from './kinds/wannier-flow.js';
 import { weyl } from './kinds/weyl.js';
@@ -38,6 +44,13 @@ export const DIAGNOSTICS = {
   majorana,
   weyl,
   hall,
+  // Finite, possibly disordered samples (src/realspace/).
+  bott,
+  'spin-bott': spinBott,
+  'chain-winding': chainWinding,
+  'local-marker': localMarker,
+  'local-density': localDensity,
+  ensemble,
 } as const;
 
 type Registry = typeof DIAGNOSTICS;

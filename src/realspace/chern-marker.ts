@@ -6,7 +6,7 @@
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { chebyshevMarker, chebyshevMarkerCost, type ChebyshevMarkerOptions } from './kpm-marker.js';
 import { localMarker, localMarkerCost, type LocalMarkerOptions, type LocalMarkerResult } from './marker.js';
 
@@ -19,7 +19,7 @@ const DENSE_LIMIT = 2000;
 
 function chooseMethod(orbitals: number, options: ChernMarkerOptions): 'dense' | 'chebyshev' {
   const m = options.method;
-  if (m !== undefined && m !== 'dense' && m !== 'chebyshev') throw new ModelError('method', `expected "dense" or "chebyshev". Value: ${show(m)}`);
+  if (m !== undefined && m !== 'dense' && m !== 'chebyshev') throw new ModelError('method', `expected "dense" or "chebyshev". Value: ${valueText(m)}`);
   if (m !== undefined) return m;
   const cells = Array.isArray(options.sizes) ? options.sizes.reduce((a, b) => a * (typeof b === 'number' && b > 0 ? b : 1), 1) : 1;
   return cells * orbitals <= DENSE_LIMIT ? 'dense' : 'chebyshev';
@@ -31,9 +31,9 @@ export function chernMarkerCost(orbitals: number, terms: number, options: ChernM
 
 export function chernMarker(h: BlochHamiltonian, options: ChernMarkerOptions): LocalMarkerResult {
   if (chooseMethod(h.size, options) === 'dense') {
-    if (options.order !== undefined) throw new ModelError('order', `the dense method has no expansion order. Value: ${show(options.order)}`);
+    if (options.order !== undefined) throw new ModelError('order', `the dense method has no expansion order. Value: ${valueText(options.order)}`);
     return localMarker(h, options);
   }
-  if (options.gapTolerance !== undefined) throw new ModelError('gapTolerance', `the Chebyshev method has no gap tolerance (it reports the local density at E_F). Value: ${show(options.gapTolerance)}`);
+  if (options.gapTolerance !== undefined) throw new ModelError('gapTolerance', `the Chebyshev method has no gap tolerance (it reports the local density at E_F). Value: ${valueText(options.gapTolerance)}`);
   return chebyshevMarker(h, options);
 }

@@ -8,7 +8,7 @@
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { bottCost, bottIndex, type BottOptions } from './bott.js';
 import { chernMarker, chernMarkerCost, type ChernMarkerOptions } from './chern-marker.js';
 import { checkSeed } from './random.js';
@@ -45,11 +45,12 @@ export interface EnsembleResult {
   checks: { warnings: string[]; nulls: number };
 }
 
-const DIAGNOSTICS: Record<EnsembleDiagnostic, { run: (h: BlochHamiltonian, o: EnsembleOptions) => number | null; cost: (h: BlochHamiltonian, o: EnsembleOptions) => CostEstimate }> = {
-  bott: { run: (h, o) => bottIndex(h, o).bott, cost: (h, o) => bottCost(h.size, o) },
-  'spin-bott': { run: (h, o) => spinBottIndex(h, o).spinBott, cost: (h, o) => bottCost(h.size, o) },
-  'chain-winding': { run: (h, o) => chainWinding(h, o).winding, cost: (h, o) => chainWindingCost(h.size, o) },
-  'local-marker': { run: (h, o) => meanOf(chernMarker(h, withCentre(o)).marker), cost: (h, o) => chernMarkerCost(h.size, h.spec.terms.length, withCentre(o)) },
+/** What each member computes, and its cost from the model's orbital and term counts. */
+const MEMBERS: Record<EnsembleDiagnostic, { run: (h: BlochHamiltonian, o: EnsembleOptions) => number | null; cost: (orbitals: number, terms: number, o: EnsembleOptions) => CostEstimate }> = {
+  bott: { run: (h, o) => bottIndex(h, o).bott, cost: (n, _t, o) => bottCost(n, o) },
+  'spin-bott': { run: (h, o) => spinBottIndex(h, o).spinBott, cost: (n, _t, o) => bottCost(n, o) },
+  'chain-winding': { run: (h, o) => chainWinding(h, o).winding, cost: (n, _t, o) => chainWindingCost(n, o) },
+  'local-marker': { run: (h, o) => meanOf(chernMarker(h, withCentre(o)).marker), cost: (n, t, o) => chernMarkerCost(n, t, withCentre(o)) },
 };
 
 /** The marker's cells, or the centre cell (a dense marker would otherwise average the whole sample, which is 0). */
@@ -63,18 +64,18 @@ function meanOf(x: Float64Array): number | null {
 }
 
 function checkCount(x: unknown, field: string, min: number): number {
-  if (typeof x !== 'number' || !Number.isInteger(x) || x < min) throw new ModelError(field, `expected an integer of at least ${min}. Value: ${show(x)}`);
+  if (typeof x !== 'number' || !Number.isInteger(x) || x < min) throw new ModelError(field, `expected an integer of at least ${min}. Value: ${valueText(x)}`);
   return x;
 }
 
 function checkDiagnostic(of: unknown): EnsembleDiagnostic {
-  if (typeof of !== 'string' || !(of in DIAGNOSTICS)) throw new ModelError('of', `expected one of ${Object.keys(DIAGNOSTICS).join(', ')}. Value: ${show(of)}`);
+  if (typeof of !== 'string' || !Object.hasOwn(MEMBERS, of)) throw new ModelError('of', `expected one of ${Object.keys(MEMBERS).join(', ')}. Value: ${valueText(of)}`);
   return of as EnsembleDiagnostic;
 }
 
 /** One member's memory (members run one after another) and all members' time. */
-export function ensembleCost(h: BlochHamiltonian, options: EnsembleOptions): CostEstimate {
-  const one = DIAGNOSTICS[checkDiagnostic(options.of)].cost(h, options);
+export function ensembleCost(orbitals: number, terms: number, options: EnsembleOptions): CostEstimate {
+  const one = MEMBERS[checkDiagnostic(options.of)].cost(orbitals, terms, options);
   return { bytes: one.bytes, seconds: one.seconds * (typeof options.samples === 'number' ? options.samples : 1) };
 }
 
@@ -106,7 +107,7 @@ export function disorderEnsemble(h: BlochHamiltonian, options: EnsembleOptions):
   const first = checkCount(options.first ?? 0, 'first', 0);
   const seed = checkSeed(options.seed ?? 0);
   if (!Number.isSafeInteger(seed + first + samples)) throw new ModelError('seed', `seed + first + samples must stay below 2^53. Value: ${seed}`);
-  const { run } = DIAGNOSTICS[of];
+  const { run } = MEMBERS[of];
   return ensembleOf(of, (s) => run(h, { ...options, seed: s }), seed, first, samples);
 }
 

@@ -8,7 +8,7 @@
  * at a time: memory is linear in the sample.
  */
 import { checkInterrupt } from '../interrupt.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { gershgorinBounds, matvec, type SparseMatrix } from './sparse.js';
 
 export interface ChebyshevScaling {
@@ -59,13 +59,13 @@ export function deltaCoefficients(x0: number, order: number): Float64Array {
 
 export function checkOrder(order: unknown, fallback: number): number {
   const n = order ?? fallback;
-  if (typeof n !== 'number' || !Number.isInteger(n) || n < 2 || n > 1e6) throw new ModelError('order', `expected an integer from 2 to 1e6 (Chebyshev moments). Value: ${show(order)}`);
+  if (typeof n !== 'number' || !Number.isInteger(n) || n < 2 || n > 1e6) throw new ModelError('order', `expected an integer from 2 to 1e6 (Chebyshev moments). Value: ${valueText(order)}`);
   return n;
 }
 
 /** The scaled coordinate of an energy, refusing one outside the Gershgorin bounds. */
 export function scaledEnergy(energy: number, s: ChebyshevScaling, field: string): number {
-  if (typeof energy !== 'number' || !Number.isFinite(energy)) throw new ModelError(field, `expected a finite number. Value: ${show(energy)}`);
+  if (typeof energy !== 'number' || !Number.isFinite(energy)) throw new ModelError(field, `expected a finite number. Value: ${valueText(energy)}`);
   if (energy <= s.bounds[0] || energy >= s.bounds[1]) {
     throw new ModelError(field, `outside the sample's spectrum, which lies within [${s.bounds[0]}, ${s.bounds[1]}] (Gershgorin bounds). Value: ${energy}`);
   }

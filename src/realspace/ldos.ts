@@ -14,7 +14,7 @@
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { refuseIfTooLarge } from './budget.js';
 import { chebyshevApply, chebyshevScaling, checkOrder, deltaCoefficients, localMoments, scaledEnergy } from './kpm.js';
 import { cellIndex, checkCells, chosenCells, edgeDistance } from './marker.js';
@@ -57,7 +57,7 @@ export interface LocalDensityResult {
 
 function checkProbes(p: unknown): number {
   const n = p ?? 32;
-  if (typeof n !== 'number' || !Number.isInteger(n) || n < 2) throw new ModelError('probes', `expected an integer of at least 2 (random vectors). Value: ${show(p)}`);
+  if (typeof n !== 'number' || !Number.isInteger(n) || n < 2) throw new ModelError('probes', `expected an integer of at least 2 (random vectors). Value: ${valueText(p)}`);
   return n;
 }
 
@@ -78,8 +78,8 @@ export function localDensity(h: BlochHamiltonian, options: LocalDensityOptions):
   const chosen = checkCells(options.cells, checked.sizes);
   const probes = chosen === null ? checkProbes(options.probes) : null;
   const method = options.method ?? 'chebyshev';
-  if (method !== 'chebyshev' && method !== 'dense') throw new ModelError('method', `expected "chebyshev" or "dense". Value: ${show(method)}`);
-  if (typeof options.energy !== 'number' || !Number.isFinite(options.energy)) throw new ModelError('energy', `expected a finite number. Value: ${show(options.energy)}`);
+  if (method !== 'chebyshev' && method !== 'dense') throw new ModelError('method', `expected "chebyshev" or "dense". Value: ${valueText(method)}`);
+  if (typeof options.energy !== 'number' || !Number.isFinite(options.energy)) throw new ModelError('energy', `expected a finite number. Value: ${valueText(options.energy)}`);
   refuseIfTooLarge(`the local density (${method})`, checked.sizes, (sizes) => localDensityCost(h.size, h.spec.terms.length, { ...options, sizes }));
   return densityOfSample(buildSample(h, options), options.energy, order, chosen, probes, method, checked.seed);
 }

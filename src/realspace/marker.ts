@@ -16,7 +16,7 @@
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { refuseIfTooLarge } from './budget.js';
 import { bottCost, checkTwoDimensional } from './bott.js';
 import { checkFermiOptions, occupiedStates, type FermiOptions, type SpectrumAtFermi } from './occupied.js';
@@ -50,10 +50,10 @@ export interface LocalMarkerResult {
 /** Validates the chosen cells against the sample sizes; null means all cells. */
 export function checkCells(cells: unknown, sizes: number[]): number[][] | null {
   if (cells === undefined) return null;
-  if (!Array.isArray(cells) || cells.length === 0) throw new ModelError('cells', `expected a nonempty list of cells. Value: ${show(cells)}`);
+  if (!Array.isArray(cells) || cells.length === 0) throw new ModelError('cells', `expected a nonempty list of cells. Value: ${valueText(cells)}`);
   cells.forEach((c, i) => {
     if (!Array.isArray(c) || c.length !== sizes.length || c.some((x, j) => !Number.isInteger(x) || x < 0 || x >= sizes[j])) {
-      throw new ModelError(`cells[${i}]`, `expected ${sizes.length} cell indices within ${show(sizes)}. Value: ${show(c)}`);
+      throw new ModelError(`cells[${i}]`, `expected ${sizes.length} cell indices within ${valueText(sizes)}. Value: ${valueText(c)}`);
     }
   });
   return cells as number[][];

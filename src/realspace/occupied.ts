@@ -11,7 +11,7 @@
  * its gap there is their level spacing, which says nothing about the bulk.
  */
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { Sample } from './sample.js';
 import { toDense } from './sparse.js';
 
@@ -49,9 +49,9 @@ export interface OccupiedStates {
 /** Checks the Fermi options without a spectrum (before anything is built). */
 export function checkFermiOptions(options: FermiOptions): void {
   const e = options.fermiEnergy;
-  if (e !== undefined && (typeof e !== 'number' || !Number.isFinite(e))) throw new ModelError('fermiEnergy', `expected a finite number. Value: ${show(e)}`);
+  if (e !== undefined && (typeof e !== 'number' || !Number.isFinite(e))) throw new ModelError('fermiEnergy', `expected a finite number. Value: ${valueText(e)}`);
   const t = options.gapTolerance;
-  if (t !== undefined && (typeof t !== 'number' || !(t >= 0) || !Number.isFinite(t))) throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${show(t)}`);
+  if (t !== undefined && (typeof t !== 'number' || !(t >= 0) || !Number.isFinite(t))) throw new ModelError('gapTolerance', `expected a nonnegative number. Value: ${valueText(t)}`);
 }
 
 /** The Fermi energy and the checks around it, from an ascending spectrum. */

@@ -5,12 +5,12 @@
  * 128-bit state filled from the seed by splitmix64 (Steele, Lea & Flood, OOPSLA 2014), as the
  * xoshiro authors recommend. Doubles take 53 random bits from two outputs.
  */
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 
 /** A seed must be a nonnegative safe integer (it travels in JSON requests and plans). */
 export function checkSeed(seed: unknown, field = 'seed'): number {
   if (typeof seed !== 'number' || !Number.isSafeInteger(seed) || seed < 0) {
-    throw new ModelError(field, `expected a nonnegative integer (at most 2^53 - 1). Value: ${show(seed)}`);
+    throw new ModelError(field, `expected a nonnegative integer (at most 2^53 - 1). Value: ${valueText(seed)}`);
   }
   return seed;
 }

@@ -21,7 +21,7 @@
  */
 import type { BlochHamiltonian, Hoppings } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
 import { refuseIfTooLarge } from './budget.js';
 import { checkSeed, SeededRandom } from './random.js';
@@ -91,29 +91,29 @@ interface Checked {
 
 function nonnegative(value: unknown, field: string, fallback: number): number {
   if (value === undefined) return fallback;
-  if (typeof value !== 'number' || !Number.isFinite(value) || value < 0) throw new ModelError(field, `expected a nonnegative number. Value: ${show(value)}`);
+  if (typeof value !== 'number' || !Number.isFinite(value) || value < 0) throw new ModelError(field, `expected a nonnegative number. Value: ${valueText(value)}`);
   return value;
 }
 
 /** Validates the sample options against a model with `dim` periodic directions. */
 export function checkSampleOptions(options: SampleOptions, dim: number): Checked {
-  if (options === null || typeof options !== 'object') throw new ModelError('options', `expected an object. Value: ${show(options)}`);
+  if (options === null || typeof options !== 'object') throw new ModelError('options', `expected an object. Value: ${valueText(options)}`);
   if (dim < 1) throw new ModelError('model', 'a real-space sample needs a model with at least one periodic direction');
   const sizes = options.sizes;
-  if (!Array.isArray(sizes) || sizes.length !== dim) throw new ModelError('sizes', `expected ${dim} cell counts, one per periodic direction. Value: ${show(sizes)}`);
+  if (!Array.isArray(sizes) || sizes.length !== dim) throw new ModelError('sizes', `expected ${dim} cell counts, one per periodic direction. Value: ${valueText(sizes)}`);
   sizes.forEach((s, i) => {
-    if (typeof s !== 'number' || !Number.isInteger(s) || s < 1) throw new ModelError(`sizes[${i}]`, `expected a positive integer number of cells. Value: ${show(s)}`);
+    if (typeof s !== 'number' || !Number.isInteger(s) || s < 1) throw new ModelError(`sizes[${i}]`, `expected a positive integer number of cells. Value: ${valueText(s)}`);
   });
   const b = options.boundary ?? 'open';
   const boundary = typeof b === 'string' ? new Array<Boundary>(dim).fill(b) : b;
   if (!Array.isArray(boundary) || boundary.length !== dim || boundary.some((x) => x !== 'open' && x !== 'periodic')) {
-    throw new ModelError('boundary', `expected "open", "periodic" or one of them per direction (${dim}). Value: ${show(b)}`);
+    throw new ModelError('boundary', `expected "open", "periodic" or one of them per direction (${dim}). Value: ${valueText(b)}`);
   }
   const vacancies = nonnegative(options.vacancies, 'vacancies', 0);
-  if (vacancies >= 1) throw new ModelError('vacancies', `expected a fraction in [0, 1). Value: ${show(vacancies)}`);
+  if (vacancies >= 1) throw new ModelError('vacancies', `expected a fraction in [0, 1). Value: ${valueText(vacancies)}`);
   const decay = options.decayLength;
   if (decay !== undefined && (typeof decay !== 'number' || !(decay > 0) || !Number.isFinite(decay))) {
-    throw new ModelError('decayLength', `expected a positive length. Value: ${show(decay)}`);
+    throw new ModelError('decayLength', `expected a positive length. Value: ${valueText(decay)}`);
   }
   return {
     sizes: [...sizes],
@@ -186,7 +186,7 @@ export function buildSample(h: BlochHamiltonian, options: SampleOptions): Sample
   const hop = h.hoppings();
   for (let t = 0; t < hop.count; t++) {
     for (let j = dim; j < hop.cellDim; j++) {
-      if (hop.cells[t * hop.cellDim + j] !== 0) throw new ModelError(`terms[${t}].cell`, `a term crosses an open direction of the model. Value: ${show(Array.from(hop.cells.subarray(t * hop.cellDim, (t + 1) * hop.cellDim)))}`);
+      if (hop.cells[t * hop.cellDim + j] !== 0) throw new ModelError(`terms[${t}].cell`, `a term crosses an open direction of the model. Value: ${valueText(Array.from(hop.cells.subarray(t * hop.cellDim, (t + 1) * hop.cellDim)))}`);
     }
   }
   const { site: siteOf, count: sitesPerCell } = modelSites(spec);

@@ -16,7 +16,7 @@
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
 import { HermitianEigensolver } from '../linalg/eigh.js';
-import { ModelError, show } from '../model/errors.js';
+import { ModelError, valueText } from '../model/errors.js';
 import { refuseIfTooLarge } from './budget.js';
 import { denseSampleBytes, denseSolveSeconds } from './occupied.js';
 import { buildSample, checkSampleOptions, type Boundary, type DisorderDescription, type Sample, type SampleOptions } from './sample.js';
@@ -58,11 +58,11 @@ function sublattices(h: BlochHamiltonian, given: string[] | undefined): Uint8Arr
   const labels = h.spec.orbitals.map((o) => o.label);
   const colour = new Uint8Array(h.size);
   if (given !== undefined) {
-    if (!Array.isArray(given) || given.length === 0) throw new ModelError('sublattice', `expected a nonempty list of orbital labels. Value: ${show(given)}`);
+    if (!Array.isArray(given) || given.length === 0) throw new ModelError('sublattice', `expected a nonempty list of orbital labels. Value: ${valueText(given)}`);
     colour.fill(1);
     for (const g of given) {
       const i = labels.indexOf(g);
-      if (i < 0) throw new ModelError('sublattice', `unknown orbital ${show(g)}; the model's orbitals are ${show(labels)}`);
+      if (i < 0) throw new ModelError('sublattice', `unknown orbital ${valueText(g)}; the model's orbitals are ${valueText(labels)}`);
       colour[i] = 0;
     }
     return colour;
@@ -103,7 +103,7 @@ export function chainWinding(h: BlochHamiltonian, options: ChainWindingOptions):
   const checked = checkSampleOptions(options, 1);
   const periodic = checked.boundary[0] === 'periodic';
   const fraction = options.window ?? (periodic ? 1 : 0.5);
-  if (typeof fraction !== 'number' || !(fraction > 0 && fraction <= 1)) throw new ModelError('window', `expected a fraction in (0, 1]. Value: ${show(fraction)}`);
+  if (typeof fraction !== 'number' || !(fraction > 0 && fraction <= 1)) throw new ModelError('window', `expected a fraction in (0, 1]. Value: ${valueText(fraction)}`);
   const colour = sublattices(h, options.sublattice);
   refuseIfTooLarge('the chain winding', checked.sizes, (sizes) => chainWindingCost(h.size, { sizes }));
   const sample = buildSample(h, options);

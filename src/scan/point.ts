@@ -24,6 +24,7 @@ export function pointFunction(target: PointTarget): PointFunction {
       if (Object.hasOwn(h.spec.parameters, name)) params[name] = value;
       else request[name] = value;
     }
-    return sweep(diagnostic.run(h, { ...request, params }));
+    // The diagnostic runs on the compiled model with its values set (diagnostics/diagnostic.ts).
+    return sweep(diagnostic.run(h.setParameters(params), request));
   };
 }

@@ -105,6 +105,8 @@ export interface PhaseMapChecks {
 export interface PhaseMapResult {
   kind: 'phase-map';
   invariant: SweepQuantity;
+  /** False for a continuous map (a gap, an average): its values are not phases. */
+  quantised: boolean;
   axes: PhaseMapAxis[];
   /**
    * Row-major with the first axis fastest: `values[j * n0 + i]` is the invariant at
@@ -217,8 +219,8 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     if (maxRounds !== undefined && (!Number.isInteger(maxRounds) || maxRounds < 0)) {
       throw new ModelError('refine.maxRounds', `expected a whole number >= 0. Value: ${valueText(maxRounds)}`);
     }
-    if (r.invariant === 'gap') {
-      throw new ModelError('refine', 'boundaries are refined between different values of a quantised invariant; a gap map has none (drop refine, or sweep an invariant)');
+    if (diagnosticOf(r.invariant, 'invariant').quantised === false) {
+      throw new ModelError('refine', `boundaries are refined between different values of a quantised invariant; a map of "${r.invariant}" has none (drop refine, or sweep an invariant)`);
     }
   }
   return r as PhaseMapRequest;
@@ -335,7 +337,8 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
   outcomes.forEach((o, n) => {
     if (o.gap < outcomes[minIndex].gap) minIndex = n;
   });
-  const gaplessCount = request.invariant === 'gap' ? 0 : outcomes.filter((o) => o.value === null).length;
+  const quantised = diagnosticOf(request.invariant, 'invariant').quantised !== false;
+  const gaplessCount = quantised ? outcomes.filter((o) => o.value === null).length : 0;
   const doubtful = outcomes.findIndex((o) => o.doubtful === true);
   if (doubtful >= 0) {
     const count = outcomes.filter((o) => o.doubtful === true).length;
@@ -347,6 +350,7 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
   const result: PhaseMapResult = {
     kind: 'phase-map',
     invariant: request.invariant,
+    quantised,
     axes: axes.map((a, i) => ({ param: a.param, from: a.from, to: a.to, count: a.count, values: grids[i] })),
     values: outcomes.map((o) => o.value),
     gaps: outcomes.map((o) => o.gap),

@@ -13,6 +13,8 @@ import { markerOfSample, localMarker } from '../../src/realspace/marker.js';
 import { SeededRandom } from '../../src/realspace/random.js';
 import { buildSample } from '../../src/realspace/sample.js';
 import { setComputeBudget } from '../../src/cost.js';
+import { compute } from '../../src/compute.js';
+import type { PhaseMapResult } from '../../src/scan/sweep.js';
 import { ModelError } from '../../src/model/errors.js';
 import { disorderEnsemble, joinEnsembles } from '../../src/realspace/ensemble.js';
 import { chernMarker } from '../../src/realspace/chern-marker.js';
@@ -422,5 +424,35 @@ describe('bad input: a ModelError naming the field, nothing built', () => {
     expect(r.bott).toBeNull();
     expect(r.checks.gapless).toBe(true);
     expect(r.checks.warnings.join()).toMatch(/eigenvalue lies at the Fermi energy/);
+  });
+});
+
+describe('disorder phase maps through the one request (a swept option: the disorder strength)', () => {
+  // QWZ C = +1 at u = -1 and 0 at u = -3 (Qi, Wu & Zhang, PRB 74, 085308 (2006); references.md sign
+  // convention), so the clean Bott index is 1 and 0 there; strong disorder localises every state and
+  // the averaged index goes to 0 (common practice).
+  const request = {
+    kind: 'phase-map' as const, model: qwz(), invariant: 'ensemble' as const, of: 'bott', samples: 3, sizes: [8, 8], seed: 7,
+    axes: [{ param: 'onsiteDisorder', from: 0, to: 30, count: 2 }, { param: 'u', from: -1, to: -3, count: 2 }],
+  };
+
+  it('maps the averaged Bott index over (W, u): 1 and 0 when clean, near 0 when W is large; a continuous map', () => {
+    const map = compute(request) as PhaseMapResult;
+    expect(map.quantised).toBe(false);
+    const at = (w: number, u: number) => map.values[u * 2 + w];
+    expect(at(0, 0)).toBe(1);
+    expect(at(0, 1)).toBe(0);
+    expect(Math.abs(at(1, 0)!)).toBeLessThan(0.5);
+    expect(() => compute({ ...request, refine: { tolerance: 0.1 } })).toThrow(/^refine: /);
+  });
+
+  it('gives each point the numbers a cell computes for the same seeded samples', () => {
+    const map = compute(request) as PhaseMapResult;
+    const cell = compute({ kind: 'ensemble', model: qwz(), params: { u: -1 }, of: 'bott', samples: 3, sizes: [8, 8], seed: 7, onsiteDisorder: 30 }) as unknown as { mean: number };
+    expect(map.values[1]).toBe(cell.mean);
+  });
+
+  it('refuses an axis that is neither a model parameter nor an option of the swept kind, naming it', () => {
+    expect(() => compute({ ...request, axes: [{ param: 'onsiteDisorderr', from: 0, to: 1, count: 2 }] })).toThrow(/^axes\[0\]\.param: .*no parameter "onsiteDisorderr"/);
   });
 });

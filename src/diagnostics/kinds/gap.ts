@@ -14,5 +14,6 @@ export const gap: SweptDiagnostic<GapOptions, GapResult> = {
   cost: gapGridCost,
   // A gap map's value is the gap itself.
   sweep: (r) => ({ value: r.minGap, gap: r.minGap }),
+  quantised: false,
   headline: ['minGap', 'at'],
 };
