@@ -6,9 +6,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, eigh, haldane, kaneMele, lattice, qwz, ribbonSpectrum, weyl2band,
+  BlochHamiltonian, eigh, haldane, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, weyl2band, type ModelSpec,
 } from '../../src/index.js';
+import { bulkBoundary } from '../../src/surface/bulk-boundary.js';
+import { surfaceMap } from '../../src/surface/fermi-map.js';
 import { principalLayers, splitMatrix } from '../../src/surface/layers.js';
+import { slabSpectrum } from '../../src/surface/slab.js';
 import { surfaceSpectrum } from '../../src/surface/spectrum.js';
 import { numpyDecimation } from './surface-numpy.js';
 
@@ -162,5 +165,159 @@ describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (19
     expect(r.path.dim).toBe(2);
     expect(r.cut.basis).toEqual([[0, 1, 0], [0, 0, 1], [1, 0, 0]]);
     expect(r.bottom.length).toBe(r.path.count * 11);
+  });
+});
+
+/** A ribbon with a trivial band added on its first edge: orbitals hopping -1/2 along the edge (crossing E = 0 at k = ±pi/2), weakly tied to the edge. */
+function withTrivialEdgeBand(spec: ModelSpec, labels: string[], anchor: string): ModelSpec {
+  const s = structuredClone(spec);
+  for (const label of labels) {
+    s.orbitals.push({ label, position: [0, 0], layer: 0 });
+    s.terms.push({ from: label, to: label, cell: [1], amplitude: -0.5 }, { from: anchor, to: label, cell: [0], amplitude: 0.05 });
+  }
+  return s;
+}
+
+describe('bulk–boundary check', () => {
+  it('QWZ: one chiral mode per edge, opposite on the two edges, its direction set by the sign of C, for three cuts (Qi, Wu, Zhang, PRB 74, 085308 (2006))', () => {
+    for (const u of [-1, 1, -3.1, 3]) {
+      const h = new BlochHamiltonian(qwz(), { u });
+      const c = u > -2 && u < 0 ? 1 : u > 0 && u < 2 ? -1 : 0; // references.md
+      for (const cut of [1, 0, [1, 1]] as (number | number[])[]) {
+        const r = bulkBoundary(h, { cut, width: 24, nk: 128 });
+        expect(r.invariant).toEqual({ kind: 'chern', value: c, certified: true });
+        expect(r.verdict).toBe('agree');
+        expect(r.edges.first.modes.length).toBe(Math.abs(c));
+        expect(r.edges.last.modes.length).toBe(Math.abs(c));
+        expect(r.edges.first.net).toBe(-r.edges.last.net);
+        // Our orientation rule: first edge net = -sign(A1 x A2) C (cut 0 swaps the handedness).
+        const [a1, a2] = r.cut.basis;
+        const o = Math.sign(a1[0] * a2[1] - a1[1] * a2[0]);
+        expect(r.edges.first.net).toBe(-o * c + 0);
+      }
+    }
+  });
+
+  it('Haldane: one chiral mode per edge, direction reversed with the sign of phi, none outside |M| < 3 sqrt3 t2 |sin phi| (Haldane, PRL 61, 2015 (1988))', () => {
+    for (const [phi, M, c] of [[Math.PI / 2, 0.2, -1], [-Math.PI / 2, 0.2, 1], [Math.PI / 2, 0.7, 0]] as const) {
+      const r = bulkBoundary(new BlochHamiltonian(haldane(), { phi, M }), { cut: 1, width: 24, nk: 128 });
+      expect(r.invariant.value).toBe(c);
+      expect(r.verdict).toBe('agree');
+      expect(r.edges.first.net).toBe(-c + 0);
+      expect(r.edges.first.modes.length).toBe(Math.abs(c));
+    }
+  });
+
+  it('Kane–Mele: one helical (Kramers) pair per edge in the Z2 phase, none in the trivial one, with Rashba coupling (Kane & Mele, PRL 95, 226801 (2005))', () => {
+    for (const [lambda_v, z2] of [[0.1, 1], [0.5, 0]] as const) {
+      const r = bulkBoundary(new BlochHamiltonian(kaneMele(), { lambda_v, lambda_R: 0.05 }), { cut: 1, width: 24, nk: 128 });
+      expect(r.invariant.kind).toBe('z2');
+      expect(r.invariant.value).toBe(z2);
+      expect(r.verdict).toBe('agree');
+      for (const e of [r.edges.first, r.edges.last]) {
+        expect(e.pairs).toBe(z2);
+        expect([e.right, e.left]).toEqual([z2, z2]);
+      }
+    }
+  });
+
+  it('a ribbon with a trivial edge band added is reported: QWZ an even number (2) of extra modes with the net count right; Kane–Mele two extra Kramers pairs with the parity right (common practice)', () => {
+    const q = bulkBoundary(new BlochHamiltonian(qwz(), { u: -1 }), { cut: 1, ribbon: withTrivialEdgeBand(ribbon(qwz(), 1, 32), ['x'], 'a@0') });
+    expect(q.verdict).toBe('extra-modes');
+    expect(q.edges.first).toMatchObject({ right: 1, left: 2, net: -1, agrees: true, extra: 2 });
+    expect(q.edges.last).toMatchObject({ net: 1, extra: 0 });
+    expect(q.summary).toMatch(/^disagree in number, agree in net chirality: C = 1 .*first edge: 3 modes \(1 right, 2 left\): net -1 as C = 1 requires, plus 2 extra modes in trivial pairs \(an even number\)/);
+    // The trivial band's crossings are counted where -cos(k)/2 = 0: k = ±1/4 x 2pi.
+    expect(q.edges.first.modes.filter((m) => Math.abs(Math.abs(m.k) - 0.25) < 0.02).length).toBe(2);
+    const km = bulkBoundary(new BlochHamiltonian(kaneMele(), { lambda_v: 0.1, lambda_R: 0.05 }), { cut: 1, ribbon: withTrivialEdgeBand(ribbon(kaneMele(), 1, 32), ['x.up', 'x.dn'], 'A.up@0') });
+    expect(km.verdict).toBe('extra-modes');
+    expect(km.edges.first).toMatchObject({ pairs: 3, agrees: true, extra: 4 });
+    expect(km.summary).toMatch(/agree in parity: Z2 = 1 .*3 Kramers pairs\): an odd number of pairs as Z2 = 1 requires, plus 4 extra modes .*2 extra Kramers pairs/);
+  });
+
+  it('a ribbon whose two edges are glued into a cylinder has no edge modes: reported as a disagreement with C = 1', () => {
+    const spec = structuredClone(ribbon(qwz(), 1, 16));
+    // The bulk terms across the seam, from the last layer back to the first: <0,b@0|H|0,a@15>.
+    for (const t of qwz().terms.filter((t) => t.cell[1] === 1)) spec.terms.push({ from: `${t.from}@15`, to: `${t.to}@0`, cell: [t.cell[0]], amplitude: t.amplitude });
+    const r = bulkBoundary(new BlochHamiltonian(qwz(), { u: -1 }), { cut: 1, ribbon: spec });
+    expect(r.verdict).toBe('disagree');
+    expect(r.edges.first).toMatchObject({ modes: [], expected: -1, agrees: false });
+    expect(r.summary).toMatch(/^disagree: C = 1 .*first edge: 0 modes .*but C = 1 requires net -1/);
+  });
+
+  it('bad input: energy in a bulk band or outside the spectrum, a 3D model, a gapless bulk: errors naming the field and value', () => {
+    const h = new BlochHamiltonian(qwz(), { u: -1 });
+    expect(() => bulkBoundary(h, { cut: 1, energy: 1.5 })).toThrow(/^energy: is not inside a bulk gap: bulk band 1 spans \[1\.000, 3\.000\]\. Value: 1.5/);
+    expect(() => bulkBoundary(h, { cut: 1, energy: 9 })).toThrow(/^energy: is not inside a bulk gap: the bulk bands span \[-3\.000, 3\.000\]\. Value: 9/);
+    expect(() => bulkBoundary(h, { cut: 1, width: 1 })).toThrow(/^width: .*Value: 1/);
+    expect(() => bulkBoundary(h, { cut: 1, invariant: 'winding' as 'chern' })).toThrow(/^invariant: .*Value: "winding"/);
+    expect(() => bulkBoundary(new BlochHamiltonian(qwz(), { u: 2 }), { cut: 1 })).toThrow(/^energy: the bulk has no gap between bands 0 and 1/);
+    expect(() => bulkBoundary(new BlochHamiltonian(weyl2band()), { cut: 0 })).toThrow(/^cut: the bulk–boundary count is made on the edges of 2D models/);
+  });
+});
+
+describe('3D surfaces', () => {
+  it('two-band Weyl model: the Fermi arc at E = 0 ends at the surface projections of the two nodes, of opposite chirality (Wan, Turner, Vishwanath & Savrasov, PRB 83, 205101 (2011))', () => {
+    for (const k0 of [Math.PI / 2, 1.0]) {
+      const h = new BlochHamiltonian(weyl2band(), { k0 });
+      const r = surfaceMap(h, { cut: 0, grid: [16, 64], energy: 0, eta: 0.02 });
+      expect(r.nodes.length).toBe(2);
+      const [a, b] = r.nodes;
+      expect(a.chirality! * b.chirality!).toBe(-1);
+      // Nodes at (0, 0, ±k0) project onto (ky, kz) = (0, ±k0) of the surface a2, a3.
+      for (const n of r.nodes) {
+        expect(n.kPar[0]).toBeCloseTo(0, 6);
+        expect(Math.abs(n.kPar[1])).toBeCloseTo(k0 / (2 * Math.PI), 4);
+      }
+      // Along ky = 0 the surface weight is an arc over part of kz: its ends lie within a grid step of the nodes.
+      const [n1, n2] = r.grid;
+      const column = n1 / 2; // ky = 0
+      const on = Array.from({ length: n2 }, (_, j) => r.bottom[j * n1 + column] > 2);
+      const ends: number[] = [];
+      for (let j = 0; j < n2; j++) if (on[j] !== on[(j + 1) % n2]) ends.push(-0.5 + (j + 0.5) / n2);
+      expect(ends.length).toBe(2);
+      const nodeKz = r.nodes.map((n) => n.kPar[1]).sort((x, y) => x - y);
+      ends.sort((x, y) => x - y).forEach((e, i) => expect(Math.abs(e - nodeKz[i])).toBeLessThan(1 / n2));
+      // Away from ky = 0 the surface is dark at E = 0 (the arc is a line, not a sheet).
+      expect(r.bottom[(n2 / 2) * n1 + 2]).toBeLessThan(0.5);
+      // Both terminations carry the arc (the model is inversion symmetric).
+      expect(r.top.filter((x) => x > 2).length).toBe(r.bottom.filter((x) => x > 2).length);
+    }
+  });
+
+  it('a 3D slab: every state\'s layer weights sum to 1, surface states of the arc sit on the outer layers; a 2D slab is the ribbon (spectra/ribbon.ts)', () => {
+    const h = new BlochHamiltonian(weyl2band(), {});
+    const s = slabSpectrum(h, { cut: 0, width: 24, nk: 4, path: [{ label: 'Γ', k: [0, 0] }, { label: 'Z', k: [0, 0.5] }] });
+    for (let i = 0; i < s.path.count * s.bandCount; i++) {
+      let sum = 0;
+      for (let l = 0; l < s.width; l++) sum += s.layerWeights[i * s.width + l];
+      expect(sum).toBeCloseTo(1, 10);
+    }
+    // At (ky, kz) = (0, pi) (on the arc) the two states nearest E = 0 live on the outer two layers; at Γ (off the arc) they do not.
+    const outer = (p: number) => {
+      const e = Array.from({ length: s.bandCount }, (_, b) => [Math.abs(s.energies[p * s.bandCount + b]), b]).sort((x, y) => x[0] - y[0]).slice(0, 2);
+      return e.map(([, b]) => { const w = s.layerWeights.subarray((p * s.bandCount + b) * s.width, (p * s.bandCount + b + 1) * s.width); return w[0] + w[1] + w[s.width - 2] + w[s.width - 1]; });
+    };
+    for (const w of outer(s.path.count - 1)) expect(w).toBeGreaterThan(0.8);
+    for (const w of outer(0)) expect(w).toBeLessThan(0.5);
+    const q = new BlochHamiltonian(qwz(), { u: -1 });
+    const slab = slabSpectrum(q, { cut: 1, width: 12, nk: 21 });
+    const rib = ribbonSpectrum(q, { direction: 1, width: 12, nk: 21, edgeLayers: 1 });
+    slab.energies.forEach((e, i) => expect(e).toBeCloseTo(rib.energies[i], 10));
+    rib.edges.first.forEach((w, i) => expect(slab.layerWeights[i * 12]).toBeCloseTo(w, 8));
+    expect(() => slabSpectrum(q, { cut: [2, 4], width: 12 })).toThrow(/^cut: .*common factor 2/);
+  });
+
+  it('a Miller-index slab equals the supercell ribbon: QWZ cut (1, 1) has the bulk bands folded onto the edge zone (common practice)', () => {
+    const q = new BlochHamiltonian(qwz(), { u: -1 });
+    const s = slabSpectrum(q, { cut: [1, 1], width: 10, nk: 11 });
+    expect(s.bandCount).toBe(20);
+    expect(s.cut.basis).toEqual(principalLayers(q, [1, 1]).basis);
+  });
+
+  it('maps refuse 2D models and energies outside the spectrum, naming the field', () => {
+    expect(() => surfaceMap(new BlochHamiltonian(qwz(), { u: -1 }), { cut: 1 })).toThrow(/^cut: constant-energy surface maps are for 3D models/);
+    expect(() => surfaceMap(new BlochHamiltonian(weyl2band()), { cut: 0, energy: 40, nodes: false })).toThrow(/^energy: lies outside the spectrum.*Value: 40/);
+    expect(() => surfaceMap(new BlochHamiltonian(weyl2band()), { cut: 0, grid: 1 })).toThrow(/^grid: .*Value: 1/);
   });
 });
