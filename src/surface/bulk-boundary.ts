@@ -242,7 +242,7 @@ export function bulkBoundary(h: BlochHamiltonian, options: BulkBoundaryOptions):
     const net = right - left;
     if (value === null) return { modes, right, left, net, pairs: invariantKind === 'z2' ? right : null, expected: null, agrees: null, extra: 0 };
     if (invariantKind === 'chern') {
-      const expected = sign * orientation * value;
+      const expected = sign * orientation * value + 0;
       return { modes, right, left, net, pairs: null, expected, agrees: net === expected, extra: modes.length - Math.abs(expected) };
     }
     const pairs = right;

@@ -189,7 +189,7 @@ describe('bulk–boundary check', () => {
         expect(r.verdict).toBe('agree');
         expect(r.edges.first.modes.length).toBe(Math.abs(c));
         expect(r.edges.last.modes.length).toBe(Math.abs(c));
-        expect(r.edges.first.net).toBe(-r.edges.last.net);
+        expect(r.edges.first.net).toBe(-r.edges.last.net + 0);
         // Our orientation rule: first edge net = -sign(A1 x A2) C (cut 0 swaps the handedness).
         const [a1, a2] = r.cut.basis;
         const o = Math.sign(a1[0] * a2[1] - a1[1] * a2[0]);
