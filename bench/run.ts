@@ -11,6 +11,7 @@ const sections: Record<string, () => Promise<BenchRow[]>> = {
   scan: async () => (await import('./scan.js')).benchScan(),
   kernel: async () => (await import('./kernel.js')).benchKernel(),
   widgets: async () => (await import('./widgets.js')).benchWidgets(),
+  surface: async () => (await import('./surface.js')).benchSurface(),
 };
 
 const chosen = process.argv.slice(2).filter((a) => !a.startsWith('-'));

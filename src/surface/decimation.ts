@@ -120,6 +120,10 @@ export class Decimation {
  * blocks of c at a time, so each loaded element serves two products (1.6x faster at n = 4).
  */
 function multiply(n: number, ar: Float64Array, ai: Float64Array, br: Float64Array, bi: Float64Array, cr: Float64Array, ci: Float64Array): void {
+  if (n === 4) {
+    multiply4(ar, ai, br, bi, cr, ci);
+    return;
+  }
   if (n % 2 === 0) {
     for (let i = 0; i < n; i += 2) {
       const r0 = i * n, r1 = r0 + n;
@@ -154,11 +158,61 @@ function multiply(n: number, ar: Float64Array, ai: Float64Array, br: Float64Arra
   }
 }
 
+/** c = a b for 4 x 4 (a 4-orbital layer, the commonest): a column of b in registers, rows unrolled. */
+function multiply4(ar: Float64Array, ai: Float64Array, br: Float64Array, bi: Float64Array, cr: Float64Array, ci: Float64Array): void {
+  for (let j = 0; j < 4; j++) {
+    const b0r = br[j], b0i = bi[j], b1r = br[4 + j], b1i = bi[4 + j], b2r = br[8 + j], b2i = bi[8 + j], b3r = br[12 + j], b3i = bi[12 + j];
+    for (let i = 0; i < 16; i += 4) {
+      const a0r = ar[i], a0i = ai[i], a1r = ar[i + 1], a1i = ai[i + 1], a2r = ar[i + 2], a2i = ai[i + 2], a3r = ar[i + 3], a3i = ai[i + 3];
+      cr[i + j] = a0r * b0r - a0i * b0i + a1r * b1r - a1i * b1i + a2r * b2r - a2i * b2i + a3r * b3r - a3i * b3i;
+      ci[i + j] = a0r * b0i + a0i * b0r + a1r * b1i + a1i * b1r + a2r * b2i + a2i * b2r + a3r * b3i + a3i * b3r;
+    }
+  }
+}
+
 /**
- * (omega - eps)^{-1} into (gr, gi), omega = energy + i eta: Gauss–Jordan in place with partial
- * pivoting (rows swapped while eliminating, the inverse's columns swapped back at the end).
+ * (omega - eps)^{-1} into (gr, gi), omega = energy + i eta, by Gauss–Jordan in place. eps is H00
+ * plus retarded self-energies (anti-Hermitian part <= 0), so omega - eps has a positive definite
+ * anti-Hermitian part (eta > 0): every leading block is invertible and no pivoting is needed
+ * (times -i, its Hermitian part is positive definite). A pivot that is nevertheless tiny (rounding)
+ * sends the matrix to the pivoting version.
  */
 function resolvent(n: number, er: Float64Array, ei: Float64Array, energy: number, eta: number, gr: Float64Array, gi: Float64Array, piv: Int32Array): void {
+  const nn = n * n;
+  for (let i = 0; i < nn; i++) { gr[i] = -er[i]; gi[i] = -ei[i]; }
+  for (let i = 0; i < n; i++) { gr[i * n + i] += energy; gi[i * n + i] += eta; }
+  const small = 1e-8 * eta * eta;
+  for (let k = 0; k < n; k++) {
+    const rk = k * n;
+    const pr = gr[rk + k], pi = gi[rk + k];
+    const d = pr * pr + pi * pi;
+    if (!(d > small)) {
+      pivotedResolvent(n, er, ei, energy, eta, gr, gi, piv);
+      return;
+    }
+    const ir = pr / d, ii = -pi / d;
+    gr[rk + k] = 1; gi[rk + k] = 0;
+    for (let j = 0; j < n; j++) {
+      const xr = gr[rk + j], xi = gi[rk + j];
+      gr[rk + j] = xr * ir - xi * ii;
+      gi[rk + j] = xr * ii + xi * ir;
+    }
+    for (let i = 0; i < n; i++) {
+      if (i === k) continue;
+      const ri = i * n;
+      const fr = gr[ri + k], fi = gi[ri + k];
+      gr[ri + k] = 0; gi[ri + k] = 0;
+      for (let j = 0; j < n; j++) {
+        const yr = gr[rk + j], yi = gi[rk + j];
+        gr[ri + j] -= fr * yr - fi * yi;
+        gi[ri + j] -= fr * yi + fi * yr;
+      }
+    }
+  }
+}
+
+/** The same with partial pivoting (rows swapped while eliminating, the inverse's columns swapped back). */
+function pivotedResolvent(n: number, er: Float64Array, ei: Float64Array, energy: number, eta: number, gr: Float64Array, gi: Float64Array, piv: Int32Array): void {
   const nn = n * n;
   for (let i = 0; i < nn; i++) { gr[i] = -er[i]; gi[i] = -ei[i]; }
   for (let i = 0; i < n; i++) { gr[i * n + i] += energy; gi[i * n + i] += eta; }
@@ -176,8 +230,6 @@ function resolvent(n: number, er: Float64Array, ei: Float64Array, energy: number
         t = gi[a]; gi[a] = gi[b]; gi[b] = t;
       }
     }
-    // 1 / pivot; eta > 0 keeps omega - eps invertible (its anti-Hermitian part is i eta + a
-    // positive self-energy), so the pivot is never zero.
     const pr = gr[k * n + k], pi = gi[k * n + k];
     const d = pr * pr + pi * pi;
     const ir = pr / d, ii = -pi / d;
