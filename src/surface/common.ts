@@ -13,7 +13,7 @@ import type { PrincipalLayers } from './layers.js';
 export interface DecimationOptions {
   /** Broadening eta > 0 of omega = E + i eta (energy units of the model). */
   eta?: number;
-  /** The iteration stops when every renormalised coupling is below this times the energy scale (default 1e-10). */
+  /** The iteration stops when every renormalised coupling is below this times the energy scale (default 1e-8: the neglected coupling then changes the weights by about 1e-16 of their largest value). */
   tolerance?: number;
   /** Most decimation steps (default 60, i.e. 2^60 layers). */
   maxSteps?: number;

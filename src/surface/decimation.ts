@@ -8,7 +8,7 @@
  * eps = eps_bottom = eps_top = H00, and repeat with g = (omega - eps)^{-1}:
  *   eps_bottom += alpha g beta,  eps_top += beta g alpha,  eps += alpha g beta + beta g alpha,
  *   alpha <- alpha g alpha,  beta <- beta g beta,
- * until every element of alpha and beta is below `tolerance` times the energy scale (the largest
+ * until every element of alpha and beta is below `tolerance` (1e-8) times the energy scale (the largest
  * element of H00 and H01). Then G = (omega - eps_x)^{-1}:
  * - 'bottom': the sample occupies layers 0, 1, 2, ... (its surface faces -A_d; a ribbon's layer-0
  *   edge, `edges.first`);
@@ -23,7 +23,7 @@ import type { SplitMatrix } from './layers.js';
 /** Steps taken when the tolerance is never met (2^60 layers: only a vanishing eta needs more). */
 export const DECIMATION_MAX_STEPS = 60;
 /** Couplings below this times the energy scale end the iteration. */
-export const DECIMATION_TOLERANCE = 1e-10;
+export const DECIMATION_TOLERANCE = 1e-8;
 
 /** The spectral weights -Im Tr G / pi of one solve, and the steps it took (-1: not converged). */
 export interface DecimationOutcome {
@@ -37,14 +37,15 @@ export class Decimation {
   readonly n: number;
   readonly tolerance: number;
   readonly maxSteps: number;
-  private readonly epsR: Float64Array; private readonly epsI: Float64Array;
-  private readonly botR: Float64Array; private readonly botI: Float64Array;
-  private readonly topR: Float64Array; private readonly topI: Float64Array;
-  private readonly aR: Float64Array; private readonly aI: Float64Array;
-  private readonly bR: Float64Array; private readonly bI: Float64Array;
-  private readonly gR: Float64Array; private readonly gI: Float64Array;
-  private readonly agR: Float64Array; private readonly agI: Float64Array;
-  private readonly bgR: Float64Array; private readonly bgI: Float64Array;
+  /** Bulk, bottom- and top-surface onsite blocks, couplings alpha and beta, g, alpha g, beta g. */
+  readonly epsR: Float64Array; readonly epsI: Float64Array;
+  readonly botR: Float64Array; readonly botI: Float64Array;
+  readonly topR: Float64Array; readonly topI: Float64Array;
+  readonly aR: Float64Array; readonly aI: Float64Array;
+  readonly bR: Float64Array; readonly bI: Float64Array;
+  readonly gR: Float64Array; readonly gI: Float64Array;
+  readonly agR: Float64Array; readonly agI: Float64Array;
+  readonly bgR: Float64Array; readonly bgI: Float64Array;
   private readonly tR: Float64Array; private readonly tI: Float64Array;
   private readonly pivots: Int32Array;
   readonly outcome: DecimationOutcome = { bottom: 0, top: 0, bulk: 0, steps: 0 };
@@ -80,6 +81,13 @@ export class Decimation {
     let steps = -1;
     for (let s = 0; s < this.maxSteps; s++) {
       resolvent(n, epsR, epsI, energy, eta, gR, gI, this.pivots);
+      if (n === 4) {
+        if (step4(this) <= limit) {
+          steps = s + 1;
+          break;
+        }
+        continue;
+      }
       multiply(n, aR, aI, gR, gI, agR, agI);
       multiply(n, bR, bI, gR, gI, bgR, bgI);
       // alpha g beta into the bottom surface and the bulk; beta g alpha into the top and the bulk.
@@ -108,11 +116,64 @@ export class Decimation {
   /** -Im Tr (omega - eps)^{-1} / pi. */
   private weight(er: Float64Array, ei: Float64Array, energy: number, eta: number): number {
     const n = this.n;
+    if (n === 4) {
+      const t = imTraceInverse4(er, ei, energy, eta);
+      if (!Number.isNaN(t)) return -t / Math.PI;
+    }
     resolvent(n, er, ei, energy, eta, this.gR, this.gI, this.pivots);
     let tr = 0;
     for (let i = 0; i < n; i++) tr += this.gI[i * n + i];
     return -tr / Math.PI;
   }
+}
+
+/**
+ * One decimation step after g for a 4 x 4 layer, fused: alpha g and beta g, then per column j of
+ * alpha and beta (held in registers) the four products with the rows of alpha g and beta g, added
+ * into the surfaces and the bulk as they come; alpha and beta are overwritten column by column,
+ * which is safe because column j is read before it is written and no other column needs it.
+ * Returns the largest |re| + |im| summed over the new alpha and beta elements at one position.
+ */
+function step4(d: Decimation): number {
+  const { aR, aI, bR, bI, gR, gI, agR, agI, bgR, bgI, epsR, epsI, botR, botI, topR, topI } = d;
+  for (let j = 0; j < 4; j++) {
+    const g0r = gR[j], g0i = gI[j], g1r = gR[4 + j], g1i = gI[4 + j], g2r = gR[8 + j], g2i = gI[8 + j], g3r = gR[12 + j], g3i = gI[12 + j];
+    for (let i = 0; i < 16; i += 4) {
+      let x0r = aR[i], x0i = aI[i], x1r = aR[i + 1], x1i = aI[i + 1], x2r = aR[i + 2], x2i = aI[i + 2], x3r = aR[i + 3], x3i = aI[i + 3];
+      agR[i + j] = x0r * g0r - x0i * g0i + x1r * g1r - x1i * g1i + x2r * g2r - x2i * g2i + x3r * g3r - x3i * g3i;
+      agI[i + j] = x0r * g0i + x0i * g0r + x1r * g1i + x1i * g1r + x2r * g2i + x2i * g2r + x3r * g3i + x3i * g3r;
+      x0r = bR[i]; x0i = bI[i]; x1r = bR[i + 1]; x1i = bI[i + 1]; x2r = bR[i + 2]; x2i = bI[i + 2]; x3r = bR[i + 3]; x3i = bI[i + 3];
+      bgR[i + j] = x0r * g0r - x0i * g0i + x1r * g1r - x1i * g1i + x2r * g2r - x2i * g2i + x3r * g3r - x3i * g3i;
+      bgI[i + j] = x0r * g0i + x0i * g0r + x1r * g1i + x1i * g1r + x2r * g2i + x2i * g2r + x3r * g3i + x3i * g3r;
+    }
+  }
+  let big = 0;
+  for (let j = 0; j < 4; j++) {
+    const a0r = aR[j], a0i = aI[j], a1r = aR[4 + j], a1i = aI[4 + j], a2r = aR[8 + j], a2i = aI[8 + j], a3r = aR[12 + j], a3i = aI[12 + j];
+    const b0r = bR[j], b0i = bI[j], b1r = bR[4 + j], b1i = bI[4 + j], b2r = bR[8 + j], b2i = bI[8 + j], b3r = bR[12 + j], b3i = bI[12 + j];
+    for (let i = 0; i < 16; i += 4) {
+      const p0r = agR[i], p0i = agI[i], p1r = agR[i + 1], p1i = agI[i + 1], p2r = agR[i + 2], p2i = agI[i + 2], p3r = agR[i + 3], p3i = agI[i + 3];
+      const q0r = bgR[i], q0i = bgI[i], q1r = bgR[i + 1], q1i = bgI[i + 1], q2r = bgR[i + 2], q2i = bgI[i + 2], q3r = bgR[i + 3], q3i = bgI[i + 3];
+      // alpha g beta (x), alpha g alpha (y), beta g alpha (u), beta g beta (v) at (i, j).
+      const xr = p0r * b0r - p0i * b0i + p1r * b1r - p1i * b1i + p2r * b2r - p2i * b2i + p3r * b3r - p3i * b3i;
+      const xi = p0r * b0i + p0i * b0r + p1r * b1i + p1i * b1r + p2r * b2i + p2i * b2r + p3r * b3i + p3i * b3r;
+      const yr = p0r * a0r - p0i * a0i + p1r * a1r - p1i * a1i + p2r * a2r - p2i * a2i + p3r * a3r - p3i * a3i;
+      const yi = p0r * a0i + p0i * a0r + p1r * a1i + p1i * a1r + p2r * a2i + p2i * a2r + p3r * a3i + p3i * a3r;
+      const ur = q0r * a0r - q0i * a0i + q1r * a1r - q1i * a1i + q2r * a2r - q2i * a2i + q3r * a3r - q3i * a3i;
+      const ui = q0r * a0i + q0i * a0r + q1r * a1i + q1i * a1r + q2r * a2i + q2i * a2r + q3r * a3i + q3i * a3r;
+      const vr = q0r * b0r - q0i * b0i + q1r * b1r - q1i * b1i + q2r * b2r - q2i * b2i + q3r * b3r - q3i * b3i;
+      const vi = q0r * b0i + q0i * b0r + q1r * b1i + q1i * b1r + q2r * b2i + q2i * b2r + q3r * b3i + q3i * b3r;
+      const at = i + j;
+      botR[at] += xr; botI[at] += xi;
+      topR[at] += ur; topI[at] += ui;
+      epsR[at] += xr + ur; epsI[at] += xi + ui;
+      aR[at] = yr; aI[at] = yi;
+      bR[at] = vr; bI[at] = vi;
+      const ay = Math.max(Math.abs(yr), Math.abs(yi), Math.abs(vr), Math.abs(vi));
+      if (ay > big) big = ay;
+    }
+  }
+  return big;
 }
 
 /**
@@ -182,6 +243,7 @@ function resolvent(n: number, er: Float64Array, ei: Float64Array, energy: number
   for (let i = 0; i < nn; i++) { gr[i] = -er[i]; gi[i] = -ei[i]; }
   for (let i = 0; i < n; i++) { gr[i * n + i] += energy; gi[i * n + i] += eta; }
   const small = 1e-8 * eta * eta;
+  if (n === 4 && invert4(gr, gi, small)) return;
   for (let k = 0; k < n; k++) {
     const rk = k * n;
     const pr = gr[rk + k], pi = gi[rk + k];
@@ -209,6 +271,110 @@ function resolvent(n: number, er: Float64Array, ei: Float64Array, energy: number
       }
     }
   }
+}
+
+/** Scratch of invert4: eight 2 x 2 complex blocks, interleaved (re, im), row-major. */
+const BLOCKS = new Float64Array(64);
+const P = 0, Q = 8, R = 16, S = 24, X = 32, Y = 40, T = 48, U = 56;
+
+/** The inverse of a 2 x 2 block at `from` into `to`; false when its determinant is below `small`. */
+function inverse2(w: Float64Array, from: number, to: number, small: number): boolean {
+  const ar = w[from], ai = w[from + 1], br = w[from + 2], bi = w[from + 3], cr = w[from + 4], ci = w[from + 5], dr = w[from + 6], di = w[from + 7];
+  const detR = ar * dr - ai * di - (br * cr - bi * ci), detI = ar * di + ai * dr - (br * ci + bi * cr);
+  const m = detR * detR + detI * detI;
+  if (!(m > small * small)) return false;
+  const ir = detR / m, ii = -detI / m;
+  w[to] = dr * ir - di * ii; w[to + 1] = dr * ii + di * ir;
+  w[to + 2] = -(br * ir - bi * ii); w[to + 3] = -(br * ii + bi * ir);
+  w[to + 4] = -(cr * ir - ci * ii); w[to + 5] = -(cr * ii + ci * ir);
+  w[to + 6] = ar * ir - ai * ii; w[to + 7] = ar * ii + ai * ir;
+  return true;
+}
+
+/** c = s a b for 2 x 2 blocks of `w` (s = 1 or -1); c must not alias a or b. */
+function product2(w: Float64Array, a: number, b: number, c: number, s: number): void {
+  for (let i = 0; i < 4; i += 2) {
+    const x0r = w[a + 2 * i], x0i = w[a + 2 * i + 1], x1r = w[a + 2 * i + 2], x1i = w[a + 2 * i + 3];
+    for (let j = 0; j < 2; j++) {
+      const y0r = w[b + 2 * j], y0i = w[b + 2 * j + 1], y1r = w[b + 4 + 2 * j], y1i = w[b + 5 + 2 * j];
+      w[c + 2 * i + 2 * j] = s * (x0r * y0r - x0i * y0i + x1r * y1r - x1i * y1i);
+      w[c + 2 * i + 2 * j + 1] = s * (x0r * y0i + x0i * y0r + x1r * y1i + x1i * y1r);
+    }
+  }
+}
+
+/**
+ * 4 x 4 inverse in place by 2 x 2 blocks, M = [[P, Q], [R, S]]: with X = P^-1 Q, Y = R P^-1 and
+ * the Schur complement Z = S - R X, M^-1 = [[P^-1 + X Z^-1 Y, -X Z^-1], [-Z^-1 Y, Z^-1]]. The same
+ * argument as for Gauss–Jordan without pivoting makes P and Z invertible; false (nothing written)
+ * when a determinant is nevertheless tiny.
+ */
+function invert4(gr: Float64Array, gi: Float64Array, small: number): boolean {
+  const w = BLOCKS;
+  for (let i = 0; i < 2; i++) {
+    for (let j = 0; j < 2; j++) {
+      const o = 2 * (2 * i + j);
+      w[P + o] = gr[4 * i + j]; w[P + o + 1] = gi[4 * i + j];
+      w[Q + o] = gr[4 * i + j + 2]; w[Q + o + 1] = gi[4 * i + j + 2];
+      w[R + o] = gr[4 * i + j + 8]; w[R + o + 1] = gi[4 * i + j + 8];
+      w[S + o] = gr[4 * i + j + 10]; w[S + o + 1] = gi[4 * i + j + 10];
+    }
+  }
+  if (!inverse2(w, P, T, small)) return false; // T = P^-1
+  product2(w, T, Q, X, 1); // X = P^-1 Q
+  product2(w, R, T, Y, 1); // Y = R P^-1
+  product2(w, R, X, U, 1); // U = R X
+  for (let o = 0; o < 8; o++) w[U + o] = w[S + o] - w[U + o]; // U = Z
+  if (!inverse2(w, U, S, small)) return false; // S = Z^-1
+  product2(w, X, S, Q, -1); // Q = -X Z^-1
+  product2(w, S, Y, R, -1); // R = -Z^-1 Y
+  product2(w, Q, Y, U, -1); // U = X Z^-1 Y
+  for (let o = 0; o < 8; o++) w[P + o] = w[T + o] + w[U + o];
+  for (let i = 0; i < 2; i++) {
+    for (let j = 0; j < 2; j++) {
+      const o = 2 * (2 * i + j);
+      gr[4 * i + j] = w[P + o]; gi[4 * i + j] = w[P + o + 1];
+      gr[4 * i + j + 2] = w[Q + o]; gi[4 * i + j + 2] = w[Q + o + 1];
+      gr[4 * i + j + 8] = w[R + o]; gi[4 * i + j + 8] = w[R + o + 1];
+      gr[4 * i + j + 10] = w[S + o]; gi[4 * i + j + 10] = w[S + o + 1];
+    }
+  }
+  return true;
+}
+
+/**
+ * Im Tr (omega - eps)^{-1} for 4 x 4 by the blocks of invert4: Tr M^-1 = Tr P^-1 + Tr Z^-1 (1 + Y X),
+ * only the traces needed. NaN when a block's determinant is tiny (the caller then inverts in full).
+ */
+function imTraceInverse4(er: Float64Array, ei: Float64Array, energy: number, eta: number): number {
+  const w = BLOCKS;
+  for (let i = 0; i < 2; i++) {
+    for (let j = 0; j < 2; j++) {
+      const o = 2 * (2 * i + j), diag = i === j ? 1 : 0;
+      w[P + o] = diag * energy - er[4 * i + j]; w[P + o + 1] = diag * eta - ei[4 * i + j];
+      w[Q + o] = -er[4 * i + j + 2]; w[Q + o + 1] = -ei[4 * i + j + 2];
+      w[R + o] = -er[4 * i + j + 8]; w[R + o + 1] = -ei[4 * i + j + 8];
+      w[S + o] = diag * energy - er[4 * i + j + 10]; w[S + o + 1] = diag * eta - ei[4 * i + j + 10];
+    }
+  }
+  const small = 1e-8 * eta * eta;
+  if (!inverse2(w, P, T, small)) return NaN; // T = P^-1
+  product2(w, T, Q, X, 1); // X = P^-1 Q
+  product2(w, R, T, Y, 1); // Y = R P^-1
+  product2(w, R, X, U, 1); // U = R X
+  for (let o = 0; o < 8; o++) w[U + o] = w[S + o] - w[U + o]; // U = Z
+  if (!inverse2(w, U, S, small)) return NaN; // S = Z^-1
+  product2(w, Y, X, Q, 1); // Q = Y X
+  w[Q] += 1; w[Q + 6] += 1; // Q = 1 + Y X
+  // Im Tr(Z^-1 Q) = sum_ab Im(S_ab Q_ba), plus Im Tr P^-1.
+  let im = w[T + 1] + w[T + 7];
+  for (let a = 0; a < 2; a++) {
+    for (let b = 0; b < 2; b++) {
+      const sa = S + 2 * (2 * a + b), qb = Q + 2 * (2 * b + a);
+      im += w[sa] * w[qb + 1] + w[sa + 1] * w[qb];
+    }
+  }
+  return im;
 }
 
 /** The same with partial pivoting (rows swapped while eliminating, the inverse's columns swapped back). */

@@ -7,6 +7,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import type { BlochHamiltonian } from '../../src/bloch/hamiltonian.js';
+import { DECIMATION_MAX_STEPS, DECIMATION_TOLERANCE } from '../../src/surface/decimation.js';
 
 export const PYTHON = '/usr/bin/python3';
 
@@ -87,7 +88,7 @@ export interface ReferenceSpectrum {
 
 /** Runs the reference: k-major weights like the engine's, and the best time of `runs`. */
 export function numpyDecimation(h: BlochHamiltonian, job: { cut: number; ks: number[]; energies: number[]; eta: number; tol?: number; maxSteps?: number; runs?: number }, cpu: string | null = null): ReferenceSpectrum {
-  const input = JSON.stringify({ n: h.size, terms: numericTerms(h), tol: 1e-10, maxSteps: 60, ...job });
+  const input = JSON.stringify({ n: h.size, terms: numericTerms(h), tol: DECIMATION_TOLERANCE, maxSteps: DECIMATION_MAX_STEPS, ...job });
   const env = { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1' };
   const out = cpu === null
     ? execFileSync(PYTHON, ['-c', DECIMATION_PY], { input, encoding: 'utf8', env, maxBuffer: 1 << 28 })
