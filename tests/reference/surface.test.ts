@@ -80,11 +80,13 @@ describe('principal layers', () => {
 });
 
 describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (1985))', () => {
-  it('agrees with a numpy implementation of the same algorithm, vectorised over k (Kane–Mele with Rashba, both terminations and the bulk)', () => {
-    const h = new BlochHamiltonian(kaneMele(), { lambda_v: 0.1, lambda_R: 0.05 });
-    const r = surfaceSpectrum(h, { cut: 1, nk: 41, energyCount: 31, eta: 0.02 });
+  it.each([
+    ['Kane–Mele with Rashba (4 orbitals: the fused 4 x 4 step)', new BlochHamiltonian(kaneMele(), { lambda_v: 0.1, lambda_R: 0.05 }), 1],
+    ['Haldane (2 orbitals: the general step)', new BlochHamiltonian(haldane(), { phi: 1.1, M: 0.3 }), 0],
+  ])('agrees with a numpy implementation of the same algorithm, vectorised over k: %s, both terminations and the bulk', (_, h, cut) => {
+    const r = surfaceSpectrum(h, { cut, nk: 41, energyCount: 31, eta: 0.02 });
     expect(r.checks.unconverged).toBe(0);
-    const ref = numpyDecimation(h, { cut: 1, ks: Array.from(r.path.fractions, (f) => 2 * Math.PI * f), energies: Array.from(r.energies), eta: 0.02 });
+    const ref = numpyDecimation(h, { cut, ks: Array.from(r.path.fractions, (f) => 2 * Math.PI * f), energies: Array.from(r.energies), eta: 0.02 });
     let worst = 0, largest = 0;
     for (const side of ['bottom', 'top', 'bulk'] as const) {
       ref[side].forEach((x, i) => {
