@@ -6,13 +6,15 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, eigh, haldane, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, weyl2band, type ModelSpec,
+  BlochHamiltonian, cubicTI, eigh, haldane, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, weyl2band, type ModelSpec,
 } from '../../src/index.js';
 import { bulkBoundary } from '../../src/surface/bulk-boundary.js';
 import { surfaceMap } from '../../src/surface/fermi-map.js';
 import { principalLayers, splitMatrix } from '../../src/surface/layers.js';
 import { slabSpectrum } from '../../src/surface/slab.js';
 import { surfaceSpectrum } from '../../src/surface/spectrum.js';
+import { Decimation } from '../../src/surface/decimation.js';
+import { z2Index } from '../../src/topology/z2.js';
 import { numpyDecimation } from './surface-numpy.js';
 
 /** Sorted eigenvalues of a split matrix plus e^{iq} H01 + h.c. */
@@ -315,6 +317,35 @@ describe('3D surfaces', () => {
     const s = slabSpectrum(q, { cut: [1, 1], width: 10, nk: 11 });
     expect(s.bandCount).toBe(20);
     expect(s.cut.basis).toEqual(principalLayers(q, [1, 1]).basis);
+  });
+
+  it('cubic TI: a strong index gives an odd number of surface Dirac cones, a weak one an even number, at the surface TRIMs where the bulk parities say (Fu, Kane & Mele, PRL 98, 106803 (2007); Fu & Kane, PRB 76, 045302 (2007))', () => {
+    // Dirac points of this model sit at E = 0 (its spectrum is symmetric); a surface TRIM has one when
+    // the surface weight there at E = 0 is far above the bulk's (eta = 1e-3).
+    for (const [M, strong, weak] of [[2, 1, [0, 0, 0]], [6, 0, [1, 1, 1]], [10, 1, [1, 1, 1]], [-1, 0, [0, 0, 0]]] as const) {
+      const h = new BlochHamiltonian(cubicTI(), { M });
+      const z = z2Index(h, { method: 'parity' });
+      expect([z.z2, z.weak]).toEqual([strong, weak]);
+      const delta = (k: number[]) => z.parities!.find((p) => p.k.every((x, i) => Math.abs(Math.abs(x) - Math.abs(k[i])) < 1e-9))!.delta;
+      for (const cut of [2, 0]) {
+        const layers = principalLayers(h, cut);
+        const solver = new Decimation(layers.size);
+        const h00 = splitMatrix(layers.size), h01 = splitMatrix(layers.size);
+        const trims = [[0, 0], [0.5, 0], [0, 0.5], [0.5, 0.5]];
+        const cones = trims.map((f) => {
+          layers.fill(f.map((x) => 2 * Math.PI * x), h00, h01);
+          const r = solver.solve(h00, h01, 0, 1e-3);
+          expect(r.top > 100).toBe(r.bottom > 100);
+          return r.bottom > 100 && r.bulk < 1;
+        });
+        expect(cones.filter(Boolean).length % 2).toBe(strong);
+        // A cone at the surface TRIM whose two bulk TRIMs (k_normal = 0, pi) have parity product -1.
+        trims.forEach((f, a) => {
+          const bulkK = (kn: number) => { const k = [0, 0, 0]; layers.basis.slice(0, 2).forEach((row, i) => { k[row.indexOf(1)] = f[i]; }); k[cut] = kn; return k; };
+          expect(cones[a]).toBe(delta(bulkK(0)) * delta(bulkK(0.5)) === -1);
+        });
+      }
+    }
   });
 
   it('maps refuse 2D models and energies outside the spectrum, naming the field', () => {
