@@ -273,109 +273,146 @@ function resolvent(n: number, er: Float64Array, ei: Float64Array, energy: number
   }
 }
 
-/** Scratch of invert4: eight 2 x 2 complex blocks, interleaved (re, im), row-major. */
-const BLOCKS = new Float64Array(64);
-const P = 0, Q = 8, R = 16, S = 24, X = 32, Y = 40, T = 48, U = 56;
-
-/** The inverse of a 2 x 2 block at `from` into `to`; false when its determinant is below `small`. */
-function inverse2(w: Float64Array, from: number, to: number, small: number): boolean {
-  const ar = w[from], ai = w[from + 1], br = w[from + 2], bi = w[from + 3], cr = w[from + 4], ci = w[from + 5], dr = w[from + 6], di = w[from + 7];
-  const detR = ar * dr - ai * di - (br * cr - bi * ci), detI = ar * di + ai * dr - (br * ci + bi * cr);
-  const m = detR * detR + detI * detI;
-  if (!(m > small * small)) return false;
-  const ir = detR / m, ii = -detI / m;
-  w[to] = dr * ir - di * ii; w[to + 1] = dr * ii + di * ir;
-  w[to + 2] = -(br * ir - bi * ii); w[to + 3] = -(br * ii + bi * ir);
-  w[to + 4] = -(cr * ir - ci * ii); w[to + 5] = -(cr * ii + ci * ir);
-  w[to + 6] = ar * ir - ai * ii; w[to + 7] = ar * ii + ai * ir;
-  return true;
-}
-
-/** c = s a b for 2 x 2 blocks of `w` (s = 1 or -1); c must not alias a or b. */
-function product2(w: Float64Array, a: number, b: number, c: number, s: number): void {
-  for (let i = 0; i < 4; i += 2) {
-    const x0r = w[a + 2 * i], x0i = w[a + 2 * i + 1], x1r = w[a + 2 * i + 2], x1i = w[a + 2 * i + 3];
-    for (let j = 0; j < 2; j++) {
-      const y0r = w[b + 2 * j], y0i = w[b + 2 * j + 1], y1r = w[b + 4 + 2 * j], y1i = w[b + 5 + 2 * j];
-      w[c + 2 * i + 2 * j] = s * (x0r * y0r - x0i * y0i + x1r * y1r - x1i * y1i);
-      w[c + 2 * i + 2 * j + 1] = s * (x0r * y0i + x0i * y0r + x1r * y1i + x1i * y1r);
-    }
-  }
-}
-
 /**
  * 4 x 4 inverse in place by 2 x 2 blocks, M = [[P, Q], [R, S]]: with X = P^-1 Q, Y = R P^-1 and
  * the Schur complement Z = S - R X, M^-1 = [[P^-1 + X Z^-1 Y, -X Z^-1], [-Z^-1 Y, Z^-1]]. The same
  * argument as for Gauss–Jordan without pivoting makes P and Z invertible; false (nothing written)
- * when a determinant is nevertheless tiny.
+ * when a determinant is nevertheless tiny. Every complex number stays in a local (re, im) pair.
  */
 function invert4(gr: Float64Array, gi: Float64Array, small: number): boolean {
-  const w = BLOCKS;
-  for (let i = 0; i < 2; i++) {
-    for (let j = 0; j < 2; j++) {
-      const o = 2 * (2 * i + j);
-      w[P + o] = gr[4 * i + j]; w[P + o + 1] = gi[4 * i + j];
-      w[Q + o] = gr[4 * i + j + 2]; w[Q + o + 1] = gi[4 * i + j + 2];
-      w[R + o] = gr[4 * i + j + 8]; w[R + o + 1] = gi[4 * i + j + 8];
-      w[S + o] = gr[4 * i + j + 10]; w[S + o + 1] = gi[4 * i + j + 10];
-    }
-  }
-  if (!inverse2(w, P, T, small)) return false; // T = P^-1
-  product2(w, T, Q, X, 1); // X = P^-1 Q
-  product2(w, R, T, Y, 1); // Y = R P^-1
-  product2(w, R, X, U, 1); // U = R X
-  for (let o = 0; o < 8; o++) w[U + o] = w[S + o] - w[U + o]; // U = Z
-  if (!inverse2(w, U, S, small)) return false; // S = Z^-1
-  product2(w, X, S, Q, -1); // Q = -X Z^-1
-  product2(w, S, Y, R, -1); // R = -Z^-1 Y
-  product2(w, Q, Y, U, -1); // U = X Z^-1 Y
-  for (let o = 0; o < 8; o++) w[P + o] = w[T + o] + w[U + o];
-  for (let i = 0; i < 2; i++) {
-    for (let j = 0; j < 2; j++) {
-      const o = 2 * (2 * i + j);
-      gr[4 * i + j] = w[P + o]; gi[4 * i + j] = w[P + o + 1];
-      gr[4 * i + j + 2] = w[Q + o]; gi[4 * i + j + 2] = w[Q + o + 1];
-      gr[4 * i + j + 8] = w[R + o]; gi[4 * i + j + 8] = w[R + o + 1];
-      gr[4 * i + j + 10] = w[S + o]; gi[4 * i + j + 10] = w[S + o + 1];
-    }
-  }
+  const p00r = gr[0], p00i = gi[0];
+  const p01r = gr[1], p01i = gi[1];
+  const q00r = gr[2], q00i = gi[2];
+  const q01r = gr[3], q01i = gi[3];
+  const p10r = gr[4], p10i = gi[4];
+  const p11r = gr[5], p11i = gi[5];
+  const q10r = gr[6], q10i = gi[6];
+  const q11r = gr[7], q11i = gi[7];
+  const r00r = gr[8], r00i = gi[8];
+  const r01r = gr[9], r01i = gi[9];
+  const s00r = gr[10], s00i = gi[10];
+  const s01r = gr[11], s01i = gi[11];
+  const r10r = gr[12], r10i = gi[12];
+  const r11r = gr[13], r11i = gi[13];
+  const s10r = gr[14], s10i = gi[14];
+  const s11r = gr[15], s11i = gi[15];
+  let dr = p00r * p11r - p00i * p11i - (p01r * p10r - p01i * p10i), di = p00r * p11i + p00i * p11r - (p01r * p10i + p01i * p10r);
+  let m = dr * dr + di * di;
+  if (!(m > small * small)) return false;
+  let ir = dr / m, ii = -di / m;
+  const t00r = p11r * ir - p11i * ii, t00i = p11r * ii + p11i * ir;
+  const t01r = -(p01r * ir - p01i * ii), t01i = -(p01r * ii + p01i * ir);
+  const t10r = -(p10r * ir - p10i * ii), t10i = -(p10r * ii + p10i * ir);
+  const t11r = p00r * ir - p00i * ii, t11i = p00r * ii + p00i * ir;
+  const x00r = t00r * q00r - t00i * q00i + t01r * q10r - t01i * q10i, x00i = t00r * q00i + t00i * q00r + t01r * q10i + t01i * q10r;
+  const x01r = t00r * q01r - t00i * q01i + t01r * q11r - t01i * q11i, x01i = t00r * q01i + t00i * q01r + t01r * q11i + t01i * q11r;
+  const x10r = t10r * q00r - t10i * q00i + t11r * q10r - t11i * q10i, x10i = t10r * q00i + t10i * q00r + t11r * q10i + t11i * q10r;
+  const x11r = t10r * q01r - t10i * q01i + t11r * q11r - t11i * q11i, x11i = t10r * q01i + t10i * q01r + t11r * q11i + t11i * q11r;
+  const y00r = r00r * t00r - r00i * t00i + r01r * t10r - r01i * t10i, y00i = r00r * t00i + r00i * t00r + r01r * t10i + r01i * t10r;
+  const y01r = r00r * t01r - r00i * t01i + r01r * t11r - r01i * t11i, y01i = r00r * t01i + r00i * t01r + r01r * t11i + r01i * t11r;
+  const y10r = r10r * t00r - r10i * t00i + r11r * t10r - r11i * t10i, y10i = r10r * t00i + r10i * t00r + r11r * t10i + r11i * t10r;
+  const y11r = r10r * t01r - r10i * t01i + r11r * t11r - r11i * t11i, y11i = r10r * t01i + r10i * t01r + r11r * t11i + r11i * t11r;
+  const z00r = s00r - (r00r * x00r - r00i * x00i + r01r * x10r - r01i * x10i), z00i = s00i - (r00r * x00i + r00i * x00r + r01r * x10i + r01i * x10r);
+  const z01r = s01r - (r00r * x01r - r00i * x01i + r01r * x11r - r01i * x11i), z01i = s01i - (r00r * x01i + r00i * x01r + r01r * x11i + r01i * x11r);
+  const z10r = s10r - (r10r * x00r - r10i * x00i + r11r * x10r - r11i * x10i), z10i = s10i - (r10r * x00i + r10i * x00r + r11r * x10i + r11i * x10r);
+  const z11r = s11r - (r10r * x01r - r10i * x01i + r11r * x11r - r11i * x11i), z11i = s11i - (r10r * x01i + r10i * x01r + r11r * x11i + r11i * x11r);
+  dr = z00r * z11r - z00i * z11i - (z01r * z10r - z01i * z10i); di = z00r * z11i + z00i * z11r - (z01r * z10i + z01i * z10r);
+  m = dr * dr + di * di;
+  if (!(m > small * small)) return false;
+  ir = dr / m; ii = -di / m;
+  const w00r = z11r * ir - z11i * ii, w00i = z11r * ii + z11i * ir;
+  const w01r = -(z01r * ir - z01i * ii), w01i = -(z01r * ii + z01i * ir);
+  const w10r = -(z10r * ir - z10i * ii), w10i = -(z10r * ii + z10i * ir);
+  const w11r = z00r * ir - z00i * ii, w11i = z00r * ii + z00i * ir;
+  const u00r = -(x00r * w00r - x00i * w00i + x01r * w10r - x01i * w10i), u00i = -(x00r * w00i + x00i * w00r + x01r * w10i + x01i * w10r);
+  const u01r = -(x00r * w01r - x00i * w01i + x01r * w11r - x01i * w11i), u01i = -(x00r * w01i + x00i * w01r + x01r * w11i + x01i * w11r);
+  const u10r = -(x10r * w00r - x10i * w00i + x11r * w10r - x11i * w10i), u10i = -(x10r * w00i + x10i * w00r + x11r * w10i + x11i * w10r);
+  const u11r = -(x10r * w01r - x10i * w01i + x11r * w11r - x11i * w11i), u11i = -(x10r * w01i + x10i * w01r + x11r * w11i + x11i * w11r);
+  const v00r = -(w00r * y00r - w00i * y00i + w01r * y10r - w01i * y10i), v00i = -(w00r * y00i + w00i * y00r + w01r * y10i + w01i * y10r);
+  const v01r = -(w00r * y01r - w00i * y01i + w01r * y11r - w01i * y11i), v01i = -(w00r * y01i + w00i * y01r + w01r * y11i + w01i * y11r);
+  const v10r = -(w10r * y00r - w10i * y00i + w11r * y10r - w11i * y10i), v10i = -(w10r * y00i + w10i * y00r + w11r * y10i + w11i * y10r);
+  const v11r = -(w10r * y01r - w10i * y01i + w11r * y11r - w11i * y11i), v11i = -(w10r * y01i + w10i * y01r + w11r * y11i + w11i * y11r);
+  const e00r = t00r - (x00r * v00r - x00i * v00i + x01r * v10r - x01i * v10i), e00i = t00i - (x00r * v00i + x00i * v00r + x01r * v10i + x01i * v10r);
+  const e01r = t01r - (x00r * v01r - x00i * v01i + x01r * v11r - x01i * v11i), e01i = t01i - (x00r * v01i + x00i * v01r + x01r * v11i + x01i * v11r);
+  const e10r = t10r - (x10r * v00r - x10i * v00i + x11r * v10r - x11i * v10i), e10i = t10i - (x10r * v00i + x10i * v00r + x11r * v10i + x11i * v10r);
+  const e11r = t11r - (x10r * v01r - x10i * v01i + x11r * v11r - x11i * v11i), e11i = t11i - (x10r * v01i + x10i * v01r + x11r * v11i + x11i * v11r);
+  gr[0] = e00r; gi[0] = e00i;
+  gr[1] = e01r; gi[1] = e01i;
+  gr[2] = u00r; gi[2] = u00i;
+  gr[3] = u01r; gi[3] = u01i;
+  gr[4] = e10r; gi[4] = e10i;
+  gr[5] = e11r; gi[5] = e11i;
+  gr[6] = u10r; gi[6] = u10i;
+  gr[7] = u11r; gi[7] = u11i;
+  gr[8] = v00r; gi[8] = v00i;
+  gr[9] = v01r; gi[9] = v01i;
+  gr[10] = w00r; gi[10] = w00i;
+  gr[11] = w01r; gi[11] = w01i;
+  gr[12] = v10r; gi[12] = v10i;
+  gr[13] = v11r; gi[13] = v11i;
+  gr[14] = w10r; gi[14] = w10i;
+  gr[15] = w11r; gi[15] = w11i;
   return true;
 }
+
 
 /**
  * Im Tr (omega - eps)^{-1} for 4 x 4 by the blocks of invert4: Tr M^-1 = Tr P^-1 + Tr Z^-1 (1 + Y X),
  * only the traces needed. NaN when a block's determinant is tiny (the caller then inverts in full).
  */
 function imTraceInverse4(er: Float64Array, ei: Float64Array, energy: number, eta: number): number {
-  const w = BLOCKS;
-  for (let i = 0; i < 2; i++) {
-    for (let j = 0; j < 2; j++) {
-      const o = 2 * (2 * i + j), diag = i === j ? 1 : 0;
-      w[P + o] = diag * energy - er[4 * i + j]; w[P + o + 1] = diag * eta - ei[4 * i + j];
-      w[Q + o] = -er[4 * i + j + 2]; w[Q + o + 1] = -ei[4 * i + j + 2];
-      w[R + o] = -er[4 * i + j + 8]; w[R + o + 1] = -ei[4 * i + j + 8];
-      w[S + o] = diag * energy - er[4 * i + j + 10]; w[S + o + 1] = diag * eta - ei[4 * i + j + 10];
-    }
-  }
   const small = 1e-8 * eta * eta;
-  if (!inverse2(w, P, T, small)) return NaN; // T = P^-1
-  product2(w, T, Q, X, 1); // X = P^-1 Q
-  product2(w, R, T, Y, 1); // Y = R P^-1
-  product2(w, R, X, U, 1); // U = R X
-  for (let o = 0; o < 8; o++) w[U + o] = w[S + o] - w[U + o]; // U = Z
-  if (!inverse2(w, U, S, small)) return NaN; // S = Z^-1
-  product2(w, Y, X, Q, 1); // Q = Y X
-  w[Q] += 1; w[Q + 6] += 1; // Q = 1 + Y X
-  // Im Tr(Z^-1 Q) = sum_ab Im(S_ab Q_ba), plus Im Tr P^-1.
-  let im = w[T + 1] + w[T + 7];
-  for (let a = 0; a < 2; a++) {
-    for (let b = 0; b < 2; b++) {
-      const sa = S + 2 * (2 * a + b), qb = Q + 2 * (2 * b + a);
-      im += w[sa] * w[qb + 1] + w[sa + 1] * w[qb];
-    }
-  }
-  return im;
+  const p00r = energy - er[0], p00i = eta - ei[0];
+  const p01r = -er[1], p01i = -ei[1];
+  const q00r = -er[2], q00i = -ei[2];
+  const q01r = -er[3], q01i = -ei[3];
+  const p10r = -er[4], p10i = -ei[4];
+  const p11r = energy - er[5], p11i = eta - ei[5];
+  const q10r = -er[6], q10i = -ei[6];
+  const q11r = -er[7], q11i = -ei[7];
+  const r00r = -er[8], r00i = -ei[8];
+  const r01r = -er[9], r01i = -ei[9];
+  const s00r = energy - er[10], s00i = eta - ei[10];
+  const s01r = -er[11], s01i = -ei[11];
+  const r10r = -er[12], r10i = -ei[12];
+  const r11r = -er[13], r11i = -ei[13];
+  const s10r = -er[14], s10i = -ei[14];
+  const s11r = energy - er[15], s11i = eta - ei[15];
+  let dr = p00r * p11r - p00i * p11i - (p01r * p10r - p01i * p10i), di = p00r * p11i + p00i * p11r - (p01r * p10i + p01i * p10r);
+  let m = dr * dr + di * di;
+  if (!(m > small * small)) return NaN;
+  let ir = dr / m, ii = -di / m;
+  const t00r = p11r * ir - p11i * ii, t00i = p11r * ii + p11i * ir;
+  const t01r = -(p01r * ir - p01i * ii), t01i = -(p01r * ii + p01i * ir);
+  const t10r = -(p10r * ir - p10i * ii), t10i = -(p10r * ii + p10i * ir);
+  const t11r = p00r * ir - p00i * ii, t11i = p00r * ii + p00i * ir;
+  const x00r = t00r * q00r - t00i * q00i + t01r * q10r - t01i * q10i, x00i = t00r * q00i + t00i * q00r + t01r * q10i + t01i * q10r;
+  const x01r = t00r * q01r - t00i * q01i + t01r * q11r - t01i * q11i, x01i = t00r * q01i + t00i * q01r + t01r * q11i + t01i * q11r;
+  const x10r = t10r * q00r - t10i * q00i + t11r * q10r - t11i * q10i, x10i = t10r * q00i + t10i * q00r + t11r * q10i + t11i * q10r;
+  const x11r = t10r * q01r - t10i * q01i + t11r * q11r - t11i * q11i, x11i = t10r * q01i + t10i * q01r + t11r * q11i + t11i * q11r;
+  const y00r = r00r * t00r - r00i * t00i + r01r * t10r - r01i * t10i, y00i = r00r * t00i + r00i * t00r + r01r * t10i + r01i * t10r;
+  const y01r = r00r * t01r - r00i * t01i + r01r * t11r - r01i * t11i, y01i = r00r * t01i + r00i * t01r + r01r * t11i + r01i * t11r;
+  const y10r = r10r * t00r - r10i * t00i + r11r * t10r - r11i * t10i, y10i = r10r * t00i + r10i * t00r + r11r * t10i + r11i * t10r;
+  const y11r = r10r * t01r - r10i * t01i + r11r * t11r - r11i * t11i, y11i = r10r * t01i + r10i * t01r + r11r * t11i + r11i * t11r;
+  const z00r = s00r - (r00r * x00r - r00i * x00i + r01r * x10r - r01i * x10i), z00i = s00i - (r00r * x00i + r00i * x00r + r01r * x10i + r01i * x10r);
+  const z01r = s01r - (r00r * x01r - r00i * x01i + r01r * x11r - r01i * x11i), z01i = s01i - (r00r * x01i + r00i * x01r + r01r * x11i + r01i * x11r);
+  const z10r = s10r - (r10r * x00r - r10i * x00i + r11r * x10r - r11i * x10i), z10i = s10i - (r10r * x00i + r10i * x00r + r11r * x10i + r11i * x10r);
+  const z11r = s11r - (r10r * x01r - r10i * x01i + r11r * x11r - r11i * x11i), z11i = s11i - (r10r * x01i + r10i * x01r + r11r * x11i + r11i * x11r);
+  dr = z00r * z11r - z00i * z11i - (z01r * z10r - z01i * z10i); di = z00r * z11i + z00i * z11r - (z01r * z10i + z01i * z10r);
+  m = dr * dr + di * di;
+  if (!(m > small * small)) return NaN;
+  ir = dr / m; ii = -di / m;
+  const w00r = z11r * ir - z11i * ii, w00i = z11r * ii + z11i * ir;
+  const w01r = -(z01r * ir - z01i * ii), w01i = -(z01r * ii + z01i * ir);
+  const w10r = -(z10r * ir - z10i * ii), w10i = -(z10r * ii + z10i * ir);
+  const w11r = z00r * ir - z00i * ii, w11i = z00r * ii + z00i * ir;
+  const c00r = y00r * x00r - y00i * x00i + y01r * x10r - y01i * x10i, c00i = y00r * x00i + y00i * x00r + y01r * x10i + y01i * x10r;
+  const c01r = y00r * x01r - y00i * x01i + y01r * x11r - y01i * x11i, c01i = y00r * x01i + y00i * x01r + y01r * x11i + y01i * x11r;
+  const c10r = y10r * x00r - y10i * x00i + y11r * x10r - y11i * x10i, c10i = y10r * x00i + y10i * x00r + y11r * x10i + y11i * x10r;
+  const c11r = y10r * x01r - y10i * x01i + y11r * x11r - y11i * x11i, c11i = y10r * x01i + y10i * x01r + y11r * x11i + y11i * x11r;
+  return t00i + t11i + w00i + w11i + w00r * c00i + w00i * c00r + w01r * c10i + w01i * c10r + w10r * c01i + w10i * c01r + w11r * c11i + w11i * c11r;
 }
+
 
 /** The same with partial pivoting (rows swapped while eliminating, the inverse's columns swapped back). */
 function pivotedResolvent(n: number, er: Float64Array, ei: Float64Array, energy: number, eta: number, gr: Float64Array, gi: Float64Array, piv: Int32Array): void {
