@@ -11,7 +11,8 @@ import { existsSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { pathToFileURL } from 'node:url';
 import { BlochHamiltonian } from '../src/bloch/hamiltonian.js';
-import { kaneMele } from '../src/model/catalogue.js';
+import { kaneMele, weyl2band } from '../src/model/catalogue.js';
+import { surfaceMap } from '../src/surface/fermi-map.js';
 import { surfaceSpectrum } from '../src/surface/spectrum.js';
 import { numpyDecimation, PYTHON } from '../tests/reference/surface-numpy.js';
 import { formatTable, type BenchRow } from './table.js';
@@ -47,7 +48,7 @@ export function benchSurface(): BenchRow[] {
       ours = Math.min(ours, (performance.now() - t0) / 1000);
     }
     const label = `Edge spectral function, Kane–Mele with Rashba (4 orbitals), ${result.path.count} k x ${result.energies.length} E, both edges + bulk`;
-    if (!existsSync(PYTHON)) return [{ name: label, ours: ours * 1000, reference: null, unit: 'ms', ratio: null, target: '>= 2x numpy' }];
+    if (!existsSync(PYTHON)) return [{ name: label, ours: ours * 1000, reference: null, unit: 'ms', ratio: null, target: '>= 2x numpy' }, mapRow()];
     const ref = numpyDecimation(h, {
       cut: 1, ks: Array.from(result.path.fractions, (f) => 2 * Math.PI * f), energies: Array.from(result.energies), eta: options.eta, runs: 3,
     }, cpu);
@@ -59,8 +60,28 @@ export function benchSurface(): BenchRow[] {
       });
     }
     if (!(worst <= 1e-8 * largest)) throw new Error(`bench surface: ours and numpy differ by ${worst} (largest weight ${largest})`);
-    return [{ name: label, ours: ours * 1000, reference: ref.seconds * 1000, unit: 'ms', ratio: ref.seconds / ours, target: '>= 2x numpy' }];
+    return [{ name: label, ours: ours * 1000, reference: ref.seconds * 1000, unit: 'ms', ratio: ref.seconds / ours, target: '>= 2x numpy' }, mapRow()];
   });
+}
+
+/**
+ * The engine's share of a constant-energy map widget step: the two-band Weyl model's (100) surface,
+ * 128 x 128 k-points, one thread, with and without locating the Weyl nodes (no reference; the
+ * widget's own target, p95 under 200 ms in Chromium on 2 workers, is measured by the widget bench).
+ */
+function mapRow(): BenchRow {
+  const h = new BlochHamiltonian(weyl2band(), {});
+  const time = (nodes: boolean): number => {
+    let best = Infinity;
+    for (let i = 0; i < WARMUP + RUNS; i++) {
+      const t0 = performance.now();
+      surfaceMap(h, { cut: 0, grid: 128, energy: 0, eta: 0.02, nodes });
+      if (i >= WARMUP) best = Math.min(best, performance.now() - t0);
+    }
+    return best;
+  };
+  const without = time(false), withNodes = time(true);
+  return { name: `Constant-energy map, Weyl model (100) surface, 128x128, one thread (with the Weyl nodes located: ${withNodes.toFixed(0)} ms)`, ours: without, reference: null, unit: 'ms', ratio: null, target: 'engine share of a < 200 ms widget step' };
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {

@@ -6,13 +6,13 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, cubicTI, eigh, haldane, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, weyl2band, type ModelSpec,
+  BlochHamiltonian, cubicTI, eigh, haldane, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, ssh, weyl2band, type ModelSpec,
 } from '../../src/index.js';
-import { bulkBoundary } from '../../src/surface/bulk-boundary.js';
-import { surfaceMap } from '../../src/surface/fermi-map.js';
+import { bulkBoundary, bulkBoundaryCost } from '../../src/surface/bulk-boundary.js';
+import { surfaceMap, surfaceMapCost } from '../../src/surface/fermi-map.js';
 import { principalLayers, splitMatrix } from '../../src/surface/layers.js';
-import { slabSpectrum } from '../../src/surface/slab.js';
-import { surfaceSpectrum } from '../../src/surface/spectrum.js';
+import { slabSpectrum, slabSpectrumCost } from '../../src/surface/slab.js';
+import { surfaceSpectrum, surfaceSpectrumCost } from '../../src/surface/spectrum.js';
 import { Decimation } from '../../src/surface/decimation.js';
 import { z2Index } from '../../src/topology/z2.js';
 import { numpyDecimation } from './surface-numpy.js';
@@ -143,6 +143,29 @@ describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (19
     expect(Math.abs(peak('top', mid))).toBeLessThan(0.03);
     expect(Math.sign(slope('bottom'))).toBe(-Math.sign(slope('top')));
     expect(Math.abs(slope('bottom'))).toBeGreaterThan(0.1);
+  });
+
+  it('SSH chain end: a zero mode for |v| < |w| carrying weight 1 - (v/w)^2 on the end cell, none for |v| > |w| (Su, Schrieffer, Heeger, PRL 42, 1698 (1979); the amplitude ratio -v/w of the zero mode from its equation, common practice)', () => {
+    const eta = 1e-3;
+    for (const v of [0.3, 0.5, 0.8]) {
+      const r = surfaceSpectrum(new BlochHamiltonian(ssh(), { v, w: 1 }), { cut: 0, energyRange: [0, 0], energyCount: 1, eta });
+      expect(r.boundary).toBe('end');
+      // A Lorentzian of the zero mode's weight on the end cell, height weight / (pi eta), plus bulk tails of order eta.
+      expect(r.bottom[0] * Math.PI * eta).toBeCloseTo(1 - v * v, 3);
+      expect(r.top[0] * Math.PI * eta).toBeCloseTo(1 - v * v, 3);
+      expect(r.bulk[0] * Math.PI * eta).toBeLessThan(1e-3);
+    }
+    const trivial = surfaceSpectrum(new BlochHamiltonian(ssh(), { v: 1.5, w: 1 }), { cut: 0, energyRange: [0, 0], energyCount: 1, eta });
+    expect(trivial.bottom[0] * Math.PI * eta).toBeLessThan(1e-3);
+  });
+
+  it('cost estimates grow with the sizes they are made from (energies x k-points, grid, width)', () => {
+    const base = surfaceSpectrumCost(4, { nk: 100, energyCount: 100 });
+    expect(surfaceSpectrumCost(4, { nk: 200, energyCount: 100 }).seconds).toBeCloseTo(2 * base.seconds, 12);
+    expect(surfaceSpectrumCost(8, { nk: 100, energyCount: 100 }).seconds).toBeGreaterThan(base.seconds);
+    expect(surfaceMapCost(2, { grid: 128, nodes: false }).seconds).toBeCloseTo(4 * surfaceMapCost(2, { grid: 64, nodes: false }).seconds, 12);
+    expect(slabSpectrumCost(2, { width: 40 }).bytes).toBeGreaterThan(slabSpectrumCost(2, { width: 20 }).bytes);
+    expect(bulkBoundaryCost(4, { width: 64 }).seconds).toBeGreaterThan(bulkBoundaryCost(4, { width: 32 }).seconds);
   });
 
   it('bad options: eta <= 0, energies outside the spectrum, malformed windows: errors naming the field and value', () => {
