@@ -85,6 +85,7 @@ describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (19
   it.each([
     ['Kane–Mele with Rashba (4 orbitals: the fused 4 x 4 step)', new BlochHamiltonian(kaneMele(), { lambda_v: 0.1, lambda_R: 0.05 }), 1],
     ['Haldane (2 orbitals: the general step)', new BlochHamiltonian(haldane(), { phi: 1.1, M: 0.3 }), 0],
+    ['Hofstadter 1/3 (3 orbitals: odd size)', new BlochHamiltonian(hofstadter(1, 3), {}), 1],
   ])('agrees with a numpy implementation of the same algorithm, vectorised over k: %s, both terminations and the bulk', (_, h, cut) => {
     const r = surfaceSpectrum(h, { cut, nk: 41, energyCount: 31, eta: 0.02 });
     expect(r.checks.unconverged).toBe(0);
