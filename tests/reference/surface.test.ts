@@ -368,7 +368,7 @@ describe('3D surfaces', () => {
       const z = z2Index(h, { method: 'parity' });
       expect([z.z2, z.weak]).toEqual([strong, weak]);
       const delta = (k: number[]) => z.parities!.find((p) => p.k.every((x, i) => Math.abs(Math.abs(x) - Math.abs(k[i])) < 1e-9))!.delta;
-      for (const cut of [2, 0]) {
+      for (const cut of [2, 0, [1, 1, 0], [1, 1, 1]] as (number | number[])[]) {
         const layers = principalLayers(h, cut);
         const solver = new Decimation(layers.size);
         const h00 = splitMatrix(layers.size), h01 = splitMatrix(layers.size);
@@ -380,10 +380,12 @@ describe('3D surfaces', () => {
           return r.bottom > 100 && r.bulk < 1;
         });
         expect(cones.filter(Boolean).length % 2).toBe(strong);
-        // A cone at the surface TRIM whose two bulk TRIMs (k_normal = 0, pi) have parity product -1.
+        // A cone at the surface TRIM whose two bulk TRIMs (those with k·A_i = its coordinates mod 1) have parity product -1.
         trims.forEach((f, a) => {
-          const bulkK = (kn: number) => { const k = [0, 0, 0]; layers.basis.slice(0, 2).forEach((row, i) => { k[row.indexOf(1)] = f[i]; }); k[cut] = kn; return k; };
-          expect(cones[a]).toBe(delta(bulkK(0)) * delta(bulkK(0.5)) === -1);
+          const bulk = [0, 1, 2, 3, 4, 5, 6, 7].map((t) => [t & 1, (t >> 1) & 1, (t >> 2) & 1].map((x) => x / 2))
+            .filter((k) => layers.basis.slice(0, 2).every((row, i) => Math.abs(((row.reduce((s, x, j) => s + x * k[j], 0) - f[i]) % 1 + 1) % 1) < 1e-9));
+          expect(bulk.length).toBe(2);
+          expect(cones[a]).toBe(delta(bulk[0]) * delta(bulk[1]) === -1);
         });
       }
     }
