@@ -14,7 +14,7 @@ export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/bu
 export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
 export { bogoliubov, type BdgOptions } from './model/builders/bdg.js';
 export { wireStack, type WireStackOptions } from './model/builders/wires.js';
-export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, cubicTI, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
+export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
 
 // Bloch Hamiltonians
 export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';
@@ -64,6 +64,7 @@ export { ComplexPfaffian, pfaffian } from './linalg/pfaffian.js';
 export { InterruptedError, checkInterrupt, installInterruptFlag } from './interrupt.js';
 
 // Semi-infinite edges and surfaces: principal layers, decimation, spectral functions, maps, slabs, bulk–boundary check
+export { cubicTI } from './model/catalogue.js';
 export { principalLayers, planeBasis, resolveCut, type CutSpec, type PrincipalLayers, type SplitMatrix } from './surface/layers.js';
 export { Decimation, DECIMATION_MAX_STEPS, DECIMATION_TOLERANCE, type DecimationOutcome } from './surface/decimation.js';
 export { type CutInfo, type DecimationOptions } from './surface/common.js';
