@@ -25,7 +25,7 @@ import { chernNumber } from '../topology/chern.js';
 import { z2Index } from '../topology/z2.js';
 import { cutInfo, wholeNumber, type CutInfo } from './common.js';
 import { openSlab } from './slab.js';
-import type { CutSpec } from './layers.js';
+import { principalLayers, type CutSpec } from './layers.js';
 
 export type BoundaryInvariant = 'chern' | 'z2';
 
@@ -117,10 +117,16 @@ function bulkBandRanges(h: BlochHamiltonian, per: number): { lo: Float64Array; h
 export function bulkBoundary(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBoundaryResult {
   if (options === null || typeof options !== 'object') throw new ModelError('options', `expected {cut, energy, ...}. Value: ${show(options)}`);
   if (h.dim !== 2) throw new ModelError('cut', `the bulk–boundary count is made on the edges of 2D models; this model has ${h.dim} periodic directions. Value: ${show(options.cut)}`);
-  const width = options.width ?? 32;
-  const { spec: plain, layers } = openSlab(h, options.cut, width);
+  // The plain ribbon along the cut, or the one given (its edges decorated, say) for the same cut.
+  const { spec, layers } = options.ribbon === undefined
+    ? openSlab(h, options.cut, options.width ?? 32)
+    : { spec: validateModel(options.ribbon), layers: principalLayers(h, options.cut) };
+  if (spec.periodic !== 1) throw new ModelError('ribbon', `expected a ribbon (one periodic direction). Value: "${spec.name}" with ${spec.periodic}`);
+  const ribbonLayers = spec.orbitals.map((o) => o.layer);
+  if (ribbonLayers.some((l) => l === undefined)) throw new ModelError('ribbon', `every orbital needs its layer (0 .. width-1), as the ribbon builder sets. Value: "${spec.name}"`);
+  const layerCount = Math.max(...(ribbonLayers as number[])) + 1;
   const nk = options.nk === undefined ? 256 : wholeNumber(options.nk, 'nk', 16, 100000);
-  const edgeLayers = options.edgeLayers === undefined ? Math.max(2, Math.floor(width / 10)) : wholeNumber(options.edgeLayers, 'edgeLayers', 1, Math.floor(width / 2));
+  const edgeLayers = options.edgeLayers === undefined ? Math.max(2, Math.floor(layerCount / 10)) : wholeNumber(options.edgeLayers, 'edgeLayers', 1, Math.max(1, Math.floor(layerCount / 2)));
   const invariantKind = options.invariant ?? (h.spec.orbitals.some((o) => o.spin !== undefined) ? 'z2' : 'chern');
   if (invariantKind !== 'chern' && invariantKind !== 'z2') throw new ModelError('invariant', `expected "chern" or "z2". Value: ${show(invariantKind)}`);
 
@@ -159,11 +165,6 @@ export function bulkBoundary(h: BlochHamiltonian, options: BulkBoundaryOptions):
     warnings.push(...z.checks.warnings.map((w) => `Z2: ${w}`));
   }
 
-  const spec = options.ribbon === undefined ? plain : validateModel(options.ribbon);
-  if (spec.periodic !== 1) throw new ModelError('ribbon', `expected a ribbon (one periodic direction). Value: "${spec.name}" with ${spec.periodic}`);
-  const ribbonLayers = spec.orbitals.map((o) => o.layer);
-  if (ribbonLayers.some((l) => l === undefined)) throw new ModelError('ribbon', `every orbital needs its layer (0 .. width-1), as the ribbon builder sets. Value: "${spec.name}"`);
-  const layerCount = Math.max(...(ribbonLayers as number[])) + 1;
   const onFirst = Uint8Array.from(ribbonLayers as number[], (l) => (l < edgeLayers ? 1 : 0));
   const onLast = Uint8Array.from(ribbonLayers as number[], (l) => (l >= layerCount - edgeLayers ? 1 : 0));
   // Modes are followed by their eigenvectors, never by sorted bands: where two modes cross at the
