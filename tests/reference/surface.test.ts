@@ -146,6 +146,31 @@ describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (19
     expect(Math.abs(slope('bottom'))).toBeGreaterThan(0.1);
   });
 
+  it('a zero pivot (a non-causal onsite block, outside what physical input gives): 2 orbitals fall back to pivoting, 4 need none (block inverse); the weights equal those with the orbitals permuted (traces are invariant)', () => {
+    for (const n of [2, 4]) {
+      const eta = 0.05;
+      const make = (perm: number[]) => {
+        const h00 = splitMatrix(n), h01 = splitMatrix(n);
+        for (let i = 0; i < n; i++) {
+          for (let j = 0; j < n; j++) {
+            // Orbital 0 sits at E = 0 with +i eta (cancelling the broadening): its pivot is zero at E = 0.
+            const a = perm[i], b = perm[j];
+            h00.re[a * n + b] = i === j ? (i === 0 ? 0 : 1 + i) : 0.3 / (1 + i + j);
+            h00.im[a * n + b] = i === j && i === 0 ? eta : i === j ? 0 : 0.1 * (i - j);
+            h01.re[a * n + b] = 0.2 * Math.cos(i + 2 * j);
+            h01.im[a * n + b] = 0.2 * Math.sin(i - j);
+          }
+        }
+        return new Decimation(n).solve(h00, h01, 0, eta);
+      };
+      const identity = Array.from({ length: n }, (_, i) => i);
+      const swapped = identity.map((i) => (n - 1 - i));
+      const a = { ...make(identity) }, b = { ...make(swapped) };
+      expect(Number.isFinite(a.bottom) && Number.isFinite(a.top) && Number.isFinite(a.bulk)).toBe(true);
+      for (const side of ['bottom', 'top', 'bulk'] as const) expect(a[side]).toBeCloseTo(b[side], 9);
+    }
+  });
+
   it('SSH chain end: a zero mode for |v| < |w| carrying weight 1 - (v/w)^2 on the end cell, none for |v| > |w| (Su, Schrieffer, Heeger, PRL 42, 1698 (1979); the amplitude ratio -v/w of the zero mode from its equation, common practice)', () => {
     const eta = 1e-3;
     for (const v of [0.3, 0.5, 0.8]) {
