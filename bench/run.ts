@@ -12,6 +12,7 @@ const sections: Record<string, () => Promise<BenchRow[]>> = {
   kernel: async () => (await import('./kernel.js')).benchKernel(),
   widgets: async () => (await import('./widgets.js')).benchWidgets(),
   realspace: async () => (await import('./realspace.js')).benchRealspace(),
+  surface: async () => (await import('./surface.js')).benchSurface(),
 };
 
 const chosen = process.argv.slice(2).filter((a) => !a.startsWith('-'));

@@ -80,3 +80,13 @@ export { chernMarker, chernMarkerCost, type ChernMarkerOptions } from './realspa
 export { localDensity, densityOfSample, localDensityCost, type LocalDensityOptions, type LocalDensityResult } from './realspace/ldos.js';
 export { chebyshevScaling, chebyshevApply, jacksonKernel, stepCoefficients, deltaCoefficients, localMoments, type ChebyshevScaling } from './realspace/kpm.js';
 export { disorderEnsemble, ensembleOf, joinEnsembles, ensembleCost, type EnsembleDiagnostic, type EnsembleOptions, type EnsembleResult } from './realspace/ensemble.js';
+
+// Semi-infinite edges and surfaces: principal layers, decimation, spectral functions, maps, slabs, bulk–boundary check
+export { cubicTI } from './model/catalogue.js';
+export { principalLayers, planeBasis, resolveCut, type CutSpec, type PrincipalLayers, type SplitMatrix } from './surface/layers.js';
+export { Decimation, DECIMATION_MAX_STEPS, DECIMATION_TOLERANCE, type DecimationOutcome } from './surface/decimation.js';
+export { type CutInfo, type DecimationOptions } from './surface/common.js';
+export { surfaceSpectrum, surfaceSpectrumCost, type SurfaceChecks, type SurfaceSpectrumOptions, type SurfaceSpectrumResult } from './surface/spectrum.js';
+export { surfaceMap, surfaceMapCost, type ProjectedNode, type SurfaceMapOptions, type SurfaceMapResult } from './surface/fermi-map.js';
+export { slabSpectrum, slabSpectrumCost, type SlabSpectrumOptions, type SlabSpectrumResult } from './surface/slab.js';
+export { bulkBoundary, bulkBoundaryCost, type BoundaryInvariant, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type EdgeCount, type EdgeMode } from './surface/bulk-boundary.js';

@@ -283,6 +283,34 @@ export function weyl2band(): ModelSpec {
     .build();
 }
 
+/**
+ * Four-band topological insulator on the cubic lattice: the 3D lattice Dirac model (common practice;
+ * the form of Qi, Hughes & Zhang, PRB 78, 195424 (2008), from memory), BHZ's parameters in 3D,
+ * orbitals (s.up, p.up, s.dn, p.dn):
+ *   H = A sum_i sin k_i s_i tau_x + (M - 2B sum_i (1 - cos k_i)) tau_z.
+ * Inversion tau_z, time reversal i s_y K. The mass at a time-reversal-invariant momentum with n
+ * components at pi is M - 4Bn, so by the Fu–Kane parity criterion (Fu & Kane, PRB 76, 045302 (2007))
+ * it is a strong topological insulator for 0 < M/B < 4 and 8 < M/B < 12, weak (indices (1,1,1))
+ * for 4 < M/B < 8, trivial outside; a strong one has an odd number of surface Dirac cones on every
+ * surface (Fu, Kane & Mele, PRL 98, 106803 (2007)).
+ */
+export function cubicTI(): ModelSpec {
+  refuseOptions('cubicTI', arguments, cubicTI);
+  return lattice('cubic topological insulator', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
+    .describe('Four-band 3D lattice Dirac model on the cubic lattice (common practice; Qi, Hughes & Zhang, PRB 78, 195424 (2008)): strong TI for 0 < M/B < 4, weak for 4 < M/B < 8.')
+    .parameter('A', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'spin–orbit (linear) term' })
+    .parameter('B', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'band curvature' })
+    .parameter('M', { default: 2, range: [-4, 16], unit: energyIn('B'), doc: 'mass at Γ' })
+    .site('s', [0, 0, 0], { spin: true }).site('p', [0, 0, 0], { spin: true })
+    // spin (x) orbital: the Pauli string 'ab' is s_a (x) tau_b.
+    .block('q', ['s.up', 'p.up', 's.dn', 'p.dn'])
+    .onsiteMatrix('q', { '0z': 'M - 6*B' })
+    .harmonic('q', [1, 0, 0], { cos: { '0z': '2*B' }, sin: { xx: 'A' } })
+    .harmonic('q', [0, 1, 0], { cos: { '0z': '2*B' }, sin: { yx: 'A' } })
+    .harmonic('q', [0, 0, 1], { cos: { '0z': '2*B' }, sin: { zx: 'A' } })
+    .build();
+}
+
 /** Catalogue entries by name, for menus and the kernel's completion. */
 export const CATALOGUE: Readonly<Record<string, () => ModelSpec>> = {
   ssh,
@@ -295,6 +323,7 @@ export const CATALOGUE: Readonly<Record<string, () => ModelSpec>> = {
   hofstadter: () => hofstadter(),
   coupledWires: () => coupledWires(),
   weyl2band,
+  cubicTI,
 };
 
 /** A catalogue model by name; the error lists what exists. */
