@@ -10,6 +10,7 @@ import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import type { Diagnostic, OwnOptions } from './diagnostic.js';
 import { bands } from './kinds/bands.js';
 import { berryPhase } from './kinds/berry-phase.js';
+import { bulkBoundary } from './kinds/bulk-boundary.js';
 import { bott } from './kinds/bott.js';
 import { chainWinding } from './kinds/chain-winding.js';
 import { chern } from './kinds/chern.js';
@@ -22,8 +23,11 @@ import { localDensity } from './kinds/local-density.js';
 import { localMarker } from './kinds/local-marker.js';
 import { majorana } from './kinds/majorana.js';
 import { ribbon } from './kinds/ribbon.js';
+import { slabSpectrum } from './kinds/slab-spectrum.js';
 import { spinBott } from './kinds/spin-bott.js';
 import { spinChern } from './kinds/spin-chern.js';
+import { surfaceMap } from './kinds/surface-map.js';
+import { surfaceSpectrum } from './kinds/surface-spectrum.js';
 import { wannierFlow } from './kinds/wannier-flow.js';
 import { weyl } from './kinds/weyl.js';
 import { winding } from './kinds/winding.js';
@@ -51,6 +55,11 @@ export const DIAGNOSTICS = {
   'local-marker': localMarker,
   'local-density': localDensity,
   ensemble,
+  // Edges and surfaces of semi-infinite samples and slabs (src/surface/).
+  'surface-spectrum': surfaceSpectrum,
+  'surface-map': surfaceMap,
+  'slab-spectrum': slabSpectrum,
+  'bulk-boundary': bulkBoundary,
 } as const;
 
 type Registry = typeof DIAGNOSTICS;

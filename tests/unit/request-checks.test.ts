@@ -32,6 +32,16 @@ const VALID: Record<string, DiagnosticRequest> = {
   weyl: { kind: 'weyl', model: weyl2band(), grid: 6 },
   hall: { kind: 'hall', model: qwz(), grid: 8 },
   'phase-map': { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 3 }] },
+  bott: { kind: 'bott', model: qwz(), sizes: [4, 4] },
+  'spin-bott': { kind: 'spin-bott', model: kaneMele(), sizes: [3, 3], params: { lambda_R: 0 } },
+  'chain-winding': { kind: 'chain-winding', model: ssh(), sizes: [10] },
+  'local-marker': { kind: 'local-marker', model: qwz(), sizes: [4, 4] },
+  'local-density': { kind: 'local-density', model: qwz(), sizes: [4, 4], energy: 0.1, method: 'dense' },
+  ensemble: { kind: 'ensemble', model: qwz(), of: 'bott', samples: 2, sizes: [4, 4], onsiteDisorder: 1 },
+  'surface-spectrum': { kind: 'surface-spectrum', model: qwz(), cut: 0, nk: 8, energyCount: 8 },
+  'surface-map': { kind: 'surface-map', model: weyl2band(), cut: 2, grid: 8 },
+  'slab-spectrum': { kind: 'slab-spectrum', model: weyl2band(), cut: 2, width: 4, nk: 8 },
+  'bulk-boundary': { kind: 'bulk-boundary', model: qwz(), cut: 0, width: 8, nk: 16 },
 };
 
 describe('strict request fields (src/request.ts)', () => {

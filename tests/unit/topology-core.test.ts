@@ -261,6 +261,6 @@ describe('compute(request)', () => {
     expect(r.kind === 'chern' && r.chern).toBe(1);
     // @ts-expect-error an unknown kind is a runtime error naming the field
     expect(() => compute({ kind: 'chernn', model: qwz() })).toThrow(/kind: unknown diagnostic "chernn"/);
-    expect(() => compute({ kind: 'chern', model: qwz(), params: { u: 9 } })).toThrow(/params\.u: value 9 is outside/);
+    expect(() => compute({ kind: 'chern', model: qwz(), params: { u: 9 } })).toThrow(/params\.u: outside its declared range \[-4, 4\]\. Value: 9/);
   });
 });
