@@ -1,2 +1,0 @@
-/** Starts a kernel from a connection file: transport, protocol, executor. */
-export declare function startKernel(connectionFile: string): Promise<void>;
