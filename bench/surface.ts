@@ -8,35 +8,21 @@
  * Standalone: `node --import ./scripts/register-ts.js bench/surface.ts`.
  */
 import { existsSync } from 'node:fs';
-import { spawnSync } from 'node:child_process';
 import { pathToFileURL } from 'node:url';
 import { BlochHamiltonian } from '../src/bloch/hamiltonian.js';
 import { kaneMele, weyl2band } from '../src/model/catalogue.js';
 import { surfaceMap } from '../src/surface/fermi-map.js';
 import { surfaceSpectrum } from '../src/surface/spectrum.js';
 import { numpyDecimation, PYTHON } from '../tests/reference/surface-numpy.js';
+import { sameCpu } from './linalg.js';
 import { formatTable, type BenchRow } from './table.js';
 
-const TASKSET = '/usr/bin/taskset';
 const RUNS = 5;
 const WARMUP = 2;
 
-/** Our thread on the first CPU it may use while `run` runs; that CPU is returned for numpy (see bench/linalg.ts). */
-function sameCpu<T>(run: (cpu: string | null) => T): T {
-  const pid = String(process.pid);
-  const current = existsSync(TASKSET) ? spawnSync(TASKSET, ['-pc', pid], { encoding: 'utf8' }) : null;
-  const allowed = current?.status === 0 ? current.stdout.split(':').pop()?.trim() ?? '' : '';
-  const cpu = allowed.split(/[,-]/)[0];
-  if (cpu === '' || spawnSync(TASKSET, ['-pc', cpu, pid]).status !== 0) return run(null);
-  try {
-    return run(cpu);
-  } finally {
-    spawnSync(TASKSET, ['-pc', allowed, pid]);
-  }
-}
-
-export function benchSurface(): BenchRow[] {
-  return sameCpu((cpu) => {
+export function benchSurface(): Promise<BenchRow[]> {
+  // Both sides on one CPU (bench/linalg.ts says why).
+  return sameCpu(async (cpu) => {
     const h = new BlochHamiltonian(kaneMele(), { t: 1, lambda_SO: 0.06, lambda_R: 0.05, lambda_v: 0.1 });
     const options = { cut: 1, nk: 256, energyCount: 256, eta: 0.01 };
     let result = surfaceSpectrum(h, options);
@@ -85,5 +71,5 @@ function mapRow(): BenchRow {
 }
 
 if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {
-  console.log(formatTable(benchSurface()));
+  console.log(formatTable(await benchSurface()));
 }
