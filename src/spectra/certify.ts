@@ -217,6 +217,14 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     return steps;
   };
   const corners = 1 << d;
+  // Bisection makes few distinct interval widths per axis: each width's bound is computed once.
+  const variations = region.axes.map(() => new Map<number, number>());
+  const remainderShares = region.axes.map(() => new Map<number, number>());
+  const once = (memo: Map<number, number>[], axis: number, width: number, make: () => number): number => {
+    let value = memo[axis].get(width);
+    if (value === undefined) memo[axis].set(width, (value = make()));
+    return value;
+  };
 
   // The local bound needs the derivative along each axis, which only a straight region has.
   const derivative = region.chart === undefined ? new Float64Array(2 * nb * nb) : null;
@@ -269,9 +277,9 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     if ((round & (round - 1)) === 0 && round >= 4 && polish('').verdict === 'gapless') return gapless();
     checkInterrupt();
     const widths = positions.map((p) => Float64Array.from({ length: p.length - 1 }, (_, j) => p[j + 1] - p[j]));
-    const shares = widths.map((w, i) => Float64Array.from(w, (x) => h.variationBound(stepsAlong(i, x / 2))));
+    const shares = widths.map((w, i) => Float64Array.from(w, (x) => once(variations, i, x, () => h.variationBound(stepsAlong(i, x / 2)))));
     // (sum of d terms)^2 <= d (sum of squares): each interval's share of the remainder, times d.
-    const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => d * h.remainderBound(stepsAlong(i, x / 2))));
+    const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => once(remainderShares, i, x, () => d * h.remainderBound(stepsAlong(i, x / 2)))));
     const cornerOffsets = Array.from({ length: corners }, (_, c) => strides.reduce((a, st, i) => a + ((c >> i) & 1) * st, 0));
     // Boxes: the proven gap of each, and which intervals to split where a box is not proven.
     const split = positions.map((p) => new Uint8Array(p.length - 1));
