@@ -6,7 +6,10 @@
  * most ||H(k + delta) - H(k)||, which the compiled model bounds from its amplitudes and hopping
  * vectors (BlochHamiltonian.variationBound). Every point of a box of the sample lattice lies within
  * half the box's widths of one of its corners, so the gap everywhere in the box is at least
- *   (smallest corner gap) - 2 V(half widths).
+ *   (smallest corner gap) - 2 V(half widths);
+ * and, on a straight region, where V is at most linear in the step (a_i per radian along axis i),
+ * the bound from every corner averaged over the corners gives the often larger
+ *   (mean corner gap) - sum_i a_i w_i.
  * A box that fails this gets a second, local chance: around each corner c, H(k) - H(c) is the
  * derivative at c (whose norm is solved there, along each axis) plus a second-order remainder the
  * amplitudes bound, which is far tighter than the global bound wherever the hoppings partly cancel.
@@ -220,6 +223,7 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
   // Bisection makes few distinct interval widths per axis: each width's bound is computed once.
   const variations = region.axes.map(() => new Map<number, number>());
   const remainderShares = region.axes.map(() => new Map<number, number>());
+  const linearShares = region.axes.map(() => new Map<number, number>());
   const once = (memo: Map<number, number>[], axis: number, width: number, make: () => number): number => {
     let value = memo[axis].get(width);
     if (value === undefined) memo[axis].set(width, (value = make()));
@@ -278,6 +282,8 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
     checkInterrupt();
     const widths = positions.map((p) => Float64Array.from({ length: p.length - 1 }, (_, j) => p[j + 1] - p[j]));
     const shares = widths.map((w, i) => Float64Array.from(w, (x) => once(variations, i, x, () => h.variationBound(stepsAlong(i, x / 2)))));
+    // On a straight region the uncapped bound is linear in the step: a_i w_i for a whole interval.
+    const slopes = region.chart === undefined ? widths.map((w, i) => Float64Array.from(w, (x) => once(linearShares, i, x, () => h.variationBound(stepsAlong(i, x), false)))) : null;
     // (sum of d terms)^2 <= d (sum of squares): each interval's share of the remainder, times d.
     const remainders = derivative === null ? null : widths.map((w, i) => Float64Array.from(w, (x) => once(remainderShares, i, x, () => d * h.remainderBound(stepsAlong(i, x / 2)))));
     const cornerOffsets = Array.from({ length: corners }, (_, c) => strides.reduce((a, st, i) => a + ((c >> i) & 1) * st, 0));
@@ -300,9 +306,20 @@ export function certifyGap(h: BlochHamiltonian, group: BandGroup, region: Certif
         share += shares[i][j];
         boxWidths[i] = widths[i][j];
       }
-      let smallest = Infinity;
-      for (let c = 0; c < corners; c++) smallest = Math.min(smallest, gaps[base + cornerOffsets[c]]);
+      let smallest = Infinity, sum = 0;
+      for (let c = 0; c < corners; c++) {
+        const g = gaps[base + cornerOffsets[c]];
+        smallest = Math.min(smallest, g);
+        sum += g;
+      }
       let bound = smallest - 2 * share;
+      if (slopes !== null) {
+        // gap(p) >= gap(c) - 2 sum_i a_i |p_i - c_i| for every corner c, so also for their average;
+        // averaged over the corners, sum_i a_i |p_i - c_i| is sum_i a_i w_i / 2 wherever p is.
+        let linear = 0;
+        for (let i = 0; i < d; i++) linear += slopes[i][index[i]];
+        bound = Math.max(bound, sum / corners - linear);
+      }
       if (!fine(bound) && remainders !== null) {
         let remainder = 0;
         for (let i = 0; i < d; i++) remainder += remainders[i][index[i]];

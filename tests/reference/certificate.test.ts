@@ -298,6 +298,8 @@ print(json.dumps(out))
         return;
       }
       expect(ours.checks.certified, `model ${i}`).toBe(true);
+      // A proven lower bound on the gap cannot exceed the smallest gap numpy samples (common practice).
+      expect(ours.checks.gapProof!.lowerBound, `model ${i}: numpy's smallest sampled gap ${ref.gap}`).toBeLessThanOrEqual(ref.gap + 1e-12);
       if (!sound(ref)) {
         unresolved++;
         return;
