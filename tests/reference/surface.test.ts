@@ -315,7 +315,7 @@ describe('bulk–boundary check', () => {
     expect(r.summary).toMatch(/^disagree: C = 1 .*first edge: 0 modes .*but C = 1 requires net -1/);
   });
 
-  it('bad input: energy in a bulk band or outside the spectrum, a 3D model, a gapless bulk: errors naming the field and value', () => {
+  it('bad input: energy in a bulk band or outside the spectrum, a gapless bulk: errors naming the field and value', () => {
     const h = new BlochHamiltonian(qwz(), { u: -1 });
     expect(() => bulkBoundary(h, { cut: 1, energy: 1.5 })).toThrow(/^energy: is not inside a bulk gap: bulk band 1 spans \[1\.000, 3\.000\]\. Value: 1.5/);
     expect(() => bulkBoundary(h, { cut: 1, energy: 9 })).toThrow(/^energy: is not inside a bulk gap: the bulk bands span \[-3\.000, 3\.000\]\. Value: 9/);
@@ -324,7 +324,6 @@ describe('bulk–boundary check', () => {
     expect(() => bulkBoundary(h, { cut: 1, edgeLayers: 40 })).toThrow(/^edgeLayers: expected a whole number from 1 to 16\. Value: 40/);
     expect(() => bulkBoundary(h, { cut: 1, invariant: 'winding' as 'chern' })).toThrow(/^invariant: .*Value: "winding"/);
     expect(() => bulkBoundary(new BlochHamiltonian(qwz(), { u: 2 }), { cut: 1 })).toThrow(/^energy: the bulk has no gap between bands 0 and 1/);
-    expect(() => bulkBoundary(new BlochHamiltonian(weyl2band()), { cut: 0 })).toThrow(/^cut: the bulk–boundary count is made on the edges of 2D models/);
   });
 });
 
