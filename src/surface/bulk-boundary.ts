@@ -217,12 +217,15 @@ function summarise(kind: BoundaryInvariant, value: number | null, energy: number
   return `${head} at E = ${energy.toPrecision(4)}; ${describe('first', edges.first)}; ${describe('last', edges.last)}`;
 }
 
-/** Memory and time of a bulk–boundary check before it runs (n: the model's orbitals). */
-export function bulkBoundaryCost(n: number, options: Partial<BulkBoundaryOptions>): { bytes: number; seconds: number } {
-  const width = typeof options.width === 'number' && options.width >= 1 ? options.width : 32;
+/** Memory and time of a bulk–boundary check before it runs (n: the model's orbitals, dim: its periodic directions). */
+export function bulkBoundaryCost(n: number, options: Partial<BulkBoundaryOptions>, dim = 2): { bytes: number; seconds: number } {
+  const width = typeof options.width === 'number' && options.width >= 1 ? options.width : [64, 64, 32, 24][dim] ?? 32;
   const nk = typeof options.nk === 'number' && options.nk >= 1 ? options.nk : 256;
   const big = n * width;
   const solve = (m: number): number => 4e-6 + 1.5e-7 * m ** 2 + 4e-9 * m ** 3;
-  // The ribbon's bands, the bulk's 64 x 64 grid, and the invariant (a few thousand bulk solves).
-  return { bytes: 8 * 16 * big * big + nk * big * 8, seconds: (nk + 16) * solve(big) + (64 * 64 + 4000) * solve(n) };
+  // The sample's spectrum (a chain once; a ribbon along its zone; a slab at four TRIMs, or along a
+  // few lines between Weyl nodes), the bulk gap's grid, and the invariant (a few thousand bulk solves).
+  const sampleSolves = dim === 1 ? 1 : dim === 2 ? nk + 16 : 4 + 4 * nk;
+  const bulkSolves = dim === 1 ? 512 + 4000 : dim === 2 ? 64 * 64 + 4000 : 16 ** 3 + 4 * 64 * 32 + 24 ** 3 + 8000;
+  return { bytes: 8 * 16 * big * big + nk * big * 8, seconds: sampleSolves * solve(big) + bulkSolves * solve(n) };
 }

@@ -211,7 +211,8 @@ function orientation3(h: BlochHamiltonian, basis: number[][]): number {
   return Math.sign(u[0] * (v[1] * w[2] - v[2] * w[1]) - u[1] * (v[0] * w[2] - v[2] * w[0]) + u[2] * (v[0] * w[1] - v[1] * w[0]));
 }
 
-const frac = (x: number): number => x - Math.floor(x);
+/** x mod 1 in [0, 1) (a value within 1e-12 of 1 is 0). */
+const frac = (x: number): number => { const f = x - Math.floor(x); return f > 1 - 1e-12 ? 0 : f; };
 
 function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: OpenSample, nk: number): BulkBoundaryResult {
   const warnings: string[] = [];

@@ -6,7 +6,7 @@ export const bulkBoundary: Diagnostic<BulkBoundaryOptions, BulkBoundaryResult> =
   kind: 'bulk-boundary',
   options: optionNames<BulkBoundaryOptions>({ cut: true, energy: true, invariant: true, width: true, edgeLayers: true, nk: true, sublattice: true, ribbon: true }),
   run: boundaryAgainstBulk,
-  cost: (request, n) => bulkBoundaryCost(n, request as Partial<BulkBoundaryOptions>),
+  cost: (request, n, dim) => bulkBoundaryCost(n, request as Partial<BulkBoundaryOptions>, dim),
   sizeFields: () => ['width', 'nk'],
   headline: ['verdict', 'summary'],
 };
