@@ -216,12 +216,16 @@ const frac = (x: number): number => { const f = x - Math.floor(x); return f > 1 
 
 function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: OpenSample, nk: number): BulkBoundaryResult {
   const warnings: string[] = [];
-  const weyl = weylPoints(h, {});
+  // More candidates than the locator's default: a missed node would read as a wrong arc count.
+  const weyl = weylPoints(h, { maxCandidates: 32 });
   warnings.push(...weyl.checks.warnings.map((w) => `Weyl points: ${w}`));
   const layers = sample.layers;
   const nodes: ProjectedNode[] = weyl.points.map((p) => ({ k: p.fractions, kPar: projectToSurface(layers, p.k).map((x) => x / (2 * Math.PI)), chirality: p.chirality }));
   const below = weyl.bands[1] + 1;
-  const certified = weyl.points.every((p) => p.chirality !== null);
+  // The chiralities of every node of a periodic zone sum to zero (Nielsen & Ninomiya, Nucl. Phys. B 185, 20 (1981)): any other sum means a node was missed.
+  const complete = weyl.total === 0;
+  if (weyl.total !== null && !complete) warnings.push(`the Weyl nodes found have chiralities summing to ${weyl.total}, not 0: a node was missed, so the arcs cannot be checked`);
+  const certified = complete && weyl.points.every((p) => p.chirality !== null);
   const value = certified ? weyl.points.reduce((s, p) => s + Math.abs(p.chirality!), 0) : null;
 
   // The energy: given, or the nodes' mean energy (the middle of the crossing bands there).
@@ -292,7 +296,7 @@ function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: Op
     return `${label} surface: net crossings ${nets}${bad.length > 0 ? `; ${bad.join('; ')}` : ''}${s.extra > 0 ? `; ${s.extra} crossings beyond the net counts (trivial pairs)` : ''}`;
   };
   const head = verdict === 'undetermined'
-    ? !certified ? 'undetermined: a Weyl node\'s chirality is not certain' : open > 0 ? `undetermined: ${open} line(s) where the bulk is not gapped at the energy` : `undetermined: ${stray} crossing(s) on neither surface`
+    ? !complete ? `undetermined: the nodes found have chiralities summing to ${weyl.total ?? 'an uncertain value'}, not 0` : !certified ? 'undetermined: a Weyl node\'s chirality is not certain' : open > 0 ? `undetermined: ${open} line(s) where the bulk is not gapped at the energy` : `undetermined: ${stray} crossing(s) on neither surface`
     : `${verdict === 'agree' ? 'agree' : verdict === 'extra-modes' ? 'disagree in number, agree in net chirality' : 'disagree'}: ${nodes.length} Weyl node${nodes.length === 1 ? '' : 's'} (chiralities ${nodes.map((n) => n.chirality).join(', ') || 'none'})`;
   return {
     kind: 'bulk-boundary',

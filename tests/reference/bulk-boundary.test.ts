@@ -85,6 +85,7 @@ const PHASES: Record<string, Phase[]> = {
   bhz: [
     { label: 'M/B = -1: Z2 = 0', params: { M: -1, B: 1 }, options: ribbonOptions, value: 0, check: helicalEdges(0) },
     { label: 'M/B = 1: Z2 = 1', params: { M: 1, B: 1 }, options: ribbonOptions, value: 1, check: helicalEdges(1) },
+    { label: 'M/B = 3: Z2 = 1', params: { M: 3, B: 1 }, options: ribbonOptions, value: 1, check: helicalEdges(1) },
     { label: 'M/B = 9: Z2 = 0', params: { M: 9, B: 1 }, options: ribbonOptions, value: 0, check: helicalEdges(0) },
   ],
   // Thouless, Kohmoto, Nightingale, den Nijs, PRL 49, 405 (1982), flux 1/3: the lower gap C = -1, the
