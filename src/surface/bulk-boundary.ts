@@ -58,7 +58,7 @@ export interface BulkBoundaryOptions {
   width?: number;
   /** Layers counted as each end, edge or surface (default a tenth of the width, at least 2). */
   edgeLayers?: number;
-  /** k-points along each closed line of the edge or surface zone (default 256). */
+  /** k-points along each closed line of the edge or surface zone: 2D, and 3D Weyl (default 256; chains and the 3D Z2 count at fixed k use none). */
   nk?: number;
   /** 1D chiral chains: orbital labels of sublattice A, as `windingNumber` takes them (default: found by two-colouring). */
   sublattice?: string[];

@@ -75,9 +75,9 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
       warnings.push(...w.checks.warnings.map((x) => `winding: ${x}`));
     } catch (e) {
       // Asked for, or the sublattices given: the chiral symmetry is required, so its absence is the error.
-      if (!(e instanceof ModelError) || asked === 'winding' || options.sublattice !== undefined || !e.message.startsWith('sublattice')) throw e;
+      if (!(e instanceof ModelError) || asked === 'winding' || options.sublattice !== undefined || e.field !== 'sublattice') throw e;
       kind = 'none';
-      reason = `no invariant protects end modes: the chain is not a BdG chain and has ${e.message.replace(/^sublattice: /, '')}`;
+      reason = `no invariant protects end modes: the chain is not a BdG chain and has ${e.message.slice(e.field.length + 2)}`;
     }
   }
   const ranges = zoneBandRanges(h);

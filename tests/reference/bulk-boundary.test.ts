@@ -62,6 +62,7 @@ const PHASES: Record<string, Phase[]> = {
   // Kitaev, Physics-Uspekhi 44, 131 (2001): one Majorana mode per end for |mu| < 2|t|, none outside.
   kitaevChain: [
     { label: '|mu| < 2t', params: { mu: 0.5 }, options: { cut: 0 }, value: -1, check: (r) => expect([r.ends!.first.modes.length, r.ends!.last.modes.length]).toEqual([1, 1]) },
+    { label: 'mu > 2t', params: { mu: 3 }, options: { cut: 0 }, value: 1, check: (r) => expect([r.ends!.first.modes.length, r.ends!.last.modes.length]).toEqual([0, 0]) },
     { label: 'mu < -2t', params: { mu: -3 }, options: { cut: 0 }, value: 1, check: (r) => expect([r.ends!.first.modes.length, r.ends!.last.modes.length]).toEqual([0, 0]) },
   ],
   // Qi, Wu, Zhang, PRB 74, 085308 (2006); signs in references.md.
