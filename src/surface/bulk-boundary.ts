@@ -31,7 +31,7 @@ import { lineCrossings, type EdgeMode } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { CutSpec } from './layers.js';
 import { slabSurfaces, type SurfaceCount } from './surface-count.js';
-import { checkedInvariant, openSample } from './open-sample.js';
+import { checkedInvariant, openSample, thinSample } from './open-sample.js';
 
 export type { EdgeMode } from './crossings.js';
 export type { EndCount, EndMode } from './chain-ends.js';
@@ -158,6 +158,8 @@ function ribbonEdges(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBou
   const found = lineCrossings(new BandSampler(sample.h), sample.onFirst, sample.onLast, energy, window, (t, k) => { k[0] = t; }, nk, sample.edgeLayers);
   warnings.push(...found.warnings);
   const stray = found.stray;
+  const thin = thinSample(h, sample, Math.min(energy - bulkGap[0], bulkGap[1] - energy), 'ribbon');
+  if (thin !== null) warnings.push(thin);
   const orientation = Math.sign(handedness(h, sample.layers.basis));
   const count = (modes: EdgeMode[], sign: number): EdgeCount => {
     const right = modes.filter((m) => m.velocity > 0).length, left = modes.length - right;
@@ -173,7 +175,7 @@ function ribbonEdges(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBou
   };
   const edges = { first: count(found.first, -1), last: count(found.last, 1) };
   let verdict: BoundaryVerdict;
-  if (value === null || stray > 0) verdict = 'undetermined';
+  if (value === null || stray > 0 || thin !== null) verdict = 'undetermined';
   else if (!edges.first.agrees || !edges.last.agrees) verdict = 'disagree';
   else if (edges.first.extra > 0 || edges.last.extra > 0) verdict = 'extra-modes';
   else verdict = 'agree';
@@ -189,7 +191,7 @@ function ribbonEdges(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBou
     edgeLayers: sample.edgeLayers,
     edges,
     verdict,
-    summary: summarise(invariantKind, value, energy, edges, verdict, stray),
+    summary: summarise(invariantKind, value, energy, edges, verdict, stray, thin !== null ? sample.width : 0),
     checks: { warnings, grid: ranges.grid },
   };
 }
@@ -201,7 +203,7 @@ function handedness(h: BlochHamiltonian, basis: number[][]): number {
   return cart[0][0] * cart[1][1] - cart[0][1] * cart[1][0];
 }
 
-function summarise(kind: BoundaryInvariant, value: number | null, energy: number, edges: { first: EdgeCount; last: EdgeCount }, verdict: BoundaryVerdict, stray: number): string {
+function summarise(kind: BoundaryInvariant, value: number | null, energy: number, edges: { first: EdgeCount; last: EdgeCount }, verdict: BoundaryVerdict, stray: number, thinWidth: number): string {
   const name = kind === 'chern' ? 'C' : 'Z2';
   const describe = (label: string, e: EdgeCount): string => {
     const modes = `${e.modes.length} mode${e.modes.length === 1 ? '' : 's'} (${e.right} right, ${e.left} left${e.pairs !== null ? `, ${e.pairs} Kramers pair${e.pairs === 1 ? '' : 's'}` : ''})`;
@@ -212,7 +214,7 @@ function summarise(kind: BoundaryInvariant, value: number | null, energy: number
     return `${label} edge: ${modes}, as ${name} = ${value} requires`;
   };
   const head = verdict === 'undetermined'
-    ? value === null ? `undetermined: the bulk ${name} is not certain at these parameters` : `undetermined: ${stray} crossing${stray === 1 ? '' : 's'} on neither edge`
+    ? value === null ? `undetermined: the bulk ${name} is not certain at these parameters` : thinWidth > 0 ? `undetermined: the ribbon (${thinWidth} lines) is too narrow for its edge modes (see the warnings)` : `undetermined: ${stray} crossing${stray === 1 ? '' : 's'} on neither edge`
     : verdict === 'agree' ? `agree: ${name} = ${value}` : verdict === 'extra-modes' ? `disagree in number, agree in ${kind === 'chern' ? 'net chirality' : 'parity'}: ${name} = ${value}` : `disagree: ${name} = ${value}`;
   return `${head} at E = ${energy.toPrecision(4)}; ${describe('first', edges.first)}; ${describe('last', edges.last)}`;
 }

@@ -3,8 +3,10 @@
  * (`width` cells, diagonalised whole: exact for the finite chain and cheap), against the winding
  * number of a chiral chain or the Majorana number of a BdG chain.
  *
- * Zero modes: the chain's states within half the bulk gap of E = 0 (a finite chain splits an end
- * pair by about e^{-width / xi}, far less). Localisation criterion: those states are rotated to the
+ * Zero modes: the chain's states inside the bulk gap around E = 0 (within 0.98 of the distance to
+ * either edge), so that an end pair a short chain splits away from zero is still counted; in-gap
+ * states away from zero come in pairs (E, -E) that add nothing to N_A - N_B or to the parity of
+ * the Majorana count. Localisation criterion: those states are rotated to the
  * eigenvectors of P_first - P_last (P the projector on the outer `edgeLayers` cells of an end)
  * within their span; a state belongs to the first end when its eigenvalue exceeds 1/2 (more than
  * half its weight there, more than on the other end), to the last end below -1/2, else to neither
@@ -27,7 +29,7 @@ import type { BoundaryInvariant, BoundaryVerdict, BulkBoundaryOptions, BulkBound
 import { zoneBandRanges, energyInGap } from './bulk-gap.js';
 import { cutInfo } from './common.js';
 import { column, expectation, rotateByDiagonal, weightOn } from './crossings.js';
-import { checkedInvariant, openSample } from './open-sample.js';
+import { checkedInvariant, openSample, thinSample } from './open-sample.js';
 
 export interface EndMode {
   /** <H> of the mode (near the energy of the count). */
@@ -88,9 +90,9 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
   const sampler = new BandSampler(sample.h);
   const n = sampler.bandCount;
   const e = sampler.solveWithVectors(new Float64Array(0));
-  const half = 0.5 * Math.min(energy - gap[0], gap[1] - energy);
+  const reach = 0.98 * Math.min(energy - gap[0], gap[1] - energy);
   const near: Float64Array[] = [];
-  for (let b = 0; b < n; b++) if (Math.abs(e[b] - energy) < half) near.push(column(sampler.vectors, n, b));
+  for (let b = 0; b < n; b++) if (Math.abs(e[b] - energy) < reach) near.push(column(sampler.vectors, n, b));
   const side = Float64Array.from(sample.onFirst, (f, i) => f - sample.onLast[i]);
   const { values, states } = rotateByDiagonal(near, side);
   const first: Float64Array[] = [], last: Float64Array[] = [];
@@ -99,7 +101,9 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
     else if (x < -0.5) last.push(states[i]);
   });
   const stray = near.length - first.length - last.length;
-  if (stray > 0) warnings.push(`${stray} state${stray === 1 ? '' : 's'} within ${half.toPrecision(3)} of E = ${energy} on neither end (the outer ${sample.edgeLayers} cells of each hold less than half of it): the chain (${sample.width} cells) may be too short for its end modes`);
+  const thin = thinSample(h, sample, Math.min(energy - gap[0], gap[1] - energy), 'chain');
+  if (thin !== null) warnings.push(thin);
+  if (stray > 0) warnings.push(`${stray} state${stray === 1 ? '' : 's'} in the bulk gap (within ${reach.toPrecision(3)} of E = ${energy}) on neither end (the outer ${sample.edgeLayers} cells of each hold less than half of it): the chain (${sample.width} cells) may be too short for its end modes`);
 
   const matrix = new Float64Array(2 * n * n);
   sample.h.fill(new Float64Array(0), matrix);
@@ -126,8 +130,14 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
     return { modes, sublatticeA: null, sublatticeB: null, net, expected, agrees: net % 2 === expected, extra: net - expected };
   };
   const ends = { first: count(first, sample.onFirst, 1), last: count(last, sample.onLast, -1) };
+  const name = kind === 'winding' ? 'W' : 'M';
+  if (kind !== 'none') {
+    if (value === null) reason = `the bulk ${name} is not certain at these parameters`;
+    else if (thin !== null) reason = `the chain (${sample.width} cells) is too short for its end modes (see the warnings)`;
+    else if (stray > 0) reason = `${stray} zero-energy state${stray === 1 ? '' : 's'} on neither end`;
+  }
   let verdict: BoundaryVerdict;
-  if (kind === 'none' || value === null || stray > 0) verdict = 'undetermined';
+  if (reason !== '') verdict = 'undetermined';
   else if (!ends.first.agrees || !ends.last.agrees) verdict = 'disagree';
   else if (ends.first.extra > 0 || ends.last.extra > 0) verdict = 'extra-modes';
   else verdict = 'agree';
@@ -143,12 +153,12 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
     edgeLayers: sample.edgeLayers,
     ends,
     verdict,
-    summary: summariseEnds(kind, value, energy, ends, verdict, stray, reason),
+    summary: summariseEnds(kind, value, energy, ends, verdict, reason),
     checks: { warnings, grid: ranges.grid },
   };
 }
 
-function summariseEnds(kind: BoundaryInvariant, value: number | null, energy: number, ends: { first: EndCount; last: EndCount }, verdict: BoundaryVerdict, stray: number, reason: string): string {
+function summariseEnds(kind: BoundaryInvariant, value: number | null, energy: number, ends: { first: EndCount; last: EndCount }, verdict: BoundaryVerdict, reason: string): string {
   const name = kind === 'winding' ? 'W' : 'M';
   const describe = (label: string, c: EndCount): string => {
     const modes = `${c.modes.length} ${kind === 'majorana' ? 'Majorana ' : ''}mode${c.modes.length === 1 ? '' : 's'}${c.sublatticeA !== null ? ` (${c.sublatticeA} on A, ${c.sublatticeB} on B)` : ''}`;
@@ -158,9 +168,7 @@ function summariseEnds(kind: BoundaryInvariant, value: number | null, energy: nu
     if (c.extra > 0) return `${label} end: ${modes}: ${need} as ${name} = ${value} requires, plus ${c.extra} extra modes in trivial pairs, allowed but not protected by the invariant`;
     return `${label} end: ${modes}, as ${name} = ${value} requires`;
   };
-  const head = kind === 'none' ? `undetermined: ${reason}`
-    : verdict === 'undetermined'
-      ? value === null ? `undetermined: the bulk ${name} is not certain at these parameters` : `undetermined: ${stray} zero-energy state${stray === 1 ? '' : 's'} on neither end`
-      : verdict === 'agree' ? `agree: ${name} = ${value}` : verdict === 'extra-modes' ? `disagree in number, agree in ${kind === 'winding' ? 'sublattice polarisation' : 'parity'}: ${name} = ${value}` : `disagree: ${name} = ${value}`;
+  const head = verdict === 'undetermined' ? `undetermined: ${reason}`
+    : verdict === 'agree' ? `agree: ${name} = ${value}` : verdict === 'extra-modes' ? `disagree in number, agree in ${kind === 'winding' ? 'sublattice polarisation' : 'parity'}: ${name} = ${value}` : `disagree: ${name} = ${value}`;
   return `${head} at E = ${energy.toPrecision(4)}; ${describe('first', ends.first)}; ${describe('last', ends.last)}`;
 }

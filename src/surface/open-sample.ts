@@ -49,3 +49,20 @@ export function checkedInvariant(h: BlochHamiltonian, given: unknown): BoundaryI
   return given as BoundaryInvariant;
 }
 
+
+/** Decay lengths the sample must span: below this, end or surface modes of the two sides may hybridise out of the gap. */
+export const DECAY_LENGTHS = 4;
+
+/**
+ * Refuse to judge a sample too thin for its boundary modes: a state in the gap (distance `delta`
+ * from the energy to the bulk bands) decays into the bulk over at most about D / delta planes,
+ * D >= ||dH/dk_perp|| (the compiled model's bound along the cut's Miller indices): H(k) - E stays
+ * invertible for |Im k_perp| < delta / D, so no evanescent state decays more slowly (the
+ * Combes–Thomas estimate, to first order in Im k). Returns the warning, or null when the sample
+ * spans DECAY_LENGTHS of them.
+ */
+export function thinSample(h: BlochHamiltonian, sample: OpenSample, delta: number, what: string): string | null {
+  const decay = h.variationBound(sample.layers.miller.map(Math.abs), false) / delta;
+  if (sample.width >= DECAY_LENGTHS * decay) return null;
+  return `the ${what} (${sample.width} planes) spans fewer than ${DECAY_LENGTHS} decay lengths of its boundary modes (up to ${decay.toPrecision(3)} planes each: D / delta, the Combes–Thomas bound, with the gap ${delta.toPrecision(3)} from the energy): its two sides may hybridise, so no verdict; raise width to at least ${Math.ceil(DECAY_LENGTHS * decay)}`;
+}

@@ -38,7 +38,7 @@ import { cutInfo, projectToSurface, wholeNumber } from './common.js';
 import { column, expectation, lineCrossings, rotateByDiagonal, type EdgeMode } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { PrincipalLayers } from './layers.js';
-import { checkedInvariant, openSample, type OpenSample } from './open-sample.js';
+import { checkedInvariant, openSample, thinSample, type OpenSample } from './open-sample.js';
 
 /** A surface Dirac point: a Kramers pair of surface states at a surface TRIM. */
 export interface DiracPoint {
@@ -161,13 +161,15 @@ function diracPoints(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: 
     }
     stray += values.filter((x) => Math.abs(x) <= 0.5).length;
   }
+  const thin = thinSample(h, sample, Math.min(energy - gap[0], gap[1] - energy), 'slab');
+  if (thin !== null) warnings.push(thin);
   if (stray > 0) warnings.push(`${stray} state(s) in the projected gaps at the surface TRIMs lie on neither surface (the outer ${sample.edgeLayers} planes of each hold less than half of it): the slab (${sample.width} planes) may be too thin`);
   const count = (found: DiracPoint[]): SurfaceCount => {
     if (least === null) return { cones: found, count: found.length, expected: null, agrees: null, extra: 0 };
     return { cones: found, count: found.length, expected: least, agrees: found.length % 2 === value && found.length >= least, extra: found.length - least };
   };
   const surfaces = { bottom: count(cones.bottom), top: count(cones.top) };
-  const verdict = judge(!known || stray > 0, [surfaces.bottom, surfaces.top]);
+  const verdict = judge(!known || stray > 0 || thin !== null, [surfaces.bottom, surfaces.top]);
   const describe = (label: string, s: SurfaceCount): string => {
     const at = s.cones!.map((c) => `(${c.kPar.join(', ')})`).join(', ');
     const what = `${s.count} Dirac point${s.count === 1 ? '' : 's'}${s.count > 0 ? ` at ${at}` : ''}`;
@@ -178,7 +180,7 @@ function diracPoints(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: 
     return `${label} surface: ${what}, as the indices require`;
   };
   const head = verdict === 'undetermined'
-    ? !known ? 'undetermined: the bulk Z2 indices are not certain at these parameters' : `undetermined: ${stray} gap state(s) on neither surface`
+    ? !known ? 'undetermined: the bulk Z2 indices are not certain at these parameters' : thin !== null ? `undetermined: the slab (${sample.width} planes) is too thin for its surface modes (see the warnings)` : `undetermined: ${stray} gap state(s) on neither surface`
     : `${verdict === 'agree' ? 'agree' : verdict === 'extra-modes' ? 'disagree in number, agree in parity' : 'disagree'}: nu0 = ${value}, nu = (${weak.join(', ')})`;
   return {
     kind: 'bulk-boundary',
@@ -250,7 +252,7 @@ function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: Op
   at.sort((x, y) => x - y);
   const sampler = new BandSampler(sample.h);
   const lines: { bottom: ArcLine[]; top: ArcLine[] } = { bottom: [], top: [] };
-  let stray = 0, open = 0;
+  let stray = 0, open = 0, narrowest = Infinity;
   for (const c of at) {
     const fixed: [number, number] = [NaN, NaN];
     fixed[axis] = 2 * Math.PI * c;
@@ -262,6 +264,7 @@ function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: Op
       for (const s of ['bottom', 'top'] as const) lines[s].push({ axis, at: c, modes: null, right: 0, left: 0, net: 0 });
       continue;
     }
+    narrowest = Math.min(narrowest, energy - lo, hi - energy);
     const found = lineCrossings(sampler, sample.onFirst, sample.onLast, energy, [energy - 0.8 * (energy - lo), energy + 0.8 * (hi - energy)], (t, k) => { k[axis] = 2 * Math.PI * c; k[other] = t; }, nk, sample.edgeLayers);
     stray += found.stray;
     warnings.push(...found.warnings);
@@ -270,6 +273,8 @@ function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: Op
       lines[s].push({ axis, at: c, modes, right, left: modes.length - right, net: 2 * right - modes.length });
     }
   }
+  const thin = Number.isFinite(narrowest) ? thinSample(h, sample, narrowest, 'slab') : null;
+  if (thin !== null) warnings.push(thin);
   const sign = -(axis === 0 ? 1 : -1) * orientation3(h, layers.basis);
   const count = (ls: ArcLine[], surfaceSign: number): SurfaceCount => {
     const steps: ArcStep[] = ls.map((line, i) => {
@@ -289,14 +294,14 @@ function fermiArcs(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: Op
     return { lines: ls, steps, count: crossings, expected, agrees, extra };
   };
   const surfaces = { bottom: count(lines.bottom, 1), top: count(lines.top, -1) };
-  const verdict = judge(!certified || stray > 0 || open > 0, [surfaces.bottom, surfaces.top]);
+  const verdict = judge(!certified || stray > 0 || open > 0 || thin !== null, [surfaces.bottom, surfaces.top]);
   const describe = (label: string, s: SurfaceCount): string => {
     const nets = s.lines!.map((l) => `${l.net} at ${l.at.toFixed(3)}`).join(', ');
     const bad = s.steps!.filter((x) => x.agrees === false).map((x) => `from ${x.from.toFixed(3)} to ${x.to.toFixed(3)} the net count changes by ${x.jump}, but the nodes between (chirality ${x.chirality}) require ${x.expected}`);
     return `${label} surface: net crossings ${nets}${bad.length > 0 ? `; ${bad.join('; ')}` : ''}${s.extra > 0 ? `; ${s.extra} crossings beyond the net counts (trivial pairs)` : ''}`;
   };
   const head = verdict === 'undetermined'
-    ? !complete ? `undetermined: the nodes found have chiralities summing to ${weyl.total ?? 'an uncertain value'}, not 0` : !certified ? 'undetermined: a Weyl node\'s chirality is not certain' : open > 0 ? `undetermined: ${open} line(s) where the bulk is not gapped at the energy` : `undetermined: ${stray} crossing(s) on neither surface`
+    ? !complete ? `undetermined: the nodes found have chiralities summing to ${weyl.total ?? 'an uncertain value'}, not 0` : !certified ? 'undetermined: a Weyl node\'s chirality is not certain' : open > 0 ? `undetermined: ${open} line(s) where the bulk is not gapped at the energy` : thin !== null ? `undetermined: the slab (${sample.width} planes) is too thin for its surface modes (see the warnings)` : `undetermined: ${stray} crossing(s) on neither surface`
     : `${verdict === 'agree' ? 'agree' : verdict === 'extra-modes' ? 'disagree in number, agree in net chirality' : 'disagree'}: ${nodes.length} Weyl node${nodes.length === 1 ? '' : 's'} (chiralities ${nodes.map((n) => n.chirality).join(', ') || 'none'})`;
   return {
     kind: 'bulk-boundary',

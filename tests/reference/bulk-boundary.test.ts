@@ -46,7 +46,7 @@ const arcs = (nets: number[]) => (r: BulkBoundaryResult): void => {
   expect(r.surfaces!.top.lines!.map((l) => l.net)).toEqual(nets.map((x) => -x + 0));
 };
 
-const ribbonOptions: BulkBoundaryOptions = { cut: 1, width: 24, nk: 128 };
+const ribbonOptions: BulkBoundaryOptions = { cut: 1, width: 32, nk: 128 };
 
 const PHASES: Record<string, Phase[]> = {
   // Su, Schrieffer, Heeger, PRL 42, 1698 (1979): end zero modes for |v| < |w|, none for |v| > |w|.
@@ -106,7 +106,7 @@ const PHASES: Record<string, Phase[]> = {
     { label: 'm = 1, k0 = pi/2: two nodes, one arc between them', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 0, nk: 128 }, value: 2, check: arcs([0, -1]) },
     { label: 'm = 1, cut along y (left-handed basis): the arc counted the other way', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 1, nk: 128 }, value: 2, check: arcs([0, 1]) },
     { label: 'm = 1, surface normal to the nodes\' separation: both project on one point, no arc', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 2, nk: 128 }, value: 2, check: arcs([0]) },
-    { label: 'm = 0.3 < (1 + cos k0)/2: six nodes', params: { m: 0.3, k0: Math.PI / 2 }, options: { cut: 0, nk: 128 }, value: 6 },
+    { label: 'm = 0.3 < (1 + cos k0)/2: six nodes', params: { m: 0.3, k0: Math.PI / 2 }, options: { cut: 0, nk: 128, width: 40 }, value: 6 },
   ],
   // The catalogue's cubic TI (catalogue.ts; Fu & Kane, PRB 76, 045302 (2007) parities): strong for 0 < M/B < 4
   // and 8 < M/B < 12, weak (1,1,1) for 4 < M/B < 8, trivial outside; cones by Fu, Kane & Mele, PRL 98, 106803 (2007).
@@ -167,6 +167,22 @@ describe('the conventions and the reasons', () => {
     expect(r.summary).toMatch(/^undetermined: no invariant protects end modes: the chain is not a BdG chain and has no chiral \(sublattice\) symmetry/);
   });
 
+  it('a sample too thin for its boundary modes gives no verdict (near a transition the end modes of a 64-cell chain hybridise out of the gap: without the guard this read as a disagreement), and says how wide it must be (Combes–Thomas decay bound, common practice)', () => {
+    for (const [v, width] of [[0.99, 64], [0.95, 16]]) {
+      const r = bulkBoundary(new BlochHamiltonian(ssh(), { v, w: 1 }), { cut: 0, width });
+      expect(r.verdict).toBe('undetermined');
+      expect(r.summary).toMatch(new RegExp(`^undetermined: the chain \\(${width} cells\\) is too short for its end modes`));
+      // D / delta = w / |w - v| cells per decay length (D = w bounds ||dH/dk|| of the SSH chain).
+      expect(r.checks.warnings.join(' ')).toMatch(new RegExp(`raise width to at least ${Math.ceil(4 / (1 - v) - 1e-9)}`));
+    }
+    const ribbon = bulkBoundary(new BlochHamiltonian(CATALOGUE.qwz(), { u: -1.9 }), { cut: 1, width: 16, nk: 64 });
+    expect(ribbon.verdict).toBe('undetermined');
+    expect(ribbon.summary).toMatch(/^undetermined: the ribbon \(16 lines\) is too narrow/);
+    const slab = bulkBoundary(new BlochHamiltonian(cubicTI(), { M: 3.8 }), { cut: 2, width: 12 });
+    expect(slab.verdict).toBe('undetermined');
+    expect(slab.summary).toMatch(/^undetermined: the slab \(12 planes\) is too thin/);
+  });
+
   it('end modes are localised: the SSH zero mode puts 1 - (v/w)^(2L) of its weight on the outer L cells (amplitude ratio -v/w, common practice); a zero-mode pair on one end is not split across the ends', () => {
     const r = bulkBoundary(new BlochHamiltonian(ssh(), { v: 0.5, w: 1 }), { cut: 0, width: 40, edgeLayers: 3 });
     expect(r.ends!.first.modes[0].weight).toBeCloseTo(1 - 0.5 ** 6, 8);
@@ -180,7 +196,7 @@ describe('the conventions and the reasons', () => {
       const z = z2Index(h, { method: 'parity' });
       const delta = (k: number[]) => z.parities!.find((p) => p.k.every((x, i) => Math.abs(Math.abs(x) - Math.abs(k[i])) < 1e-9))!.delta;
       for (const cut of [0, [1, 1, 0], [1, 1, 1]] as (number | number[])[]) {
-        const r = bulkBoundary(h, { cut });
+        const r = bulkBoundary(h, { cut, width: 40 });
         const layers = principalLayers(h, cut);
         const predicted = [[0, 0], [0.5, 0], [0, 0.5], [0.5, 0.5]].filter((f) => {
           const bulk = [0, 1, 2, 3, 4, 5, 6, 7].map((t) => [t & 1, (t >> 1) & 1, (t >> 2) & 1].map((x) => x / 2))

@@ -253,7 +253,7 @@ describe('bulk–boundary check', () => {
 
   it('Haldane: one chiral mode per edge, direction reversed with the sign of phi, none outside |M| < 3 sqrt3 t2 |sin phi| (Haldane, PRL 61, 2015 (1988))', () => {
     for (const [phi, M, c] of [[Math.PI / 2, 0.2, -1], [-Math.PI / 2, 0.2, 1], [Math.PI / 2, 0.7, 0]] as const) {
-      const r = bulkBoundary(new BlochHamiltonian(haldane(), { phi, M }), { cut: 1, width: 24, nk: 128 });
+      const r = bulkBoundary(new BlochHamiltonian(haldane(), { phi, M }), { cut: 1, width: 32, nk: 128 });
       expect(r.invariant.value).toBe(c);
       expect(r.verdict).toBe('agree');
       expect(r.edges.first.net).toBe(-c + 0);
@@ -263,7 +263,7 @@ describe('bulk–boundary check', () => {
 
   it('Kane–Mele: one helical (Kramers) pair per edge in the Z2 phase, none in the trivial one, with Rashba coupling (Kane & Mele, PRL 95, 226801 (2005))', () => {
     for (const [lambda_v, z2] of [[0.1, 1], [0.5, 0]] as const) {
-      const r = bulkBoundary(new BlochHamiltonian(kaneMele(), { lambda_v, lambda_R: 0.05 }), { cut: 1, width: 24, nk: 128 });
+      const r = bulkBoundary(new BlochHamiltonian(kaneMele(), { lambda_v, lambda_R: 0.05 }), { cut: 1, width: 32, nk: 128 });
       expect(r.invariant.kind).toBe('z2');
       expect(r.invariant.value).toBe(z2);
       expect(r.verdict).toBe('agree');
