@@ -30,8 +30,8 @@ import { cutInfo, wholeNumber, type CutInfo } from './common.js';
 import { lineCrossings, type EdgeMode } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { CutSpec } from './layers.js';
-import { slabSurfaces, type SurfaceCount } from './surface-count.js';
 import { checkedInvariant, openSample, thinSample } from './open-sample.js';
+import { slabSurfaces, type SurfaceCount } from './surface-count.js';
 
 export type { EdgeMode } from './crossings.js';
 export type { EndCount, EndMode } from './chain-ends.js';

@@ -60,5 +60,7 @@ export function energyInGap(ranges: BandRanges, given: unknown): { energy: numbe
     const where = inBand >= 0 ? `bulk band ${inBand} spans [${lo[inBand].toPrecision(4)}, ${hi[inBand].toPrecision(4)}]` : `the bulk bands span [${lo[0].toPrecision(4)}, ${hi[n - 1].toPrecision(4)}]`;
     throw new ModelError('energy', `is not inside a bulk gap: ${where}. Value: ${valueText(energy)}`);
   }
+  // A gap at rounding level (a closing the grid hits exactly) is no gap.
+  if (lo[below] - hi[below - 1] <= 1e-9 * Math.max(1, hi[n - 1] - lo[0])) throw new ModelError('energy', `is not inside a bulk gap: bands ${below - 1} and ${below} touch at ${energy.toPrecision(4)} (the bulk is gapless there). Value: ${valueText(energy)}`);
   return { energy, below, gap: [hi[below - 1], lo[below]] };
 }

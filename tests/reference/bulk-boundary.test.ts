@@ -288,6 +288,9 @@ describe('bad input', () => {
     expect(() => bulkBoundary(new BlochHamiltonian(riceMele(), { u: 0.2 }), { cut: 0, invariant: 'winding' })).toThrow(/^sublattice: no chiral/);
     expect(() => bulkBoundary(chain, { cut: 0, ribbon: ribbon(hofstadter(), 1, 4) })).toThrow(/^ribbon: expected a finite chain \(no periodic direction\)/);
     expect(() => bulkBoundary(chain, { cut: 0, width: 1 })).toThrow(/^width: .*Value: 1/);
+    // Gapless chains at E = 0 (SSH v = w; Kitaev mu = 2t): no count, an error naming the energy.
+    expect(() => bulkBoundary(new BlochHamiltonian(ssh(), { v: 1, w: 1 }), { cut: 0 })).toThrow(/^energy: is not inside a bulk gap: bands 0 and 1 touch at 0\.000 \(the bulk is gapless there\)\. Value: 0/);
+    expect(() => bulkBoundary(new BlochHamiltonian(kitaevChain(), { mu: 2 }), { cut: 0 })).toThrow(/^energy: is not inside a bulk gap/);
     const flake = ribbon(ssh(), 0, 4);
     expect(() => bulkBoundary(new BlochHamiltonian(flake, {}), { cut: 0 })).toThrow(/^model: the bulk–boundary check counts the ends of 1D, the edges of 2D and the surfaces of 3D models; this model has 0 periodic directions/);
     const ti = new BlochHamiltonian(cubicTI(), {});
