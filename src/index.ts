@@ -89,4 +89,4 @@ export { type CutInfo, type DecimationOptions } from './surface/common.js';
 export { surfaceSpectrum, surfaceSpectrumCost, type SurfaceChecks, type SurfaceSpectrumOptions, type SurfaceSpectrumResult } from './surface/spectrum.js';
 export { surfaceMap, surfaceMapCost, type ProjectedNode, type SurfaceMapOptions, type SurfaceMapResult } from './surface/fermi-map.js';
 export { slabSpectrum, slabSpectrumCost, type SlabSpectrumOptions, type SlabSpectrumResult } from './surface/slab.js';
-export { bulkBoundary, bulkBoundaryCost, type BoundaryInvariant, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type EdgeCount, type EdgeMode } from './surface/bulk-boundary.js';
+export { bulkBoundary, bulkBoundaryCost, type ArcLine, type ArcStep, type BoundaryInvariant, type BoundaryKind, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type DiracPoint, type EdgeCount, type EdgeMode, type EndCount, type EndMode, type SurfaceCount } from './surface/bulk-boundary.js';
