@@ -8,7 +8,7 @@
 import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import { BASE_LAYOUT, energyUnit, fmt, gridOf, ResultShapeError, titled, unitText, type Figure, type FigureContext, type Table } from './common.js';
-import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, spectralSummary } from './spectral.js';
+import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, cutText, spectralSummary } from './spectral.js';
 
 export interface NodeShape {
   kPar: number[];
@@ -37,12 +37,13 @@ function read(result: DiagnosticResult): MapData {
 
 /** How a node of each chirality is marked. */
 const NODE_MARKS = [
-  { chirality: 1, name: 'Weyl node, chirality +1', marker: { symbol: 'triangle-up' as const, size: 11, color: '#b3261e', line: { width: 1.5, color: '#ffffff' } } },
-  { chirality: -1, name: 'Weyl node, chirality −1', marker: { symbol: 'triangle-down' as const, size: 11, color: '#1f4e9c', line: { width: 1.5, color: '#ffffff' } } },
+  { chirality: 1, name: 'Weyl node, chirality +1', marker: { symbol: 'triangle-up' as const, size: 13, color: '#b3261e', line: { width: 1, color: '#ffffff' } } },
+  { chirality: -1, name: 'Weyl node, chirality −1', marker: { symbol: 'triangle-down' as const, size: 13, color: '#1f4e9c', line: { width: 1, color: '#ffffff' } } },
   { chirality: null, name: 'Weyl node, chirality uncertain', marker: { symbol: 'circle-open' as const, size: 11, color: '#555555', line: { width: 2, color: '#555555' } } },
 ];
 
-const TICKS = [-0.5, 0, 0.5];
+/** Ticks of each panel (its edges, ±1/2, would crowd the neighbouring panel's). */
+const TICKS = [-0.25, 0, 0.25];
 
 export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
   const { n1, n2, energy, weights, nodes } = read(result);
@@ -117,7 +118,7 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
     layout: {
       ...BASE_LAYOUT,
       plot_bgcolor: 'rgba(0,0,0,0)',
-      title: titled(`Constant-energy surface map — ${summary}`),
+      title: titled(`Surface map at E = ${fmt(energy)}${unitText(unit)} — ${cutText(result)} · ${nodeText}`),
       xaxis: { title: { text: 'k₁ [b̄₁], per panel' }, range: xRange, zeroline: false, showgrid: false, tickmode: 'array', tickvals, ticktext },
       yaxis: { title: { text: 'k₂ [b̄₂]' }, range: y, zeroline: false, showgrid: false },
       annotations: panelAnnotations(geometry),

@@ -7,7 +7,7 @@
 import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import { BASE_LAYOUT, energyUnit, fmt, numberArray, ResultShapeError, titled, withUnit, type Figure, type FigureContext, type Table } from './common.js';
-import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, spectralSummary } from './spectral.js';
+import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, cutText, spectralSummary } from './spectral.js';
 
 interface PathShape {
   dim: number;
@@ -98,7 +98,7 @@ export function surfaceSpectrumFigure(result: DiagnosticResult, ctx: FigureConte
       ...BASE_LAYOUT,
       // Transparent: a drag step draws the new picture under plotly's drawing (widgets/src/preview.ts).
       plot_bgcolor: 'rgba(0,0,0,0)',
-      title: titled(`${boundary === 'surface' ? 'Surface' : boundary === 'edge' ? 'Edge' : 'End'} spectral function — ${summary}`),
+      title: titled(`${boundary === 'surface' ? 'Surface' : boundary === 'edge' ? 'Edge' : 'End'} spectral function — ${cutText(result)} · η = ${fmt(result.eta as number)}`),
       xaxis: { title: { text: xTitle }, range: xRange, zeroline: false, showgrid: false, tickmode: 'array', tickvals, ticktext },
       yaxis: { title: { text: withUnit('E', unit) }, range: y, zeroline: false, showgrid: false },
       annotations: panelAnnotations(geometry),
