@@ -78,8 +78,15 @@ export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext
       });
     }
   }
-  const count = (e: EdgeShape) => (r.invariant.kind === 'z2' ? `${e.pairs ?? 0} Kramers pair(s)` : `net ${e.net > 0 ? '+' : ''}${e.net}`);
-  const tickText = EDGES.map((edge) => `${edge.name}<br>${count(r.edges[edge.field])}`);
+  // The direction in words too: a still picture draws every marker as a dot.
+  const count = (e: EdgeShape) => {
+    const right = e.modes.filter((m) => m.velocity > 0).length;
+    return `${right} right, ${e.modes.length - right} left${r.invariant.kind === 'z2' ? `, ${e.pairs ?? 0} Kramers pair(s)` : ''}`;
+  };
+  const notes = EDGES.map((edge) => ({
+    x: -0.53, y: edge.y + 0.3, xref: 'x' as const, yref: 'y' as const, xanchor: 'left' as const, showarrow: false as const,
+    text: `${edge.name}: ${count(r.edges[edge.field])}`,
+  }));
   const summary = `${r.verdict} · ${r.summary} · ${cutText(result)} · E = ${fmt(r.energy)}${warningText(result)}`;
   const value = r.invariant.value;
   return {
@@ -88,8 +95,8 @@ export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext
       ...BASE_LAYOUT,
       title: titled(`Bulk–boundary check — <span style="color:${VERDICT_COLOUR[r.verdict] ?? '#222'}">${r.verdict}</span>`),
       xaxis: { title: { text: 'k where the mode crosses E [b]' }, range: [-0.55, 0.55], zeroline: true },
-      yaxis: { range: [-0.6, 1.6], tickmode: 'array', tickvals: EDGES.map((e) => e.y), ticktext: tickText, zeroline: false, showgrid: false },
-      margin: { l: 150, r: 24, t: 76, b: 56 },
+      yaxis: { title: { text: 'edge' }, range: [-0.6, 1.6], tickmode: 'array', tickvals: EDGES.map((e) => e.y), ticktext: EDGES.map((e) => e.field), zeroline: false, showgrid: false },
+      annotations: notes,
       height: 300,
     },
     summary,

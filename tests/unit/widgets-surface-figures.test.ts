@@ -8,7 +8,9 @@
 //   Fu, Kane & Mele, PRL 98, 106803 (2007): a strong 3D topological insulator has an odd number of
 //     surface Dirac cones (cubicTI at M/B = 2: inverted at Γ only, one cone at Γ̄).
 import { describe, expect, it } from 'vitest';
-import { cubicTI, qwz, weyl2band } from '../../src/index.js';
+import { compute, cubicTI, qwz, weyl2band } from '../../src/index.js';
+import { displayOutputs } from '../../kernel/display/index.js';
+import { PLOTLY_MIME } from '../../contract/protocol.js';
 import { computeView } from '../../src/views.js';
 import { figureFor, figureTitle, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
 import { DECADES, PANELS } from '../../figures/spectral.js';
@@ -180,5 +182,29 @@ describe('slab-spectrum and bulk-boundary figures', () => {
     const { result, ctx } = run(qwz(), 'surface-spectrum', { cut: 1, energyCount: 3, nk: 5 }, { u: -1 });
     expect(() => figureFor({ ...result, top: new Float64Array(2) }, ctx)).toThrow(/surface-spectrum result: field "top"/);
     expect(() => figureFor({ ...result, cut: undefined }, ctx)).toThrow(/field "cut"/);
+  });
+});
+
+describe('what a cell shows', () => {
+  it('each edge and surface result displays its summary, then its figure as plotly JSON, a PNG and a line of text', () => {
+    const results = [
+      compute({ kind: 'surface-spectrum', model: qwz(), params: { u: -1 }, cut: 1, energyCount: 41 }),
+      compute({ kind: 'surface-map', model: weyl2band(), cut: 0, grid: 24, energy: 0 }),
+      compute({ kind: 'slab-spectrum', model: cubicTI(), cut: 2, width: 6, nk: 4 }),
+      compute({ kind: 'bulk-boundary', model: qwz(), params: { u: -1 }, cut: 1 }),
+    ];
+    for (const result of results) {
+      const outputs = displayOutputs(result);
+      expect(outputs).toHaveLength(2);
+      const figure = outputs[1].data;
+      expect(String(figure['text/plain'])).toMatch(new RegExp(`^${result.kind} figure: .*cut \\(`));
+      expect(String(figure['image/png']).length).toBeGreaterThan(1000);
+      const plotly = figure[PLOTLY_MIME] as { data: unknown[]; layout: { images?: unknown[] } };
+      expect(plotly.data.length).toBeGreaterThan(0);
+      // The maps travel as a picture (a layout image), not as visible heatmaps.
+      if (result.kind.startsWith('surface-')) expect(plotly.layout.images).toHaveLength(1);
+      // A default-sized spectrum (201 k x 41 E x 3 panels) stays well under a few megabytes.
+      expect(JSON.stringify(plotly).length).toBeLessThan(3e6);
+    }
   });
 });
