@@ -3,10 +3,12 @@
  * zone (fractions of the surface reciprocal vectors, -1/2 to 1/2), on a logarithmic colour scale
  * relative to the largest weight shown, the bottom and top terminations and the bulk projection side
  * by side (spectral.ts), with the bulk Weyl nodes projected onto the zone and marked by chirality in
- * each panel: a Fermi arc ends at projections of nodes of opposite chirality.
+ * each panel: a Fermi arc ends at projections of nodes of opposite chirality. A drag step previews
+ * the picture with the nodes sketched over it (widgets/src/preview.ts).
  */
 import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
+import type { Sketch } from './picture.js';
 import { BASE_LAYOUT, energyUnit, fmt, gridOf, ResultShapeError, titled, unitText, type Figure, type FigureContext, type Table } from './common.js';
 import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, cutText, spectralSummary } from './spectral.js';
 
@@ -76,6 +78,7 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
     },
     colourBarTrace(),
   ];
+  const sketch: Sketch = { dots: [], lines: [] };
   for (const mark of NODE_MARKS) {
     const own = nodes.filter((n) => n.chirality === mark.chirality);
     if (own.length === 0) continue;
@@ -87,6 +90,7 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
         yy.push(n.kPar[1]);
       }
     }
+    sketch.dots.push({ x, y: yy, colour: mark.marker.color, size: 10 });
     data.push({
       type: 'scatter',
       mode: 'markers',
@@ -112,7 +116,8 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
   const nodeText = nodes.length === 0 ? 'no Weyl nodes projected' : `${nodes.length} Weyl node${nodes.length > 1 ? 's' : ''} projected (${signs})`;
   const summary = spectralSummary(result, unit, `E = ${fmt(energy)}${unitText(unit)} · ${nodeText} · max A ${fmt(peak)}`);
   const xRange: [number, number] = [raster.x[0], raster.x[1]];
-  const nodeKey = nodes.map((n) => [Number(n.kPar[0].toFixed(4)), Number(n.kPar[1].toFixed(4)), n.chirality]);
+  // Which marker traces there are (the legend); where the nodes are is the sketch's to draw.
+  const nodeKey = NODE_MARKS.map((mark) => nodes.filter((n) => n.chirality === mark.chirality).length);
   return {
     data,
     layout: {
@@ -129,7 +134,8 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
     invariant: null,
     gapless: false,
     raster,
-    // The nodes are plotly markers: where they move, plotly redraws.
+    // A drag step draws the nodes as dots over the picture (they move with the model's parameters).
+    sketch,
     frameKey: JSON.stringify([n1, n2, y, xRange, nodeKey]),
   };
 }

@@ -115,8 +115,14 @@ describe('edge and surface widgets in the exported page', () => {
     const w = widget(1);
     await w.scrollIntoViewIfNeeded();
     const before = await picture(w);
+    await w.evaluate((el) => {
+      const seen: boolean[] = ((window as unknown as { chernelMapDrawn: boolean[] }).chernelMapDrawn = []);
+      el.addEventListener('chernel-drawn', (e) => seen.push((e as CustomEvent<{ previewed: boolean }>).detail.previewed));
+    });
     await drag(control(w, 'k0').slider, 1.0);
     const k0 = await settled(w, 'k0');
+    // The nodes move on every step, and the steps are still previews: the nodes are sketched over the picture.
+    expect(await page.evaluate(() => (window as unknown as { chernelMapDrawn: boolean[] }).chernelMapDrawn.some((p) => p))).toBe(true);
     expect(Math.abs(k0 - 1.0)).toBeLessThan(0.1);
     expect(await picture(w)).not.toBe(before);
     const nodes = (await traces(w)).filter((t) => t.name?.startsWith('Weyl node'));

@@ -141,12 +141,19 @@ describe('surface-map figure', () => {
     expect(Math.max(...Array.from(bottom))).toBeGreaterThan(0);
   });
 
-  it('moving the nodes changes the frame (plotly redraws the markers); the CSV lists every point of the zone', () => {
+  it('a drag step keeps the frame while the nodes move, sketched as dots where plotly draws the markers; the CSV lists every point of the zone', () => {
     const a = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.5 });
-    const b = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.5, m: 1.2 });
-    const c = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.2 });
+    const b = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.2 });
+    const c = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0.2 }, { k0: 1.2 });
     expect(b.figure.frameKey).toBe(a.figure.frameKey);
-    expect(c.figure.frameKey).not.toBe(a.figure.frameKey);
+    // A new grid is a new frame.
+    expect(run(weyl2band(), 'surface-map', { cut: 0, grid: 12, energy: 0 }, { k0: 1.5 }).figure.frameKey).not.toBe(a.figure.frameKey);
+    expect(c.figure.frameKey).toBe(b.figure.frameKey);
+    for (const { figure, traces } of [a, b]) {
+      const markers = traces.filter((t) => t.name?.startsWith('Weyl node')) as { x: number[]; y: number[] }[];
+      expect(figure.sketch!.dots.map((d) => [Array.from(d.x), Array.from(d.y)])).toEqual(markers.map((t) => [t.x, t.y]));
+    }
+    expect(b.figure.sketch!.dots[0].y[0]).not.toBeCloseTo(a.figure.sketch!.dots[0].y[0], 3);
     const table = tableFor(a.result, a.ctx);
     expect(table.rows).toHaveLength(256);
     expect(table.columns).toEqual(['k1 [surface b1]', 'k2 [surface b2]', 'A bottom termination', 'A top termination', 'A bulk projection']);
