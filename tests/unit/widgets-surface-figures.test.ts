@@ -10,7 +10,10 @@
 import { describe, expect, it } from 'vitest';
 import { compute, cubicTI, qwz, weyl2band } from '../../src/index.js';
 import { displayOutputs } from '../../kernel/display/index.js';
-import { PLOTLY_MIME } from '../../contract/protocol.js';
+import { PLOTLY_MIME, WIDGET_KINDS } from '../../contract/protocol.js';
+import { checkWidgetOptions, widgetState } from '../../kernel/widget-state.js';
+import { diagnosticStateProblem } from '../../contract/state-check.js';
+import { putBuffers, removeBuffers, unpackArrays } from '../../contract/wire.js';
 import { computeView } from '../../src/views.js';
 import { figureFor, figureTitle, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
 import { DECADES, PANELS } from '../../figures/spectral.js';
@@ -213,5 +216,30 @@ describe('what a cell shows', () => {
       // A default-sized spectrum (201 k x 41 E x 3 panels) stays well under a few megabytes.
       expect(JSON.stringify(plotly).length).toBeLessThan(3e6);
     }
+  });
+});
+
+describe('the surface widgets: options and state', () => {
+  it('are widget kinds whose options are their requests\' fields; a misspelt one names the closest', () => {
+    expect(WIDGET_KINDS).toEqual(expect.arrayContaining(['surface-spectrum', 'surface-map']));
+    expect(() => checkWidgetOptions('surface-map', { cut: 0, grid: 32, energy: 0, eta: 0.05, nodes: true })).not.toThrow();
+    expect(() => checkWidgetOptions('surface-spectrum', { cut: 1, energyRange: [-1, 1], energyCount: 40, nk: 60 })).not.toThrow();
+    expect(() => checkWidgetOptions('surface-map', { cut: 0, energi: 0 })).toThrow(/^energi: unknown option for a "surface-map" widget; did you mean "energy"/);
+  });
+
+  it('the synced state travels with binary buffers and comes back drawing the same figure; its saved form passes the state check', () => {
+    const spec = weyl2band();
+    const options = { cut: 0, grid: 16, energy: 0 };
+    const { result, ctx, figure } = run(spec, 'surface-map', options, { k0: 1.2 });
+    const state = widgetState({ kind: 'surface-map', spec, options, values: ctx.values, result: result as never, error: '', title: '' });
+    expect(diagnosticStateProblem(state)).toBeNull();
+    const split = removeBuffers(state);
+    // Each weight map goes as its own buffer.
+    expect(split.buffer_paths.map((p) => p.join('.'))).toEqual(expect.arrayContaining(['result.bottom.buffer', 'result.top.buffer', 'result.bulk.buffer']));
+    const back = { ...split.state };
+    putBuffers(back, split.buffer_paths, split.buffers);
+    const again = figureFor(unpackArrays(back.result) as DiagnosticResult, ctx);
+    expect(again.summary).toBe(figure.summary);
+    expect(Array.from(again.raster!.values)).toEqual(Array.from(figure.raster!.values));
   });
 });
