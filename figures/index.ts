@@ -13,6 +13,10 @@ import { gapFigure, gapTable } from './gap.js';
 import { latticeFigure, latticeTable } from './lattice.js';
 import { phaseMapFigure, phaseMapTable } from './phase-map.js';
 import { ribbonFigure, ribbonTable } from './ribbon.js';
+import { surfaceSpectrumFigure, surfaceSpectrumTable } from './surface-spectrum.js';
+import { surfaceMapFigure, surfaceMapTable } from './surface-map.js';
+import { slabFigure, slabTable } from './slab.js';
+import { bulkBoundaryFigure, bulkBoundaryTable } from './bulk-boundary.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -32,6 +36,10 @@ const RENDERERS: Record<string, Renderer> = {
   gap: { title: 'Direct gap', figure: gapFigure, table: gapTable },
   dos: { title: 'Density of states', figure: dosFigure, table: dosTable },
   lattice: { title: 'Lattice', figure: latticeFigure, table: latticeTable },
+  'surface-spectrum': { title: 'Surface spectral function', figure: surfaceSpectrumFigure, table: surfaceSpectrumTable },
+  'surface-map': { title: 'Constant-energy surface map', figure: surfaceMapFigure, table: surfaceMapTable },
+  'slab-spectrum': { title: 'Slab spectrum', figure: slabFigure, table: slabTable },
+  'bulk-boundary': { title: 'Bulk–boundary check', figure: bulkBoundaryFigure, table: bulkBoundaryTable },
 };
 
 /** The name of a kind with a figure, or the kind itself. */

@@ -70,6 +70,7 @@ const SIMPLER: Record<string, string> = {
   'λ': 'lambda',
   'μ': 'mu',
   'θ': 'theta',
+  'η': 'eta',
 };
 const SUBSCRIPTS = '₀₁₂₃₄₅₆₇₈₉';
 const SUPERSCRIPTS = '⁰¹²³⁴⁵⁶⁷⁸⁹';

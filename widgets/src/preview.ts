@@ -3,7 +3,7 @@
  * plotly's plot area, with the plotly parts it replaces hidden, until the view redraws in full.
  * A raster goes under plotly's drawing (the plot background is transparent, the stale layout image
  * hidden), so the axes and zone boundary stay on top of it; a sketch goes over it, with plotly's
- * scatter traces hidden. Reads plotly's drawing only through its public layout (axis ranges), its
+ * scatter traces hidden (beside a raster, on the raster's canvas). Reads plotly's drawing only through its public layout (axis ranges), its
  * 'plotly_afterplot' event and the class names of its plot area, plot layers and title.
  */
 import type { Figure } from '../../figures/index.js';
@@ -73,7 +73,7 @@ export class DragPreview {
     if (figure.raster) this.drawRaster(context, figure.raster, toPixels);
     if (figure.sketch) drawSketch(context, figure.sketch, toPixels, scale);
     this.plot.classList.toggle('chernel-preview-raster', figure.raster !== undefined);
-    this.plot.classList.toggle('chernel-preview-sketch', figure.raster === undefined);
+    this.plot.classList.toggle('chernel-preview-sketch', figure.sketch !== undefined);
     const titleEl = this.plot.querySelector('.gtitle');
     if (titleEl) titleEl.textContent = title;
     return true;
