@@ -13,6 +13,7 @@ import { gapFigure, gapTable } from './gap.js';
 import { latticeFigure, latticeTable } from './lattice.js';
 import { phaseMapFigure, phaseMapTable } from './phase-map.js';
 import { ribbonFigure, ribbonTable } from './ribbon.js';
+import { densityFigure, densityTable, markerFigure, markerTable } from './realspace.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -32,6 +33,8 @@ const RENDERERS: Record<string, Renderer> = {
   gap: { title: 'Direct gap', figure: gapFigure, table: gapTable },
   dos: { title: 'Density of states', figure: dosFigure, table: dosTable },
   lattice: { title: 'Lattice', figure: latticeFigure, table: latticeTable },
+  'local-marker': { title: 'Local Chern marker', figure: markerFigure, table: markerTable },
+  'local-density': { title: 'Local density of states', figure: densityFigure, table: densityTable },
 };
 
 /** The name of a kind with a figure, or the kind itself. */
