@@ -5,7 +5,7 @@
  * exports are what a cell sees.
  */
 
-import type { ModelSpec } from '../src/index.js';
+import { resolveParameters, type ModelSpec } from '../src/index.js';
 import { didYouMean } from '../src/model/field-names.js';
 import { checkParameterValues } from '../src/model/parameters.js';
 import { requestFields } from '../src/request.js';
@@ -52,6 +52,13 @@ export function checkWidgetOptions(kind: WidgetKind, options: Record<string, unk
     const hint = key === 'params' ? '; parameter values go in "values"' : didYouMean(key, valid);
     throw new WidgetOptionError(key, `unknown option for a "${kind}" widget${hint} (valid: ${valid.join(', ')})`);
   }
+}
+
+/** The values a new widget's controls start at: every parameter (model defaults for the rest) and every option slider. */
+export function startValues(spec: ModelSpec, options: Record<string, unknown>, values: unknown): Values {
+  const controlled = checkControlValues(spec, options, values, 'values', true);
+  const params = Object.fromEntries(Object.entries(controlled).filter(([name]) => Object.hasOwn(spec.parameters, name)));
+  return { ...resolveParameters(spec, params), ...controlled };
 }
 
 /** Checks `optionSliders` against the model and the request's options (field names in the message). */

@@ -7,7 +7,7 @@
  * (`w.setValues({...})`).
  */
 
-import { resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
+import { validateModel, type ModelSpec } from '../src/index.js';
 import { computeView } from '../src/views.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { figureOutput, MIME_BUNDLE } from './display/index.js';
@@ -26,6 +26,7 @@ import {
   checkValues,
   checkWidgetOptions,
   savedStateEntry,
+  startValues,
   WidgetOptionError,
   widgetState,
   type Result,
@@ -63,9 +64,7 @@ export class DiagnosticWidget {
     this.options = requestOptions;
     this.title = String(title);
     checkOptionSliders(kind, this.spec, options);
-    const controlled = checkControlValues(this.spec, requestOptions, values, 'values', true);
-    const params = Object.fromEntries(Object.entries(controlled).filter(([name]) => Object.hasOwn(this.spec.parameters, name)));
-    this.current = { ...resolveParameters(this.spec, params), ...controlled };
+    this.current = startValues(this.spec, requestOptions, values);
     this.lastResult = null;
     this.resultValues = null;
     this.lastError = '';
