@@ -85,3 +85,10 @@ export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: R
   for (const [name, value] of Object.entries(values)) (Object.hasOwn(sliders, name) ? chosen : params)[name] = value;
   return { ...rest, ...chosen, kind, model, params };
 }
+
+/** The values a widget's request was made from (its inverse): parameters and option sliders. */
+export function requestValues(options: Readonly<Record<string, unknown>>, request: Readonly<Record<string, unknown>> & { params: Record<string, number> }): Record<string, number> {
+  const values = { ...request.params };
+  for (const name of Object.keys(optionSlidersOf(options))) if (typeof request[name] === 'number') values[name] = request[name];
+  return values;
+}

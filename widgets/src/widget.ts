@@ -20,7 +20,7 @@ import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
 import { diagnosticStateProblem } from '../../contract/state-check.js';
 import { packArrays, unpackArrays } from '../../contract/wire.js';
-import { optionSlidersOf, optionStart, widgetRequest } from '../../contract/option-sliders.js';
+import { optionSlidersOf, optionStart, requestValues, widgetRequest } from '../../contract/option-sliders.js';
 
 
 
@@ -434,16 +434,17 @@ export class DiagnosticView extends DOMWidgetView {
     this.staleTimer = null;
     this.plot.classList.remove('chernel-stale');
     if (stopped === null) return;
-    const values = describeValues(stopped.params, this.parameterOrder());
+    const stoppedAt = requestValues(this.model.get('options') as Record<string, unknown>, stopped);
+    const values = describeValues(stoppedAt, this.parameterOrder());
     this.showMessage('warning', `Stopped: nothing was computed for ${values}; the plot shows the last result.`);
     this.statusEl.textContent = `stopped at ${values}`;
-    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stopped.params } }));
+    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stoppedAt } }));
   }
 
   private computed(outcome: Outcome): void {
     if (!this.attached) return;
     if (!(this.client?.busy ?? false)) this.hideProgress();
-    const values = outcome.request.params;
+    const values = requestValues(this.model.get('options') as Record<string, unknown>, outcome.request);
     if (outcome.error) {
       const message = `${outcome.error.name}: ${outcome.error.message}`;
       this.model.set({ error: message, values: { ...this.live } }, { updated_view: this });
