@@ -45,6 +45,8 @@ interface SampleMap {
   /** Lattice vectors a1, a2 in the plane (Cartesian x, y). */
   a: [number, number][];
   centroid: number[];
+  /** Axis titles: Cartesian x, y, or cell indices when the lattice is not known. */
+  axes: [string, string];
 }
 
 function sizesOf(result: DiagnosticResult): number[] {
@@ -64,7 +66,10 @@ function read(result: DiagnosticResult, spec: ModelSpecView, field: 'marker' | '
   if (cells.length !== count * dim || edges.length !== count || (errors !== null && errors.length !== count)) {
     throw new Error(`${result.kind} result: ${cells.length / dim} cells, ${count} values, ${edges.length} edge distances`);
   }
+  // A result whose model is not known (no lattice vectors) is drawn in cell indices.
+  const cartesian = spec.vectors.length >= Math.min(dim, 2);
   const vec = (j: number): [number, number] => {
+    if (!cartesian) return j === 0 ? [1, 0] : [0, 1];
     const v = spec.vectors[j] ?? [];
     return [v[0] ?? 0, v[1] ?? 0];
   };
@@ -86,7 +91,7 @@ function read(result: DiagnosticResult, spec: ModelSpecView, field: 'marker' | '
   }
   const middle = Math.floor((sizes[2] ?? 1) / 2);
   const shown = dim === 3 ? all.filter((cell) => cell.index[2] === middle) : all;
-  return { kind: result.kind as SampleMap['kind'], sizes, dim, all, shown, a, centroid };
+  return { kind: result.kind as SampleMap['kind'], sizes, dim, all, shown, a, centroid, axes: cartesian ? ['x', 'y'] : ['cell i₁', 'cell i₂'] };
 }
 
 /** The reported cell deepest inside the sample (ties: nearest the middle of the index box). */
@@ -128,9 +133,10 @@ interface Scale {
   hover: string;
 }
 
-function mapFigure(m: SampleMap, scale: Scale, title: string, summary: string): Pick<Figure, 'data' | 'layout' | 'raster' | 'frameKey'> {
+function mapFigure(m: SampleMap, scale: Scale, title: string, boundary: string): Pick<Figure, 'data' | 'layout' | 'raster' | 'frameKey'> {
   const data: Data[] = [];
-  const layoutBase = { ...BASE_LAYOUT, plot_bgcolor: 'rgba(0,0,0,0)', title: titled(`${title} — ${summary}`) };
+  // The title names the sample; the summary (header, caption) says what it shows.
+  const layoutBase = { ...BASE_LAYOUT, plot_bgcolor: 'rgba(0,0,0,0)', title: titled(`${title} — ${m.sizes.join(' × ')} cells, ${boundary}`) };
   if (m.dim === 1) {
     const cells = [...m.shown].sort((p, q) => p.x - q.x);
     data.push({
@@ -143,7 +149,7 @@ function mapFigure(m: SampleMap, scale: Scale, title: string, summary: string): 
       name: scale.hover,
       hovertemplate: `x = %{x:.3f}<br>${scale.hover} = %{y:.4g}<extra></extra>`,
     });
-    return { data, layout: { ...layoutBase, xaxis: { title: { text: 'x' }, zeroline: false }, yaxis: { title: { text: scale.hover } } } };
+    return { data, layout: { ...layoutBase, xaxis: { title: { text: m.axes[0] }, zeroline: false }, yaxis: { title: { text: scale.hover } } } };
   }
   data.push({
     // The colour bar: a two-brick heatmap far outside the axis ranges (the picture has none of its own).
@@ -161,8 +167,8 @@ function mapFigure(m: SampleMap, scale: Scale, title: string, summary: string): 
   const bricks = brickGrid(m);
   const plane = m.dim === 3 ? ` (layer ${Math.floor(m.sizes[2] / 2)} of ${m.sizes[2]})` : '';
   const axes = (xRange: [number, number], yRange: [number, number]) => ({
-    xaxis: { title: { text: `x${plane}` }, range: xRange, zeroline: false, showgrid: false, constrain: 'domain' as const },
-    yaxis: { title: { text: 'y' }, range: yRange, zeroline: false, showgrid: false, scaleanchor: 'x' as const, constrain: 'domain' as const },
+    xaxis: { title: { text: `${m.axes[0]}${plane}` }, range: xRange, zeroline: false, showgrid: false, constrain: 'domain' as const },
+    yaxis: { title: { text: m.axes[1] }, range: yRange, zeroline: false, showgrid: false, scaleanchor: 'x' as const, constrain: 'domain' as const },
   });
   if (bricks !== null) {
     const { width, height, grid } = bricks;
@@ -257,6 +263,12 @@ function warningText(result: DiagnosticResult): string {
 
 const allOpen = (result: DiagnosticResult) => Array.isArray(result.boundary) && result.boundary.every((b) => b === 'open');
 
+/** "open", "periodic" or "open × periodic". */
+function boundaryText(result: DiagnosticResult): string {
+  const b = Array.isArray(result.boundary) ? (result.boundary as unknown[]).map(String) : [];
+  return b.length === 0 ? 'open' : b.every((x) => x === b[0]) ? b[0] : b.join(' × ');
+}
+
 /** The clean crystal's Chern number beside a marker (src/views.ts adds it): a number, null when withheld, absent when not computed. */
 function cleanChern(result: DiagnosticResult): number | null | undefined {
   if (!('cleanChern' in result)) return undefined;
@@ -290,7 +302,7 @@ export function markerFigure(result: DiagnosticResult, ctx: FigureContext): Figu
     barTitle: `marker (±${fmt(span)})`,
     hover: 'marker',
   };
-  return { ...mapFigure(m, scale, 'Local Chern marker', summary), summary, invariant: null, gapless };
+  return { ...mapFigure(m, scale, 'Local Chern marker', boundaryText(result)), summary, invariant: null, gapless };
 }
 
 export function densityFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
@@ -314,7 +326,7 @@ export function densityFigure(result: DiagnosticResult, ctx: FigureContext): Fig
   const scale: Scale = m.dim === 1
     ? { range: [0, peak], colorscale: SEQUENTIAL, shown: (v) => v, barTitle: 'ρ', hover: 'ρ' }
     : { range: [0, 1], colorscale: SEQUENTIAL, shown: (v) => v * norm, barTitle: 'ρ / max ρ', hover: 'ρ' };
-  return { ...mapFigure(m, scale, 'Local density of states', summary), summary, invariant: null, gapless: false };
+  return { ...mapFigure(m, scale, 'Local density of states', boundaryText(result)), summary, invariant: null, gapless: false };
 }
 
 function table(m: SampleMap, value: string): Table {
