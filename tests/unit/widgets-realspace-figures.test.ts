@@ -8,6 +8,7 @@ import { haldane, qwz, ssh } from '../../src/index.js';
 import { computeView } from '../../src/views.js';
 import { figureFor, figureTitle, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
 import { SEQUENTIAL } from '../../figures/realspace.js';
+import { drawFigure } from '../../figures/snapshot/figure.js';
 import type { DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
 
 type Trace = Record<string, unknown> & { name?: string; type?: string };
@@ -109,6 +110,25 @@ describe('local Chern marker figure', () => {
     expect(cells.customdata[c]).toBe((result.marker as Float64Array)[c]);
     // Haldane, PRL 61, 2015: C = -sign(sin phi) = -1 at phi = pi/2, M = 0 (references.md).
     expect(figure.summary).toContain('clean C = -1');
+  });
+});
+
+describe('still pictures (figures/snapshot/, what an untrusted notebook shows)', () => {
+  /** Pixels of the still whose colour is within `tolerance` of `rgb`. */
+  const count = (figure: ReturnType<typeof figureFor>, rgb: number[], tolerance = 30) => {
+    const { rgba } = drawFigure(figure);
+    let n = 0;
+    for (let i = 0; i < rgba.length; i += 4) if (Math.abs(rgba[i] - rgb[0]) + Math.abs(rgba[i + 1] - rgb[1]) + Math.abs(rgba[i + 2] - rgb[2]) < tolerance) n++;
+    return n;
+  };
+
+  it('the QWZ marker (C = +1) paints its bulk with the scale at +1 of ±2, the Haldane one (C = -1) at -1, as markers', () => {
+    // DIVERGING at 0.75 is #e08a6f, at 0.25 #6f9bd1 (figures/common.ts).
+    const qwzMap = run(qwz(), 'local-marker', { sizes: [12, 12] }, { u: -1 }).figure;
+    expect(count(qwzMap, [0xe0, 0x8a, 0x6f])).toBeGreaterThan(2000);
+    const haldaneMap = run(haldane(), 'local-marker', { sizes: [8, 8] }, { M: 0, phi: Math.PI / 2 }).figure;
+    expect(count(haldaneMap, [0x6f, 0x9b, 0xd1])).toBeGreaterThan(200);
+    expect(count(haldaneMap, [0xe0, 0x8a, 0x6f])).toBeLessThan(count(haldaneMap, [0x6f, 0x9b, 0xd1]));
   });
 });
 
