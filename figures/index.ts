@@ -13,7 +13,7 @@ import { gapFigure, gapTable } from './gap.js';
 import { latticeFigure, latticeTable } from './lattice.js';
 import { phaseMapFigure, phaseMapTable } from './phase-map.js';
 import { ribbonFigure, ribbonTable } from './ribbon.js';
-import { densityFigure, densityTable, markerFigure, markerTable } from './realspace.js';
+import { densityFigure, densityTable, ensembleFigure, ensembleTable, markerFigure, markerTable } from './realspace.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -35,6 +35,7 @@ const RENDERERS: Record<string, Renderer> = {
   lattice: { title: 'Lattice', figure: latticeFigure, table: latticeTable },
   'local-marker': { title: 'Local Chern marker', figure: markerFigure, table: markerTable },
   'local-density': { title: 'Local density of states', figure: densityFigure, table: densityTable },
+  ensemble: { title: 'Disorder ensemble', figure: ensembleFigure, table: ensembleTable },
 };
 
 /** The name of a kind with a figure, or the kind itself. */

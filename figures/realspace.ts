@@ -345,3 +345,70 @@ export function markerTable(result: DiagnosticResult, ctx: FigureContext): Table
 export function densityTable(result: DiagnosticResult, ctx: FigureContext): Table {
   return table(read(result, ctx.spec, 'density'), 'density [states per energy]');
 }
+
+/** Each member of a disorder ensemble by its seed, the mean and its standard error (a band). */
+export function ensembleFigure(result: DiagnosticResult): Figure {
+  const { seeds, values, mean, error, of, nulls } = readEnsemble(result);
+  const xs: number[] = [];
+  const ys: number[] = [];
+  const missing: number[] = [];
+  for (let i = 0; i < values.length; i++) {
+    if (Number.isNaN(values[i])) missing.push(seeds[i]);
+    else {
+      xs.push(seeds[i]);
+      ys.push(values[i]);
+    }
+  }
+  const lo = seeds.length ? Math.min(...Array.from(seeds)) - 0.5 : 0;
+  const hi = seeds.length ? Math.max(...Array.from(seeds)) + 0.5 : 1;
+  const data: Data[] = [];
+  if (mean !== null) {
+    const e = error ?? 0;
+    data.push({
+      type: 'scatter',
+      mode: 'lines',
+      x: [lo, hi, hi, lo, lo],
+      y: [mean - e, mean - e, mean + e, mean + e, mean - e],
+      fill: 'toself',
+      fillcolor: 'rgba(31,78,156,0.15)',
+      line: { width: 0 },
+      name: 'mean ± standard error',
+      hoverinfo: 'skip',
+    });
+    data.push({ type: 'scatter', mode: 'lines', x: [lo, hi], y: [mean, mean], line: { color: '#1f4e9c', width: 2 }, name: 'mean', hovertemplate: `mean ${fmt(mean)} ± ${fmt(e)}<extra></extra>` });
+  }
+  data.push({ type: 'scatter', mode: 'markers', x: xs, y: ys, marker: { size: 7, color: '#a1221b' }, name: of, hovertemplate: `seed %{x}<br>${of} = %{y:.4g}<extra></extra>` });
+  if (missing.length > 0) {
+    data.push({ type: 'scatter', mode: 'markers', x: missing, y: missing.map(() => mean ?? 0), marker: { symbol: 'x-thin-open', size: 10, color: '#555', line: { width: 2 } }, name: 'no value (gapless or singular)', hovertemplate: 'seed %{x}: no value<extra></extra>' });
+  }
+  const head = mean === null ? `${of}: no member gave a value` : `${of} mean ${fmt(mean)} ± ${fmt(error ?? 0)}`;
+  const summary = `${head} over ${values.length - nulls} of ${values.length} samples${nulls > 0 ? ` (${nulls} without a value)` : ''}${warningText(result)}`;
+  return {
+    data,
+    layout: {
+      ...BASE_LAYOUT,
+      title: titled(`Disorder ensemble — ${of}`),
+      xaxis: { title: { text: 'seed' }, range: [lo, hi], zeroline: false },
+      yaxis: { title: { text: of }, zeroline: false },
+      showlegend: true,
+    },
+    summary,
+    invariant: null,
+    gapless: false,
+  };
+}
+
+function readEnsemble(result: DiagnosticResult) {
+  const seeds = numberArray(result, 'seeds');
+  const values = numberArray(result, 'values');
+  if (seeds.length !== values.length) throw new Error(`ensemble result: ${seeds.length} seeds for ${values.length} values`);
+  let nulls = 0;
+  for (let i = 0; i < values.length; i++) if (Number.isNaN(values[i])) nulls++;
+  const members = result.members === undefined ? Array.from(values, (_, i) => i) : numberArray(result, 'members');
+  return { seeds, values, members, mean: optionalNumber(result, 'mean'), error: optionalNumber(result, 'standardError'), of: String(result.of ?? 'value'), nulls };
+}
+
+export function ensembleTable(result: DiagnosticResult): Table {
+  const { seeds, values, members, of } = readEnsemble(result);
+  return { columns: ['member', 'seed', of], rows: Array.from(values, (v, i) => [members[i], seeds[i], Number.isNaN(v) ? null : v]) };
+}

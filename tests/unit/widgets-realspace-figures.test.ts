@@ -167,3 +167,28 @@ describe('local density of states figure', () => {
     expect(() => figureFor({ ...result, density: 'x' } as DiagnosticResult, ctx)).toThrow(/local-density result: field "density"/);
   });
 });
+
+describe('disorder ensemble figure', () => {
+  it('the members by seed, the mean and its standard error as drawn are the result; CSV one row per member', () => {
+    const { result, figure, ctx } = run(qwz(), 'ensemble', { of: 'local-marker', sizes: [8, 8], onsiteDisorder: 3, samples: 6, seed: 10 }, { u: -1 });
+    const traces = figure.data as Trace[];
+    const members = traces.find((t) => t.name === 'local-marker') as { x: number[]; y: number[] };
+    expect(members.x).toEqual([10, 11, 12, 13, 14, 15]);
+    expect(members.y).toEqual(Array.from(result.values as Float64Array));
+    const band = traces.find((t) => t.name === 'mean ± standard error') as { y: number[] };
+    const mean = result.mean as number;
+    const se = result.standardError as number;
+    expect(se).toBeGreaterThan(0);
+    expect(band.y[0]).toBeCloseTo(mean - se, 12);
+    expect(band.y[2]).toBeCloseTo(mean + se, 12);
+    expect(figure.summary).toMatch(/^local-marker mean \S+ ± \S+ over 6 of 6 samples/);
+    const csv = toCsv(tableFor(result, ctx)).trim().split('\n');
+    expect(csv[0]).toBe('"member","seed","local-marker"');
+    expect(csv[3].split(',').map(Number)).toEqual([2, 12, (result.values as Float64Array)[2]]);
+  });
+
+  it('weak disorder keeps the Bott index at the clean C = +1 (QWZ, u = -1) in every member', () => {
+    const { figure } = run(qwz(), 'ensemble', { of: 'bott', sizes: [8, 8], onsiteDisorder: 1, samples: 4 }, { u: -1 });
+    expect(figure.summary).toMatch(/^bott mean 1 ± 0 over 4 of 4 samples$/);
+  });
+});
