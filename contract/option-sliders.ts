@@ -69,9 +69,8 @@ export function stepProblem(value: number, from: number, step: number | null | u
   return Math.abs(steps - Math.round(steps)) > 1e-9 * Math.max(1, Math.abs(steps)) ? `expected ${from} plus a whole number of steps of ${step}. Value: ${value}` : null;
 }
 
-/** Where a slider starts: the value given, else the request option's own, else the low end. */
-export function optionStart(name: string, slider: OptionSlider, options: Readonly<Record<string, unknown>>, given?: number): number {
-  if (given !== undefined) return given;
+/** Where a slider starts when no value is given: the request option's own value, else the low end. */
+export function optionStart(name: string, slider: OptionSlider, options: Readonly<Record<string, unknown>>): number {
   const own = options[name];
   return typeof own === 'number' ? own : slider.range[0];
 }

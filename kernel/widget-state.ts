@@ -76,21 +76,21 @@ export function checkOptionSliders(kind: WidgetKind, spec: ModelSpec, options: R
  * the option sliders (ranges, steps). `start`: fill in the option sliders not given.
  */
 export function checkControlValues(spec: ModelSpec, options: Record<string, unknown>, values: unknown, field: string, start = false): Values {
+  // Not an object of values: the engine's own message.
+  if (values === null || typeof values !== 'object' || Array.isArray(values)) return checkParameterValues(spec, values, field);
   const sliders = optionSlidersOf(options);
   const params: Record<string, unknown> = {};
   const chosen: Values = {};
-  if (values !== null && typeof values === 'object' && !Array.isArray(values)) {
-    for (const [name, value] of Object.entries(values)) {
-      if (!Object.hasOwn(sliders, name)) {
-        params[name] = value;
-        continue;
-      }
-      const problem = optionValueProblem(value, sliders[name]);
-      if (problem !== null) throw new WidgetOptionError(`${field}.${name}`, problem);
-      chosen[name] = value as number;
+  for (const [name, value] of Object.entries(values)) {
+    if (!Object.hasOwn(sliders, name)) {
+      params[name] = value;
+      continue;
     }
+    const problem = optionValueProblem(value, sliders[name]);
+    if (problem !== null) throw new WidgetOptionError(`${field}.${name}`, problem);
+    chosen[name] = value as number;
   }
-  const checked = checkParameterValues(spec, values !== null && typeof values === 'object' && !Array.isArray(values) ? params : values, field);
+  const checked = checkParameterValues(spec, params, field);
   if (start) {
     for (const [name, slider] of Object.entries(sliders)) {
       if (name in chosen) continue;
