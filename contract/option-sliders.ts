@@ -75,13 +75,27 @@ export function optionStart(name: string, slider: OptionSlider, options: Readonl
   return typeof own === 'number' ? own : slider.range[0];
 }
 
+/**
+ * The request options a phase map sweeps as an axis (a disorder strength, say): their values in
+ * `values` only place the map's current point (a click on the map sets them), never the request.
+ */
+export function sweptOptions(options: Readonly<Record<string, unknown>>, parameters: Readonly<Record<string, unknown>>): string[] {
+  const axes = options.axes;
+  if (!Array.isArray(axes)) return [];
+  return axes.map((a) => (isObject(a) ? a.param : undefined)).filter((p): p is string => typeof p === 'string' && !Object.hasOwn(parameters, p));
+}
+
 /** The request a widget's values describe: model parameters as `params`, option sliders as options. */
 export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: Readonly<Record<string, unknown>>, values: Readonly<Record<string, number>>): DiagnosticRequest {
   const { [OPTION_SLIDERS]: _own, ...rest } = options;
   const sliders = optionSlidersOf(options);
+  const swept = sweptOptions(options, model.parameters);
   const params: Record<string, number> = {};
   const chosen: Record<string, number> = {};
-  for (const [name, value] of Object.entries(values)) (Object.hasOwn(sliders, name) ? chosen : params)[name] = value;
+  for (const [name, value] of Object.entries(values)) {
+    if (swept.includes(name)) continue;
+    (Object.hasOwn(sliders, name) ? chosen : params)[name] = value;
+  }
   return { ...rest, ...chosen, kind, model, params };
 }
 

@@ -12,7 +12,7 @@ import { requestFields } from '../src/request.js';
 import type { SweepQuantity } from '../src/scan/sweep.js';
 import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_RANGE, WIDGET_VIEW_NAME, type WidgetKind } from '../contract/protocol.js';
 import { packArrays } from '../contract/wire.js';
-import { OPTION_SLIDERS, optionSlidersOf, optionSlidersProblem, optionStart, optionValueProblem } from '../contract/option-sliders.js';
+import { OPTION_SLIDERS, optionSlidersOf, optionSlidersProblem, optionStart, optionValueProblem, sweptOptions } from '../contract/option-sliders.js';
 
 
 export type Values = Record<string, number>;
@@ -81,7 +81,14 @@ export function checkControlValues(spec: ModelSpec, options: Record<string, unkn
   const sliders = optionSlidersOf(options);
   const params: Record<string, unknown> = {};
   const chosen: Values = {};
+  const swept = sweptOptions(options, spec.parameters);
   for (const [name, value] of Object.entries(values)) {
+    if (swept.includes(name)) {
+      // A phase map's current point along a swept option (contract/option-sliders.ts).
+      if (typeof value !== 'number' || !Number.isFinite(value)) throw new WidgetOptionError(`${field}.${name}`, `must be a finite number. Value: ${JSON.stringify(value)}`);
+      chosen[name] = value;
+      continue;
+    }
     if (!Object.hasOwn(sliders, name)) {
       params[name] = value;
       continue;
