@@ -16,7 +16,11 @@ export const WIDGET_VIEW_NAME = 'DiagnosticView';
 /** The version of the Jupyter widget messaging protocol the kernel speaks (@jupyter-widgets/base 6). */
 export const WIDGET_PROTOCOL_VERSION = '2.1.0';
 
-export const WIDGET_KINDS = ['curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map', 'surface-spectrum', 'surface-map'] as const;
+export const WIDGET_KINDS = [
+  'curvature', 'wannier-flow', 'bands', 'ribbon', 'phase-map',
+  'local-marker', 'local-density',
+  'surface-spectrum', 'surface-map',
+] as const;
 export type WidgetKind = (typeof WIDGET_KINDS)[number];
 
 /** MIME types the kernel writes and the pages read (Jupyter widgets' own, and plotly's figure JSON). */

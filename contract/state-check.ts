@@ -5,6 +5,7 @@
  * so the page's main thread can run them; export-html also validates the model itself.
  */
 import { WIDGET_KINDS } from './protocol.js';
+import { optionSlidersOf, optionSlidersProblem, sweptOptions } from './option-sliders.js';
 
 const BYTES: Readonly<Record<string, number>> = { float64: 8, float32: 4, int32: 4, uint32: 4, int16: 2, uint16: 2, int8: 1, uint8: 1 };
 
@@ -62,11 +63,16 @@ export function diagnosticStateProblem(saved: unknown): string | null {
   if (!Array.isArray(spec.terms)) return 'spec.terms: missing';
   if (!isObject(spec.parameters)) return 'spec.parameters: missing';
   if (!isObject(state.values)) return 'values: missing';
+  if (state.options !== undefined && !isObject(state.options)) return 'options: expected an object';
+  // Request options with a slider keep their values beside the parameters' (option-sliders.ts).
+  const sliderProblem = optionSlidersProblem(state.options?.optionSliders, spec.parameters);
+  if (sliderProblem !== null) return `options.${sliderProblem}`;
+  const sliders = optionSlidersOf(state.options ?? {});
+  const swept = sweptOptions(state.options ?? {}, spec.parameters);
   for (const [name, value] of Object.entries(state.values)) {
     if (typeof value !== 'number' || !Number.isFinite(value)) return `values.${name}: expected a finite number. Value: ${JSON.stringify(value)}`;
-    if (!Object.hasOwn(spec.parameters, name)) return `values.${name}: not a parameter of the saved model`;
+    if (!Object.hasOwn(spec.parameters, name) && !Object.hasOwn(sliders, name) && !swept.includes(name)) return `values.${name}: not a parameter of the saved model`;
   }
-  if (state.options !== undefined && !isObject(state.options)) return 'options: expected an object';
   const result = state.result;
   if (result === null || result === undefined) return null;
   if (!isObject(result) || typeof result.kind !== 'string') return 'result: expected a result object with a kind';

@@ -17,6 +17,7 @@ import { surfaceSpectrumFigure, surfaceSpectrumTable } from './surface-spectrum.
 import { surfaceMapFigure, surfaceMapTable } from './surface-map.js';
 import { slabFigure, slabTable } from './slab.js';
 import { bulkBoundaryFigure, bulkBoundaryTable } from './bulk-boundary.js';
+import { densityFigure, densityTable, ensembleFigure, ensembleTable, markerFigure, markerTable } from './realspace.js';
 
 export type { Figure, FigureContext, Table } from './common.js';
 
@@ -40,6 +41,9 @@ const RENDERERS: Record<string, Renderer> = {
   'surface-map': { title: 'Constant-energy surface map', figure: surfaceMapFigure, table: surfaceMapTable },
   'slab-spectrum': { title: 'Slab spectrum', figure: slabFigure, table: slabTable },
   'bulk-boundary': { title: 'Bulk–boundary check', figure: bulkBoundaryFigure, table: bulkBoundaryTable },
+  'local-marker': { title: 'Local Chern marker', figure: markerFigure, table: markerTable },
+  'local-density': { title: 'Local density of states', figure: densityFigure, table: densityTable },
+  ensemble: { title: 'Disorder ensemble', figure: ensembleFigure, table: ensembleTable },
 };
 
 /** The name of a kind with a figure, or the kind itself. */

@@ -7,9 +7,8 @@
  * (`w.setValues({...})`).
  */
 
-import { resolveParameters, validateModel, type ModelSpec } from '../src/index.js';
+import { validateModel, type ModelSpec } from '../src/index.js';
 import { computeView } from '../src/views.js';
-import type { DiagnosticRequest } from '../contract/protocol.js';
 import { openComm, type Comm, type CommMessage } from './comms.js';
 import { figureOutput, MIME_BUNDLE } from './display/index.js';
 import { latticePicture } from './display/lattice.js';
@@ -20,10 +19,14 @@ import { integerOrValue } from '../figures/curvature.js';
 import { figureFor } from '../figures/index.js';
 import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_PROTOCOL_VERSION, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../contract/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../contract/wire.js';
+import { widgetRequest } from '../contract/option-sliders.js';
 import {
+  checkControlValues,
+  checkOptionSliders,
   checkValues,
   checkWidgetOptions,
   savedStateEntry,
+  startValues,
   WidgetOptionError,
   widgetState,
   type Result,
@@ -60,7 +63,8 @@ export class DiagnosticWidget {
     this.spec = validateModel(model);
     this.options = requestOptions;
     this.title = String(title);
-    this.current = resolveParameters(this.spec, checkValues(this.spec, values));
+    checkOptionSliders(kind, this.spec, options);
+    this.current = startValues(this.spec, requestOptions, values);
     this.lastResult = null;
     this.resultValues = null;
     this.lastError = '';
@@ -83,7 +87,7 @@ export class DiagnosticWidget {
     return this.comm.id;
   }
 
-  /** The parameter values the controls show (synced from the front end). */
+  /** The values the controls show: parameters and option sliders (synced from the front end). */
   get values(): Values {
     return { ...this.current };
   }
@@ -114,7 +118,7 @@ export class DiagnosticWidget {
    * cell ending with it shows no second view of the widget.
    */
   setValues(values: Values): void {
-    const checked = checkValues(this.spec, values, 'setValues');
+    const checked = checkControlValues(this.spec, this.options, values, 'setValues');
     this.current = { ...this.current, ...checked };
     this.send({ values: this.current });
   }
@@ -160,7 +164,7 @@ export class DiagnosticWidget {
   }
 
   private computeNow(values: Values): Result {
-    const request = { ...this.options, kind: this.kind, model: this.spec, params: values } as unknown as DiagnosticRequest;
+    const request = widgetRequest(this.kind, this.spec as unknown as ModelSpecView, this.options, values);
     return computeView(request) as Result;
   }
 
@@ -192,7 +196,7 @@ export class DiagnosticWidget {
     if (data.method !== 'update' || data.state === undefined) return;
     const state = data.state;
     putBuffers(state, data.buffer_paths ?? [], msg.buffers);
-    if (state.values !== undefined) this.current = checkValues(this.spec, state.values, 'values (from the front end)');
+    if (state.values !== undefined) this.current = checkControlValues(this.spec, this.options, state.values, 'values (from the front end)');
     if (state.result !== undefined) this.lastResult = state.result === null ? null : (unpackArrays(state.result) as Result);
     if (state.result_values !== undefined) this.resultValues = state.result_values as Values | null;
     if (typeof state.error === 'string') this.lastError = state.error;

@@ -70,5 +70,28 @@ export function computeView(request: ViewRequest, onPoints?: OnPoints): ViewResu
     if (invariant === undefined && z2.checks.warnings.some((w) => NOT_KRAMERS.test(w))) return flow;
     return part !== undefined ? { ...flow, [Z2_OF_PARTS]: z2 } : withZ2(flow, z2);
   }
+  if (request.kind === 'local-marker') return withCleanChern(request, run(request));
   return run(request);
+}
+
+/**
+ * Beside a marker map at half filling (no `fermiEnergy`), the clean crystal's Chern number of the
+ * lower half of the bands, the bulk value the marker should approach (null when the engine withholds
+ * it). The model is already compiled (`run`), so this costs one Chern number per parameter change.
+ */
+let cleanCache: { key: string; chern: number | null } | null = null;
+
+function withCleanChern(request: ViewRequest, marker: ViewResult): ViewResult {
+  if (request.fermiEnergy !== undefined || request.model === undefined) return marker;
+  const key = JSON.stringify([request.model, request.params, request.convention]);
+  if (cleanCache?.key !== key) {
+    let chern: number | null;
+    try {
+      chern = (computeOn(compiledFor(request), { kind: 'chern' } as KindRequest) as unknown as { chern: number | null }).chern;
+    } catch {
+      return marker; // a model the Chern number does not apply to: the map stands alone
+    }
+    cleanCache = { key, chern };
+  }
+  return { ...marker, cleanChern: cleanCache.chern };
 }

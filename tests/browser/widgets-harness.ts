@@ -8,11 +8,12 @@ import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { exportHtmlCommand } from '../../cli/export-html.js';
-import { savedStateEntry, widgetState } from '../../kernel/widget-state.js';
+import { savedStateEntry, startValues, widgetState } from '../../kernel/widget-state.js';
+import { widgetRequest } from '../../contract/option-sliders.js';
 import { WIDGET_STATE_MIME, WIDGET_VIEW_MIME, type WidgetKind } from '../../contract/protocol.js';
-import { compute, haldane, kaneMele, qwz, resolveParameters, type ModelSpec } from '../../src/index.js';
+import { compute, haldane, kaneMele, qwz, type ModelSpec } from '../../src/index.js';
 import { computeView } from '../../src/views.js';
-import type { DiagnosticRequest } from '../../contract/protocol.js';
+import type { ModelSpecView } from '../../contract/protocol.js';
 
 export const projectDir = resolve(import.meta.dirname, '../..');
 export const artifactsDir = resolve(process.env.CHERNEL_ARTIFACTS ?? join(projectDir, 'test-artifacts'));
@@ -74,8 +75,8 @@ export function notebookFor(widgets: DemoWidget[]): Record<string, unknown> {
     { cell_type: 'markdown', metadata: {}, source: '# Widgets demo\n\nDrag a control: the plot recomputes in the page.' },
   ];
   widgets.forEach((w, i) => {
-    const values = resolveParameters(w.spec, w.values ?? {});
-    const request = { ...w.options, kind: w.kind, model: w.spec, params: values } as unknown as DiagnosticRequest;
+    const values = startValues(w.spec, w.options, w.values ?? {});
+    const request = widgetRequest(w.kind, w.spec as unknown as ModelSpecView, w.options, values);
     const result = computeView(request);
     state[w.id] = savedStateEntry(
       widgetState({ kind: w.kind, spec: w.spec, options: w.options, values, result, error: '', title: w.title ?? '' }),

@@ -5,6 +5,10 @@
  */
 import type { ParameterDecl } from '../../contract/protocol.js';
 import { parameterValueProblem } from '../../src/model/parameters.js';
+import { stepProblem } from '../../contract/option-sliders.js';
+
+/** A slider's declaration: a parameter's, or a request option's with its own step (contract/option-sliders.ts). */
+export type ControlDecl = ParameterDecl & { step?: number };
 
 export interface ParameterControls {
   element: HTMLElement;
@@ -38,7 +42,7 @@ export function formatValue(value: number): string {
 }
 
 export function createParameterControls(
-  parameters: Record<string, ParameterDecl>,
+  parameters: Record<string, ControlDecl>,
   values: Record<string, number>,
   onInput: (name: string, value: number) => void,
   onInvalid: (message: string) => void,
@@ -66,7 +70,7 @@ export function createParameterControls(
     slider.type = 'range';
     slider.min = String(lo);
     slider.max = String(hi);
-    slider.step = String(sliderStep(lo, hi));
+    slider.step = String(decl.step ?? sliderStep(lo, hi));
     slider.value = String(values[name] ?? decl.default);
     slider.setAttribute('aria-label', name);
     slider.setAttribute('data-lm-suppress-shortcuts', 'true');
@@ -101,7 +105,7 @@ export function createParameterControls(
       const typed = box.value.trim();
       const value = typed === '' ? Number.NaN : Number(typed);
       // The engine's own check and message (src/model/parameters.ts); a non-number shows as typed.
-      const problem = parameterValueProblem(Number.isFinite(value) ? value : typed, decl);
+      const problem = parameterValueProblem(Number.isFinite(value) ? value : typed, decl) ?? stepProblem(value, lo, decl.step);
       if (problem !== null) {
         refuse(problem);
         return;

@@ -6,7 +6,7 @@
  */
 import { DOMWidgetModel, DOMWidgetView, type IBackboneModelOptions, type ISerializers } from '@jupyter-widgets/base';
 import { LatestWinsClient, type Outcome, type WorkerLike } from './compute-client.js';
-import { createParameterControls, formatValue, type ParameterControls } from './controls.js';
+import { createParameterControls, formatValue, type ControlDecl, type ParameterControls } from './controls.js';
 import { spawnEngineWorker } from './engine-worker.js';
 import { downloadFigure, downloadText, resultJson, safeFileName } from './exporting.js';
 import { figureFor, figureTitle, tableFor, toCsv, type Figure, type FigureContext } from '../../figures/index.js';
@@ -20,6 +20,7 @@ import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
 import { diagnosticStateProblem } from '../../contract/state-check.js';
 import { packArrays, unpackArrays } from '../../contract/wire.js';
+import { optionSlidersOf, optionStart, requestValues, widgetRequest } from '../../contract/option-sliders.js';
 
 
 
@@ -80,9 +81,9 @@ export class DiagnosticModel extends DOMWidgetModel {
     return computed != null && sameValues(strip(computed), strip(wanted));
   }
 
-  /** The request the current values describe. */
+  /** The request the current values describe (option sliders' values as request options). */
   request(values: Values = this.get('values')): DiagnosticRequest {
-    return { ...(this.get('options') as Record<string, unknown>), kind: this.get('kind'), model: this.get('spec'), params: { ...values } };
+    return widgetRequest(this.get('kind'), this.get('spec'), this.get('options') as Record<string, unknown>, values);
   }
 }
 
@@ -252,7 +253,13 @@ export class DiagnosticView extends DOMWidgetView {
     this.titleEl.textContent = this.model.get('title') || `${figureTitle(kind)} · ${spec?.name ?? 'no model'}`;
     this.live = { ...(this.model.get('values') as Values) };
     if (!spec) return;
-    const ordered = Object.fromEntries(this.parameterOrder().map((k) => [k, spec.parameters[k]]));
+    const ordered: Record<string, ControlDecl> = Object.fromEntries(this.parameterOrder().map((k) => [k, spec.parameters[k]]));
+    // Request options with a slider follow the parameters (contract/option-sliders.ts).
+    const options = this.model.get('options') as Record<string, unknown>;
+    for (const [name, slider] of Object.entries(optionSlidersOf(options))) {
+      if (Object.hasOwn(ordered, name)) continue;
+      ordered[name] = { default: optionStart(name, slider, options), range: slider.range, step: slider.step ?? undefined, doc: `request option "${name}"` };
+    }
     this.controls = createParameterControls(
       ordered,
       this.live,
@@ -427,16 +434,17 @@ export class DiagnosticView extends DOMWidgetView {
     this.staleTimer = null;
     this.plot.classList.remove('chernel-stale');
     if (stopped === null) return;
-    const values = describeValues(stopped.params, this.parameterOrder());
+    const stoppedAt = requestValues(this.model.get('options') as Record<string, unknown>, stopped);
+    const values = describeValues(stoppedAt, this.parameterOrder());
     this.showMessage('warning', `Stopped: nothing was computed for ${values}; the plot shows the last result.`);
     this.statusEl.textContent = `stopped at ${values}`;
-    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stopped.params } }));
+    this.el.dispatchEvent(new CustomEvent('chernel-stopped', { bubbles: true, detail: { values: stoppedAt } }));
   }
 
   private computed(outcome: Outcome): void {
     if (!this.attached) return;
     if (!(this.client?.busy ?? false)) this.hideProgress();
-    const values = outcome.request.params;
+    const values = requestValues(this.model.get('options') as Record<string, unknown>, outcome.request);
     if (outcome.error) {
       const message = `${outcome.error.name}: ${outcome.error.message}`;
       this.model.set({ error: message, values: { ...this.live } }, { updated_view: this });
