@@ -5,8 +5,7 @@
  * each kind computes is its module's business (diagnostics/registry.ts); this is the one way in.
  */
 import { BlochHamiltonian } from './bloch/hamiltonian.js';
-import type { KindRequest, KindResult } from './diagnostics/registry.js';
-import { diagnosticOf } from './diagnostics/registry.js';
+import { diagnosticOf, type KindRequest, type KindResult } from './diagnostics/registry.js';
 import { checkInterrupt, InterruptedError } from './interrupt.js';
 import { resolveParameters } from './model/expressions.js';
 import type { ParameterValues } from './model/spec.js';

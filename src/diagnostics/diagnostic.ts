@@ -1,7 +1,9 @@
 /**
  * What a diagnostic kind is: one module per kind (./kinds/) declares everything the rest of the
- * project needs to know about it, and `compute`, phase maps, cluster shards, the widget worker, the
- * widgets' split plan and the kernel's display all read it from the registry (./registry.ts).
+ * project needs to know about it, and `compute`, phase maps, cluster shards, the widget worker and
+ * the kernel's summaries read it from the registry (./registry.ts). How a kind splits into parts is
+ * declared once beside the joins (topology/parts.ts `SPLIT_ROWS`), which its module points to and a
+ * page's main thread reads without loading the engine.
  */
 import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import type { CostEstimate } from '../cost.js';
