@@ -1,7 +1,8 @@
 /**
  * Every diagnostic kind, one module each (./kinds/). Adding a kind is one module here, a figure
  * module in figures/ if it plots, and its tests: requests, their checks and costs, phase maps,
- * cluster shards, the widget worker, the split plan and the summaries all read this table.
+ * cluster shards, the widget worker and the summaries all read this table (a kind that splits
+ * also names its rows in topology/parts.ts, where the split plan reads them).
  */
 import type { BlochConvention } from '../bloch/hamiltonian.js';
 import { ModelError, valueText } from '../model/errors.js';
