@@ -1,7 +1,9 @@
 /**
  * The bulk–boundary check at a glance: the modes counted at the energy on each edge of the ribbon,
  * at the momentum where they cross it, pointing the way they move (right or left along +A_1), the
- * invariant they are checked against and the verdict in the title (the engine's own words).
+ * invariant they are checked against and the verdict in the title (the engine's own words). A
+ * chain's two ends and a slab's two surfaces are drawn as their counts beside what the invariant
+ * requires.
  */
 import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
@@ -56,7 +58,48 @@ function read(result: DiagnosticResult): CheckData {
 /** The verdict's colour in the title: agreement green, extra trivial modes amber, the rest red. */
 const VERDICT_COLOUR: Record<string, string> = { agree: '#1b7a3a', 'extra-modes': '#a86400', disagree: '#b3261e', undetermined: '#555555' };
 
+/** The two ends of a chain or the two surfaces of a slab: what was counted on each, and what the invariant requires. */
+interface CountShape {
+  net?: number;
+  count?: number;
+  expected: number | null;
+  agrees: boolean | null;
+}
+
+function countsOf(result: DiagnosticResult): [string, CountShape][] | null {
+  const sides = (result.ends ?? result.surfaces) as Record<string, CountShape> | undefined;
+  if (sides === undefined || sides === null || typeof sides !== 'object') return null;
+  const named = Object.entries(sides).filter(([, c]) => c !== null && typeof c === 'object' && (typeof c.net === 'number' || typeof c.count === 'number'));
+  return named.length === 2 ? named : null;
+}
+
+function countsFigure(result: DiagnosticResult, sides: [string, CountShape][]): Figure {
+  const verdict = String(result.verdict);
+  const counted = sides.map(([, c]) => (typeof c.net === 'number' ? c.net : (c.count as number)));
+  const what = result.ends !== undefined ? 'end' : 'surface';
+  const data: Data[] = [
+    // Scatter only: the still pictures (snapshot/) and the lean plotly build draw no other trace type for this.
+    { type: 'scatter', mode: 'markers', x: sides.map(([name]) => name), y: counted, name: 'counted', marker: { size: 18, color: '#3b6ea8' }, hovertemplate: `%{x} ${what}: %{y} counted<extra></extra>` },
+    { type: 'scatter', mode: 'markers', x: sides.map(([name]) => name), y: sides.map(([, c]) => c.expected), name: 'the invariant requires', marker: { symbol: 'circle-open', size: 26, color: '#222', line: { width: 2 } } },
+  ];
+  return {
+    data,
+    layout: {
+      ...BASE_LAYOUT,
+      title: titled(`Bulk–boundary check — <span style="color:${VERDICT_COLOUR[verdict] ?? '#222'}">${verdict}</span>`),
+      xaxis: { title: { text: what } },
+      yaxis: { title: { text: result.ends !== undefined ? 'end modes (net)' : 'surface states counted' }, zeroline: true },
+      height: 300,
+    },
+    summary: `${verdict} · ${String(result.summary)}${warningText(result)}`,
+    invariant: (result.invariant as { value?: number | null } | undefined)?.value ?? null,
+    gapless: result.checks?.gapless === true,
+  };
+}
+
 export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext): Figure {
+  const sides = result.edges === undefined ? countsOf(result) : null;
+  if (sides !== null) return countsFigure(result, sides);
   const r = read(result);
   const data: Data[] = [];
   for (const edge of EDGES) {
@@ -106,6 +149,10 @@ export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext
 }
 
 export function bulkBoundaryTable(result: DiagnosticResult): Table {
+  const sides = result.edges === undefined ? countsOf(result) : null;
+  if (sides !== null) {
+    return { columns: ['boundary', 'counted', 'the invariant requires', 'agrees'], rows: sides.map(([name, c]) => [name, typeof c.net === 'number' ? c.net : (c.count as number), c.expected ?? '', c.agrees === null ? '' : String(c.agrees)]) };
+  }
   const r = read(result);
   const rows: (number | string)[][] = [];
   for (const edge of EDGES) for (const m of r.edges[edge.field].modes) rows.push([edge.field, m.k, m.velocity, Math.sign(m.velocity), m.weight]);

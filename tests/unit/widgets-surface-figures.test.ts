@@ -8,7 +8,7 @@
 //   Fu, Kane & Mele, PRL 98, 106803 (2007): a strong 3D topological insulator has an odd number of
 //     surface Dirac cones (cubicTI at M/B = 2: inverted at Γ only, one cone at Γ̄).
 import { describe, expect, it } from 'vitest';
-import { compute, cubicTI, qwz, weyl2band } from '../../src/index.js';
+import { compute, cubicTI, qwz, ssh, weyl2band } from '../../src/index.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { PLOTLY_MIME, WIDGET_KINDS } from '../../contract/protocol.js';
 import { checkWidgetOptions, widgetState } from '../../kernel/widget-state.js';
@@ -186,6 +186,17 @@ describe('slab-spectrum and bulk-boundary figures', () => {
     expect(figure.summary).toMatch(/^agree · .* · cut \(0 1\) · E = 0$/);
     const table = tableFor(result, ctx);
     expect(table.rows.map((r) => [r[0], r[3]])).toEqual([['first', -1], ['last', 1]]);
+  });
+
+  it('bulk–boundary of a chain: the count at each end beside what the winding number requires (SSH, w > v: W = 1; Su, Schrieffer & Heeger 1979)', () => {
+    const { traces, figure, result, ctx } = run(ssh(), 'bulk-boundary', { cut: 0 }, { v: 0.5, w: 1 });
+    const [counted, required] = traces as unknown as { x: string[]; y: (number | null)[] }[];
+    expect(counted.x).toEqual(['first', 'last']);
+    // One end mode per end, opposite sublattice polarisation on the two ends (N_A - N_B = +-W).
+    expect(counted.y.map((n) => Math.abs(n ?? NaN))).toEqual([1, 1]);
+    expect(counted.y).toEqual(required.y);
+    expect(String((figure.layout.title as { text: string }).text)).toContain('agree');
+    expect(tableFor(result, ctx).rows.map((r) => r[3])).toEqual(['true', 'true']);
   });
 
   it('names the missing field of a malformed result', () => {
