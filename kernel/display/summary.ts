@@ -94,7 +94,7 @@ function fields(result: ResultLike): [string, string][] {
 function checkRows(result: ResultLike): [string, string][] {
   const c = result.checks;
   const rows: [string, string][] = [];
-  if (typeof c.minGap === 'number') rows.push(['min gap', [num(c.minGap), kAt(c.minGapAt)].filter(Boolean).join(' at ')]);
+  if (typeof c.minGap === 'number' && Number.isFinite(c.minGap)) rows.push(['min gap', [num(c.minGap), kAt(c.minGapAt)].filter(Boolean).join(' at ')]);
   const grid = gridText(c.grid);
   if (grid) rows.push(['grid', grid]);
   if (result.convention) rows.push(['convention', result.convention]);
