@@ -169,7 +169,7 @@ export async function benchTopology(): Promise<BenchRow[]> {
 
   const hp = { t1: 1, t2: 0.1, phi: Math.PI / 2, M: 0.2 };
   const hModel = new BlochHamiltonian(haldane(), hp);
-  const ours = best(() => chernNumber(hModel, { grid: 300, bands: 1 }).flux ?? NaN);
+  const ours = best(() => chernNumber(hModel, { grid: 300, bands: 1 }).total ?? NaN);
   const ref = numpy({ what: 'chern', N: 300, m: 1, runs: RUNS, ...numericTerms(haldane(), hp) });
   if (Math.abs(ours.value - ref.value) > 1e-6) throw new Error(`Haldane Chern numbers disagree: ours ${ours.value}, numpy ${ref.value}`);
   rows.push({ name: 'Chern number, Haldane, FHS 300x300', ours: ours.seconds * 1000, reference: ref.seconds * 1000, unit: 'ms', ratio: ref.seconds / ours.seconds, target: '>= 3x numpy' });

@@ -42,8 +42,11 @@ export interface ChernResult {
   bands: [number, number];
   /** Reduced axes of the plane (2D: [0, 1]) and, for a 3D slice, the fixed momentum. */
   plane: { axes: [number, number]; at?: number; normal?: number };
-  /** Total Berry flux / 2pi before rounding (an integer up to rounding error when the grid is sound); null when no sum was made (the gap was not proven). */
-  flux: number | null;
+  /**
+   * The total Berry flux / 2pi before rounding (an integer up to rounding error when the grid is
+   * sound), as a curvature map's `total`; null when no sum was made (the gap was not proven).
+   */
+  total: number | null;
   checks: ChernChecks;
 }
 
@@ -209,7 +212,7 @@ export function chernNumber(source: TopologySource, options: ChernOptions = {}):
     ...(grid === 'auto' ? { solve: (k: Float64Array) => sampler.sample(k, undefined, 0, false) } : {}),
   });
   const result = (c: number | null, checks: ChernChecks, integer: boolean): ChernResult => ({
-    kind: 'chern', chern: integer && c !== null ? Math.round(c) + 0 : null, bands: [group.lo, group.hi], plane: planeInfo, flux: c, checks,
+    kind: 'chern', chern: integer && c !== null ? Math.round(c) + 0 : null, bands: [group.lo, group.hi], plane: planeInfo, total: c, checks,
   });
 
   if (grid !== 'auto') {

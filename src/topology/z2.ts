@@ -516,7 +516,7 @@ export function spinChern(source: TopologySource, options: ChernOptions = {}): S
     if (occupied === 0 || occupied === ns) {
       // A spin species with all its bands empty (or all filled) contributes no Chern number.
       const note = `spin ${i === 0 ? 'up' : 'down'} has ${occupied === 0 ? 'no' : 'all its'} bands below the gap: its Chern number is 0`;
-      return { kind: 'chern', chern: 0, bands: [0, occupied - 1], plane: { axes: [0, 1] }, flux: 0, checks: { minGap: null, warnings: [note] } };
+      return { kind: 'chern', chern: 0, bands: [0, occupied - 1], plane: { axes: [0, 1] }, total: 0, checks: { minGap: null, warnings: [note] } };
     }
     return chernNumber(hs, { ...options, params: undefined, bands: occupied });
   });

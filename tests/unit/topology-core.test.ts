@@ -82,7 +82,7 @@ describe('Fukui–Hatsugai–Suzuki Chern number', () => {
     expect(r.chern).toBe(c);
     expect(r.checks.converged).toBe(true);
     expect(r.checks.gapless).toBeUndefined();
-    expect(Math.abs(r.flux - c)).toBeLessThan(1e-9);
+    expect(Math.abs(r.total - c)).toBeLessThan(1e-9);
     // The upper band carries the opposite number (total Chern number of all bands is zero).
     expect(chernNumber(qwz(), { params: { u }, bands: [1] }).chern).toBe(0 - c);
   });
@@ -120,7 +120,7 @@ describe('Fukui–Hatsugai–Suzuki Chern number', () => {
       const lat = chernNumber(qwzDisplaced(), { params: { u }, convention: 'lattice' });
       const orb = chernNumber(qwzDisplaced(), { params: { u }, convention: 'orbital' });
       expect(orb.chern).toBe(lat.chern);
-      expect(Math.abs(orb.flux - lat.flux)).toBeLessThan(1e-9);
+      expect(Math.abs(orb.total - lat.total)).toBeLessThan(1e-9);
     }
   });
 
