@@ -143,3 +143,48 @@ export const DIVERGING: [number, string][] = [
 ];
 
 export const CLOSING_MARKER = { symbol: 'x-thin-open' as const, size: 14, color: '#000', line: { width: 3, color: '#d40000' } };
+
+/**
+ * The states of a finite sample (a ribbon, a slab) as points (k, E), coloured by the difference of
+ * their weights on its two boundaries: red on the first, blue on the second, grey in the bulk. The
+ * hover carries both weights, rounded to three decimals, which keeps a saved figure of tens of
+ * thousands of states small.
+ */
+export function boundaryWeightedStates(
+  xs: ArrayLike<number>,
+  bandCount: number,
+  energies: ArrayLike<number>,
+  weights: [ArrayLike<number>, ArrayLike<number>],
+  colorbar: { title: string; ends: [string, string] },
+  hovertemplate: string,
+): Data {
+  const x: number[] = [], y: number[] = [], colour: number[] = [];
+  const custom: [number, number][] = [];
+  const [first, second] = weights;
+  for (let p = 0; p < xs.length; p++) {
+    for (let n = 0; n < bandCount; n++) {
+      const i = p * bandCount + n;
+      x.push(xs[p]);
+      y.push(energies[i]);
+      colour.push(first[i] - second[i]);
+      custom.push([Math.round(first[i] * 1000) / 1000, Math.round(second[i] * 1000) / 1000]);
+    }
+  }
+  return {
+    type: 'scatter',
+    mode: 'markers',
+    x,
+    y,
+    customdata: custom,
+    marker: {
+      size: 3.5,
+      color: colour,
+      colorscale: [[0, '#1f4e9c'], [0.5, '#b8b8b8'], [1, '#b3261e']],
+      cmin: -1,
+      cmax: 1,
+      colorbar: { title: { text: colorbar.title }, tickvals: [-1, 0, 1], ticktext: [colorbar.ends[1], 'bulk', colorbar.ends[0]] },
+    },
+    name: 'states',
+    hovertemplate,
+  };
+}

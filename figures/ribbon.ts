@@ -4,7 +4,7 @@
  */
 import type { Data } from './plotly-json.js';
 import type { DiagnosticResult } from '../contract/protocol.js';
-import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, boundaryWeightedStates, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface RibbonData {
   x: number[];
@@ -51,48 +51,12 @@ function read(result: DiagnosticResult): RibbonData {
   };
 }
 
-/** Red (first edge) - grey (bulk) - blue (last edge), by the difference of the two edge weights. */
-const EDGE_SCALE: [number, string][] = [
-  [0, '#1f4e9c'],
-  [0.5, '#b8b8b8'],
-  [1, '#b3261e'],
-];
-
 export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
   const r = read(result);
-  const x: number[] = [];
-  const y: number[] = [];
-  const colour: number[] = [];
-  const custom: [number, number][] = [];
-  for (let p = 0; p < r.count; p++) {
-    for (let n = 0; n < r.bandCount; n++) {
-      const i = p * r.bandCount + n;
-      x.push(r.x[p]);
-      y.push(r.energies[i]);
-      colour.push(r.first[i] - r.last[i]);
-      // Hover shows two decimals; three keep a saved figure of tens of thousands of states small.
-      custom.push([Math.round(r.first[i] * 1000) / 1000, Math.round(r.last[i] * 1000) / 1000]);
-    }
-  }
   const unit = energyUnit(ctx.spec);
   const data: Data[] = [
-    {
-      type: 'scatter',
-      mode: 'markers',
-      x,
-      y,
-      customdata: custom,
-      marker: {
-        size: 3.5,
-        color: colour,
-        colorscale: EDGE_SCALE,
-        cmin: -1,
-        cmax: 1,
-        colorbar: { title: { text: 'edge weight<br>first − last' }, tickvals: [-1, 0, 1], ticktext: ['last', 'bulk', 'first'] },
-      },
-      name: 'states',
-      hovertemplate: `k = %{x:.3f}<br>E = %{y:.4f}${unitText(unit)}<br>first edge %{customdata[0]:.2f}, last edge %{customdata[1]:.2f}<extra></extra>`,
-    },
+    boundaryWeightedStates(r.x, r.bandCount, r.energies, [r.first, r.last], { title: 'edge weight<br>first − last', ends: ['first', 'last'] },
+      `k = %{x:.3f}<br>E = %{y:.4f}${unitText(unit)}<br>first edge %{customdata[0]:.2f}, last edge %{customdata[1]:.2f}<extra></extra>`),
   ];
   const gap = result.checks.minGap;
   const summary = `${r.name} · ${r.bandCount} states${typeof gap === 'number' ? ` · smallest gap ${fmt(gap)}${unitText(unit)}` : ''}`;

@@ -6,7 +6,7 @@
  */
 import type { DiagnosticResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
-import { BASE_LAYOUT, energyUnit, numberArray, ResultShapeError, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
+import { BASE_LAYOUT, boundaryWeightedStates, energyUnit, numberArray, ResultShapeError, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 import { cutText, warningText } from './spectral.js';
 
 interface PathShape {
@@ -58,48 +58,13 @@ function read(result: DiagnosticResult): SlabData {
   return { name, path: path as PathShape, width, bandCount, energies, bottom, top, surfaceLayers: e };
 }
 
-/** Red (bottom) - grey (bulk) - blue (top), by the difference of the two surface weights. */
-const SURFACE_SCALE: [number, string][] = [
-  [0, '#1f4e9c'],
-  [0.5, '#b8b8b8'],
-  [1, '#b3261e'],
-];
-
 export function slabFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
   const r = read(result);
-  const x: number[] = [];
-  const y: number[] = [];
-  const colour: number[] = [];
-  const custom: [number, number][] = [];
-  for (let p = 0; p < r.path.count; p++) {
-    for (let n = 0; n < r.bandCount; n++) {
-      const i = p * r.bandCount + n;
-      x.push(r.path.distance[p]);
-      y.push(r.energies[i]);
-      colour.push(r.bottom[i] - r.top[i]);
-      custom.push([Math.round(r.bottom[i] * 1000) / 1000, Math.round(r.top[i] * 1000) / 1000]);
-    }
-  }
   const unit = energyUnit(ctx.spec);
   const layers = `${r.surfaceLayers} plane${r.surfaceLayers > 1 ? 's' : ''}`;
   const data: Data[] = [
-    {
-      type: 'scatter',
-      mode: 'markers',
-      x,
-      y,
-      customdata: custom,
-      marker: {
-        size: 3.5,
-        color: colour,
-        colorscale: SURFACE_SCALE,
-        cmin: -1,
-        cmax: 1,
-        colorbar: { title: { text: `weight on the outer ${layers}<br>bottom − top` }, tickvals: [-1, 0, 1], ticktext: ['top', 'bulk', 'bottom'] },
-      },
-      name: 'states',
-      hovertemplate: `E = %{y:.4f}${unitText(unit)}<br>bottom %{customdata[0]:.2f}, top %{customdata[1]:.2f}<extra></extra>`,
-    },
+    boundaryWeightedStates(r.path.distance, r.bandCount, r.energies, [r.bottom, r.top], { title: `weight on the outer ${layers}<br>bottom − top`, ends: ['bottom', 'top'] },
+      `E = %{y:.4f}${unitText(unit)}<br>bottom %{customdata[0]:.2f}, top %{customdata[1]:.2f}<extra></extra>`),
   ];
   const summary = `${r.name} · ${cutText(result)} · ${r.width} planes, ${r.bandCount} states per k · surfaces: outer ${layers}${warningText(result)}`;
   return {
