@@ -30,7 +30,7 @@ import { cutInfo, wholeNumber, type CutInfo } from './common.js';
 import { lineCrossings, type EdgeMode } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { CutSpec } from './layers.js';
-import { checkedInvariant, openSample, thinSample } from './open-sample.js';
+import { checkedInvariant, judge, openSample, thinSample } from './open-sample.js';
 import { slabSurfaces, type SurfaceCount } from './surface-count.js';
 
 export type { EdgeMode } from './crossings.js';
@@ -174,11 +174,7 @@ function ribbonEdges(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBou
     return { modes, right, left, net, pairs, expected: value, agrees: right === left && pairs % 2 === value, extra: 2 * (pairs - value) };
   };
   const edges = { first: count(found.first, -1), last: count(found.last, 1) };
-  let verdict: BoundaryVerdict;
-  if (value === null || stray > 0 || thin !== null) verdict = 'undetermined';
-  else if (!edges.first.agrees || !edges.last.agrees) verdict = 'disagree';
-  else if (edges.first.extra > 0 || edges.last.extra > 0) verdict = 'extra-modes';
-  else verdict = 'agree';
+  const verdict = judge(value === null || stray > 0 || thin !== null, [edges.first, edges.last]);
   return {
     kind: 'bulk-boundary',
     boundary: 'edge',

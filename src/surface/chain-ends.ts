@@ -29,7 +29,7 @@ import type { BoundaryInvariant, BoundaryVerdict, BulkBoundaryOptions, BulkBound
 import { zoneBandRanges, energyInGap } from './bulk-gap.js';
 import { cutInfo } from './common.js';
 import { column, expectation, rotateByDiagonal, weightOn } from './crossings.js';
-import { checkedInvariant, openSample, thinSample } from './open-sample.js';
+import { checkedInvariant, judge, openSample, thinSample } from './open-sample.js';
 
 export interface EndMode {
   /** <H> of the mode (near the energy of the count). */
@@ -136,11 +136,7 @@ export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): Bu
     else if (thin !== null) reason = `the chain (${sample.width} cells) is too short for its end modes (see the warnings)`;
     else if (stray > 0) reason = `${stray} zero-energy state${stray === 1 ? '' : 's'} on neither end`;
   }
-  let verdict: BoundaryVerdict;
-  if (reason !== '') verdict = 'undetermined';
-  else if (!ends.first.agrees || !ends.last.agrees) verdict = 'disagree';
-  else if (ends.first.extra > 0 || ends.last.extra > 0) verdict = 'extra-modes';
-  else verdict = 'agree';
+  const verdict = judge(reason !== '', [ends.first, ends.last]);
   return {
     kind: 'bulk-boundary',
     boundary: 'end',

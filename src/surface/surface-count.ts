@@ -32,13 +32,13 @@ import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler } from '../spectra/common.js';
 import { weylPoints } from '../topology/weyl.js';
 import { z2Index } from '../topology/z2.js';
-import type { BoundaryInvariant, BoundaryVerdict, BulkBoundaryOptions, BulkBoundaryResult } from './bulk-boundary.js';
+import type { BoundaryInvariant, BulkBoundaryOptions, BulkBoundaryResult } from './bulk-boundary.js';
 import { bandRanges, energyInGap, zoneBandRanges, type BandRanges } from './bulk-gap.js';
 import { cutInfo, projectToSurface, wholeNumber } from './common.js';
 import { column, expectation, lineCrossings, rotateByDiagonal, type EdgeMode } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { PrincipalLayers } from './layers.js';
-import { checkedInvariant, openSample, thinSample, type OpenSample } from './open-sample.js';
+import { checkedInvariant, judge, openSample, thinSample, type OpenSample } from './open-sample.js';
 
 /** A surface Dirac point: a Kramers pair of surface states at a surface TRIM. */
 export interface DiracPoint {
@@ -197,13 +197,6 @@ function diracPoints(h: BlochHamiltonian, options: BulkBoundaryOptions, sample: 
     summary: `${head} on the surface ${valueText(sample.layers.miller)}; ${describe('bottom', surfaces.bottom)}; ${describe('top', surfaces.top)}`,
     checks: { warnings, grid: ranges.grid },
   };
-}
-
-function judge(undetermined: boolean, counts: SurfaceCount[]): BoundaryVerdict {
-  if (undetermined) return 'undetermined';
-  if (counts.some((c) => !c.agrees)) return 'disagree';
-  if (counts.some((c) => c.extra > 0)) return 'extra-modes';
-  return 'agree';
 }
 
 /** Signed handedness of the cut's basis in Cartesian coordinates. */
