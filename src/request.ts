@@ -80,7 +80,9 @@ function withSize(request: RequestFields, field: string, value: number): Request
     const axes = (request.axes as RequestFields[]).map((a, i) => (i === Number(axis[1]) ? { ...a, count: value } : a));
     return { ...request, axes };
   }
-  if (field === 'grid' && Array.isArray(request.grid)) return { ...request, grid: request.grid.map((x: unknown) => (typeof x === 'number' ? Math.min(x, value) : x)) };
+  // A size per direction (a grid, a sample's cells) is capped in every direction.
+  const current = request[field];
+  if (Array.isArray(current)) return { ...request, [field]: current.map((x: unknown) => (typeof x === 'number' ? Math.min(x, value) : x)) };
   return { ...request, [field]: value };
 }
 
@@ -118,7 +120,10 @@ function checkCost(request: DiagnosticRequest): CostEstimate {
       else hi = mid;
     }
     if (lo >= 2 && fits(estimateCost(withSize(r, field, lo) as unknown as DiagnosticRequest, n, dim), b)) {
-      throw new ModelError(field, `${size} ${over}; the largest ${field} that fits is ${lo} (value: ${size})`);
+      // A size per direction (a grid, a sample's cells) is named with its largest entry, capped in each.
+      const value = Array.isArray(r[field]) ? r[field] : size;
+      const largest = Array.isArray(value) ? `${lo} per direction` : String(lo);
+      throw new ModelError(field, `${valueText(value)} ${over}; the largest ${field} that fits is ${largest} (value: ${valueText(value)})`);
     }
   }
   throw new ModelError('model.orbitals', `a "${request.kind}" request on ${n} orbitals ${over}, even at its smallest sizes`);

@@ -122,6 +122,8 @@ describe('cost known before running (src/cost.ts)', () => {
     [{ kind: 'curvature', model: qwz(), grid: [100000, 100000] }, 'grid'],
     [{ kind: 'phase-map', model: qwz(), invariant: 'chern', axes: [{ param: 'u', from: -3, to: 3, count: 1e9 }] }, 'axes[0].count'],
     [{ kind: 'ribbon', model: qwz(), direction: 0, width: 100000 }, 'width'],
+    [{ kind: 'bott', model: qwz(), sizes: [400, 400] }, 'sizes'],
+    [{ kind: 'local-marker', model: qwz(), sizes: [3000, 3000], method: 'chebyshev' }, 'sizes'],
     [{ kind: 'bands', model: qwz(), pointsPerSegment: 100000, path: 'Γ X M Γ' }, null],
   ] as [DiagnosticRequest, string | null][])('%#: refuses what cannot fit, naming the field, the estimate and the largest value that fits', (request, field) => {
     if (field === null) {
