@@ -106,7 +106,8 @@ function checkCost(request: DiagnosticRequest): CostEstimate {
   const dim = typeof model?.periodic === 'number' ? model.periodic : 2;
   const b = computeBudget();
   const cost = estimateCost(request, n, dim);
-  if (fits(cost, b)) return cost;
+  // A size that is not a finite number gives no estimate: the diagnostic names that field itself.
+  if (fits(cost, b) || !Number.isFinite(cost.bytes) || !Number.isFinite(cost.seconds)) return cost;
   const over = cost.bytes > b.memoryBytes
     ? `needs about ${formatBytes(cost.bytes)} of memory, over the budget of ${formatBytes(b.memoryBytes)}`
     : `would take about ${formatSeconds(cost.seconds)}, over the budget of ${formatSeconds(b.seconds)}`;

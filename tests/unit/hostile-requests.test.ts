@@ -45,6 +45,10 @@ const BASE: DiagnosticRequest[] = [
   { kind: 'weyl', model: weyl2band(), grid: 6 },
   { kind: 'hall', model: qwz(), grid: 8 },
   { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 4 }] },
+  { kind: 'bott', model: qwz(), sizes: [4, 4], onsiteDisorder: 1, seed: 2 },
+  { kind: 'local-marker', model: qwz(), sizes: [4, 4] },
+  { kind: 'surface-spectrum', model: qwz(), cut: 1, nk: 8, energyCount: 8 },
+  { kind: 'bulk-boundary', model: ssh(), cut: 0 },
 ];
 
 /** What a case expects: a refusal naming a field that matches, or the result of an equivalent request. */
@@ -108,6 +112,7 @@ for (const base of BASE) {
 const SIZE_FIELD: Partial<Record<DiagnosticRequest['kind'], string>> = {
   bands: 'pointsPerSegment', gap: 'grid', 'gap-closings': 'grid', ribbon: 'width', chern: 'grid', curvature: 'grid',
   'wannier-flow': 'grid', 'berry-phase': 'points', z2: 'grid', 'spin-chern': 'grid', winding: 'points', weyl: 'grid', hall: 'grid',
+  'surface-spectrum': 'nk', 'bulk-boundary': 'width',
 };
 for (const base of BASE) {
   const field = SIZE_FIELD[base.kind];
@@ -120,6 +125,15 @@ for (const base of BASE) {
   }
   for (const v of [1e7, 1e9, 2 ** 31, 1e15]) {
     add(`${base.kind}: ${field} = ${v}`, () => compute({ ...base, [field]: v } as DiagnosticRequest), { refuse: new RegExp(`${escape(field)}|model\\.orbitals`) });
+  }
+}
+// A finite sample's cells, disorder and seed (the real-space kinds): garbage is refused naming the field.
+for (const base of BASE.filter((b) => b.kind === 'bott' || b.kind === 'local-marker')) {
+  for (const v of [[-1, 4], [0, 4], [1.5, 4], ['big', 4], [4], [4, 4, 4], [], 'big', 4, null, [1e5, 1e5]]) {
+    add(`${base.kind}: sizes = ${JSON.stringify(v)}`, () => compute({ ...base, sizes: v } as DiagnosticRequest), { refuse: /^sizes/ });
+  }
+  for (const [field, v] of [['onsiteDisorder', -1], ['onsiteDisorder', 'big'], ['seed', 1.5], ['seed', -3], ['vacancies', 1], ['boundary', 'twisted']] as const) {
+    add(`${base.kind}: ${field} = ${JSON.stringify(v)}`, () => compute({ ...base, [field]: v } as DiagnosticRequest), { refuse: new RegExp(`^${field}`) });
   }
 }
 for (const count of [1e6, 1e9, 1e12]) {
