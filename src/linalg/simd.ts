@@ -17,10 +17,10 @@
  */
 
 /** The few WebAssembly declarations used here (the engine is compiled without DOM or Node types). */
-interface WasmMemory {
+export interface WasmMemory {
   readonly buffer: ArrayBuffer;
 }
-interface WasmApi {
+export interface WasmApi {
   Module: new (bytes: Uint8Array) => object;
   Instance: new (module: object, imports: object) => { readonly exports: Record<string, unknown> };
   Memory: new (descriptor: { initial: number; maximum?: number }) => WasmMemory;
@@ -40,9 +40,9 @@ export interface SimdKernels {
 
 // --- the emitter -------------------------------------------------------------------------------
 
-const I32 = 0x7f;
-const F64 = 0x7c;
-const V128 = 0x7b;
+export const I32 = 0x7f;
+export const F64 = 0x7c;
+export const V128 = 0x7b;
 
 function uleb(x: number): number[] {
   const out: number[] = [];
@@ -79,7 +79,7 @@ function f64Bytes(...xs: number[]): number[] {
 const SWAP = [8, 9, 10, 11, 12, 13, 14, 15, 0, 1, 2, 3, 4, 5, 6, 7];
 
 /** One function body: typed locals and a byte stream of instructions, with a few composite helpers. */
-class Body {
+export class Body {
   readonly code: number[] = [];
   private readonly locals: number[] = [];
 
@@ -476,12 +476,16 @@ function realProduct(): Body {
 }
 
 function moduleBytes(): Uint8Array {
-  const kernels: [string, Body][] = [
+  return assemble([
     ['reflectPair', reflectPair()],
     ['hermitianTimes', hermitianTimes()],
     ['householderUpdate', householderUpdate()],
     ['realProduct', realProduct()],
-  ];
+  ]);
+}
+
+/** A module of the named functions, each exported, all sharing one imported memory (m.memory). */
+export function assemble(kernels: [string, Body][]): Uint8Array {
   const types = kernels.map(([, f]) => [0x60, ...vec(f.params.map((t) => [t])), 0]);
   const bytes = [
     0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00,
@@ -494,31 +498,37 @@ function moduleBytes(): Uint8Array {
   return Uint8Array.from(bytes);
 }
 
-const wasm = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
+export const wasm = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
 const PAGE = 65536;
 /** WebAssembly's 32-bit memory holds at most 65536 pages (4 GB). */
 const MAX_PAGES = 65536;
-let compiled: object | null = null;
-let current: { kernels: SimdKernels; memory: ArrayBuffer } | null = null;
 
 /**
- * The kernels and a memory of at least `bytes` bytes, shared with other users (see above). Keep
- * both: a later, larger request may move the others on to a new instance.
+ * A shared workspace of a module's kernels (see the module comment above): `get(bytes)` returns
+ * the kernels and a memory of at least `bytes` bytes, shared with other users. Keep both: a later,
+ * larger request may move the others on to a new instance. The module is compiled on first use.
  */
-export function simdWorkspace(bytes: number): { kernels: SimdKernels; memory: ArrayBuffer } {
-  if (current !== null && current.memory.byteLength >= bytes) return current;
-  // At least double, so that a run of growing sizes makes few instances.
-  const needed = Math.ceil(bytes / PAGE);
-  const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((current?.memory.byteLength ?? 0) / PAGE)));
-  let memory: WasmMemory;
-  try {
-    if (needed > MAX_PAGES) throw new RangeError('too large');
-    memory = new wasm.Memory({ initial: pages, maximum: pages });
-  } catch {
-    throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
-  }
-  compiled ??= new wasm.Module(moduleBytes());
-  const kernels = new wasm.Instance(compiled, { m: { memory } }).exports as unknown as SimdKernels;
-  current = { kernels, memory: memory.buffer };
-  return current;
+export function workspaces<K>(moduleBytes: () => Uint8Array): (bytes: number) => { kernels: K; memory: ArrayBuffer } {
+  let compiled: object | null = null;
+  let current: { kernels: K; memory: ArrayBuffer } | null = null;
+  return (bytes) => {
+    if (current !== null && current.memory.byteLength >= bytes) return current;
+    // At least double, so that a run of growing sizes makes few instances.
+    const needed = Math.ceil(bytes / PAGE);
+    const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((current?.memory.byteLength ?? 0) / PAGE)));
+    let memory: WasmMemory;
+    try {
+      if (needed > MAX_PAGES) throw new RangeError('too large');
+      memory = new wasm.Memory({ initial: pages, maximum: pages });
+    } catch {
+      throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
+    }
+    compiled ??= new wasm.Module(moduleBytes());
+    const kernels = new wasm.Instance(compiled, { m: { memory } }).exports as unknown as K;
+    current = { kernels, memory: memory.buffer };
+    return current;
+  };
 }
+
+/** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */
+export const simdWorkspace = workspaces<SimdKernels>(moduleBytes);
