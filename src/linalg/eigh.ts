@@ -112,6 +112,37 @@ export class HermitianEigensolver {
   }
 
   /**
+   * Eigenvalues of `h` into `w` (ascending) and the eigenvectors of the `count(w)` lowest only,
+   * returned as the rows of a new count x n matrix (row j = eigenvector j): the
+   * back-transformation, a third of the solve at n ~ 2000, then runs on those vectors alone (the
+   * occupied states of a sample are half of them). The vectors are those `solve` gives.
+   */
+  solveLowest(h: CMatrix, w: Float64Array, count: (values: Float64Array) => number): CMatrix {
+    const n = this.n;
+    checkArray('h', h, 0, 2 * n * n);
+    checkArray('w', w, 0, n);
+    if (n <= 2) {
+      const vecs = new Float64Array(2 * n * n);
+      this.solveAt(h, 0, w, 0, vecs, 0);
+      const m = checkCount(count(w.subarray(0, n)), n);
+      const rows = new Float64Array(2 * m * n);
+      for (let j = 0; j < m; j++) {
+        for (let i = 0; i < n; i++) {
+          rows[2 * (j * n + i)] = vecs[2 * (i * n + j)];
+          rows[2 * (j * n + i) + 1] = vecs[2 * (i * n + j) + 1];
+        }
+      }
+      return rows;
+    }
+    let rows = new Float64Array(0);
+    this.solveGeneral(h, 0, w, 0, null, 0, (values) => {
+      rows = new Float64Array(2 * checkCount(count(values), n) * n);
+      return rows;
+    });
+    return rows;
+  }
+
+  /**
    * `solve` on matrices stored at offsets (in doubles) inside larger arrays, e.g. one H(k) of a
    * batch: reads `h[hOffset .. hOffset + 2n^2)`, writes `w[wOffset .. wOffset + n)` and, unless
    * `vecs` is null, `vecs[vecsOffset .. vecsOffset + 2n^2)`. Returns `w`.
@@ -202,7 +233,9 @@ export class HermitianEigensolver {
     vecs[vo + 7] = hi1 * fi;
   }
 
-  private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
+  /** With `lowest`, the vectors it asks for (once the values are known) go to its rows instead of vecs. */
+  private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number, lowest: Lowest | null = null): void {
+    const withVectors = vecs !== null || lowest !== null;
     const n = this.n;
     const a = this.a;
     // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
@@ -232,6 +265,10 @@ export class HermitianEigensolver {
         for (let j = 0; j < 2 * n * n; j++) vecs[vo + j] = 0;
         for (let i = 0; i < n; i++) vecs[vo + 2 * (i * n + i)] = 1;
       }
+      if (lowest !== null) {
+        const rows = lowest(w.subarray(wo, wo + n));
+        for (let j = 0; j < rows.length / (2 * n); j++) rows[2 * (j * n + j)] = 1;
+      }
       return;
     }
     let scale = 1;
@@ -242,11 +279,11 @@ export class HermitianEigensolver {
         for (let j = 2 * (i * n + i); j < 2 * (i * n + n); j++) a[j] *= inv;
       }
     }
-    this.reduce(vecs !== null);
+    this.reduce(withVectors);
     const d = this.d;
     const e = this.e;
     let converged: boolean;
-    if (vecs === null) {
+    if (!withVectors) {
       converged = tridiagonalEigenvalues(n, d, e);
     } else if (this.divide !== null) {
       converged = this.divide.solve(d, e, this.z);
@@ -261,7 +298,15 @@ export class HermitianEigensolver {
     }
     const order = ascendingOrder(d, n, this.order);
     for (let i = 0; i < n; i++) w[wo + i] = d[order[i]] * scale;
-    if (vecs !== null) this.backTransform(vecs, vo);
+    if (vecs !== null) {
+      this.backTransform(n);
+      this.transposeInto(vecs, vo, n);
+    } else if (lowest !== null) {
+      const rows = lowest(w.subarray(wo, wo + n));
+      const count = rows.length / (2 * n);
+      this.backTransform(count);
+      rows.set(this.y.subarray(0, 2 * count * n));
+    }
   }
 
   /**
@@ -347,13 +392,13 @@ export class HermitianEigensolver {
    * the rows of `y` while the reflectors are applied (blocks of BACK_BLOCK vectors share each
    * reflector pair while it is in cache), then go to the columns of `vecs` in order.
    */
-  private backTransform(vecs: CMatrix, vo: number): void {
+  private backTransform(count: number): void {
     const n = this.n;
     const z = this.z;
     const y = this.y;
     const phase = this.phase;
     const order = this.order;
-    for (let col = 0; col < n; col++) {
+    for (let col = 0; col < count; col++) {
       const src = order[col];
       const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
@@ -367,16 +412,21 @@ export class HermitianEigensolver {
     const a = this.a;
     const betas = this.beta;
     for (let i = 0; i < n; i++) a[2 * (i * n + i)] = a[2 * (i * n + i) + 1] = 0;
-    for (let c0 = 0; c0 < n; c0 += BACK_BLOCK) {
+    for (let c0 = 0; c0 < count; c0 += BACK_BLOCK) {
       if (n > INTERRUPT_STRIDE) checkInterrupt();
-      const count = Math.min(n, c0 + BACK_BLOCK) - c0;
+      const block = Math.min(count, c0 + BACK_BLOCK) - c0;
       let k = n - 3;
       for (; k >= 1; k -= 2) {
         const u = 16 * (k * n + k);
-        this.simd.reflectPair(u, u - 16 * n, this.yAt + 16 * (c0 * n + k), n - k, count, 16 * n, betas[k], betas[k - 1]);
+        this.simd.reflectPair(u, u - 16 * n, this.yAt + 16 * (c0 * n + k), n - k, block, 16 * n, betas[k], betas[k - 1]);
       }
-      if (k === 0) this.simd.reflectPair(16, 16, this.yAt + 16 * (c0 * n + 1), n - 1, count, 16 * n, betas[0], 0);
+      if (k === 0) this.simd.reflectPair(16, 16, this.yAt + 16 * (c0 * n + 1), n - 1, block, 16 * n, betas[0], 0);
     }
+  }
+
+  /** The vectors in the rows of y into the columns of vecs. */
+  private transposeInto(vecs: CMatrix, vo: number, n: number): void {
+    const y = this.y;
     for (let col = 0; col < n; col++) {
       const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
@@ -385,6 +435,14 @@ export class HermitianEigensolver {
       }
     }
   }
+}
+
+/** Where `solveLowest` wants its vectors once the eigenvalues are known (count x n, zeroed). */
+type Lowest = (values: Float64Array) => Float64Array;
+
+function checkCount(m: number, n: number): number {
+  if (!Number.isInteger(m) || m < 0 || m > n) throw new RangeError(`eigensolver: the count of vectors must be an integer from 0 to ${n}. Value: ${m}`);
+  return m;
 }
 
 function nonFinite(n: number, h: ArrayLike<number>, ho: number): RangeError {

@@ -598,3 +598,32 @@ describe('ComplexPfaffian', () => {
     expect(Math.hypot(pf[0] - expected.re, pf[1] - expected.im)).toBeLessThan(1e-14);
   });
 });
+
+describe('HermitianEigensolver.solveLowest', () => {
+  it('gives the lowest eigenvectors of solve, bit for bit, as rows, with the count chosen from the values', () => {
+    for (const n of [1, 2, 3, 30, 75]) {
+      const h = randomHermitian(n, uniform(900 + n));
+      const solver = new HermitianEigensolver(n);
+      const w = new Float64Array(n), vecs = new Float64Array(2 * n * n);
+      solver.solve(h, w, vecs);
+      for (const pick of [0, Math.floor(n / 2), n]) {
+        const w2 = new Float64Array(n);
+        let seen: number[] = [];
+        const rows = solver.solveLowest(h, w2, (values) => {
+          seen = Array.from(values);
+          return pick;
+        });
+        expect(seen).toEqual(Array.from(w));
+        expect(Array.from(w2)).toEqual(Array.from(w));
+        expect(rows.length).toBe(2 * pick * n);
+        for (let j = 0; j < pick; j++) {
+          for (let i = 0; i < n; i++) {
+            expect(rows[2 * (j * n + i)]).toBe(vecs[2 * (i * n + j)]);
+            expect(rows[2 * (j * n + i) + 1]).toBe(vecs[2 * (i * n + j) + 1]);
+          }
+        }
+      }
+      expect(() => solver.solveLowest(h, new Float64Array(n), () => n + 1)).toThrow(RangeError);
+    }
+  });
+});
