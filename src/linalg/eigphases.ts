@@ -6,6 +6,7 @@
  * special care.
  */
 import type { CMatrix } from './cmatrix.js';
+import { hessenbergWorkspace, type HessenbergKernels } from './simd.js';
 
 const EPS = 2 ** -52;
 /** Phases within this of -pi are reported as +pi. */
@@ -30,7 +31,10 @@ export class UnitaryEigenphases {
   private readonly a: Float64Array;
   private readonly q: Float64Array;
   private readonly u: Float64Array;
-  private readonly s: Float64Array;
+  /** The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u and of s (the dots) in their memory. */
+  private readonly simd: HessenbergKernels;
+  private readonly uAt: number;
+  private readonly sAt: number;
   private readonly raw: Float64Array;
   private readonly rawPhase: Float64Array;
   private readonly order: Int32Array;
@@ -39,10 +43,14 @@ export class UnitaryEigenphases {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigenphase solver size must be a positive integer. Value: ${n}`);
     this.n = n;
     this.eigenvalues = new Float64Array(2 * n);
-    this.a = new Float64Array(2 * n * n);
+    // a (at byte 0), u and s live in the memory of the SIMD kernels (ours during a call).
+    this.uAt = 16 * n * n;
+    this.sAt = this.uAt + 16 * n;
+    const { kernels, memory } = hessenbergWorkspace(this.sAt + 16 * n);
+    this.simd = kernels;
+    this.a = new Float64Array(memory, 0, 2 * n * n);
     this.q = new Float64Array(2 * n * n);
-    this.u = new Float64Array(2 * n);
-    this.s = new Float64Array(2 * n);
+    this.u = new Float64Array(memory, this.uAt, 2 * n);
     this.raw = new Float64Array(2 * n);
     this.rawPhase = new Float64Array(n);
     this.order = new Int32Array(n);
@@ -132,7 +140,6 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const u = this.u;
-    const s = this.s;
     for (let k = 0; k < n - 2; k++) {
       let tail = 0;
       for (let i = k + 2; i < n; i++) {
@@ -154,35 +161,14 @@ export class UnitaryEigenphases {
         u[2 * i] = a[2 * (i * n + k)];
         u[2 * i + 1] = a[2 * (i * n + k) + 1];
       }
-      // Left: rows k+1.., columns k+1.. (column k becomes alpha e1): s_j = sum_i conj(u_i) A_ij.
-      for (let j = k + 1; j < n; j++) s[2 * j] = s[2 * j + 1] = 0;
-      for (let i = k + 1; i < n; i++) {
-        const ur = u[2 * i];
-        const ui = u[2 * i + 1];
-        const row = 2 * i * n;
-        for (let j = k + 1; j < n; j++) {
-          const xr = a[row + 2 * j];
-          const xi = a[row + 2 * j + 1];
-          s[2 * j] += ur * xr + ui * xi;
-          s[2 * j + 1] += ur * xi - ui * xr;
-        }
-      }
-      for (let i = k + 1; i < n; i++) {
-        const ur = beta * u[2 * i];
-        const ui = beta * u[2 * i + 1];
-        const row = 2 * i * n;
-        for (let j = k + 1; j < n; j++) {
-          const sr = s[2 * j];
-          const si = s[2 * j + 1];
-          a[row + 2 * j] -= ur * sr - ui * si;
-          a[row + 2 * j + 1] -= ur * si + ui * sr;
-        }
-      }
+      // s_j = sum_i conj(u_i) A_ij over rows and columns k+1.. (column k becomes alpha e1), then
+      // A <- P A P on columns k+1.. (left on rows k+1.., right on every row), one pass (SIMD).
+      const k1 = k + 1;
+      this.simd.columnDots(16 * (k1 * n + k1), 16 * n, this.uAt + 16 * k1, this.sAt + 16 * k1, n - k1);
+      this.simd.similarityRows(0, 16 * n, this.uAt, this.sAt, n, k1, beta);
       a[2 * ((k + 1) * n + k)] = -cr * sigma;
       a[2 * ((k + 1) * n + k) + 1] = -ci * sigma;
       for (let i = k + 2; i < n; i++) a[2 * (i * n + k)] = a[2 * (i * n + k) + 1] = 0;
-      // Right: every row, columns k+1..: A <- A - beta (A u) u^dagger.
-      applyRight(n, a, u, k + 1, beta);
       if (wantVectors) applyRight(n, this.q, u, k + 1, beta);
     }
   }

@@ -4,7 +4,7 @@
  *
  * The module is assembled here, byte by byte, by a small emitter: the engine stays one set of
  * TypeScript sources (no toolchain, no .wasm file to load, no async start-up), and the module is
- * small enough (1.6 kB; browsers compile up to 4 kB synchronously even on a page's main thread) to
+ * small enough (3.8 kB; browsers compile up to 4 kB synchronously even on a page's main thread) to
  * compile synchronously anywhere: Node, a browser Web Worker, a cluster shard. Only baseline
  * SIMD128 is used (no relaxed SIMD, which Node 20 lacks).
  *
@@ -24,6 +24,14 @@ export interface WasmApi {
   Module: new (bytes: Uint8Array) => object;
   Instance: new (module: object, imports: object) => { readonly exports: Record<string, unknown> };
   Memory: new (descriptor: { initial: number; maximum?: number }) => WasmMemory;
+}
+
+/** Kernels of the Hessenberg reduction (eigphases.ts), a module of their own (see below). */
+export interface HessenbergKernels {
+  /** s = u^dagger A over an m x m block (see columnDots below). */
+  columnDots(a: number, stride: number, u: number, s: number, m: number): void;
+  /** A <- P A P from s = u^dagger A, on indices k1.. of an n x n matrix (see similarityRows below). */
+  similarityRows(a: number, stride: number, u: number, s: number, n: number, k1: number, beta: number): void;
 }
 
 /** Kernels (see their generators below for what each computes). */
@@ -475,6 +483,119 @@ function realProduct(): Body {
   return f;
 }
 
+/**
+ * columnDots(a, stride, u, s, m): s_j = sum_i conj(u_i) A_ij over an m x m block at a (rows
+ * stride bytes apart), two rows per pass over s: the left half of a Householder similarity.
+ */
+function columnDots(): Body {
+  const [a, stride, u, s, m] = [0, 1, 2, 3, 4];
+  const f = new Body([I32, I32, I32, I32, I32]);
+  const i = f.local(I32), iEnd = f.local(I32), pairEnd = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
+  const [c1, d1, c2, d2, x, acc] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.i32(0).set(j).get(m).i32(16).mul().set(jEnd);
+  f.forBytes(j, jEnd, 16, () => {
+    f.get(s).get(j).add().vzero().vstore();
+  });
+  /** conj(u_i) x = ur (xr, xi) + (ui, -ui) (xi, xr): the coefficients of row `which` of the pair. */
+  const coefficients = (offset: number, c: number, d: number): void => {
+    f.get(u).get(i).add().fload(offset).splat().set(c);
+    f.get(u).get(i).add().fload(offset + 8).plusMinus().set(d);
+  };
+  f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
+  f.get(iEnd).i32(-32).and().set(pairEnd);
+  f.get(a).set(row);
+  f.forBytes(i, pairEnd, 32, () => {
+    coefficients(0, c1, d1);
+    coefficients(16, c2, d2);
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(s).get(j).add().vload().set(acc);
+      f.get(row).get(j).add().vload().set(x);
+      f.get(c1).get(x).accumulate(acc);
+      f.get(d1).swapped(x).accumulate(acc);
+      f.get(row).get(stride).add().get(j).add().vload().set(x);
+      f.get(c2).get(x).accumulate(acc);
+      f.get(d2).swapped(x).accumulate(acc);
+      f.get(s).get(j).add().get(acc).vstore();
+    });
+    f.get(row).get(stride).i32(2).mul().add().set(row);
+  });
+  f.get(i).get(iEnd).ltU().when(() => {
+    coefficients(0, c1, d1);
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(s).get(j).add().vload().set(acc);
+      f.get(row).get(j).add().vload().set(x);
+      f.get(c1).get(x).accumulate(acc);
+      f.get(d1).swapped(x).accumulate(acc);
+      f.get(s).get(j).add().get(acc).vstore();
+    });
+  });
+  return f;
+}
+
+/**
+ * similarityRows(a, stride, u, s, n, k1, beta): A <- P A P for P = I - beta u u^dagger acting on
+ * indices k1.. (u stored at those indices), given s = u^dagger A (columnDots), row by row, each row
+ * once: rows i >= k1 first get A_ij -= beta u_i s_j, then every row gets A_ij -= t conj(u_j) with
+ * t = beta sum_j A_ij u_j; columns j >= k1 only.
+ */
+function similarityRows(): Body {
+  const [a, stride, u, s, n, k1, beta] = [0, 1, 2, 3, 4, 5, 6];
+  const f = new Body([I32, I32, I32, I32, I32, I32, F64]);
+  const i = f.local(I32), iEnd = f.local(I32), leftFrom = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32), j0 = f.local(I32);
+  const [c, d, x, m1, m2, uu] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  const [tr, ti, ur, ui] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
+  f.get(k1).i32(16).mul().set(j0);
+  f.get(n).i32(16).mul().set(jEnd);
+  f.get(k1).i32(16).mul().set(leftFrom);
+  f.i32(0).set(i).get(n).i32(16).mul().set(iEnd);
+  f.get(a).set(row);
+  f.forBytes(i, iEnd, 16, () => {
+    f.get(i).get(leftFrom).op(0x4f).when(() => {
+      // c = beta u_i: row -= (cr, cr) s + (-ci, ci) swap(s)
+      f.get(u).get(i).add().fload().get(beta).fmul().set(ur);
+      f.get(u).get(i).add().fload(8).get(beta).fmul().set(ui);
+      f.get(ur).splat().set(c);
+      f.get(ui).fneg().plusMinus().set(d);
+      f.get(j0).set(j);
+      f.forBytes(j, jEnd, 16, () => {
+        f.get(row).get(j).add();
+        f.get(row).get(j).add().vload();
+        f.get(s).get(j).add().vload().set(x);
+        f.get(c).get(x).vmul().vsub();
+        f.get(d).swapped(x).vmul().vsub();
+        f.vstore();
+      });
+    });
+    // t = beta sum_j A_ij u_j: lanes (xr ur, xi ui) and (xr ui, xi ur).
+    f.vzero().set(m1).vzero().set(m2);
+    f.get(j0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(row).get(j).add().vload().set(x);
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(x).get(uu).accumulate(m1);
+      f.get(x).swapped(uu).accumulate(m2);
+    });
+    f.get(m1).lane(0).get(m1).lane(1).fsub().get(beta).fmul().set(tr);
+    f.get(m2).lane(0).get(m2).lane(1).fadd().get(beta).fmul().set(ti);
+    // row -= t conj(u) = (tr, -tr) u + (ti, ti) swap(u)
+    f.get(tr).plusMinus().set(c);
+    f.get(ti).splat().set(d);
+    f.get(j0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(row).get(j).add();
+      f.get(row).get(j).add().vload();
+      f.get(c).get(uu).vmul().vsub();
+      f.get(d).swapped(uu).vmul().vsub();
+      f.vstore();
+    });
+    f.get(row).get(stride).add().set(row);
+  });
+  return f;
+}
+
 function moduleBytes(): Uint8Array {
   return assemble([
     ['reflectPair', reflectPair()],
@@ -532,3 +653,6 @@ export function workspaces<K>(moduleBytes: () => Uint8Array): (bytes: number) =>
 
 /** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */
 export const simdWorkspace = workspaces<SimdKernels>(moduleBytes);
+
+/** The Hessenberg reduction's kernels (1.2 kB, a module apart to keep each small). */
+export const hessenbergWorkspace = workspaces<HessenbergKernels>(() => assemble([['columnDots', columnDots()], ['similarityRows', similarityRows()]]));

@@ -1,6 +1,7 @@
 /**
  * WebAssembly SIMD kernels of the real-space invariants, assembled with the emitter of
- * src/linalg/simd.ts (its own small module and memory; same sharing rules).
+ * src/linalg/simd.ts (a module and memory of their own, same sharing rules; 6 kB, compiled
+ * synchronously in Node, a Web Worker or a shard, where real-space computations run).
  *
  * chebyshevStep (kpm.ts): one step of the Chebyshev recursion for a batch of k vectors at once,
  *   next_j = f (H cur_j) - f shift cur_j - prev_j,   out_{j,t} += coef_{j,t} next_j,

@@ -627,3 +627,24 @@ describe('HermitianEigensolver.solveLowest', () => {
     }
   });
 });
+
+describe('UnitaryEigenphases on a general matrix (the Bott index passes one)', () => {
+  it('gives the eigenvalues numpy.linalg.eigvals gives (LAPACK zgeev), odd and even sizes', () => {
+    for (const n of [5, 40, 97]) {
+      const next = uniform(4100 + n);
+      const w = Float64Array.from({ length: 2 * n * n }, next);
+      const solver = new UnitaryEigenphases(n);
+      solver.solve(w, new Float64Array(n));
+      const theirs = numpy<number[][]>('e = np.linalg.eigvals(inp["w"]); out = [[float(z.real), float(z.imag)] for z in e]', { w: { data: w, shape: [n, n], complex: true } });
+      // Match each of ours to the nearest of theirs (all distinct for a random matrix).
+      const left = theirs.slice();
+      for (let i = 0; i < n; i++) {
+        const re = solver.eigenvalues[2 * i], im = solver.eigenvalues[2 * i + 1];
+        let best = 0;
+        for (let j = 1; j < left.length; j++) if (Math.hypot(left[j][0] - re, left[j][1] - im) < Math.hypot(left[best][0] - re, left[best][1] - im)) best = j;
+        expect(Math.hypot(left[best][0] - re, left[best][1] - im)).toBeLessThan(1e-10 * n);
+        left.splice(best, 1);
+      }
+    }
+  });
+});
