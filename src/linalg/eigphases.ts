@@ -9,6 +9,8 @@ import type { CMatrix } from './cmatrix.js';
 import { hessenbergWorkspace, type HessenbergKernels } from './simd.js';
 
 const EPS = 2 ** -52;
+/** Steps of a QR sweep whose column rotations are applied together to the rows above them. */
+const DEFER = 32;
 /** Phases within this of -pi are reported as +pi. */
 const BRANCH_CUT = -Math.PI + 64 * EPS;
 
@@ -178,6 +180,7 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const q = this.q;
+    const pending = new Float64Array(3 * DEFER);
     let hi = n - 1;
     let iter = 0;
     while (hi > 0) {
@@ -242,11 +245,29 @@ export class UnitaryEigenphases {
         }
       }
       // Implicit QR sweep over the active block [l, hi]: chase the bulge with Givens rotations.
+      // A column rotation at step k reaches rows l..k+2; the rows above k0 (which no row
+      // rotation of steps k0.. touches) get those of DEFER steps at once, row by row, instead of
+      // one strided pass per step (a skipped step is recorded as the identity).
+      let k0 = l;
+      pending.fill(0);
+      for (let t = 0; t < pending.length; t += 3) pending[t] = 1;
+      const flush = (from: number): void => {
+        const steps = Math.min(DEFER, hi - from);
+        for (let i = l; i < from; i++) rotateRow(a, 2 * (i * n + from), pending, steps);
+        for (let t = 0; t < 3 * steps; t += 3) {
+          pending[t] = 1;
+          pending[t + 1] = pending[t + 2] = 0;
+        }
+      };
       let fr = a[2 * (l * n + l)] - mr;
       let fi = a[2 * (l * n + l) + 1] - mi;
       let gr = a[2 * ((l + 1) * n + l)];
       let gi = a[2 * ((l + 1) * n + l) + 1];
       for (let k = l; k < hi; k++) {
+        if (k - k0 === DEFER) {
+          flush(k0);
+          k0 = k;
+        }
         if (k > l) {
           fr = a[2 * (k * n + k - 1)];
           fi = a[2 * (k * n + k - 1) + 1];
@@ -284,9 +305,14 @@ export class UnitaryEigenphases {
         }
         if (k > l) a[rk1 + 2 * (k - 1)] = a[rk1 + 2 * (k - 1) + 1] = 0;
         const iEnd = Math.min(k + 2, hi);
-        rotateColumns(n, a, k, l, iEnd, c, sr, si);
+        rotateColumns(n, a, k, Math.max(l, k0), iEnd, c, sr, si);
+        const t = 3 * (k - k0);
+        pending[t] = c;
+        pending[t + 1] = sr;
+        pending[t + 2] = si;
         if (wantVectors) rotateColumns(n, q, k, 0, n - 1, c, sr, si);
       }
+      flush(k0);
     }
   }
 }
@@ -311,6 +337,19 @@ function applyRight(n: number, m: Float64Array, u: Float64Array, from: number, b
       m[row + 2 * j] -= tr * ur + ti * ui;
       m[row + 2 * j + 1] -= ti * ur - tr * ui;
     }
+  }
+}
+
+/** One row from entry p on: the rotations (c, sr, si) of `steps` consecutive columns, in order, as rotateColumns. */
+function rotateRow(m: Float64Array, p: number, rotations: Float64Array, steps: number): void {
+  for (let t = 0; t < 3 * steps; t += 3, p += 2) {
+    const c = rotations[t], sr = rotations[t + 1], si = rotations[t + 2];
+    const xr = m[p], xi = m[p + 1];
+    const yr = m[p + 2], yi = m[p + 3];
+    m[p] = c * xr + sr * yr + si * yi;
+    m[p + 1] = c * xi + sr * yi - si * yr;
+    m[p + 2] = c * yr - (sr * xr - si * xi);
+    m[p + 3] = c * yi - (sr * xi + si * xr);
   }
 }
 
