@@ -6,7 +6,7 @@
  * special care.
  */
 import type { CMatrix } from './cmatrix.js';
-import { hessenbergWorkspace, type HessenbergKernels } from './simd.js';
+import { eigenphaseWorkspace, type EigenphaseKernels } from './simd.js';
 
 const EPS = 2 ** -52;
 /** Steps of a QR sweep whose column rotations are applied together to the rows above them. */
@@ -33,10 +33,15 @@ export class UnitaryEigenphases {
   private readonly a: Float64Array;
   private readonly q: Float64Array;
   private readonly u: Float64Array;
-  /** The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u and of s (the dots) in their memory. */
-  private readonly simd: HessenbergKernels;
+  /**
+   * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s (the dots) and of the
+   * deferred column rotations (rot, a view at rotAt) in their memory.
+   */
+  private readonly simd: EigenphaseKernels;
   private readonly uAt: number;
   private readonly sAt: number;
+  private readonly rotAt: number;
+  private readonly rot: Float64Array;
   private readonly raw: Float64Array;
   private readonly rawPhase: Float64Array;
   private readonly order: Int32Array;
@@ -48,7 +53,9 @@ export class UnitaryEigenphases {
     // a (at byte 0), u and s live in the memory of the SIMD kernels (ours during a call).
     this.uAt = 16 * n * n;
     this.sAt = this.uAt + 16 * n;
-    const { kernels, memory } = hessenbergWorkspace(this.sAt + 16 * n);
+    this.rotAt = this.sAt + 16 * n;
+    const { kernels, memory } = eigenphaseWorkspace(this.rotAt + 48 * DEFER);
+    this.rot = new Float64Array(memory, this.rotAt, 6 * DEFER);
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
     this.q = new Float64Array(2 * n * n);
@@ -180,7 +187,11 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const q = this.q;
-    const pending = new Float64Array(3 * DEFER);
+    const rot = this.rot;
+    const identity = (t: number) => {
+      rot[6 * t] = rot[6 * t + 1] = 1;
+      rot[6 * t + 2] = rot[6 * t + 3] = rot[6 * t + 4] = rot[6 * t + 5] = 0;
+    };
     let hi = n - 1;
     let iter = 0;
     while (hi > 0) {
@@ -249,15 +260,11 @@ export class UnitaryEigenphases {
       // rotation of steps k0.. touches) get those of DEFER steps at once, row by row, instead of
       // one strided pass per step (a skipped step is recorded as the identity).
       let k0 = l;
-      pending.fill(0);
-      for (let t = 0; t < pending.length; t += 3) pending[t] = 1;
+      for (let t = 0; t < DEFER; t++) identity(t);
       const flush = (from: number): void => {
         const steps = Math.min(DEFER, hi - from);
-        for (let i = l; i < from; i++) rotateRow(a, 2 * (i * n + from), pending, steps);
-        for (let t = 0; t < 3 * steps; t += 3) {
-          pending[t] = 1;
-          pending[t + 1] = pending[t + 2] = 0;
-        }
+        if (from > l) this.simd.rotateRows(16 * (l * n + from), 16 * n, from - l, this.rotAt, steps);
+        for (let t = 0; t < steps; t++) identity(t);
       };
       let fr = a[2 * (l * n + l)] - mr;
       let fi = a[2 * (l * n + l) + 1] - mi;
@@ -295,21 +302,15 @@ export class UnitaryEigenphases {
         const j0 = k > l ? k - 1 : l;
         const rk = 2 * k * n;
         const rk1 = rk + 2 * n;
-        for (let j = j0; j <= hi; j++) {
-          const xr = a[rk + 2 * j], xi = a[rk + 2 * j + 1];
-          const yr = a[rk1 + 2 * j], yi = a[rk1 + 2 * j + 1];
-          a[rk + 2 * j] = c * xr + sr * yr - si * yi;
-          a[rk + 2 * j + 1] = c * xi + sr * yi + si * yr;
-          a[rk1 + 2 * j] = c * yr - (sr * xr + si * xi);
-          a[rk1 + 2 * j + 1] = c * yi - (sr * xi - si * xr);
-        }
+        this.simd.rotatePair(8 * (rk + 2 * j0), 8 * (rk1 + 2 * j0), hi - j0 + 1, c, sr, si);
         if (k > l) a[rk1 + 2 * (k - 1)] = a[rk1 + 2 * (k - 1) + 1] = 0;
         const iEnd = Math.min(k + 2, hi);
         rotateColumns(n, a, k, Math.max(l, k0), iEnd, c, sr, si);
-        const t = 3 * (k - k0);
-        pending[t] = c;
-        pending[t + 1] = sr;
-        pending[t + 2] = si;
+        const t = 6 * (k - k0);
+        rot[t] = rot[t + 1] = c;
+        rot[t + 2] = rot[t + 3] = sr;
+        rot[t + 4] = si;
+        rot[t + 5] = -si;
         if (wantVectors) rotateColumns(n, q, k, 0, n - 1, c, sr, si);
       }
       flush(k0);
@@ -337,19 +338,6 @@ function applyRight(n: number, m: Float64Array, u: Float64Array, from: number, b
       m[row + 2 * j] -= tr * ur + ti * ui;
       m[row + 2 * j + 1] -= ti * ur - tr * ui;
     }
-  }
-}
-
-/** One row from entry p on: the rotations (c, sr, si) of `steps` consecutive columns, in order, as rotateColumns. */
-function rotateRow(m: Float64Array, p: number, rotations: Float64Array, steps: number): void {
-  for (let t = 0; t < 3 * steps; t += 3, p += 2) {
-    const c = rotations[t], sr = rotations[t + 1], si = rotations[t + 2];
-    const xr = m[p], xi = m[p + 1];
-    const yr = m[p + 2], yi = m[p + 3];
-    m[p] = c * xr + sr * yr + si * yi;
-    m[p + 1] = c * xi + sr * yi - si * yr;
-    m[p + 2] = c * yr - (sr * xr - si * xi);
-    m[p + 3] = c * yi - (sr * xi + si * xr);
   }
 }
 

@@ -26,8 +26,12 @@ export interface WasmApi {
   Memory: new (descriptor: { initial: number; maximum?: number }) => WasmMemory;
 }
 
-/** Kernels of the Hessenberg reduction (eigphases.ts), a module of their own (see below). */
-export interface HessenbergKernels {
+/** Kernels of the general eigenvalue problem (eigphases.ts), a module of their own (see below). */
+export interface EigenphaseKernels {
+  /** A QR sweep's row rotation of two rows (see rotatePair below). */
+  rotatePair(x: number, y: number, len: number, c: number, sr: number, si: number): void;
+  /** A QR sweep's column rotations, several at once, row by row (see rotateRows below). */
+  rotateRows(a: number, stride: number, rows: number, rot: number, steps: number): void;
   /** s = u^dagger A over an m x m block (see columnDots below). */
   columnDots(a: number, stride: number, u: number, s: number, m: number): void;
   /** A <- P A P from s = u^dagger A, on indices k1.. of an n x n matrix (see similarityRows below). */
@@ -596,6 +600,65 @@ function similarityRows(): Body {
   return f;
 }
 
+/**
+ * rotatePair(x, y, len, c, sr, si): rows x, y (len complex entries) of a QR sweep's row rotation,
+ * x <- c x + s y, y <- c y - conj(s) x, s = sr + i si.
+ */
+function rotatePair(): Body {
+  const [x, y, len, c, sr, si] = [0, 1, 2, 3, 4, 5];
+  const f = new Body([I32, I32, I32, F64, F64, F64]);
+  const j = f.local(I32), jEnd = f.local(I32);
+  const [cv, sv, pv, xv, yv] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.get(c).splat().set(cv);
+  f.get(sr).splat().set(sv);
+  f.get(si).plusMinus().set(pv); // (si, -si)
+  f.i32(0).set(j).get(len).i32(16).mul().set(jEnd);
+  f.forBytes(j, jEnd, 16, () => {
+    f.get(x).get(j).add().vload().set(xv);
+    f.get(y).get(j).add().vload().set(yv);
+    f.get(x).get(j).add();
+    f.get(cv).get(xv).vmul().get(sv).get(yv).vmul().vadd().get(pv).swapped(yv).vmul().vsub();
+    f.vstore();
+    f.get(y).get(j).add();
+    f.get(cv).get(yv).vmul().get(sv).get(xv).vmul().vsub().get(pv).swapped(xv).vmul().vsub();
+    f.vstore();
+  });
+  return f;
+}
+
+/**
+ * rotateRows(a, stride, rows, rot, steps): in each of `rows` rows (stride bytes apart, from a),
+ * the column rotations of `steps` consecutive column pairs in order: entries x, y of pair t become
+ * c x + conj(s) y and c y - s x. Rotation t is stored at rot + 48 t as (c, c), (sr, sr), (si, -si).
+ */
+function rotateRows(): Body {
+  const [a, stride, rows, rot, steps] = [0, 1, 2, 3, 4];
+  const f = new Body([I32, I32, I32, I32, I32]);
+  const row = f.local(I32), rowEnd = f.local(I32), p = f.local(I32), t = f.local(I32), tEnd = f.local(I32);
+  const [cv, sv, pv, xv, yv] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.get(a).set(row);
+  f.get(a).get(rows).get(stride).mul().add().set(rowEnd);
+  f.get(rot).get(steps).i32(48).mul().add().set(tEnd);
+  f.forBytes(row, rowEnd, [stride], () => {
+    f.get(row).set(p);
+    f.get(p).vload().set(xv);
+    f.get(rot).set(t);
+    f.forBytes(t, tEnd, 48, () => {
+      f.get(p).vload(16).set(yv);
+      f.get(t).vload().set(cv);
+      f.get(t).vload(16).set(sv);
+      f.get(t).vload(32).set(pv);
+      f.get(p);
+      f.get(cv).get(xv).vmul().get(sv).get(yv).vmul().vadd().get(pv).swapped(yv).vmul().vadd();
+      f.vstore();
+      f.get(cv).get(yv).vmul().get(sv).get(xv).vmul().vsub().get(pv).swapped(xv).vmul().vadd().set(xv);
+      f.get(p).i32(16).add().set(p);
+    });
+    f.get(p).get(xv).vstore();
+  });
+  return f;
+}
+
 function moduleBytes(): Uint8Array {
   return assemble([
     ['reflectPair', reflectPair()],
@@ -654,5 +717,10 @@ export function workspaces<K>(moduleBytes: () => Uint8Array): (bytes: number) =>
 /** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */
 export const simdWorkspace = workspaces<SimdKernels>(moduleBytes);
 
-/** The Hessenberg reduction's kernels (1.2 kB, a module apart to keep each small). */
-export const hessenbergWorkspace = workspaces<HessenbergKernels>(() => assemble([['columnDots', columnDots()], ['similarityRows', similarityRows()]]));
+/** The general eigenvalue problem's kernels (a module apart to keep each small). */
+export const eigenphaseWorkspace = workspaces<EigenphaseKernels>(() => assemble([
+  ['columnDots', columnDots()],
+  ['similarityRows', similarityRows()],
+  ['rotatePair', rotatePair()],
+  ['rotateRows', rotateRows()],
+]));
