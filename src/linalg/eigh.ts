@@ -68,11 +68,13 @@ export class HermitianEigensolver {
   private readonly y: Float64Array;
   /**
    * The WebAssembly SIMD kernels, and the byte offsets in their memory of y and of p, the
-   * reduction's complex scratch vector (a is at 0).
+   * reduction's two complex scratch vectors (a is at 0).
    */
   private readonly simd: SimdKernels;
   private readonly yAt: number;
   private readonly pAt: number;
+  /** The reduction's two complex scratch vectors (at pAt). */
+  private readonly p: Float64Array;
   private readonly order: Int32Array;
   private readonly divide: TridiagonalDivideConquer | null;
 
@@ -83,7 +85,7 @@ export class HermitianEigensolver {
     this.yAt = 16 * n * n;
     this.pAt = 32 * n * n;
     // Our part of the SIMD memory, then the divide and conquer's (one instance for both).
-    const divideAt = this.pAt + 16 * n;
+    const divideAt = this.pAt + 32 * n;
     const { kernels, memory } = simdWorkspace(divideAt + (n > LEAF ? TridiagonalDivideConquer.simdBytes(n) : 0));
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
@@ -96,6 +98,7 @@ export class HermitianEigensolver {
     this.cs = new Float64Array(n);
     this.sn = new Float64Array(n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
+    this.p = new Float64Array(memory, this.pAt, 4 * n);
     this.order = new Int32Array(n);
     this.divide = n > LEAF ? new TridiagonalDivideConquer(n, kernels, memory, divideAt) : null;
   }
@@ -310,49 +313,107 @@ export class HermitianEigensolver {
   }
 
   /**
+   * Reflector k from row k of `a` (its part right of the diagonal, already updated): fills
+   * beta[k] (0: none needed) and off[k], and leaves u in the row from column k + 1.
+   */
+  private reflector(k: number): void {
+    const n = this.n;
+    const a = this.a;
+    const off = this.off;
+    const base = 2 * k * n;
+    // x = column k below the diagonal = conj(row k right of the diagonal).
+    let tail = 0;
+    for (let j = base + 2 * (k + 2); j < base + 2 * n; j++) tail += a[j] * a[j];
+    const x0r = a[base + 2 * (k + 1)];
+    const x0i = -a[base + 2 * (k + 1) + 1];
+    if (tail === 0) {
+      this.beta[k] = 0;
+      off[2 * k] = x0r;
+      off[2 * k + 1] = x0i;
+      return;
+    }
+    const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
+    const sigma = Math.sqrt(ax0 * ax0 + tail);
+    const cr = ax0 === 0 ? 1 : x0r / ax0;
+    const ci = ax0 === 0 ? 0 : x0i / ax0;
+    // P x = alpha e1 with alpha = -e^{i arg x0} sigma, u = x - alpha e1, P = I - beta u u^dagger.
+    off[2 * k] = -cr * sigma;
+    off[2 * k + 1] = -ci * sigma;
+    this.beta[k] = 1 / (sigma * (sigma + ax0));
+    a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
+    a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
+    for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
+  }
+
+  /**
+   * With p = B u (m entries at byte pAt): q = beta p - (beta/2) Re(u^dagger beta p) u in its place
+   * (u^dagger B u is real), as the kernel before rank2Rows did it, lane for lane.
+   */
+  private prepareQ(uAt: number, pAt: number, m: number, beta: number): void {
+    const a = this.a, p = this.p;
+    const u0 = uAt / 8, p0 = (pAt - this.pAt) / 8;
+    let s0 = 0, s1 = 0;
+    for (let j = 0; j < 2 * m; j += 2) {
+      const qr = p[p0 + j] * beta, qi = p[p0 + j + 1] * beta;
+      p[p0 + j] = qr;
+      p[p0 + j + 1] = qi;
+      s0 = a[u0 + j] * qr + s0;
+      s1 = a[u0 + j + 1] * qi + s1;
+    }
+    const c = (s0 + s1) * (beta * 0.5);
+    for (let j = 0; j < 2 * m; j += 2) {
+      p[p0 + j] -= a[u0 + j] * c;
+      p[p0 + j + 1] -= a[u0 + j + 1] * c;
+    }
+  }
+
+  /**
    * Householder reduction of the Hermitian matrix in `a` (upper triangle) to tridiagonal form:
    * fills d (diagonal) and leaves the reflectors in the rows of `a`. With `forVectors`, e gets
    * |subdiagonal| and `phase` the D of T = D T_real D^dagger; without, e gets |subdiagonal|^2.
    */
   private reduce(forVectors: boolean): void {
     const n = this.n;
-    const a = this.a;
     const off = this.off;
     const betas = this.beta;
+    const stride = 16 * n;
+    // p: B u for the current reflector, then q in its place; pNext: B' w for the next one, formed
+    // while the current update passes over the rows (rank2Times), when there is a next one.
+    let pAt = this.pAt, pNext = this.pAt + stride;
+    let ready = false;
+    let built = false;
     for (let k = 0; k < n - 2; k++) {
       // One solve of a thousand orbitals takes seconds: stop between columns when asked.
       if ((k & INTERRUPT_STRIDE) === INTERRUPT_STRIDE) checkInterrupt();
-      const base = 2 * k * n;
-      // x = column k below the diagonal = conj(row k right of the diagonal).
-      let tail = 0;
-      for (let j = base + 2 * (k + 2); j < base + 2 * n; j++) tail += a[j] * a[j];
-      const x0r = a[base + 2 * (k + 1)];
-      const x0i = -a[base + 2 * (k + 1) + 1];
-      if (tail === 0) {
-        betas[k] = 0;
-        off[2 * k] = x0r;
-        off[2 * k + 1] = x0i;
+      if (!built) this.reflector(k);
+      built = false;
+      const beta = betas[k];
+      if (beta === 0) {
+        ready = false;
         continue;
       }
-      const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
-      const sigma = Math.sqrt(ax0 * ax0 + tail);
-      const cr = ax0 === 0 ? 1 : x0r / ax0;
-      const ci = ax0 === 0 ? 0 : x0i / ax0;
-      // P x = alpha e1 with alpha = -e^{i arg x0} sigma, u = x - alpha e1, P = I - beta u u^dagger.
-      off[2 * k] = -cr * sigma;
-      off[2 * k + 1] = -ci * sigma;
-      const beta = 1 / (sigma * (sigma + ax0));
-      betas[k] = beta;
-      a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
-      a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
-      for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
-      // p = B u, B the trailing block (upper triangle stored); then B <- P B P (SIMD kernels).
       const block = 16 * ((k + 1) * n + k + 1);
       const u = 16 * (k * n + k + 1);
       const m = n - k - 1;
-      this.simd.hermitianTimes(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
-      this.simd.householderUpdate(block, 16 * n, u, this.pAt + 16 * (k + 1), m, beta);
+      const p = pAt + 16 * (k + 1);
+      if (!ready) this.simd.hermitianTimes(block, stride, u, p, m);
+      this.prepareQ(u, p, m, beta);
+      // Row k+1 first: the next reflector is made from it; then the other rows, with the next
+      // reflector's product in the same pass when there is one (B <- P B P, SIMD kernels).
+      this.simd.rank2Update(block, stride, u, p, 0, 1, m);
+      if (k + 1 < n - 2) {
+        this.reflector(k + 1);
+        built = true;
+      }
+      ready = built && betas[k + 1] !== 0;
+      if (ready) {
+        this.simd.rank2Times(block, stride, u, p, 1, m, m, block, pNext + 16 * (k + 1));
+        [pAt, pNext] = [pNext, pAt];
+      } else {
+        this.simd.rank2Update(block, stride, u, p, 1, m, m);
+      }
     }
+    const a = this.a;
     // The last subdiagonal entry needs no reflector.
     const last = 2 * ((n - 2) * n + n - 1);
     off[2 * (n - 2)] = a[last];

@@ -4,8 +4,9 @@
  *
  * The module is assembled here, byte by byte, by a small emitter: the engine stays one set of
  * TypeScript sources (no toolchain, no .wasm file to load, no async start-up), and the module is
- * small enough (3.8 kB; browsers compile up to 4 kB synchronously even on a page's main thread) to
- * compile synchronously anywhere: Node, a browser Web Worker, a cluster shard. Only baseline
+ * small enough (3.2 kB, and 1.3 kB for a second module on the same memory; browsers compile up to
+ * 4 kB synchronously even on a page's main thread) to compile synchronously anywhere: Node, a
+ * browser Web Worker, a cluster shard. Only baseline
  * SIMD128 is used (no relaxed SIMD, which Node 20 lacks).
  *
  * Memory: users share one instance and its memory (calls are synchronous, so a user's data lives
@@ -44,10 +45,12 @@ export interface SimdKernels {
   reflectPair(u: number, v: number, y: number, len: number, count: number, stride: number, betaU: number, betaV: number): void;
   /** p = B w over an m x m Hermitian block B stored in its upper triangle (rows stride bytes apart). */
   hermitianTimes(b: number, stride: number, w: number, p: number, m: number): void;
-  /** With p = beta B u on entry: q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger. */
-  householderUpdate(b: number, stride: number, u: number, p: number, m: number, beta: number): void;
   /** Real C = A B, row-major and contiguous: A m x k, B k x cols, C m x cols; cols a multiple of 4. */
   realProduct(a: number, b: number, c: number, m: number, k: number, cols: number): void;
+  /** Rows from..to-1 of B -= u q^dagger + q u^dagger, q prepared (see rank2Rows below). */
+  rank2Update(b: number, stride: number, u: number, q: number, from: number, to: number, m: number): void;
+  /** rank2Update, and p = B' w (indices 1..m-1) from the updated rows in the same pass. */
+  rank2Times(b: number, stride: number, u: number, q: number, from: number, to: number, m: number, w: number, p: number): void;
 }
 
 // --- the emitter -------------------------------------------------------------------------------
@@ -367,37 +370,43 @@ function hermitianTimes(): Body {
 }
 
 /**
- * householderUpdate(b, stride, u, q, m, beta): with q = beta B u on entry (B the block at b as in
- * hermitianTimes, u the reflector), q -= (beta/2)(u^dagger q) u, then B_ij -= u_i conj(q_j) +
- * q_i conj(u_j) for j >= i: B becomes P B P with P = I - beta u u^dagger.
+ * rank2Update(b, stride, u, q, from, to, m) and, with `product`, rank2Times(..., w, p): with
+ * q = beta B u - (beta^2/2)(u^dagger B u) u (prepared by the caller), rows from..to-1 of the m x m
+ * block B at b get B_ij -= u_i conj(q_j) + q_i conj(u_j) for j >= i: B <- P B P for the reflector
+ * P = I - beta u u^dagger (upper triangle). rank2Times also forms, from each row as soon as it is updated, p = B' w over indices
+ * 1..m-1 (hermitianTimes' arithmetic, in its order; w_0 and p_0 untouched): the next reflector's
+ * product, in the same pass over the matrix instead of a second one.
  */
-function householderUpdate(): Body {
-  const [b, stride, u, q, m, beta] = [0, 1, 2, 3, 4, 5];
-  const f = new Body([I32, I32, I32, I32, I32, F64]);
-  const i = f.local(I32);
-  const iEnd = f.local(I32);
-  const row = f.local(I32);
-  const j = f.local(I32);
-  const [c1, c2, c3, c4, ui, qi, uu, qq] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
-  f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
-  // q *= beta, and Re(u^dagger q) = sum of both lanes of u * q.
-  f.get(beta).splat().set(c1).vzero().set(c2);
+function rank2Rows(product: boolean): Body {
+  const [b, stride, u, q, from, to, m, w, p] = [0, 1, 2, 3, 4, 5, 6, 7, 8];
+  const f = new Body(product ? [I32, I32, I32, I32, I32, I32, I32, I32, I32] : [I32, I32, I32, I32, I32, I32, I32]);
+  const i = f.local(I32), iEnd = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
+  const [c1, c2, c3, c4, ui, qi, uu, qq, x] = Array.from({ length: 9 }, () => f.local(V128));
+  const [wi, wa, wb, ww, m1, m2] = Array.from({ length: 6 }, () => f.local(V128));
+  const bii = f.local(F64);
+  /** x = B_ij - u_i conj(q_j) - q_i conj(u_j), stored back; j the local byte offset. */
+  const update = (): void => {
+    f.get(q).get(j).add().vload().set(qq);
+    f.get(u).get(j).add().vload().set(uu);
+    f.get(row).get(j).add().vload();
+    f.get(qq).get(c1).vmul().vsub();
+    f.swapped(qq).get(c2).vmul().vsub();
+    f.get(uu).get(c3).vmul().vsub();
+    f.swapped(uu).get(c4).vmul().vsub();
+    f.set(x);
+    f.get(row).get(j).add().get(x).vstore();
+  };
+  f.get(m).i32(16).mul().set(jEnd);
+  if (product) {
+    f.i32(16).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(p).get(j).add().vzero().vstore();
+    });
+  }
+  f.get(from).i32(16).mul().set(i);
+  f.get(to).i32(16).mul().set(iEnd);
+  f.get(b).get(from).get(stride).mul().add().set(row);
   f.forBytes(i, iEnd, 16, () => {
-    f.get(q).get(i).add().vload().get(c1).vmul().set(qq);
-    f.get(q).get(i).add().get(qq).vstore();
-    f.get(u).get(i).add().vload().get(qq).accumulate(c2);
-  });
-  f.get(c2).lane(0).get(c2).lane(1).fadd().get(beta).f64(0.5).fmul().fmul().splat().set(c1);
-  f.i32(0).set(i);
-  f.forBytes(i, iEnd, 16, () => {
-    f.get(q).get(i).add();
-    f.get(q).get(i).add().vload().get(u).get(i).add().vload().get(c1).vmul().vsub();
-    f.vstore();
-  });
-  f.i32(0).set(i);
-  f.get(b).set(row);
-  f.forBytes(i, iEnd, 16, () => {
-    // u_i conj(q_j) = q_j (uir, -uir) + swap(q_j) (uii, uii); likewise q_i conj(u_j).
     f.get(u).get(i).add().vload().set(ui);
     f.get(q).get(i).add().vload().set(qi);
     f.get(ui).lane(0).plusMinus().set(c1);
@@ -405,17 +414,35 @@ function householderUpdate(): Body {
     f.get(qi).lane(0).plusMinus().set(c3);
     f.get(qi).lane(1).splat().set(c4);
     f.get(i).set(j);
-    f.forBytes(j, iEnd, 16, () => {
-      f.get(q).get(j).add().vload().set(qq);
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(row).get(j).add(); // store address
-      f.get(row).get(j).add().vload();
-      f.get(qq).get(c1).vmul().vsub();
-      f.swapped(qq).get(c2).vmul().vsub();
-      f.get(uu).get(c3).vmul().vsub();
-      f.swapped(uu).get(c4).vmul().vsub();
+    if (!product) {
+      f.forBytes(j, jEnd, 16, update);
+    } else {
+      update(); // the diagonal
+      f.get(x).lane(0).set(bii);
+      f.get(w).get(i).add().vload().set(wi);
+      f.get(wi).lane(0).plusMinus().set(wa);
+      f.get(wi).lane(1).splat().set(wb);
+      f.vzero().set(m1).vzero().set(m2);
+      f.get(i).i32(16).add().set(j);
+      f.forBytes(j, jEnd, 16, () => {
+        update();
+        f.get(w).get(j).add().vload().set(ww);
+        f.get(x).get(ww).accumulate(m1);
+        f.get(x).swapped(ww).accumulate(m2);
+        f.get(p).get(j).add();
+        f.get(p).get(j).add().vload();
+        f.get(x).get(wa).vmul().vadd();
+        f.swapped(x).get(wb).vmul().vadd();
+        f.vstore();
+      });
+      f.get(p).get(i).add();
+      f.get(p).get(i).add().vload();
+      f.get(m1).lane(0).get(m1).lane(1).fsub().splat();
+      f.get(m2).lane(0).get(m2).lane(1).fadd().simd(0x22, 1);
+      f.vadd();
+      f.get(bii).splat().get(wi).vmul().vadd();
       f.vstore();
-    });
+    }
     f.get(row).get(stride).add().set(row);
   });
   return f;
@@ -663,8 +690,15 @@ function moduleBytes(): Uint8Array {
   return assemble([
     ['reflectPair', reflectPair()],
     ['hermitianTimes', hermitianTimes()],
-    ['householderUpdate', householderUpdate()],
     ['realProduct', realProduct()],
+  ]);
+}
+
+/** The reduction's rank-2 kernels: a second module on the same memory, to keep each small. */
+function rank2ModuleBytes(): Uint8Array {
+  return assemble([
+    ['rank2Update', rank2Rows(false)],
+    ['rank2Times', rank2Rows(true)],
   ]);
 }
 
@@ -688,12 +722,13 @@ const PAGE = 65536;
 const MAX_PAGES = 65536;
 
 /**
- * A shared workspace of a module's kernels (see the module comment above): `get(bytes)` returns
- * the kernels and a memory of at least `bytes` bytes, shared with other users. Keep both: a later,
- * larger request may move the others on to a new instance. The module is compiled on first use.
+ * A shared workspace of the kernels of one or more modules (see the module comment above):
+ * `get(bytes)` returns the kernels and a memory of at least `bytes` bytes, shared with other users
+ * and by the modules' instances. Keep both: a later, larger request may move the others on to a
+ * new instance. The modules are compiled on first use.
  */
-export function workspaces<K>(moduleBytes: () => Uint8Array): (bytes: number) => { kernels: K; memory: ArrayBuffer } {
-  let compiled: object | null = null;
+export function workspaces<K>(...modules: (() => Uint8Array)[]): (bytes: number) => { kernels: K; memory: ArrayBuffer } {
+  let compiled: object[] | null = null;
   let current: { kernels: K; memory: ArrayBuffer } | null = null;
   return (bytes) => {
     if (current !== null && current.memory.byteLength >= bytes) return current;
@@ -707,15 +742,15 @@ export function workspaces<K>(moduleBytes: () => Uint8Array): (bytes: number) =>
     } catch {
       throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
     }
-    compiled ??= new wasm.Module(moduleBytes());
-    const kernels = new wasm.Instance(compiled, { m: { memory } }).exports as unknown as K;
+    compiled ??= modules.map((bytesOf) => new wasm.Module(bytesOf()));
+    const kernels = Object.assign({}, ...compiled.map((module) => new wasm.Instance(module, { m: { memory } }).exports)) as K;
     current = { kernels, memory: memory.buffer };
     return current;
   };
 }
 
 /** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */
-export const simdWorkspace = workspaces<SimdKernels>(moduleBytes);
+export const simdWorkspace = workspaces<SimdKernels>(moduleBytes, rank2ModuleBytes);
 
 /** The general eigenvalue problem's kernels (a module apart to keep each small). */
 export const eigenphaseWorkspace = workspaces<EigenphaseKernels>(() => assemble([

@@ -275,7 +275,7 @@ describe('HermitianEigensolver', () => {
     expect(() => new HermitianEigensolver(0)).toThrow(/size must be a positive integer. Value: 0/);
     expect(() => new HermitianEigensolver(2.5)).toThrow(/Value: 2.5/);
     // Workspace beyond what 32-bit WebAssembly memory can hold (4 GB; WebAssembly spec limit).
-    expect(() => new HermitianEigensolver(12000)).toThrow(/could not allocate 7692 MB of workspace.*Value: 8065344000 bytes/);
+    expect(() => new HermitianEigensolver(12000)).toThrow(/could not allocate 7692 MB of workspace.*Value: 8065536000 bytes/);
     const s = new HermitianEigensolver(3);
     expect(() => s.solve(new Float64Array(10), new Float64Array(3))).toThrow(/h must hold 18 entries from offset 0. Value: length 10/);
     expect(() => s.solve(new Float64Array(18), new Float64Array(2))).toThrow(/w must hold 3 entries/);
