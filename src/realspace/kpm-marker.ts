@@ -4,6 +4,8 @@
  * step at E_F (kpm.ts; Weisse et al., RMP 78, 275 (2006)). For each orbital r of a cell:
  *   a = P e_r,  c = y a - P (y a),  C(r) = -4 pi s Im <x a | c>,
  * two series per orbital, only a few vectors of the sample's length alive: memory linear in it.
+ * The series of GROUP orbitals run as one batch (ChebyshevBatch, kpm.ts: one pass over the matrix
+ * per step for all of them), first P e_r at orders N and N/2, then P (y a) for both.
  *
  * Checks: the marker again with the series cut at N/2 (`halfOrderMarker`; their difference is the
  * convergence check), and the local density of states at E_F at each cell from the moments of the
