@@ -286,10 +286,25 @@ export class HermitianEigensolver {
     const d = this.d;
     const e = this.e;
     let converged: boolean;
+    // For `lowest`: its vectors' places, asked for as soon as the eigenvalues are known (inside
+    // the divide and conquer, which then forms only the columns of z they need).
+    let rows: Float64Array | null = null;
+    const ask = (values: Float64Array): Float64Array => {
+      const order = ascendingOrder(values, n, this.order);
+      for (let i = 0; i < n; i++) w[wo + i] = values[order[i]] * scale;
+      rows ??= lowest!(w.subarray(wo, wo + n));
+      return rows;
+    };
     if (!withVectors) {
       converged = tridiagonalEigenvalues(n, d, e);
     } else if (this.divide !== null) {
-      converged = this.divide.solve(d, e, this.z);
+      converged = this.divide.solve(d, e, this.z, lowest === null ? null : (values) => {
+        // The leading columns of z that hold the vectors asked for (order: values ascending).
+        const count = ask(values).length / (2 * n);
+        let needed = 0;
+        for (let c = 0; c < count; c++) needed = Math.max(needed, this.order[c] + 1);
+        return needed;
+      });
     } else {
       const z = this.z;
       z.fill(0);
@@ -305,10 +320,10 @@ export class HermitianEigensolver {
       this.backTransform(n);
       this.transposeInto(vecs, vo, n);
     } else if (lowest !== null) {
-      const rows = lowest(w.subarray(wo, wo + n));
-      const count = rows.length / (2 * n);
+      const out = ask(d);
+      const count = out.length / (2 * n);
       this.backTransform(count);
-      rows.set(this.y.subarray(0, 2 * count * n));
+      out.set(this.y.subarray(0, 2 * count * n));
     }
   }
 
