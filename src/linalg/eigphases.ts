@@ -34,12 +34,15 @@ export class UnitaryEigenphases {
   private readonly q: Float64Array;
   private readonly u: Float64Array;
   /**
-   * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s (the dots) and of the
+   * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s and s2 (the dots) and of the
    * deferred column rotations (rot, a view at rotAt) in their memory.
    */
   private readonly simd: EigenphaseKernels;
   private readonly uAt: number;
   private readonly sAt: number;
+  private readonly s2At: number;
+  /** The two dot vectors (at sAt and s2At). */
+  private readonly dots: Float64Array;
   private readonly rotAt: number;
   private readonly rot: Float64Array;
   private readonly raw: Float64Array;
@@ -53,9 +56,11 @@ export class UnitaryEigenphases {
     // a (at byte 0), u and s live in the memory of the SIMD kernels (ours during a call).
     this.uAt = 16 * n * n;
     this.sAt = this.uAt + 16 * n;
-    this.rotAt = this.sAt + 16 * n;
+    this.s2At = this.sAt + 16 * n;
+    this.rotAt = this.s2At + 16 * n;
     const { kernels, memory } = eigenphaseWorkspace(this.rotAt + 48 * DEFER);
     this.rot = new Float64Array(memory, this.rotAt, 6 * DEFER);
+    this.dots = new Float64Array(memory, this.sAt, 4 * n);
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
     this.q = new Float64Array(2 * n * n);
@@ -149,6 +154,10 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const u = this.u;
+    // s: the left dots of the current reflector; sNext: those of the next, formed (but for the
+    // correction of their first row) in the current pass over the matrix.
+    let sAt = this.sAt, sNext = this.s2At;
+    let ready = false;
     for (let k = 0; k < n - 2; k++) {
       let tail = 0;
       for (let i = k + 2; i < n; i++) {
@@ -156,7 +165,10 @@ export class UnitaryEigenphases {
         const xi = a[2 * (i * n + k) + 1];
         tail += xr * xr + xi * xi;
       }
-      if (tail === 0) continue;
+      if (tail === 0) {
+        ready = false;
+        continue;
+      }
       const x0r = a[2 * ((k + 1) * n + k)];
       const x0i = a[2 * ((k + 1) * n + k) + 1];
       const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
@@ -170,11 +182,29 @@ export class UnitaryEigenphases {
         u[2 * i] = a[2 * (i * n + k)];
         u[2 * i + 1] = a[2 * (i * n + k) + 1];
       }
-      // s_j = sum_i conj(u_i) A_ij over rows and columns k+1.. (column k becomes alpha e1), then
-      // A <- P A P on columns k+1.. (left on rows k+1.., right on every row), one pass (SIMD).
+      // s_j = sum_i conj(u_i) A_ij over rows and columns k+1.. (column k becomes alpha e1): from
+      // the previous pass, which summed with u_{k+1} = x_{k+1}, plus the difference on row k+1.
       const k1 = k + 1;
-      this.simd.columnDots(16 * (k1 * n + k1), 16 * n, this.uAt + 16 * k1, this.sAt + 16 * k1, n - k1);
-      this.simd.similarityRows(0, 16 * n, this.uAt, this.sAt, n, k1, beta);
+      if (ready) {
+        const s = this.dots, s0 = (sAt - this.sAt) / 8;
+        const dr = u[2 * k1] - x0r, di = u[2 * k1 + 1] - x0i;
+        for (let j = k1; j < n; j++) {
+          const yr = a[2 * (k1 * n + j)], yi = a[2 * (k1 * n + j) + 1];
+          s[s0 + 2 * j] += dr * yr + di * yi;
+          s[s0 + 2 * j + 1] += dr * yi - di * yr;
+        }
+      } else {
+        this.simd.columnDots(16 * (k1 * n + k1), 16 * n, this.uAt + 16 * k1, sAt + 16 * k1, n - k1);
+      }
+      // A <- P A P on columns k+1.. (left on rows k+1.., right on every row), one pass (SIMD),
+      // with the next reflector's dots when there is a next one.
+      ready = k + 1 < n - 2;
+      if (ready) {
+        this.simd.similarityDots(0, 16 * n, this.uAt, sAt, n, k1, beta, sNext);
+        [sAt, sNext] = [sNext, sAt];
+      } else {
+        this.simd.similarityRows(0, 16 * n, this.uAt, sAt, n, k1, beta);
+      }
       a[2 * ((k + 1) * n + k)] = -cr * sigma;
       a[2 * ((k + 1) * n + k) + 1] = -ci * sigma;
       for (let i = k + 2; i < n; i++) a[2 * (i * n + k)] = a[2 * (i * n + k) + 1] = 0;

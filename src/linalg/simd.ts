@@ -37,6 +37,8 @@ export interface EigenphaseKernels {
   columnDots(a: number, stride: number, u: number, s: number, m: number): void;
   /** A <- P A P from s = u^dagger A, on indices k1.. of an n x n matrix (see similarityRows below). */
   similarityRows(a: number, stride: number, u: number, s: number, n: number, k1: number, beta: number): void;
+  /** similarityRows, and next_j = sum_{i > k1} conj(A'_{i,k1}) A'_ij (j > k1) in the same pass. */
+  similarityDots(a: number, stride: number, u: number, s: number, n: number, k1: number, beta: number, next: number): void;
 }
 
 /** Kernels (see their generators below for what each computes). */
@@ -571,9 +573,9 @@ function columnDots(): Body {
  * once: rows i >= k1 first get A_ij -= beta u_i s_j, then every row gets A_ij -= t conj(u_j) with
  * t = beta sum_j A_ij u_j; columns j >= k1 only.
  */
-function similarityRows(): Body {
-  const [a, stride, u, s, n, k1, beta] = [0, 1, 2, 3, 4, 5, 6];
-  const f = new Body([I32, I32, I32, I32, I32, I32, F64]);
+function similarityRows(dots: boolean): Body {
+  const [a, stride, u, s, n, k1, beta, next] = [0, 1, 2, 3, 4, 5, 6, 7];
+  const f = new Body(dots ? [I32, I32, I32, I32, I32, I32, F64, I32] : [I32, I32, I32, I32, I32, I32, F64]);
   const i = f.local(I32), iEnd = f.local(I32), leftFrom = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32), j0 = f.local(I32);
   const [c, d, x, m1, m2, uu] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
   const [tr, ti, ur, ui] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
@@ -581,6 +583,13 @@ function similarityRows(): Body {
   f.get(n).i32(16).mul().set(jEnd);
   f.get(k1).i32(16).mul().set(leftFrom);
   f.i32(0).set(i).get(n).i32(16).mul().set(iEnd);
+  if (dots) {
+    // next_j = 0 for j > k1
+    f.get(j0).i32(16).add().set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(next).get(j).add().vzero().vstore();
+    });
+  }
   f.get(a).set(row);
   f.forBytes(i, iEnd, 16, () => {
     f.get(i).get(leftFrom).op(0x4f).when(() => {
@@ -622,6 +631,23 @@ function similarityRows(): Body {
       f.get(d).swapped(uu).vmul().vsub();
       f.vstore();
     });
+    if (dots) {
+      // Rows below k1: next_j += conj(x_i) A_ij (j > k1), x_i = A_{i,k1} as just updated.
+      f.get(i).get(leftFrom).op(0x4b).when(() => {
+        f.get(row).get(j0).add().vload().set(x);
+        f.get(x).lane(0).splat().set(c);
+        f.get(x).lane(1).plusMinus().set(d); // (xi, -xi)
+        f.get(j0).i32(16).add().set(j);
+        f.forBytes(j, jEnd, 16, () => {
+          f.get(row).get(j).add().vload().set(uu);
+          f.get(next).get(j).add();
+          f.get(next).get(j).add().vload().set(m1);
+          f.get(c).get(uu).accumulate(m1);
+          f.get(d).swapped(uu).accumulate(m1);
+          f.get(m1).vstore();
+        });
+      });
+    }
     f.get(row).get(stride).add().set(row);
   });
   return f;
@@ -755,7 +781,8 @@ export const simdWorkspace = workspaces<SimdKernels>(moduleBytes, rank2ModuleByt
 /** The general eigenvalue problem's kernels (a module apart to keep each small). */
 export const eigenphaseWorkspace = workspaces<EigenphaseKernels>(() => assemble([
   ['columnDots', columnDots()],
-  ['similarityRows', similarityRows()],
+  ['similarityRows', similarityRows(false)],
+  ['similarityDots', similarityRows(true)],
   ['rotatePair', rotatePair()],
   ['rotateRows', rotateRows()],
 ]));
