@@ -687,28 +687,53 @@ function rotatePair(): Body {
 function rotateRows(): Body {
   const [a, stride, rows, rot, steps] = [0, 1, 2, 3, 4];
   const f = new Body([I32, I32, I32, I32, I32]);
-  const row = f.local(I32), rowEnd = f.local(I32), p = f.local(I32), t = f.local(I32), tEnd = f.local(I32);
-  const [cv, sv, pv, xv, yv] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  const row = f.local(I32), rowEnd = f.local(I32), pairEnd = f.local(I32), p = f.local(I32), t = f.local(I32), tEnd = f.local(I32);
+  const [cv, sv, pv] = [f.local(V128), f.local(V128), f.local(V128)];
+  const xv = [f.local(V128), f.local(V128)], yv = [f.local(V128), f.local(V128)];
   f.get(a).set(row);
   f.get(a).get(rows).get(stride).mul().add().set(rowEnd);
+  f.get(a).get(rows).i32(-2).and().get(stride).mul().add().set(pairEnd);
   f.get(rot).get(steps).i32(48).mul().add().set(tEnd);
-  f.forBytes(row, rowEnd, [stride], () => {
+  /** The address on the stack moved to row r of the pair (the second one stride bytes below). */
+  const inRow = (r: number): void => {
+    if (r > 0) f.get(stride).add();
+  };
+  /** `count` rows from `row`: independent chains of rotations, run side by side. */
+  const rowsAt = (count: number): void => {
     f.get(row).set(p);
-    f.get(p).vload().set(xv);
+    for (let r = 0; r < count; r++) {
+      f.get(p);
+      inRow(r);
+      f.vload().set(xv[r]);
+    }
     f.get(rot).set(t);
     f.forBytes(t, tEnd, 48, () => {
-      f.get(p).vload(16).set(yv);
       f.get(t).vload().set(cv);
       f.get(t).vload(16).set(sv);
       f.get(t).vload(32).set(pv);
-      f.get(p);
-      f.get(cv).get(xv).vmul().get(sv).get(yv).vmul().vadd().get(pv).swapped(yv).vmul().vadd();
-      f.vstore();
-      f.get(cv).get(yv).vmul().get(sv).get(xv).vmul().vsub().get(pv).swapped(xv).vmul().vadd().set(xv);
+      for (let r = 0; r < count; r++) {
+        f.get(p);
+        inRow(r);
+        f.vload(16).set(yv[r]);
+        f.get(p);
+        inRow(r);
+        f.get(cv).get(xv[r]).vmul().get(sv).get(yv[r]).vmul().vadd().get(pv).swapped(yv[r]).vmul().vadd();
+        f.vstore();
+        f.get(cv).get(yv[r]).vmul().get(sv).get(xv[r]).vmul().vsub().get(pv).swapped(xv[r]).vmul().vadd().set(xv[r]);
+      }
       f.get(p).i32(16).add().set(p);
     });
-    f.get(p).get(xv).vstore();
+    for (let r = 0; r < count; r++) {
+      f.get(p);
+      inRow(r);
+      f.get(xv[r]).vstore();
+    }
+  };
+  f.forBytes(row, pairEnd, [stride], () => {
+    rowsAt(2);
+    f.get(row).get(stride).add().set(row);
   });
+  f.get(row).get(rowEnd).ltU().when(() => rowsAt(1));
   return f;
 }
 
