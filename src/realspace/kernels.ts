@@ -142,13 +142,15 @@ function complexProduct(): Body {
 }
 
 /**
- * realProduct(a, lda, b, ldb, c, ldc, p, q, r): C += A B for real row-major blocks (A p x q,
- * B q x r, C p x r, r even; row strides in bytes). Register tile: 4 rows of C by 4 columns
- * (8 f64x2 accumulators); then 2 columns, then single rows.
+ * realProduct(a, lda, b, ldb, c, ldc, p, q, r, panel): C += A B for real blocks (A p x q and
+ * C p x r row-major, r even; row strides in bytes). B (q x r) is read in panels of 4 columns:
+ * entry (k, j) at b + (j / 4) panel + k ldb + 8 (j % 4), so a row-major B has panel = 32, and a
+ * packed one (each panel's rows contiguous) ldb = 32, panel = 32 q. Register tile: 4 rows of C
+ * by 4 columns (8 f64x2 accumulators); then 2 columns, then single rows.
  */
 function realBlockProduct(): Body {
-  const [a, lda, b, ldb, c, ldc, p, q, r] = [0, 1, 2, 3, 4, 5, 6, 7, 8];
-  const f = new Body([I32, I32, I32, I32, I32, I32, I32, I32, I32]);
+  const [a, lda, b, ldb, c, ldc, p, q, r, panel] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9];
+  const f = new Body([I32, I32, I32, I32, I32, I32, I32, I32, I32, I32]);
   const i = f.local(I32), iEnd = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
   const pa = f.local(I32), paEnd = f.local(I32), pb = f.local(I32), pc = f.local(I32), lda2 = f.local(I32), lda3 = f.local(I32);
   const bv = [f.local(V128), f.local(V128)];
@@ -161,7 +163,7 @@ function realBlockProduct(): Body {
     for (let t = 0; t < rows; t++) for (let v = 0; v < vecs; v++) f.vzero().set(acc[2 * t + v]);
     f.get(a).get(i).get(lda).mul().add().set(pa);
     f.get(pa).get(q).i32(8).mul().add().set(paEnd);
-    f.get(b).get(j).i32(8).mul().add().set(pb);
+    f.get(b).get(j).i32(2).op(0x76).get(panel).mul().add().set(pb); // j / 4 (j a multiple of 4)
     f.forBytes(pa, paEnd, 8, () => {
       for (let v = 0; v < vecs; v++) f.get(pb).vload(16 * v).set(bv[v]);
       for (let t = 0; t < rows; t++) {
@@ -224,15 +226,28 @@ function blockedComplex(kernels: RealspaceKernels, aAt: number, bAt: number, cAt
   }
 }
 
-/** C += A B on the real kernel, block by block (byte addresses; rows of q and r entries, r even). */
-function blockedReal(kernels: RealspaceKernels, aAt: number, bAt: number, cAt: number, p: number, q: number, r: number): void {
+/**
+ * C += A B on the real kernel, block by block (byte addresses; rows of q and r entries, r a
+ * multiple of 4): each block of B is first packed (at packAt, in `memory`) into panels of 4
+ * columns whose rows are contiguous, so that the kernel reads it as one stream.
+ */
+function blockedReal(kernels: RealspaceKernels, memory: ArrayBuffer, aAt: number, bAt: number, cAt: number, packAt: number, p: number, q: number, r: number): void {
+  const b = new Float64Array(memory, bAt, q * r), pack = new Float64Array(memory, packAt, PACK);
   for (let k0 = 0; k0 < q; k0 += DEPTH_BLOCK) {
     const depth = Math.min(DEPTH_BLOCK, q - k0);
     for (let j0 = 0; j0 < r; j0 += 2 * COLUMN_BLOCK) {
-      kernels.realProduct(aAt + 8 * k0, 8 * q, bAt + 8 * (k0 * r + j0), 8 * r, cAt + 8 * j0, 8 * r, p, depth, Math.min(2 * COLUMN_BLOCK, r - j0));
+      const cols = Math.min(2 * COLUMN_BLOCK, r - j0);
+      for (let k = 0; k < depth; k++) {
+        const from = (k0 + k) * r + j0;
+        for (let j = 0; j < cols; j++) pack[(j >> 2) * 4 * depth + 4 * k + (j & 3)] = b[from + j];
+      }
+      kernels.realProduct(aAt + 8 * k0, 8 * q, packAt, 32, cAt + 8 * j0, 8 * r, p, depth, cols, 32 * depth);
     }
   }
 }
+
+/** Doubles of a packed block of B. */
+const PACK = DEPTH_BLOCK * 2 * COLUMN_BLOCK;
 
 /**
  * out (p x r) = A (p x q) B (q x r), complex interleaved row-major, on the SIMD kernels: `fillA`
@@ -255,10 +270,10 @@ export function simdProduct(p: number, q: number, r: number, fillA: (view: Float
     out.set(c);
     return out;
   }
-  // Planar parts (rows of B and C padded to an even length), then the interleaved scratch.
-  const re = r + (r & 1);
+  // Planar parts (rows of B and C padded to a multiple of 4), the packed block, the interleaved scratch.
+  const re = (r + 3) & ~3;
   const at = { x: 0, y: 8 * p * q, xy: 16 * p * q, u: 24 * p * q, v: 24 * p * q + 8 * q * re, uv: 24 * p * q + 16 * q * re, t: 24 * p * q + 24 * q * re };
-  const scratch = at.t + 24 * p * re;
+  const packAt = at.t + 24 * p * re, scratch = packAt + 8 * PACK;
   const { kernels, memory } = realspaceWorkspace(scratch + 16 * Math.max(p * q, q * r));
   const view = (byte: number, length: number) => new Float64Array(memory, byte, length);
   const s = view(scratch, 2 * Math.max(p * q, q * r));
@@ -278,13 +293,13 @@ export function simdProduct(p: number, q: number, r: number, fillA: (view: Float
       v[o] = s[2 * e + 1];
       uv[o] = s[2 * e] + s[2 * e + 1];
     }
-    if (re > r) u[k * re + r] = v[k * re + r] = uv[k * re + r] = 0;
+    for (let j = r; j < re; j++) u[k * re + j] = v[k * re + j] = uv[k * re + j] = 0;
   }
   const t = view(at.t, 3 * p * re);
   t.fill(0);
-  blockedReal(kernels, at.x, at.u, at.t, p, q, re);
-  blockedReal(kernels, at.y, at.v, at.t + 8 * p * re, p, q, re);
-  blockedReal(kernels, at.xy, at.uv, at.t + 16 * p * re, p, q, re);
+  blockedReal(kernels, memory, at.x, at.u, at.t, packAt, p, q, re);
+  blockedReal(kernels, memory, at.y, at.v, at.t + 8 * p * re, packAt, p, q, re);
+  blockedReal(kernels, memory, at.xy, at.uv, at.t + 16 * p * re, packAt, p, q, re);
   for (let i = 0; i < p; i++) {
     for (let j = 0; j < r; j++) {
       const o = i * re + j, t1 = t[o], t2 = t[p * re + o], t3 = t[2 * p * re + o];
