@@ -334,13 +334,14 @@ export class UnitaryEigenphases {
         const rk1 = rk + 2 * n;
         this.simd.rotatePair(8 * (rk + 2 * j0), 8 * (rk1 + 2 * j0), hi - j0 + 1, c, sr, si);
         if (k > l) a[rk1 + 2 * (k - 1)] = a[rk1 + 2 * (k - 1) + 1] = 0;
-        const iEnd = Math.min(k + 2, hi);
-        rotateColumns(n, a, k, Math.max(l, k0), iEnd, c, sr, si);
         const t = 6 * (k - k0);
         rot[t] = rot[t + 1] = c;
         rot[t + 2] = rot[t + 3] = sr;
         rot[t + 4] = si;
         rot[t + 5] = -si;
+        // Now on rows k0..k+2 (those above wait for the flush): one rotation, rows stride apart.
+        const i0 = Math.max(l, k0), iEnd = Math.min(k + 2, hi);
+        this.simd.rotateRows(16 * (i0 * n + k), 16 * n, iEnd - i0 + 1, this.rotAt + 8 * t, 1);
         if (wantVectors) rotateColumns(n, q, k, 0, n - 1, c, sr, si);
       }
       flush(k0);
