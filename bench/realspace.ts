@@ -18,7 +18,7 @@ import { blochHamiltonian } from '../src/bloch/hamiltonian.js';
 import { HermitianEigensolver } from '../src/linalg/eigh.js';
 import { qwz } from '../src/model/catalogue.js';
 import { bottOfSample } from '../src/realspace/bott.js';
-import { chebyshevScaling } from '../src/realspace/kpm.js';
+import { ChebyshevBatch, chebyshevScaling } from '../src/realspace/kpm.js';
 import { chebyshevMarkerOfSample } from '../src/realspace/kpm-marker.js';
 import { buildSample, type Sample } from '../src/realspace/sample.js';
 import { randomHermitian, uniform } from '../tests/unit/linalg-fixtures.js';
@@ -128,10 +128,13 @@ function writeSample(dir: string, prefix: string, s: Sample): void {
   writeFileSync(join(dir, `${prefix}pos.bin`), bytes(s.positions));
 }
 
-/** Bytes our Chebyshev marker holds: the CSR matrix, positions, cells and its eight vectors. */
+/**
+ * Bytes our Chebyshev marker holds: the CSR matrix, positions, cells, its eight vectors and the
+ * batch's memory (a copy of the matrix and sixteen vectors, src/realspace/kpm.ts).
+ */
 function kpmBytes(s: Sample): number {
   const h = s.hamiltonian;
-  return h.values.byteLength + h.columns.byteLength + h.rowStart.byteLength + s.positions.byteLength + s.cells.byteLength + s.orbitals.byteLength + s.spin.byteLength + 8 * 16 * s.size;
+  return h.values.byteLength + h.columns.byteLength + h.rowStart.byteLength + s.positions.byteLength + s.cells.byteLength + s.orbitals.byteLength + s.spin.byteLength + 8 * 16 * s.size + ChebyshevBatch.bytes(s.size, h.rowStart[s.size]);
 }
 
 export function benchRealspace(): Promise<BenchRow[]> {

@@ -55,6 +55,8 @@ export class TridiagonalDivideConquer {
   private readonly dm: Float64Array;
   /** Output column of each root and the rows lists for the product. */
   private readonly pos: Int32Array;
+  /** The roots whose eigenvectors a merge forms (all but at the last merge, see `columns`). */
+  private readonly roots: Int32Array;
   private readonly top: Int32Array;
   private readonly bottom: Int32Array;
   /** Leaf scratch. */
@@ -97,6 +99,7 @@ export class TridiagonalDivideConquer {
     this.tau = new Float64Array(n);
     this.dm = new Float64Array(n * n);
     this.pos = new Int32Array(n);
+    this.roots = new Int32Array(n);
     this.top = new Int32Array(n);
     this.bottom = new Int32Array(n);
     this.ld = new Float64Array(LEAF);
@@ -112,9 +115,21 @@ export class TridiagonalDivideConquer {
    * eigenvalues ascending and column j of `z` (n x n, row-major) the eigenvector of d[j]; `e` is
    * destroyed. Returns false if a QL block or a secular equation failed to converge.
    */
-  solve(d: Float64Array, e: Float64Array, z: Float64Array): boolean {
-    return this.block(d, e, z, 0, this.n);
+  solve(d: Float64Array, e: Float64Array, z: Float64Array, columns: ((values: Float64Array) => number) | null = null): boolean {
+    this.columns = columns;
+    try {
+      return this.block(d, e, z, 0, this.n);
+    } finally {
+      this.columns = null;
+    }
   }
+
+  /**
+   * With `solve`'s `columns`: asked, once the last merge has placed all the eigenvalues in d (in
+   * the output order), how many leading columns of z the caller needs; only those are formed
+   * (the last merge's product is most of the work). Null: all.
+   */
+  private columns: ((values: Float64Array) => number) | null = null;
 
   private block(d: Float64Array, e: Float64Array, z: Float64Array, o: number, s: number): boolean {
     if (s <= LEAF) return this.leaf(d, e, z, o, s);
@@ -249,7 +264,12 @@ export class TridiagonalDivideConquer {
       pos[i] = out++;
     }
     while (gi < ngone) this.placeDeflated(d, z, o, s, gone[gi++], out++);
-    if (k > 0) this.rootVectors(z, o, s, m, k);
+    // The roots whose vectors are formed: all, or at the last merge those the caller needs.
+    const wanted = this.columns !== null && s === this.n ? this.columns(d) : s;
+    const roots = this.roots;
+    let count = 0;
+    for (let i = 0; i < k; i++) if (pos[i] < wanted) roots[count++] = i;
+    if (count > 0) this.rootVectors(z, o, s, m, k, count);
     return true;
   }
 
@@ -384,7 +404,7 @@ export class TridiagonalDivideConquer {
    * The merge's eigenvectors from z-hat (Gu & Eisenstat: the z for which the computed roots are
    * exact), times the halves' eigenvectors; results go to the columns pos[i] of the block of z.
    */
-  private rootVectors(z: Float64Array, o: number, s: number, m: number, k: number): void {
+  private rootVectors(z: Float64Array, o: number, s: number, m: number, k: number, count: number): void {
     const dd = this.dd;
     const zz = this.zz;
     const zh = this.zh;
@@ -403,8 +423,8 @@ export class TridiagonalDivideConquer {
       zh[j] = zz[j] >= 0 ? a : -a;
     }
     // Row i of dm becomes the merge's eigenvector of root i: z-hat_j / (d_j - lambda_i), normalised.
-    for (let i = 0; i < k; i++) {
-      const row = i * k;
+    for (let c = 0; c < count; c++) {
+      const row = this.roots[c] * k;
       let norm = 0;
       for (let j = 0; j < k; j++) {
         const u = zh[j] / dm[row + j];
@@ -427,15 +447,16 @@ export class TridiagonalDivideConquer {
       if (t !== 3) top[nt++] = j;
       if (t !== 1) bottom[nb++] = j;
     }
-    this.product(z, o, s, 0, m, k, top, nt);
-    this.product(z, o, s, m, s, k, bottom, nb);
+    this.product(z, o, s, 0, m, k, count, top, nt);
+    this.product(z, o, s, m, s, k, count, bottom, nb);
   }
 
   /**
-   * z[o + r][o + pos[i]] = sum over j in list of qc[r][keep[j]] dm[i][j] for rows r0..r1: the
-   * operands gathered into the SIMD memory, multiplied there, the result scattered to z.
+   * z[o + r][o + pos[i]] = sum over j in list of qc[r][keep[j]] dm[i][j] for rows r0..r1 and the
+   * roots i in roots[0..count): the operands gathered into the SIMD memory, multiplied there, the
+   * result scattered to z.
    */
-  private product(z: Float64Array, o: number, s: number, r0: number, r1: number, k: number, list: Int32Array, len: number): void {
+  private product(z: Float64Array, o: number, s: number, r0: number, r1: number, k: number, count: number, list: Int32Array, len: number): void {
     const n = this.n;
     const qc = this.qc;
     const dm = this.dm;
@@ -444,8 +465,9 @@ export class TridiagonalDivideConquer {
     const pa = this.pa;
     const pb = this.pb;
     const pc = this.pc;
+    const roots = this.roots;
     const rows = r1 - r0;
-    const cols = (k + 3) & ~3;
+    const cols = (count + 3) & ~3;
     for (let r = 0; r < rows; r++) {
       const from = (r0 + r) * s;
       for (let p = 0; p < len; p++) pa[r * len + p] = qc[from + keep[list[p]]];
@@ -453,14 +475,14 @@ export class TridiagonalDivideConquer {
     for (let p = 0; p < len; p++) {
       const j = list[p];
       const to = p * cols;
-      for (let i = 0; i < k; i++) pb[to + i] = dm[i * k + j];
-      for (let i = k; i < cols; i++) pb[to + i] = 0;
+      for (let c = 0; c < count; c++) pb[to + c] = dm[roots[c] * k + j];
+      for (let c = count; c < cols; c++) pb[to + c] = 0;
     }
     this.simd.realProduct(this.at, this.at + 8 * pa.length, this.at + 16 * pa.length, rows, len, cols);
     for (let r = 0; r < rows; r++) {
       const out = (o + r0 + r) * n + o;
       const from = r * cols;
-      for (let i = 0; i < k; i++) z[out + pos[i]] = pc[from + i];
+      for (let c = 0; c < count; c++) z[out + pos[roots[c]]] = pc[from + c];
     }
   }
 }

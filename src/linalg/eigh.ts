@@ -24,9 +24,9 @@ const SAFE_MIN = 2 ** -300;
 const SAFE_MAX = 2 ** 300;
 /**
  * Eigenvectors per block in the back-transformation (the block stays in cache across reflectors;
- * 16 beats 8 and 32 at n = 256, measured).
+ * 32 beats 16 by 5-8 % at n = 256 to 1800, and 48 or 64 gain nothing more, measured).
  */
-const BACK_BLOCK = 16;
+const BACK_BLOCK = 32;
 
 /** A power of two near `big` (exact to scale by); clamped so that its reciprocal is finite. */
 /** Columns between interrupt checks (minus one, a mask): small matrices never check. */
@@ -68,11 +68,13 @@ export class HermitianEigensolver {
   private readonly y: Float64Array;
   /**
    * The WebAssembly SIMD kernels, and the byte offsets in their memory of y and of p, the
-   * reduction's complex scratch vector (a is at 0).
+   * reduction's two complex scratch vectors (a is at 0).
    */
   private readonly simd: SimdKernels;
   private readonly yAt: number;
   private readonly pAt: number;
+  /** The reduction's two complex scratch vectors (at pAt). */
+  private readonly p: Float64Array;
   private readonly order: Int32Array;
   private readonly divide: TridiagonalDivideConquer | null;
 
@@ -83,7 +85,7 @@ export class HermitianEigensolver {
     this.yAt = 16 * n * n;
     this.pAt = 32 * n * n;
     // Our part of the SIMD memory, then the divide and conquer's (one instance for both).
-    const divideAt = this.pAt + 16 * n;
+    const divideAt = this.pAt + 32 * n;
     const { kernels, memory } = simdWorkspace(divideAt + (n > LEAF ? TridiagonalDivideConquer.simdBytes(n) : 0));
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
@@ -96,6 +98,7 @@ export class HermitianEigensolver {
     this.cs = new Float64Array(n);
     this.sn = new Float64Array(n);
     this.y = new Float64Array(memory, this.yAt, 2 * n * n);
+    this.p = new Float64Array(memory, this.pAt, 4 * n);
     this.order = new Int32Array(n);
     this.divide = n > LEAF ? new TridiagonalDivideConquer(n, kernels, memory, divideAt) : null;
   }
@@ -109,6 +112,37 @@ export class HermitianEigensolver {
    */
   solve(h: CMatrix, w: Float64Array, vecs?: CMatrix): Float64Array {
     return this.solveAt(h, 0, w, 0, vecs ?? null, 0);
+  }
+
+  /**
+   * Eigenvalues of `h` into `w` (ascending) and the eigenvectors of the `count(w)` lowest only,
+   * returned as the rows of a new count x n matrix (row j = eigenvector j): the
+   * back-transformation, a third of the solve at n ~ 2000, then runs on those vectors alone (the
+   * occupied states of a sample are half of them). The vectors are those `solve` gives.
+   */
+  solveLowest(h: CMatrix, w: Float64Array, count: (values: Float64Array) => number): CMatrix {
+    const n = this.n;
+    checkArray('h', h, 0, 2 * n * n);
+    checkArray('w', w, 0, n);
+    if (n <= 2) {
+      const vecs = new Float64Array(2 * n * n);
+      this.solveAt(h, 0, w, 0, vecs, 0);
+      const m = checkCount(count(w.subarray(0, n)), n);
+      const rows = new Float64Array(2 * m * n);
+      for (let j = 0; j < m; j++) {
+        for (let i = 0; i < n; i++) {
+          rows[2 * (j * n + i)] = vecs[2 * (i * n + j)];
+          rows[2 * (j * n + i) + 1] = vecs[2 * (i * n + j) + 1];
+        }
+      }
+      return rows;
+    }
+    let rows = new Float64Array(0);
+    this.solveGeneral(h, 0, w, 0, null, 0, (values) => {
+      rows = new Float64Array(2 * checkCount(count(values), n) * n);
+      return rows;
+    });
+    return rows;
   }
 
   /**
@@ -202,7 +236,9 @@ export class HermitianEigensolver {
     vecs[vo + 7] = hi1 * fi;
   }
 
-  private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number): void {
+  /** With `lowest`, the vectors it asks for (once the values are known) go to its rows instead of vecs. */
+  private solveGeneral(h: CMatrix, ho: number, w: Float64Array, wo: number, vecs: CMatrix | null, vo: number, lowest: Lowest | null = null): void {
+    const withVectors = vecs !== null || lowest !== null;
     const n = this.n;
     const a = this.a;
     // Copy the upper triangle; track the largest entry and any non-finite one (x*0 is NaN only then).
@@ -232,6 +268,10 @@ export class HermitianEigensolver {
         for (let j = 0; j < 2 * n * n; j++) vecs[vo + j] = 0;
         for (let i = 0; i < n; i++) vecs[vo + 2 * (i * n + i)] = 1;
       }
+      if (lowest !== null) {
+        const rows = lowest(w.subarray(wo, wo + n));
+        for (let j = 0; j < rows.length / (2 * n); j++) rows[2 * (j * n + j)] = 1;
+      }
       return;
     }
     let scale = 1;
@@ -242,14 +282,29 @@ export class HermitianEigensolver {
         for (let j = 2 * (i * n + i); j < 2 * (i * n + n); j++) a[j] *= inv;
       }
     }
-    this.reduce(vecs !== null);
+    this.reduce(withVectors);
     const d = this.d;
     const e = this.e;
     let converged: boolean;
-    if (vecs === null) {
+    // For `lowest`: its vectors' places, asked for as soon as the eigenvalues are known (inside
+    // the divide and conquer, which then forms only the columns of z they need).
+    let rows: Float64Array | null = null;
+    const ask = (values: Float64Array): Float64Array => {
+      const order = ascendingOrder(values, n, this.order);
+      for (let i = 0; i < n; i++) w[wo + i] = values[order[i]] * scale;
+      rows ??= lowest!(w.subarray(wo, wo + n));
+      return rows;
+    };
+    if (!withVectors) {
       converged = tridiagonalEigenvalues(n, d, e);
     } else if (this.divide !== null) {
-      converged = this.divide.solve(d, e, this.z);
+      converged = this.divide.solve(d, e, this.z, lowest === null ? null : (values) => {
+        // The leading columns of z that hold the vectors asked for (order: values ascending).
+        const count = ask(values).length / (2 * n);
+        let needed = 0;
+        for (let c = 0; c < count; c++) needed = Math.max(needed, this.order[c] + 1);
+        return needed;
+      });
     } else {
       const z = this.z;
       z.fill(0);
@@ -261,7 +316,70 @@ export class HermitianEigensolver {
     }
     const order = ascendingOrder(d, n, this.order);
     for (let i = 0; i < n; i++) w[wo + i] = d[order[i]] * scale;
-    if (vecs !== null) this.backTransform(vecs, vo);
+    if (vecs !== null) {
+      this.backTransform(n);
+      this.transposeInto(vecs, vo, n);
+    } else if (lowest !== null) {
+      const out = ask(d);
+      const count = out.length / (2 * n);
+      this.backTransform(count);
+      out.set(this.y.subarray(0, 2 * count * n));
+    }
+  }
+
+  /**
+   * Reflector k from row k of `a` (its part right of the diagonal, already updated): fills
+   * beta[k] (0: none needed) and off[k], and leaves u in the row from column k + 1.
+   */
+  private reflector(k: number): void {
+    const n = this.n;
+    const a = this.a;
+    const off = this.off;
+    const base = 2 * k * n;
+    // x = column k below the diagonal = conj(row k right of the diagonal).
+    let tail = 0;
+    for (let j = base + 2 * (k + 2); j < base + 2 * n; j++) tail += a[j] * a[j];
+    const x0r = a[base + 2 * (k + 1)];
+    const x0i = -a[base + 2 * (k + 1) + 1];
+    if (tail === 0) {
+      this.beta[k] = 0;
+      off[2 * k] = x0r;
+      off[2 * k + 1] = x0i;
+      return;
+    }
+    const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
+    const sigma = Math.sqrt(ax0 * ax0 + tail);
+    const cr = ax0 === 0 ? 1 : x0r / ax0;
+    const ci = ax0 === 0 ? 0 : x0i / ax0;
+    // P x = alpha e1 with alpha = -e^{i arg x0} sigma, u = x - alpha e1, P = I - beta u u^dagger.
+    off[2 * k] = -cr * sigma;
+    off[2 * k + 1] = -ci * sigma;
+    this.beta[k] = 1 / (sigma * (sigma + ax0));
+    a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
+    a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
+    for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
+  }
+
+  /**
+   * With p = B u (m entries at byte pAt): q = beta p - (beta/2) Re(u^dagger beta p) u in its place
+   * (u^dagger B u is real), as the kernel before rank2Rows did it, lane for lane.
+   */
+  private prepareQ(uAt: number, pAt: number, m: number, beta: number): void {
+    const a = this.a, p = this.p;
+    const u0 = uAt / 8, p0 = (pAt - this.pAt) / 8;
+    let s0 = 0, s1 = 0;
+    for (let j = 0; j < 2 * m; j += 2) {
+      const qr = p[p0 + j] * beta, qi = p[p0 + j + 1] * beta;
+      p[p0 + j] = qr;
+      p[p0 + j + 1] = qi;
+      s0 = a[u0 + j] * qr + s0;
+      s1 = a[u0 + j + 1] * qi + s1;
+    }
+    const c = (s0 + s1) * (beta * 0.5);
+    for (let j = 0; j < 2 * m; j += 2) {
+      p[p0 + j] -= a[u0 + j] * c;
+      p[p0 + j + 1] -= a[u0 + j + 1] * c;
+    }
   }
 
   /**
@@ -271,43 +389,46 @@ export class HermitianEigensolver {
    */
   private reduce(forVectors: boolean): void {
     const n = this.n;
-    const a = this.a;
     const off = this.off;
     const betas = this.beta;
+    const stride = 16 * n;
+    // p: B u for the current reflector, then q in its place; pNext: B' w for the next one, formed
+    // while the current update passes over the rows (rank2Times), when there is a next one.
+    let pAt = this.pAt, pNext = this.pAt + stride;
+    let ready = false;
+    let built = false;
     for (let k = 0; k < n - 2; k++) {
       // One solve of a thousand orbitals takes seconds: stop between columns when asked.
       if ((k & INTERRUPT_STRIDE) === INTERRUPT_STRIDE) checkInterrupt();
-      const base = 2 * k * n;
-      // x = column k below the diagonal = conj(row k right of the diagonal).
-      let tail = 0;
-      for (let j = base + 2 * (k + 2); j < base + 2 * n; j++) tail += a[j] * a[j];
-      const x0r = a[base + 2 * (k + 1)];
-      const x0i = -a[base + 2 * (k + 1) + 1];
-      if (tail === 0) {
-        betas[k] = 0;
-        off[2 * k] = x0r;
-        off[2 * k + 1] = x0i;
+      if (!built) this.reflector(k);
+      built = false;
+      const beta = betas[k];
+      if (beta === 0) {
+        ready = false;
         continue;
       }
-      const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
-      const sigma = Math.sqrt(ax0 * ax0 + tail);
-      const cr = ax0 === 0 ? 1 : x0r / ax0;
-      const ci = ax0 === 0 ? 0 : x0i / ax0;
-      // P x = alpha e1 with alpha = -e^{i arg x0} sigma, u = x - alpha e1, P = I - beta u u^dagger.
-      off[2 * k] = -cr * sigma;
-      off[2 * k + 1] = -ci * sigma;
-      const beta = 1 / (sigma * (sigma + ax0));
-      betas[k] = beta;
-      a[base + 2 * (k + 1)] = cr * (ax0 + sigma);
-      a[base + 2 * (k + 1) + 1] = ci * (ax0 + sigma);
-      for (let j = base + 2 * (k + 2) + 1; j < base + 2 * n; j += 2) a[j] = -a[j];
-      // p = B u, B the trailing block (upper triangle stored); then B <- P B P (SIMD kernels).
       const block = 16 * ((k + 1) * n + k + 1);
       const u = 16 * (k * n + k + 1);
       const m = n - k - 1;
-      this.simd.hermitianTimes(block, 16 * n, u, this.pAt + 16 * (k + 1), m);
-      this.simd.householderUpdate(block, 16 * n, u, this.pAt + 16 * (k + 1), m, beta);
+      const p = pAt + 16 * (k + 1);
+      if (!ready) this.simd.hermitianTimes(block, stride, u, p, m);
+      this.prepareQ(u, p, m, beta);
+      // Row k+1 first: the next reflector is made from it; then the other rows, with the next
+      // reflector's product in the same pass when there is one (B <- P B P, SIMD kernels).
+      this.simd.rank2Update(block, stride, u, p, 0, 1, m);
+      if (k + 1 < n - 2) {
+        this.reflector(k + 1);
+        built = true;
+      }
+      ready = built && betas[k + 1] !== 0;
+      if (ready) {
+        this.simd.rank2Times(block, stride, u, p, 1, m, m, block, pNext + 16 * (k + 1));
+        [pAt, pNext] = [pNext, pAt];
+      } else {
+        this.simd.rank2Update(block, stride, u, p, 1, m, m);
+      }
     }
+    const a = this.a;
     // The last subdiagonal entry needs no reflector.
     const last = 2 * ((n - 2) * n + n - 1);
     off[2 * (n - 2)] = a[last];
@@ -347,13 +468,13 @@ export class HermitianEigensolver {
    * the rows of `y` while the reflectors are applied (blocks of BACK_BLOCK vectors share each
    * reflector pair while it is in cache), then go to the columns of `vecs` in order.
    */
-  private backTransform(vecs: CMatrix, vo: number): void {
+  private backTransform(count: number): void {
     const n = this.n;
     const z = this.z;
     const y = this.y;
     const phase = this.phase;
     const order = this.order;
-    for (let col = 0; col < n; col++) {
+    for (let col = 0; col < count; col++) {
       const src = order[col];
       const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
@@ -367,16 +488,21 @@ export class HermitianEigensolver {
     const a = this.a;
     const betas = this.beta;
     for (let i = 0; i < n; i++) a[2 * (i * n + i)] = a[2 * (i * n + i) + 1] = 0;
-    for (let c0 = 0; c0 < n; c0 += BACK_BLOCK) {
+    for (let c0 = 0; c0 < count; c0 += BACK_BLOCK) {
       if (n > INTERRUPT_STRIDE) checkInterrupt();
-      const count = Math.min(n, c0 + BACK_BLOCK) - c0;
+      const block = Math.min(count, c0 + BACK_BLOCK) - c0;
       let k = n - 3;
       for (; k >= 1; k -= 2) {
         const u = 16 * (k * n + k);
-        this.simd.reflectPair(u, u - 16 * n, this.yAt + 16 * (c0 * n + k), n - k, count, 16 * n, betas[k], betas[k - 1]);
+        this.simd.reflectPair(u, u - 16 * n, this.yAt + 16 * (c0 * n + k), n - k, block, 16 * n, betas[k], betas[k - 1]);
       }
-      if (k === 0) this.simd.reflectPair(16, 16, this.yAt + 16 * (c0 * n + 1), n - 1, count, 16 * n, betas[0], 0);
+      if (k === 0) this.simd.reflectPair(16, 16, this.yAt + 16 * (c0 * n + 1), n - 1, block, 16 * n, betas[0], 0);
     }
+  }
+
+  /** The vectors in the rows of y into the columns of vecs. */
+  private transposeInto(vecs: CMatrix, vo: number, n: number): void {
+    const y = this.y;
     for (let col = 0; col < n; col++) {
       const row = 2 * col * n;
       for (let i = 0; i < n; i++) {
@@ -385,6 +511,14 @@ export class HermitianEigensolver {
       }
     }
   }
+}
+
+/** Where `solveLowest` wants its vectors once the eigenvalues are known (count x n, zeroed). */
+type Lowest = (values: Float64Array) => Float64Array;
+
+function checkCount(m: number, n: number): number {
+  if (!Number.isInteger(m) || m < 0 || m > n) throw new RangeError(`eigensolver: the count of vectors must be an integer from 0 to ${n}. Value: ${m}`);
+  return m;
 }
 
 function nonFinite(n: number, h: ArrayLike<number>, ho: number): RangeError {

@@ -6,8 +6,11 @@
  * special care.
  */
 import type { CMatrix } from './cmatrix.js';
+import { eigenphaseWorkspace, type EigenphaseKernels } from './simd.js';
 
 const EPS = 2 ** -52;
+/** Steps of a QR sweep whose column rotations are applied together to the rows above them. */
+const DEFER = 32;
 /** Phases within this of -pi are reported as +pi. */
 const BRANCH_CUT = -Math.PI + 64 * EPS;
 
@@ -30,7 +33,18 @@ export class UnitaryEigenphases {
   private readonly a: Float64Array;
   private readonly q: Float64Array;
   private readonly u: Float64Array;
-  private readonly s: Float64Array;
+  /**
+   * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s and s2 (the dots) and of the
+   * deferred column rotations (rot, a view at rotAt) in their memory.
+   */
+  private readonly simd: EigenphaseKernels;
+  private readonly uAt: number;
+  private readonly sAt: number;
+  private readonly s2At: number;
+  /** The two dot vectors (at sAt and s2At). */
+  private readonly dots: Float64Array;
+  private readonly rotAt: number;
+  private readonly rot: Float64Array;
   private readonly raw: Float64Array;
   private readonly rawPhase: Float64Array;
   private readonly order: Int32Array;
@@ -39,10 +53,18 @@ export class UnitaryEigenphases {
     if (!Number.isInteger(n) || n < 1) throw new RangeError(`eigenphase solver size must be a positive integer. Value: ${n}`);
     this.n = n;
     this.eigenvalues = new Float64Array(2 * n);
-    this.a = new Float64Array(2 * n * n);
+    // a (at byte 0), u and s live in the memory of the SIMD kernels (ours during a call).
+    this.uAt = 16 * n * n;
+    this.sAt = this.uAt + 16 * n;
+    this.s2At = this.sAt + 16 * n;
+    this.rotAt = this.s2At + 16 * n;
+    const { kernels, memory } = eigenphaseWorkspace(this.rotAt + 48 * DEFER);
+    this.rot = new Float64Array(memory, this.rotAt, 6 * DEFER);
+    this.dots = new Float64Array(memory, this.sAt, 4 * n);
+    this.simd = kernels;
+    this.a = new Float64Array(memory, 0, 2 * n * n);
     this.q = new Float64Array(2 * n * n);
-    this.u = new Float64Array(2 * n);
-    this.s = new Float64Array(2 * n);
+    this.u = new Float64Array(memory, this.uAt, 2 * n);
     this.raw = new Float64Array(2 * n);
     this.rawPhase = new Float64Array(n);
     this.order = new Int32Array(n);
@@ -132,7 +154,10 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const u = this.u;
-    const s = this.s;
+    // s: the left dots of the current reflector; sNext: those of the next, formed (but for the
+    // correction of their first row) in the current pass over the matrix.
+    let sAt = this.sAt, sNext = this.s2At;
+    let ready = false;
     for (let k = 0; k < n - 2; k++) {
       let tail = 0;
       for (let i = k + 2; i < n; i++) {
@@ -140,7 +165,10 @@ export class UnitaryEigenphases {
         const xi = a[2 * (i * n + k) + 1];
         tail += xr * xr + xi * xi;
       }
-      if (tail === 0) continue;
+      if (tail === 0) {
+        ready = false;
+        continue;
+      }
       const x0r = a[2 * ((k + 1) * n + k)];
       const x0i = a[2 * ((k + 1) * n + k) + 1];
       const ax0 = Math.sqrt(x0r * x0r + x0i * x0i);
@@ -154,35 +182,32 @@ export class UnitaryEigenphases {
         u[2 * i] = a[2 * (i * n + k)];
         u[2 * i + 1] = a[2 * (i * n + k) + 1];
       }
-      // Left: rows k+1.., columns k+1.. (column k becomes alpha e1): s_j = sum_i conj(u_i) A_ij.
-      for (let j = k + 1; j < n; j++) s[2 * j] = s[2 * j + 1] = 0;
-      for (let i = k + 1; i < n; i++) {
-        const ur = u[2 * i];
-        const ui = u[2 * i + 1];
-        const row = 2 * i * n;
-        for (let j = k + 1; j < n; j++) {
-          const xr = a[row + 2 * j];
-          const xi = a[row + 2 * j + 1];
-          s[2 * j] += ur * xr + ui * xi;
-          s[2 * j + 1] += ur * xi - ui * xr;
+      // s_j = sum_i conj(u_i) A_ij over rows and columns k+1.. (column k becomes alpha e1): from
+      // the previous pass, which summed with u_{k+1} = x_{k+1}, plus the difference on row k+1.
+      const k1 = k + 1;
+      if (ready) {
+        const s = this.dots, s0 = (sAt - this.sAt) / 8;
+        const dr = u[2 * k1] - x0r, di = u[2 * k1 + 1] - x0i;
+        for (let j = k1; j < n; j++) {
+          const yr = a[2 * (k1 * n + j)], yi = a[2 * (k1 * n + j) + 1];
+          s[s0 + 2 * j] += dr * yr + di * yi;
+          s[s0 + 2 * j + 1] += dr * yi - di * yr;
         }
+      } else {
+        this.simd.columnDots(16 * (k1 * n + k1), 16 * n, this.uAt + 16 * k1, sAt + 16 * k1, n - k1);
       }
-      for (let i = k + 1; i < n; i++) {
-        const ur = beta * u[2 * i];
-        const ui = beta * u[2 * i + 1];
-        const row = 2 * i * n;
-        for (let j = k + 1; j < n; j++) {
-          const sr = s[2 * j];
-          const si = s[2 * j + 1];
-          a[row + 2 * j] -= ur * sr - ui * si;
-          a[row + 2 * j + 1] -= ur * si + ui * sr;
-        }
+      // A <- P A P on columns k+1.. (left on rows k+1.., right on every row), one pass (SIMD),
+      // with the next reflector's dots when there is a next one.
+      ready = k + 1 < n - 2;
+      if (ready) {
+        this.simd.similarityDots(0, 16 * n, this.uAt, sAt, n, k1, beta, sNext);
+        [sAt, sNext] = [sNext, sAt];
+      } else {
+        this.simd.similarityRows(0, 16 * n, this.uAt, sAt, n, k1, beta);
       }
       a[2 * ((k + 1) * n + k)] = -cr * sigma;
       a[2 * ((k + 1) * n + k) + 1] = -ci * sigma;
       for (let i = k + 2; i < n; i++) a[2 * (i * n + k)] = a[2 * (i * n + k) + 1] = 0;
-      // Right: every row, columns k+1..: A <- A - beta (A u) u^dagger.
-      applyRight(n, a, u, k + 1, beta);
       if (wantVectors) applyRight(n, this.q, u, k + 1, beta);
     }
   }
@@ -192,6 +217,11 @@ export class UnitaryEigenphases {
     const n = this.n;
     const a = this.a;
     const q = this.q;
+    const rot = this.rot;
+    const identity = (t: number) => {
+      rot[6 * t] = rot[6 * t + 1] = 1;
+      rot[6 * t + 2] = rot[6 * t + 3] = rot[6 * t + 4] = rot[6 * t + 5] = 0;
+    };
     let hi = n - 1;
     let iter = 0;
     while (hi > 0) {
@@ -256,11 +286,25 @@ export class UnitaryEigenphases {
         }
       }
       // Implicit QR sweep over the active block [l, hi]: chase the bulge with Givens rotations.
+      // A column rotation at step k reaches rows l..k+2; the rows above k0 (which no row
+      // rotation of steps k0.. touches) get those of DEFER steps at once, row by row, instead of
+      // one strided pass per step (a skipped step is recorded as the identity).
+      let k0 = l;
+      for (let t = 0; t < DEFER; t++) identity(t);
+      const flush = (from: number): void => {
+        const steps = Math.min(DEFER, hi - from);
+        if (from > l) this.simd.rotateRows(16 * (l * n + from), 16 * n, from - l, this.rotAt, steps);
+        for (let t = 0; t < steps; t++) identity(t);
+      };
       let fr = a[2 * (l * n + l)] - mr;
       let fi = a[2 * (l * n + l) + 1] - mi;
       let gr = a[2 * ((l + 1) * n + l)];
       let gi = a[2 * ((l + 1) * n + l) + 1];
       for (let k = l; k < hi; k++) {
+        if (k - k0 === DEFER) {
+          flush(k0);
+          k0 = k;
+        }
         if (k > l) {
           fr = a[2 * (k * n + k - 1)];
           fi = a[2 * (k * n + k - 1) + 1];
@@ -288,19 +332,19 @@ export class UnitaryEigenphases {
         const j0 = k > l ? k - 1 : l;
         const rk = 2 * k * n;
         const rk1 = rk + 2 * n;
-        for (let j = j0; j <= hi; j++) {
-          const xr = a[rk + 2 * j], xi = a[rk + 2 * j + 1];
-          const yr = a[rk1 + 2 * j], yi = a[rk1 + 2 * j + 1];
-          a[rk + 2 * j] = c * xr + sr * yr - si * yi;
-          a[rk + 2 * j + 1] = c * xi + sr * yi + si * yr;
-          a[rk1 + 2 * j] = c * yr - (sr * xr + si * xi);
-          a[rk1 + 2 * j + 1] = c * yi - (sr * xi - si * xr);
-        }
+        this.simd.rotatePair(8 * (rk + 2 * j0), 8 * (rk1 + 2 * j0), hi - j0 + 1, c, sr, si);
         if (k > l) a[rk1 + 2 * (k - 1)] = a[rk1 + 2 * (k - 1) + 1] = 0;
-        const iEnd = Math.min(k + 2, hi);
-        rotateColumns(n, a, k, l, iEnd, c, sr, si);
+        const t = 6 * (k - k0);
+        rot[t] = rot[t + 1] = c;
+        rot[t + 2] = rot[t + 3] = sr;
+        rot[t + 4] = si;
+        rot[t + 5] = -si;
+        // Now on rows k0..k+2 (those above wait for the flush): one rotation, rows stride apart.
+        const i0 = Math.max(l, k0), iEnd = Math.min(k + 2, hi);
+        this.simd.rotateRows(16 * (i0 * n + k), 16 * n, iEnd - i0 + 1, this.rotAt + 8 * t, 1);
         if (wantVectors) rotateColumns(n, q, k, 0, n - 1, c, sr, si);
       }
+      flush(k0);
     }
   }
 }

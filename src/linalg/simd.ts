@@ -4,8 +4,9 @@
  *
  * The module is assembled here, byte by byte, by a small emitter: the engine stays one set of
  * TypeScript sources (no toolchain, no .wasm file to load, no async start-up), and the module is
- * small enough (1.6 kB; browsers compile up to 4 kB synchronously even on a page's main thread) to
- * compile synchronously anywhere: Node, a browser Web Worker, a cluster shard. Only baseline
+ * small enough (3.2 kB, and 1.3 kB for a second module on the same memory; browsers compile up to
+ * 4 kB synchronously even on a page's main thread) to compile synchronously anywhere: Node, a
+ * browser Web Worker, a cluster shard. Only baseline
  * SIMD128 is used (no relaxed SIMD, which Node 20 lacks).
  *
  * Memory: users share one instance and its memory (calls are synchronous, so a user's data lives
@@ -17,13 +18,27 @@
  */
 
 /** The few WebAssembly declarations used here (the engine is compiled without DOM or Node types). */
-interface WasmMemory {
+export interface WasmMemory {
   readonly buffer: ArrayBuffer;
 }
-interface WasmApi {
+export interface WasmApi {
   Module: new (bytes: Uint8Array) => object;
   Instance: new (module: object, imports: object) => { readonly exports: Record<string, unknown> };
   Memory: new (descriptor: { initial: number; maximum?: number }) => WasmMemory;
+}
+
+/** Kernels of the general eigenvalue problem (eigphases.ts), a module of their own (see below). */
+export interface EigenphaseKernels {
+  /** A QR sweep's row rotation of two rows (see rotatePair below). */
+  rotatePair(x: number, y: number, len: number, c: number, sr: number, si: number): void;
+  /** A QR sweep's column rotations, several at once, row by row (see rotateRows below). */
+  rotateRows(a: number, stride: number, rows: number, rot: number, steps: number): void;
+  /** s = u^dagger A over an m x m block (see columnDots below). */
+  columnDots(a: number, stride: number, u: number, s: number, m: number): void;
+  /** A <- P A P from s = u^dagger A, on indices k1.. of an n x n matrix (see similarityRows below). */
+  similarityRows(a: number, stride: number, u: number, s: number, n: number, k1: number, beta: number): void;
+  /** similarityRows, and next_j = sum_{i > k1} conj(A'_{i,k1}) A'_ij (j > k1) in the same pass. */
+  similarityDots(a: number, stride: number, u: number, s: number, n: number, k1: number, beta: number, next: number): void;
 }
 
 /** Kernels (see their generators below for what each computes). */
@@ -32,17 +47,19 @@ export interface SimdKernels {
   reflectPair(u: number, v: number, y: number, len: number, count: number, stride: number, betaU: number, betaV: number): void;
   /** p = B w over an m x m Hermitian block B stored in its upper triangle (rows stride bytes apart). */
   hermitianTimes(b: number, stride: number, w: number, p: number, m: number): void;
-  /** With p = beta B u on entry: q = p - (beta/2)(u^dagger p) u, then B -= u q^dagger + q u^dagger. */
-  householderUpdate(b: number, stride: number, u: number, p: number, m: number, beta: number): void;
   /** Real C = A B, row-major and contiguous: A m x k, B k x cols, C m x cols; cols a multiple of 4. */
   realProduct(a: number, b: number, c: number, m: number, k: number, cols: number): void;
+  /** Rows from..to-1 of B -= u q^dagger + q u^dagger, q prepared (see rank2Rows below). */
+  rank2Update(b: number, stride: number, u: number, q: number, from: number, to: number, m: number): void;
+  /** rank2Update, and p = B' w (indices 1..m-1) from the updated rows in the same pass. */
+  rank2Times(b: number, stride: number, u: number, q: number, from: number, to: number, m: number, w: number, p: number): void;
 }
 
 // --- the emitter -------------------------------------------------------------------------------
 
-const I32 = 0x7f;
-const F64 = 0x7c;
-const V128 = 0x7b;
+export const I32 = 0x7f;
+export const F64 = 0x7c;
+export const V128 = 0x7b;
 
 function uleb(x: number): number[] {
   const out: number[] = [];
@@ -79,7 +96,7 @@ function f64Bytes(...xs: number[]): number[] {
 const SWAP = [8, 9, 10, 11, 12, 13, 14, 15, 0, 1, 2, 3, 4, 5, 6, 7];
 
 /** One function body: typed locals and a byte stream of instructions, with a few composite helpers. */
-class Body {
+export class Body {
   readonly code: number[] = [];
   private readonly locals: number[] = [];
 
@@ -355,37 +372,43 @@ function hermitianTimes(): Body {
 }
 
 /**
- * householderUpdate(b, stride, u, q, m, beta): with q = beta B u on entry (B the block at b as in
- * hermitianTimes, u the reflector), q -= (beta/2)(u^dagger q) u, then B_ij -= u_i conj(q_j) +
- * q_i conj(u_j) for j >= i: B becomes P B P with P = I - beta u u^dagger.
+ * rank2Update(b, stride, u, q, from, to, m) and, with `product`, rank2Times(..., w, p): with
+ * q = beta B u - (beta^2/2)(u^dagger B u) u (prepared by the caller), rows from..to-1 of the m x m
+ * block B at b get B_ij -= u_i conj(q_j) + q_i conj(u_j) for j >= i: B <- P B P for the reflector
+ * P = I - beta u u^dagger (upper triangle). rank2Times also forms, from each row as soon as it is updated, p = B' w over indices
+ * 1..m-1 (hermitianTimes' arithmetic, in its order; w_0 and p_0 untouched): the next reflector's
+ * product, in the same pass over the matrix instead of a second one.
  */
-function householderUpdate(): Body {
-  const [b, stride, u, q, m, beta] = [0, 1, 2, 3, 4, 5];
-  const f = new Body([I32, I32, I32, I32, I32, F64]);
-  const i = f.local(I32);
-  const iEnd = f.local(I32);
-  const row = f.local(I32);
-  const j = f.local(I32);
-  const [c1, c2, c3, c4, ui, qi, uu, qq] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
-  f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
-  // q *= beta, and Re(u^dagger q) = sum of both lanes of u * q.
-  f.get(beta).splat().set(c1).vzero().set(c2);
+function rank2Rows(product: boolean): Body {
+  const [b, stride, u, q, from, to, m, w, p] = [0, 1, 2, 3, 4, 5, 6, 7, 8];
+  const f = new Body(product ? [I32, I32, I32, I32, I32, I32, I32, I32, I32] : [I32, I32, I32, I32, I32, I32, I32]);
+  const i = f.local(I32), iEnd = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
+  const [c1, c2, c3, c4, ui, qi, uu, qq, x] = Array.from({ length: 9 }, () => f.local(V128));
+  const [wi, wa, wb, ww, m1, m2] = Array.from({ length: 6 }, () => f.local(V128));
+  const bii = f.local(F64);
+  /** x = B_ij - u_i conj(q_j) - q_i conj(u_j), stored back; j the local byte offset. */
+  const update = (): void => {
+    f.get(q).get(j).add().vload().set(qq);
+    f.get(u).get(j).add().vload().set(uu);
+    f.get(row).get(j).add().vload();
+    f.get(qq).get(c1).vmul().vsub();
+    f.swapped(qq).get(c2).vmul().vsub();
+    f.get(uu).get(c3).vmul().vsub();
+    f.swapped(uu).get(c4).vmul().vsub();
+    f.set(x);
+    f.get(row).get(j).add().get(x).vstore();
+  };
+  f.get(m).i32(16).mul().set(jEnd);
+  if (product) {
+    f.i32(16).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(p).get(j).add().vzero().vstore();
+    });
+  }
+  f.get(from).i32(16).mul().set(i);
+  f.get(to).i32(16).mul().set(iEnd);
+  f.get(b).get(from).get(stride).mul().add().set(row);
   f.forBytes(i, iEnd, 16, () => {
-    f.get(q).get(i).add().vload().get(c1).vmul().set(qq);
-    f.get(q).get(i).add().get(qq).vstore();
-    f.get(u).get(i).add().vload().get(qq).accumulate(c2);
-  });
-  f.get(c2).lane(0).get(c2).lane(1).fadd().get(beta).f64(0.5).fmul().fmul().splat().set(c1);
-  f.i32(0).set(i);
-  f.forBytes(i, iEnd, 16, () => {
-    f.get(q).get(i).add();
-    f.get(q).get(i).add().vload().get(u).get(i).add().vload().get(c1).vmul().vsub();
-    f.vstore();
-  });
-  f.i32(0).set(i);
-  f.get(b).set(row);
-  f.forBytes(i, iEnd, 16, () => {
-    // u_i conj(q_j) = q_j (uir, -uir) + swap(q_j) (uii, uii); likewise q_i conj(u_j).
     f.get(u).get(i).add().vload().set(ui);
     f.get(q).get(i).add().vload().set(qi);
     f.get(ui).lane(0).plusMinus().set(c1);
@@ -393,17 +416,35 @@ function householderUpdate(): Body {
     f.get(qi).lane(0).plusMinus().set(c3);
     f.get(qi).lane(1).splat().set(c4);
     f.get(i).set(j);
-    f.forBytes(j, iEnd, 16, () => {
-      f.get(q).get(j).add().vload().set(qq);
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(row).get(j).add(); // store address
-      f.get(row).get(j).add().vload();
-      f.get(qq).get(c1).vmul().vsub();
-      f.swapped(qq).get(c2).vmul().vsub();
-      f.get(uu).get(c3).vmul().vsub();
-      f.swapped(uu).get(c4).vmul().vsub();
+    if (!product) {
+      f.forBytes(j, jEnd, 16, update);
+    } else {
+      update(); // the diagonal
+      f.get(x).lane(0).set(bii);
+      f.get(w).get(i).add().vload().set(wi);
+      f.get(wi).lane(0).plusMinus().set(wa);
+      f.get(wi).lane(1).splat().set(wb);
+      f.vzero().set(m1).vzero().set(m2);
+      f.get(i).i32(16).add().set(j);
+      f.forBytes(j, jEnd, 16, () => {
+        update();
+        f.get(w).get(j).add().vload().set(ww);
+        f.get(x).get(ww).accumulate(m1);
+        f.get(x).swapped(ww).accumulate(m2);
+        f.get(p).get(j).add();
+        f.get(p).get(j).add().vload();
+        f.get(x).get(wa).vmul().vadd();
+        f.swapped(x).get(wb).vmul().vadd();
+        f.vstore();
+      });
+      f.get(p).get(i).add();
+      f.get(p).get(i).add().vload();
+      f.get(m1).lane(0).get(m1).lane(1).fsub().splat();
+      f.get(m2).lane(0).get(m2).lane(1).fadd().simd(0x22, 1);
+      f.vadd();
+      f.get(bii).splat().get(wi).vmul().vadd();
       f.vstore();
-    });
+    }
     f.get(row).get(stride).add().set(row);
   });
   return f;
@@ -475,13 +516,245 @@ function realProduct(): Body {
   return f;
 }
 
+/**
+ * columnDots(a, stride, u, s, m): s_j = sum_i conj(u_i) A_ij over an m x m block at a (rows
+ * stride bytes apart), two rows per pass over s: the left half of a Householder similarity.
+ */
+function columnDots(): Body {
+  const [a, stride, u, s, m] = [0, 1, 2, 3, 4];
+  const f = new Body([I32, I32, I32, I32, I32]);
+  const i = f.local(I32), iEnd = f.local(I32), pairEnd = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
+  const [c1, d1, c2, d2, x, acc] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.i32(0).set(j).get(m).i32(16).mul().set(jEnd);
+  f.forBytes(j, jEnd, 16, () => {
+    f.get(s).get(j).add().vzero().vstore();
+  });
+  /** conj(u_i) x = ur (xr, xi) + (ui, -ui) (xi, xr): the coefficients of row `which` of the pair. */
+  const coefficients = (offset: number, c: number, d: number): void => {
+    f.get(u).get(i).add().fload(offset).splat().set(c);
+    f.get(u).get(i).add().fload(offset + 8).plusMinus().set(d);
+  };
+  f.i32(0).set(i).get(m).i32(16).mul().set(iEnd);
+  f.get(iEnd).i32(-32).and().set(pairEnd);
+  f.get(a).set(row);
+  f.forBytes(i, pairEnd, 32, () => {
+    coefficients(0, c1, d1);
+    coefficients(16, c2, d2);
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(s).get(j).add().vload().set(acc);
+      f.get(row).get(j).add().vload().set(x);
+      f.get(c1).get(x).accumulate(acc);
+      f.get(d1).swapped(x).accumulate(acc);
+      f.get(row).get(stride).add().get(j).add().vload().set(x);
+      f.get(c2).get(x).accumulate(acc);
+      f.get(d2).swapped(x).accumulate(acc);
+      f.get(s).get(j).add().get(acc).vstore();
+    });
+    f.get(row).get(stride).i32(2).mul().add().set(row);
+  });
+  f.get(i).get(iEnd).ltU().when(() => {
+    coefficients(0, c1, d1);
+    f.i32(0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(s).get(j).add().vload().set(acc);
+      f.get(row).get(j).add().vload().set(x);
+      f.get(c1).get(x).accumulate(acc);
+      f.get(d1).swapped(x).accumulate(acc);
+      f.get(s).get(j).add().get(acc).vstore();
+    });
+  });
+  return f;
+}
+
+/**
+ * similarityRows(a, stride, u, s, n, k1, beta): A <- P A P for P = I - beta u u^dagger acting on
+ * indices k1.. (u stored at those indices), given s = u^dagger A (columnDots), row by row, each row
+ * once: rows i >= k1 first get A_ij -= beta u_i s_j, then every row gets A_ij -= t conj(u_j) with
+ * t = beta sum_j A_ij u_j; columns j >= k1 only.
+ */
+function similarityRows(dots: boolean): Body {
+  const [a, stride, u, s, n, k1, beta, next] = [0, 1, 2, 3, 4, 5, 6, 7];
+  const f = new Body(dots ? [I32, I32, I32, I32, I32, I32, F64, I32] : [I32, I32, I32, I32, I32, I32, F64]);
+  const i = f.local(I32), iEnd = f.local(I32), leftFrom = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32), j0 = f.local(I32);
+  const [c, d, x, m1, m2, uu] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  const [tr, ti, ur, ui] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
+  f.get(k1).i32(16).mul().set(j0);
+  f.get(n).i32(16).mul().set(jEnd);
+  f.get(k1).i32(16).mul().set(leftFrom);
+  f.i32(0).set(i).get(n).i32(16).mul().set(iEnd);
+  if (dots) {
+    // next_j = 0 for j > k1
+    f.get(j0).i32(16).add().set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(next).get(j).add().vzero().vstore();
+    });
+  }
+  f.get(a).set(row);
+  f.forBytes(i, iEnd, 16, () => {
+    f.get(i).get(leftFrom).op(0x4f).when(() => {
+      // c = beta u_i: row -= (cr, cr) s + (-ci, ci) swap(s)
+      f.get(u).get(i).add().fload().get(beta).fmul().set(ur);
+      f.get(u).get(i).add().fload(8).get(beta).fmul().set(ui);
+      f.get(ur).splat().set(c);
+      f.get(ui).fneg().plusMinus().set(d);
+      f.get(j0).set(j);
+      f.forBytes(j, jEnd, 16, () => {
+        f.get(row).get(j).add();
+        f.get(row).get(j).add().vload();
+        f.get(s).get(j).add().vload().set(x);
+        f.get(c).get(x).vmul().vsub();
+        f.get(d).swapped(x).vmul().vsub();
+        f.vstore();
+      });
+    });
+    // t = beta sum_j A_ij u_j: lanes (xr ur, xi ui) and (xr ui, xi ur).
+    f.vzero().set(m1).vzero().set(m2);
+    f.get(j0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(row).get(j).add().vload().set(x);
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(x).get(uu).accumulate(m1);
+      f.get(x).swapped(uu).accumulate(m2);
+    });
+    f.get(m1).lane(0).get(m1).lane(1).fsub().get(beta).fmul().set(tr);
+    f.get(m2).lane(0).get(m2).lane(1).fadd().get(beta).fmul().set(ti);
+    // row -= t conj(u) = (tr, -tr) u + (ti, ti) swap(u)
+    f.get(tr).plusMinus().set(c);
+    f.get(ti).splat().set(d);
+    f.get(j0).set(j);
+    f.forBytes(j, jEnd, 16, () => {
+      f.get(u).get(j).add().vload().set(uu);
+      f.get(row).get(j).add();
+      f.get(row).get(j).add().vload();
+      f.get(c).get(uu).vmul().vsub();
+      f.get(d).swapped(uu).vmul().vsub();
+      f.vstore();
+    });
+    if (dots) {
+      // Rows below k1: next_j += conj(x_i) A_ij (j > k1), x_i = A_{i,k1} as just updated.
+      f.get(i).get(leftFrom).op(0x4b).when(() => {
+        f.get(row).get(j0).add().vload().set(x);
+        f.get(x).lane(0).splat().set(c);
+        f.get(x).lane(1).plusMinus().set(d); // (xi, -xi)
+        f.get(j0).i32(16).add().set(j);
+        f.forBytes(j, jEnd, 16, () => {
+          f.get(row).get(j).add().vload().set(uu);
+          f.get(next).get(j).add();
+          f.get(next).get(j).add().vload().set(m1);
+          f.get(c).get(uu).accumulate(m1);
+          f.get(d).swapped(uu).accumulate(m1);
+          f.get(m1).vstore();
+        });
+      });
+    }
+    f.get(row).get(stride).add().set(row);
+  });
+  return f;
+}
+
+/**
+ * rotatePair(x, y, len, c, sr, si): rows x, y (len complex entries) of a QR sweep's row rotation,
+ * x <- c x + s y, y <- c y - conj(s) x, s = sr + i si.
+ */
+function rotatePair(): Body {
+  const [x, y, len, c, sr, si] = [0, 1, 2, 3, 4, 5];
+  const f = new Body([I32, I32, I32, F64, F64, F64]);
+  const j = f.local(I32), jEnd = f.local(I32);
+  const [cv, sv, pv, xv, yv] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.get(c).splat().set(cv);
+  f.get(sr).splat().set(sv);
+  f.get(si).plusMinus().set(pv); // (si, -si)
+  f.i32(0).set(j).get(len).i32(16).mul().set(jEnd);
+  f.forBytes(j, jEnd, 16, () => {
+    f.get(x).get(j).add().vload().set(xv);
+    f.get(y).get(j).add().vload().set(yv);
+    f.get(x).get(j).add();
+    f.get(cv).get(xv).vmul().get(sv).get(yv).vmul().vadd().get(pv).swapped(yv).vmul().vsub();
+    f.vstore();
+    f.get(y).get(j).add();
+    f.get(cv).get(yv).vmul().get(sv).get(xv).vmul().vsub().get(pv).swapped(xv).vmul().vsub();
+    f.vstore();
+  });
+  return f;
+}
+
+/**
+ * rotateRows(a, stride, rows, rot, steps): in each of `rows` rows (stride bytes apart, from a),
+ * the column rotations of `steps` consecutive column pairs in order: entries x, y of pair t become
+ * c x + conj(s) y and c y - s x. Rotation t is stored at rot + 48 t as (c, c), (sr, sr), (si, -si).
+ */
+function rotateRows(): Body {
+  const [a, stride, rows, rot, steps] = [0, 1, 2, 3, 4];
+  const f = new Body([I32, I32, I32, I32, I32]);
+  const row = f.local(I32), rowEnd = f.local(I32), pairEnd = f.local(I32), p = f.local(I32), t = f.local(I32), tEnd = f.local(I32);
+  const [cv, sv, pv] = [f.local(V128), f.local(V128), f.local(V128)];
+  const xv = [f.local(V128), f.local(V128)], yv = [f.local(V128), f.local(V128)];
+  f.get(a).set(row);
+  f.get(a).get(rows).get(stride).mul().add().set(rowEnd);
+  f.get(a).get(rows).i32(-2).and().get(stride).mul().add().set(pairEnd);
+  f.get(rot).get(steps).i32(48).mul().add().set(tEnd);
+  /** The address on the stack moved to row r of the pair (the second one stride bytes below). */
+  const inRow = (r: number): void => {
+    if (r > 0) f.get(stride).add();
+  };
+  /** `count` rows from `row`: independent chains of rotations, run side by side. */
+  const rowsAt = (count: number): void => {
+    f.get(row).set(p);
+    for (let r = 0; r < count; r++) {
+      f.get(p);
+      inRow(r);
+      f.vload().set(xv[r]);
+    }
+    f.get(rot).set(t);
+    f.forBytes(t, tEnd, 48, () => {
+      f.get(t).vload().set(cv);
+      f.get(t).vload(16).set(sv);
+      f.get(t).vload(32).set(pv);
+      for (let r = 0; r < count; r++) {
+        f.get(p);
+        inRow(r);
+        f.vload(16).set(yv[r]);
+        f.get(p);
+        inRow(r);
+        f.get(cv).get(xv[r]).vmul().get(sv).get(yv[r]).vmul().vadd().get(pv).swapped(yv[r]).vmul().vadd();
+        f.vstore();
+        f.get(cv).get(yv[r]).vmul().get(sv).get(xv[r]).vmul().vsub().get(pv).swapped(xv[r]).vmul().vadd().set(xv[r]);
+      }
+      f.get(p).i32(16).add().set(p);
+    });
+    for (let r = 0; r < count; r++) {
+      f.get(p);
+      inRow(r);
+      f.get(xv[r]).vstore();
+    }
+  };
+  f.forBytes(row, pairEnd, [stride], () => {
+    rowsAt(2);
+    f.get(row).get(stride).add().set(row);
+  });
+  f.get(row).get(rowEnd).ltU().when(() => rowsAt(1));
+  return f;
+}
+
 function moduleBytes(): Uint8Array {
-  const kernels: [string, Body][] = [
+  return assemble([
     ['reflectPair', reflectPair()],
     ['hermitianTimes', hermitianTimes()],
-    ['householderUpdate', householderUpdate()],
     ['realProduct', realProduct()],
-  ];
+  ]);
+}
+
+/** The reduction's rank-2 kernels: a second module on the same memory, to keep each small. */
+function rank2ModuleBytes(): Uint8Array {
+  return assemble([
+    ['rank2Update', rank2Rows(false)],
+    ['rank2Times', rank2Rows(true)],
+  ]);
+}
+
+/** A module of the named functions, each exported, all sharing one imported memory (m.memory). */
+export function assemble(kernels: [string, Body][]): Uint8Array {
   const types = kernels.map(([, f]) => [0x60, ...vec(f.params.map((t) => [t])), 0]);
   const bytes = [
     0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00,
@@ -494,31 +767,47 @@ function moduleBytes(): Uint8Array {
   return Uint8Array.from(bytes);
 }
 
-const wasm = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
+export const wasm = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
 const PAGE = 65536;
 /** WebAssembly's 32-bit memory holds at most 65536 pages (4 GB). */
 const MAX_PAGES = 65536;
-let compiled: object | null = null;
-let current: { kernels: SimdKernels; memory: ArrayBuffer } | null = null;
 
 /**
- * The kernels and a memory of at least `bytes` bytes, shared with other users (see above). Keep
- * both: a later, larger request may move the others on to a new instance.
+ * A shared workspace of the kernels of one or more modules (see the module comment above):
+ * `get(bytes)` returns the kernels and a memory of at least `bytes` bytes, shared with other users
+ * and by the modules' instances. Keep both: a later, larger request may move the others on to a
+ * new instance. The modules are compiled on first use.
  */
-export function simdWorkspace(bytes: number): { kernels: SimdKernels; memory: ArrayBuffer } {
-  if (current !== null && current.memory.byteLength >= bytes) return current;
-  // At least double, so that a run of growing sizes makes few instances.
-  const needed = Math.ceil(bytes / PAGE);
-  const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((current?.memory.byteLength ?? 0) / PAGE)));
-  let memory: WasmMemory;
-  try {
-    if (needed > MAX_PAGES) throw new RangeError('too large');
-    memory = new wasm.Memory({ initial: pages, maximum: pages });
-  } catch {
-    throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
-  }
-  compiled ??= new wasm.Module(moduleBytes());
-  const kernels = new wasm.Instance(compiled, { m: { memory } }).exports as unknown as SimdKernels;
-  current = { kernels, memory: memory.buffer };
-  return current;
+export function workspaces<K>(...modules: (() => Uint8Array)[]): (bytes: number) => { kernels: K; memory: ArrayBuffer } {
+  let compiled: object[] | null = null;
+  let current: { kernels: K; memory: ArrayBuffer } | null = null;
+  return (bytes) => {
+    if (current !== null && current.memory.byteLength >= bytes) return current;
+    // At least double, so that a run of growing sizes makes few instances.
+    const needed = Math.ceil(bytes / PAGE);
+    const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((current?.memory.byteLength ?? 0) / PAGE)));
+    let memory: WasmMemory;
+    try {
+      if (needed > MAX_PAGES) throw new RangeError('too large');
+      memory = new wasm.Memory({ initial: pages, maximum: pages });
+    } catch {
+      throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
+    }
+    compiled ??= modules.map((bytesOf) => new wasm.Module(bytesOf()));
+    const kernels = Object.assign({}, ...compiled.map((module) => new wasm.Instance(module, { m: { memory } }).exports)) as K;
+    current = { kernels, memory: memory.buffer };
+    return current;
+  };
 }
+
+/** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */
+export const simdWorkspace = workspaces<SimdKernels>(moduleBytes, rank2ModuleBytes);
+
+/** The general eigenvalue problem's kernels (a module apart to keep each small). */
+export const eigenphaseWorkspace = workspaces<EigenphaseKernels>(() => assemble([
+  ['columnDots', columnDots()],
+  ['similarityRows', similarityRows(false)],
+  ['similarityDots', similarityRows(true)],
+  ['rotatePair', rotatePair()],
+  ['rotateRows', rotateRows()],
+]));

@@ -4,6 +4,8 @@
  * step at E_F (kpm.ts; Weisse et al., RMP 78, 275 (2006)). For each orbital r of a cell:
  *   a = P e_r,  c = y a - P (y a),  C(r) = -4 pi s Im <x a | c>,
  * two series per orbital, only a few vectors of the sample's length alive: memory linear in it.
+ * The series of GROUP orbitals run as one batch (ChebyshevBatch, kpm.ts: one pass over the matrix
+ * per step for all of them), first P e_r at orders N and N/2, then P (y a) for both.
  *
  * Checks: the marker again with the series cut at N/2 (`halfOrderMarker`; their difference is the
  * convergence check), and the local density of states at E_F at each cell from the moments of the
@@ -20,7 +22,7 @@ import { HermitianEigensolver } from '../linalg/eigh.js';
 import { ModelError } from '../model/errors.js';
 import { refuseIfTooLarge } from './budget.js';
 import { checkTwoDimensional } from './bott.js';
-import { chebyshevApply, chebyshevScaling, checkOrder, deltaCoefficients, scaledEnergy, stepCoefficients } from './kpm.js';
+import { ChebyshevBatch, chebyshevScaling, checkOrder, deltaCoefficients, scaledEnergy, stepCoefficients } from './kpm.js';
 import { checkCells, edgeDistance, type LocalMarkerResult } from './marker.js';
 import { checkFermiOptions, type FermiOptions } from './occupied.js';
 import { buildSample, checkSampleOptions, sampleCost, type Sample, type SampleOptions } from './sample.js';
@@ -31,6 +33,9 @@ export interface ChebyshevMarkerOptions extends SampleOptions, Pick<FermiOptions
   /** Cells to report; default the centre cell. */
   cells?: number[][];
 }
+
+/** Orbitals whose series run together: two series each, so one batch holds 2 GROUP of them. */
+const GROUP = 2;
 
 /** The clean crystal's gap middle at half filling, and the gap. */
 export function cleanGapMiddle(h: BlochHamiltonian): { energy: number; gap: number } {
@@ -66,8 +71,9 @@ export function chebyshevMarkerCost(orbitals: number, terms: number, options: Ch
   const order = typeof options.order === 'number' ? options.order : 1000;
   const chosen = Array.isArray(options.cells) ? options.cells.length : 1;
   const base = sampleCost(orbitals, terms, sizes);
-  // three recursion vectors, outputs a, a(N/2), y a, c and x a: ten of 2n doubles
-  return { bytes: base.bytes + 10 * 16 * n, seconds: base.seconds + chosen * orbitals * 2.5 * order * entries(orbitals, terms, cells) * 8e-9 };
+  // the batch (a copy of the matrix, its vectors) and a, a(N/2), y a for GROUP orbitals
+  const nonzeros = entries(orbitals, terms, cells);
+  return { bytes: base.bytes + ChebyshevBatch.bytes(n, nonzeros) + 4 * GROUP * 16 * n, seconds: base.seconds + chosen * orbitals * 2.5 * order * entries(orbitals, terms, cells) * 8e-9 };
 }
 
 export function chebyshevMarker(h: BlochHamiltonian, options: ChebyshevMarkerOptions): LocalMarkerResult {
@@ -93,50 +99,67 @@ export function chebyshevMarkerOfSample(sample: Sample, fermiEnergy: number, fer
   const half = Math.max(2, Math.floor(order / 2));
   const full = stepCoefficients(xF, order), halved = stepCoefficients(xF, half);
   const delta = deltaCoefficients(xF, order);
-  const work: [Float64Array, Float64Array, Float64Array] = [new Float64Array(len), new Float64Array(len), new Float64Array(len)];
-  const e = new Float64Array(len), a = new Float64Array(len), aHalf = new Float64Array(len), ya = new Float64Array(len), pya = new Float64Array(len);
-  const moments = new Float64Array(order);
   const x = (i: number) => sample.positions[i * dim];
   const y = (i: number) => sample.positions[i * dim + 1];
-  /** -4 pi s Im <x a | y a - P(y a)>, with P applied by the series `coefficients`. */
-  const markerOf = (a: Float64Array, coefficients: Float64Array) => {
-    for (let i = 0; i < n; i++) {
-      ya[2 * i] = y(i) * a[2 * i];
-      ya[2 * i + 1] = y(i) * a[2 * i + 1];
-    }
-    chebyshevApply(sample.hamiltonian, s, [coefficients], ya, [pya], work);
-    let im = 0;
-    for (let i = 0; i < n; i++) {
-      const xr = x(i) * a[2 * i], xi = x(i) * a[2 * i + 1];
-      const cr = ya[2 * i] - pya[2 * i], ci = ya[2 * i + 1] - pya[2 * i + 1];
-      im += xr * ci - xi * cr;
-    }
-    return -4 * Math.PI * sample.orientation * im;
-  };
   const count = chosen.length;
   const marker = new Float64Array(count), halfMarker = new Float64Array(count), ldos = new Float64Array(count);
   const distance = new Int32Array(count);
   const index = new Map<string, number>();
   chosen.forEach((c, k) => index.set(c.join(','), k));
+  const targets: { r: number; k: number }[] = [];
   for (let r = 0; r < n; r++) {
     const k = index.get(Array.from(sample.cells.subarray(r * dim, (r + 1) * dim)).join(','));
-    if (k === undefined) continue;
-    e.fill(0);
-    e[2 * r] = 1;
-    chebyshevApply(sample.hamiltonian, s, [full, halved], e, [a, aHalf], work, { index: r, moments });
-    let local = 0;
-    for (let m = 0; m < order; m++) local += delta[m] * moments[m];
-    ldos[k] += local / s.halfWidth;
-    marker[k] += markerOf(a, full);
-    halfMarker[k] += markerOf(aHalf, halved);
+    if (k !== undefined) targets.push({ r, k });
+  }
+  // Orbitals GROUP at a time: both series of each share the batch's passes over the matrix.
+  const batch = new ChebyshevBatch(sample.hamiltonian, s);
+  const vectors = (count: number) => Array.from({ length: count }, () => new Float64Array(len));
+  const a = vectors(GROUP), aHalf = vectors(GROUP), ya = vectors(2 * GROUP);
+  const moments = Array.from({ length: GROUP }, () => new Float64Array(order));
+  /** -4 pi s Im <x a | y a - P(y a)>, P(y a) in pya. */
+  const markerOf = (a: Float64Array, pya: Float64Array) => {
+    let im = 0;
+    for (let i = 0; i < n; i++) {
+      const xr = x(i) * a[2 * i], xi = x(i) * a[2 * i + 1];
+      const cr = y(i) * a[2 * i] - pya[2 * i], ci = y(i) * a[2 * i + 1] - pya[2 * i + 1];
+      im += xr * ci - xi * cr;
+    }
+    return -4 * Math.PI * sample.orientation * im;
+  };
+  const scaleByY = (a: Float64Array, out: Float64Array) => {
+    for (let i = 0; i < n; i++) {
+      out[2 * i] = y(i) * a[2 * i];
+      out[2 * i + 1] = y(i) * a[2 * i + 1];
+    }
+  };
+  for (let g = 0; g < targets.length; g += GROUP) {
+    const group = targets.slice(g, g + GROUP);
+    // a = P e_r at orders N and N/2, with the local moments of the first series.
+    batch.run(group.map(({ r }, j) => {
+      ya[j].fill(0);
+      ya[j][2 * r] = 1;
+      return { input: ya[j], coefficients: [full, halved], outputs: [a[j], aHalf[j]], probe: { index: r, moments: moments[j] } };
+    }));
+    // P (y a), each at its own order; the results replace the inputs.
+    batch.run(group.flatMap((_, j) => {
+      scaleByY(a[j], ya[2 * j]);
+      scaleByY(aHalf[j], ya[2 * j + 1]);
+      return [
+        { input: ya[2 * j], coefficients: [full], outputs: [ya[2 * j]] },
+        { input: ya[2 * j + 1], coefficients: [halved], outputs: [ya[2 * j + 1]] },
+      ];
+    }));
+    group.forEach(({ k }, j) => {
+      let local = 0;
+      for (let m = 0; m < order; m++) local += delta[m] * moments[j][m];
+      ldos[k] += local / s.halfWidth;
+      marker[k] += markerOf(a[j], ya[2 * j]);
+      halfMarker[k] += markerOf(aHalf[j], ya[2 * j + 1]);
+    });
   }
   chosen.forEach((c, k) => (distance[k] = edgeDistance(c, sample.sizes)));
   const warnings: string[] = [];
-  const present = new Set<number>();
-  for (let r = 0; r < n; r++) {
-    const k = index.get(Array.from(sample.cells.subarray(r * dim, (r + 1) * dim)).join(','));
-    if (k !== undefined) present.add(k);
-  }
+  const present = new Set(targets.map((t) => t.k));
   chosen.forEach((c, k) => {
     if (present.has(k)) return;
     marker[k] = halfMarker[k] = NaN;

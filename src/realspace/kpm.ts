@@ -9,6 +9,7 @@
  */
 import { checkInterrupt } from '../interrupt.js';
 import { ModelError, valueText } from '../model/errors.js';
+import { MAX_BATCH, MAX_OUTPUTS, MAX_TOTAL_OUTPUTS, realspaceWorkspace, type RealspaceKernels } from './kernels.js';
 import { gershgorinBounds, matvec, type SparseMatrix } from './sparse.js';
 
 export interface ChebyshevScaling {
@@ -173,3 +174,118 @@ export function localMoments(h: SparseMatrix, s: ChebyshevScaling, order: number
   }
   return out;
 }
+
+/** One series of a `ChebyshevBatch` run: outputs[t] = sum_n coefficients[t][n] T_n(H~) input. */
+export interface ChebyshevSeries {
+  input: Float64Array;
+  coefficients: Float64Array[];
+  outputs: Float64Array[];
+  /** moments[n] receives the real part of component `index` of T_n(H~) input (n < its length). */
+  probe?: { index: number; moments: Float64Array };
+}
+
+/**
+ * `chebyshevApply` for up to MAX_BATCH vectors at once, on the SIMD kernel of kernels.ts: the
+ * matrix is streamed once per step for the whole batch (it is most of the memory traffic), and
+ * each series stops at its own order. Same recursion, same sums, so the same results to rounding.
+ * The matrix is copied into the kernels' memory at construction; keep the batch only for the
+ * duration of one computation (the memory is shared between calls, see src/linalg/simd.ts).
+ */
+export class ChebyshevBatch {
+  private readonly kernels: RealspaceKernels;
+  private readonly memory: ArrayBuffer;
+  private readonly n: number;
+  /** Byte addresses of rowStart, columns, values and of the vector slots. */
+  private readonly at: { rowStart: number; columns: number; values: number; slots: number };
+
+  /** Bytes of the kernels' memory for a matrix of n rows and `entries` entries. */
+  static bytes(n: number, entries: number): number {
+    const align = (b: number) => Math.ceil(b / 16) * 16;
+    return align(4 * (n + 1)) + align(4 * entries) + 16 * entries + SLOTS * 16 * n;
+  }
+
+  constructor(h: SparseMatrix, private readonly s: ChebyshevScaling) {
+    const n = h.n, entries = h.rowStart[n];
+    const align = (b: number) => Math.ceil(b / 16) * 16;
+    const rowStart = 0, columns = align(4 * (n + 1)), values = columns + align(4 * entries);
+    this.at = { rowStart, columns, values, slots: values + 16 * entries };
+    const { kernels, memory } = realspaceWorkspace(ChebyshevBatch.bytes(n, entries));
+    this.kernels = kernels;
+    this.memory = memory;
+    this.n = n;
+    new Int32Array(memory, rowStart, n + 1).set(h.rowStart);
+    new Int32Array(memory, columns, entries).set(h.columns.subarray(0, entries));
+    new Float64Array(memory, values, 2 * entries).set(h.values.subarray(0, 2 * entries));
+  }
+
+  private slot(k: number): Float64Array {
+    return new Float64Array(this.memory, this.at.slots + 16 * this.n * k, 2 * this.n);
+  }
+
+  /**
+   * Runs the series: at most MAX_BATCH, the same number of outputs each (1 to MAX_OUTPUTS), at
+   * most MAX_TOTAL_OUTPUTS outputs in all.
+   */
+  run(series: ChebyshevSeries[]): void {
+    const q = series[0]?.coefficients.length ?? 0;
+    if (series.length < 1 || series.length > MAX_BATCH || q < 1 || q > MAX_OUTPUTS || series.length * q > MAX_TOTAL_OUTPUTS || series.some((x) => x.coefficients.length !== q || x.outputs.length !== q)) {
+      throw new RangeError(`ChebyshevBatch: 1 to ${MAX_BATCH} series with the same number (1 to ${MAX_OUTPUTS}) of coefficient sets and outputs, at most ${MAX_TOTAL_OUTPUTS} outputs in all`);
+    }
+    const len = 2 * this.n, bytes = 16 * this.n;
+    const orderOf = (x: ChebyshevSeries) => Math.max(...x.coefficients.map((c) => c.length), x.probe?.moments.length ?? 0);
+    // Longest first: the active series are always a prefix.
+    const jobs = series.map((x) => ({ x, order: orderOf(x) })).sort((a, b) => b.order - a.order);
+    const k = jobs.length;
+    // Slots: three recursion vectors per series (rotating), then q outputs per series.
+    const ring = jobs.map((_, j) => [3 * j, 3 * j + 1, 3 * j + 2]);
+    const outSlot = (j: number, t: number) => 3 * MAX_BATCH + j * q + t;
+    jobs.forEach(({ x }, j) => {
+      const t0 = this.slot(ring[j][0]);
+      t0.set(x.input.subarray(0, len));
+      this.slot(ring[j][2]).fill(0);
+      for (let t = 0; t < q; t++) {
+        const o = this.slot(outSlot(j, t)), c0 = x.coefficients[t].length > 0 ? x.coefficients[t][0] : 0;
+        for (let i = 0; i < len; i++) o[i] = c0 * t0[i];
+      }
+      if (x.probe !== undefined && x.probe.moments.length > 0) x.probe.moments[0] = t0[2 * x.probe.index];
+    });
+    const address = (slot: number) => this.at.slots + bytes * slot;
+    const { centre, halfWidth } = this.s;
+    const args: number[] = [];
+    for (let step = 1; ; step++) {
+      let active = 0;
+      while (active < k && jobs[active].order > step) active++;
+      if (active === 0) break;
+      // Step 1: T_1 = H~ T_0 (f = 1/a, prev = the zeroed slot); later T_n = 2 H~ T_{n-1} - T_{n-2}.
+      const f = (step === 1 ? 1 : 2) / halfWidth;
+      args.length = 0;
+      args.push(this.at.rowStart, this.at.columns, this.at.values, this.n, f, f * centre);
+      for (let j = 0; j < active; j++) {
+        const [prev, cur, next] = step === 1 ? [ring[j][2], ring[j][0], ring[j][1]] : ring[j];
+        args.push(address(cur), address(prev), address(next));
+      }
+      for (let j = 0; j < active; j++) for (let t = 0; t < q; t++) args.push(address(outSlot(j, t)));
+      for (let j = 0; j < active; j++) {
+        for (let t = 0; t < q; t++) {
+          const c = jobs[j].x.coefficients[t];
+          args.push(step < c.length ? c[step] : 0);
+        }
+      }
+      this.kernels[`step${active}x${q}`](...args);
+      for (let j = 0; j < active; j++) {
+        const r = ring[j];
+        // After step 1: prev = T_0, cur = T_1, next = the spare; afterwards rotate.
+        ring[j] = step === 1 ? [r[0], r[1], r[2]] : [r[1], r[2], r[0]];
+        const probe = jobs[j].x.probe;
+        if (probe !== undefined && step < probe.moments.length) probe.moments[step] = this.slot(ring[j][1])[2 * probe.index];
+      }
+      if ((step & 63) === 0) checkInterrupt();
+    }
+    jobs.forEach(({ x }, j) => {
+      for (let t = 0; t < q; t++) x.outputs[t].set(this.slot(outSlot(j, t)));
+    });
+  }
+}
+
+/** Vector slots of a batch: three recursion vectors per series, then the outputs. */
+const SLOTS = 3 * MAX_BATCH + MAX_TOTAL_OUTPUTS;

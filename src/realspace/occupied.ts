@@ -39,9 +39,7 @@ export interface SpectrumAtFermi {
 
 export interface OccupiedStates {
   values: Float64Array;
-  /** All eigenvectors as columns (n x n), ascending energies. */
-  vectors: Float64Array;
-  /** The occupied frame, n x m (row = orbital, column = state). */
+  /** The occupied frame, n x m (row = orbital, column = state), ascending energies. */
   frame: Float64Array;
   checks: SpectrumAtFermi;
 }
@@ -87,17 +85,22 @@ export function spectrumAtFermi(values: Float64Array, options: FermiOptions, per
   return { fermiEnergy, fermiRule, occupied, spectralGap, spectrum: [lo, hi], gapless, warnings };
 }
 
-/** The sample's eigenstates and those below the Fermi energy. */
+/** The sample's spectrum and the states below the Fermi energy (only those are computed). */
 export function occupiedStates(sample: Sample, options: FermiOptions): OccupiedStates {
   const n = sample.size;
   const values = new Float64Array(n);
-  const vectors = new Float64Array(2 * n * n);
-  new HermitianEigensolver(n).solve(toDense(sample.hamiltonian), values, vectors);
-  const checks = spectrumAtFermi(values, options, sample.boundary.every((b) => b === 'periodic'));
+  const periodic = sample.boundary.every((b) => b === 'periodic');
+  const rows = new HermitianEigensolver(n).solveLowest(toDense(sample.hamiltonian), values, (spectrum) => spectrumAtFermi(spectrum, options, periodic).occupied);
+  const checks = spectrumAtFermi(values, options, periodic);
   const m = checks.occupied;
   const frame = new Float64Array(2 * n * m);
-  for (let i = 0; i < n; i++) frame.set(vectors.subarray(2 * i * n, 2 * i * n + 2 * m), 2 * i * m);
-  return { values, vectors, frame, checks };
+  for (let j = 0; j < m; j++) {
+    for (let i = 0; i < n; i++) {
+      frame[2 * (i * m + j)] = rows[2 * (j * n + i)];
+      frame[2 * (i * m + j) + 1] = rows[2 * (j * n + i) + 1];
+    }
+  }
+  return { values, frame, checks };
 }
 
 /** Dense memory of n orbitals: the matrix, its eigenvectors, the solver's scratch and the frames. */

@@ -275,7 +275,7 @@ describe('HermitianEigensolver', () => {
     expect(() => new HermitianEigensolver(0)).toThrow(/size must be a positive integer. Value: 0/);
     expect(() => new HermitianEigensolver(2.5)).toThrow(/Value: 2.5/);
     // Workspace beyond what 32-bit WebAssembly memory can hold (4 GB; WebAssembly spec limit).
-    expect(() => new HermitianEigensolver(12000)).toThrow(/could not allocate 7692 MB of workspace.*Value: 8065344000 bytes/);
+    expect(() => new HermitianEigensolver(12000)).toThrow(/could not allocate 7692 MB of workspace.*Value: 8065536000 bytes/);
     const s = new HermitianEigensolver(3);
     expect(() => s.solve(new Float64Array(10), new Float64Array(3))).toThrow(/h must hold 18 entries from offset 0. Value: length 10/);
     expect(() => s.solve(new Float64Array(18), new Float64Array(2))).toThrow(/w must hold 3 entries/);
@@ -596,5 +596,55 @@ describe('ComplexPfaffian', () => {
     const expected = xs.reduce((p, x) => mul(p, x), complex(1, 0));
     const pf = pfaffian(n, a);
     expect(Math.hypot(pf[0] - expected.re, pf[1] - expected.im)).toBeLessThan(1e-14);
+  });
+});
+
+describe('HermitianEigensolver.solveLowest', () => {
+  it('gives the lowest eigenvectors of solve, bit for bit, as rows, with the count chosen from the values', () => {
+    for (const n of [1, 2, 3, 30, 75]) {
+      const h = randomHermitian(n, uniform(900 + n));
+      const solver = new HermitianEigensolver(n);
+      const w = new Float64Array(n), vecs = new Float64Array(2 * n * n);
+      solver.solve(h, w, vecs);
+      for (const pick of [0, Math.floor(n / 2), n]) {
+        const w2 = new Float64Array(n);
+        let seen: number[] = [];
+        const rows = solver.solveLowest(h, w2, (values) => {
+          seen = Array.from(values);
+          return pick;
+        });
+        expect(seen).toEqual(Array.from(w));
+        expect(Array.from(w2)).toEqual(Array.from(w));
+        expect(rows.length).toBe(2 * pick * n);
+        for (let j = 0; j < pick; j++) {
+          for (let i = 0; i < n; i++) {
+            expect(rows[2 * (j * n + i)]).toBe(vecs[2 * (i * n + j)]);
+            expect(rows[2 * (j * n + i) + 1]).toBe(vecs[2 * (i * n + j) + 1]);
+          }
+        }
+      }
+      expect(() => solver.solveLowest(h, new Float64Array(n), () => n + 1)).toThrow(RangeError);
+    }
+  });
+});
+
+describe('UnitaryEigenphases on a general matrix (the Bott index passes one)', () => {
+  it('gives the eigenvalues numpy.linalg.eigvals gives (LAPACK zgeev), odd and even sizes', () => {
+    for (const n of [5, 40, 97]) {
+      const next = uniform(4100 + n);
+      const w = Float64Array.from({ length: 2 * n * n }, next);
+      const solver = new UnitaryEigenphases(n);
+      solver.solve(w, new Float64Array(n));
+      const theirs = numpy<number[][]>('e = np.linalg.eigvals(inp["w"]); out = [[float(z.real), float(z.imag)] for z in e]', { w: { data: w, shape: [n, n], complex: true } });
+      // Match each of ours to the nearest of theirs (all distinct for a random matrix).
+      const left = theirs.slice();
+      for (let i = 0; i < n; i++) {
+        const re = solver.eigenvalues[2 * i], im = solver.eigenvalues[2 * i + 1];
+        let best = 0;
+        for (let j = 1; j < left.length; j++) if (Math.hypot(left[j][0] - re, left[j][1] - im) < Math.hypot(left[best][0] - re, left[best][1] - im)) best = j;
+        expect(Math.hypot(left[best][0] - re, left[best][1] - im)).toBeLessThan(1e-10 * n);
+        left.splice(best, 1);
+      }
+    }
   });
 });
