@@ -20,106 +20,27 @@
  */
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { ModelError, valueText } from '../model/errors.js';
-import type { ModelSpec } from '../model/spec.js';
 import { BandSampler } from '../spectra/common.js';
 import { chernNumber } from '../topology/chern.js';
 import { z2Index } from '../topology/z2.js';
+import { judge, type BoundaryInvariant, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type EdgeCount } from './boundary-result.js';
 import { zoneBandRanges, energyInGap } from './bulk-gap.js';
-import { chainEnds, type EndCount } from './chain-ends.js';
-import { cutInfo, wholeNumber, type CutInfo } from './common.js';
+import { chainEnds } from './chain-ends.js';
+import { cutInfo, wholeNumber } from './common.js';
 import { lineCrossings, type EdgeMode } from './crossings.js';
-import type { ProjectedNode } from './fermi-map.js';
-import type { CutSpec } from './layers.js';
-import { checkedInvariant, judge, openSample, thinSample } from './open-sample.js';
-import { slabSurfaces, type SurfaceCount } from './surface-count.js';
+import { checkedInvariant, openSample, thinSample } from './open-sample.js';
+import { slabSurfaces } from './surface-count.js';
 
 export type { EdgeMode } from './crossings.js';
-export type { EndCount, EndMode } from './chain-ends.js';
-export type { ArcLine, ArcStep, DiracPoint, SurfaceCount } from './surface-count.js';
+export type {
+  ArcLine, ArcStep, BoundaryInvariant, BoundaryKind, BoundaryVerdict, BulkBoundaryOptions, BulkBoundaryResult, DiracPoint, EdgeCount, EndCount, EndMode, SurfaceCount,
+} from './boundary-result.js';
 
-/**
- * What the count is compared with: 'winding' (chiral chains) or 'majorana' (BdG chains) in 1D,
- * 'chern' or 'z2' in 2D, 'z2' (strong and weak indices) or 'weyl' (the Weyl nodes' chiralities)
- * in 3D; a result says 'none' for a chain no invariant protects.
- */
-export type BoundaryInvariant = 'chern' | 'z2' | 'winding' | 'majorana' | 'weyl' | 'none';
 
-/** Which boundary was counted: the two ends of a chain, the two edges of a ribbon, the two surfaces of a slab. */
-export type BoundaryKind = 'end' | 'edge' | 'surface';
 
-export interface BulkBoundaryOptions {
-  /** The boundary: a periodic direction to cut open, or Miller indices of the lattice planes (1D: 0). */
-  cut: CutSpec;
-  /** The energy (default: the middle of the gap between the lower and the upper half of the bands; 3D Weyl: the nodes' energy). Chiral and BdG chains count at E = 0. */
-  energy?: number;
-  /** Default: 1D 'winding' for a chiral chain, 'majorana' for a BdG one; 2D 'z2' when the orbitals carry spin, else 'chern'; 3D 'z2' when they carry spin, else 'weyl'. */
-  invariant?: Exclude<BoundaryInvariant, 'none'>;
-  /** Lattice planes of the open sample (default 64 cells of a chain, 32 lines of a ribbon, 24 planes of a slab). */
-  width?: number;
-  /** Layers counted as each end, edge or surface (default a tenth of the width, at least 2). */
-  edgeLayers?: number;
-  /** k-points along each closed line of the edge or surface zone: 2D, and 3D Weyl (default 256; chains and the 3D Z2 count at fixed k use none). */
-  nk?: number;
-  /** 1D chiral chains: orbital labels of sublattice A, as `windingNumber` takes them (default: found by two-colouring). */
-  sublattice?: string[];
-  /**
-   * An open sample to count on instead of the plain one (a model with `layer` on its orbitals and
-   * one periodic direction fewer than the bulk, e.g. the plain ribbon with a decorated edge); the
-   * invariant is still the bulk's.
-   */
-  ribbon?: ModelSpec;
-}
 
-export interface EdgeCount {
-  modes: EdgeMode[];
-  right: number;
-  left: number;
-  /** right - left. */
-  net: number;
-  /** Kramers pairs (z2: the number of right movers), or null for chern. */
-  pairs: number | null;
-  /** What the invariant requires of this edge: the net count (chern) or the pairs' parity (z2). */
-  expected: number | null;
-  /** The count has the invariant's value. */
-  agrees: boolean | null;
-  /** Modes beyond the least number the invariant requires (an even number when it agrees). */
-  extra: number;
-}
 
-export type BoundaryVerdict = 'agree' | 'extra-modes' | 'disagree' | 'undetermined';
 
-export interface BulkBoundaryResult {
-  kind: 'bulk-boundary';
-  boundary: BoundaryKind;
-  cut: CutInfo;
-  energy: number;
-  /** The bulk gap the energy lies in: highest band below, lowest band above (sampled); null for a Weyl semimetal (gapless at its nodes). */
-  bulkGap: [number, number] | null;
-  /** Bulk bands below the energy. */
-  bands: number;
-  /**
-   * The bulk invariant: its value (winding W, Majorana number, C, Z2 or the strong index nu0;
-   * 'weyl': the number of Weyl nodes counted with |chirality|; null when not certain), whether it
-   * is certified, and in 3D z2 the weak indices (nu1, nu2, nu3).
-   */
-  invariant: { kind: BoundaryInvariant; value: number | null; certified: boolean; weak?: (number | null)[] };
-  /** Lattice planes of the open sample, and how many at each boundary were counted as it. */
-  width: number;
-  edgeLayers: number;
-  /** 1D: the chain's first end (cell 0) and last end. */
-  ends?: { first: EndCount; last: EndCount };
-  /** 2D: the ribbon's first edge (layer 0) and last edge. */
-  edges?: { first: EdgeCount; last: EdgeCount };
-  /** 3D: the slab's bottom surface (layer 0; the sample on its +A_3 side) and top surface. */
-  surfaces?: { bottom: SurfaceCount; top: SurfaceCount };
-  /** 3D Weyl: the bulk nodes, projected onto the surface zone. */
-  nodes?: ProjectedNode[];
-  /** 'agree': every boundary has exactly the modes the invariant requires; 'extra-modes': the invariant's value, with trivial pairs beside; 'disagree': not its value; 'undetermined': no certain invariant, no invariant at all, or a mode on neither boundary. */
-  verdict: BoundaryVerdict;
-  /** The verdict in words: the invariant, the count on each boundary, what disagrees. */
-  summary: string;
-  checks: { warnings: string[]; grid: number[] };
-}
 
 /** Count the boundary modes of an open sample and compare them with the bulk invariant. */
 export function bulkBoundary(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBoundaryResult {

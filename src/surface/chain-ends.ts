@@ -25,34 +25,13 @@ import type { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler } from '../spectra/common.js';
 import { majoranaNumber, windingNumber } from '../topology/chiral.js';
-import type { BoundaryInvariant, BoundaryVerdict, BulkBoundaryOptions, BulkBoundaryResult } from './bulk-boundary.js';
 import { zoneBandRanges, energyInGap } from './bulk-gap.js';
 import { cutInfo } from './common.js';
 import { column, expectation, rotateByDiagonal, weightOn } from './crossings.js';
-import { checkedInvariant, judge, openSample, thinSample } from './open-sample.js';
+import { judge, type BoundaryInvariant, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type EndCount, type EndMode } from './boundary-result.js';
+import { checkedInvariant, openSample, thinSample } from './open-sample.js';
 
-export interface EndMode {
-  /** <H> of the mode (near the energy of the count). */
-  energy: number;
-  /** Its weight on this end's outer `edgeLayers` cells. */
-  weight: number;
-  /** Chiral chains: <Gamma>, +1 all on sublattice A, -1 all on B; null otherwise. */
-  polarisation: number | null;
-}
 
-export interface EndCount {
-  modes: EndMode[];
-  /** Chiral chains: modes on sublattice A and B (polarisation above 1/2, below -1/2); null otherwise. */
-  sublatticeA: number | null;
-  sublatticeB: number | null;
-  /** What the count is compared with: N_A - N_B (winding) or the number of modes (Majorana). */
-  net: number;
-  /** What the invariant requires: N_A - N_B = +W (first end) or -W (last end); Majorana: 1 for M = -1, 0 for +1. */
-  expected: number | null;
-  agrees: boolean | null;
-  /** Modes beyond the least number the invariant requires (an even number when it agrees). */
-  extra: number;
-}
 
 
 /** The 1D check: zero modes at the two ends of an open chain. */

@@ -2,7 +2,7 @@
 import { BlochHamiltonian } from '../bloch/hamiltonian.js';
 import { ModelError, valueText } from '../model/errors.js';
 import { validateModel } from '../model/validate.js';
-import type { BoundaryInvariant, BoundaryVerdict, BulkBoundaryOptions } from './bulk-boundary.js';
+import type { BoundaryInvariant, BulkBoundaryOptions } from './boundary-result.js';
 import { wholeNumber } from './common.js';
 import { principalLayers, type PrincipalLayers } from './layers.js';
 import { openSlab } from './slab.js';
@@ -65,16 +65,4 @@ export function thinSample(h: BlochHamiltonian, sample: OpenSample, delta: numbe
   const decay = h.variationBound(sample.layers.miller.map(Math.abs), false) / delta;
   if (sample.width >= DECAY_LENGTHS * decay) return null;
   return `the ${what} (${sample.width} planes) spans fewer than ${DECAY_LENGTHS} decay lengths of its boundary modes (up to ${decay.toPrecision(3)} planes each: D / delta, the Combes–Thomas bound, with the gap ${delta.toPrecision(3)} from the energy): its two sides may hybridise, so no verdict; raise width to at least ${Math.ceil(DECAY_LENGTHS * decay)}`;
-}
-
-/**
- * The verdict on the two boundaries' counts: 'undetermined' when the caller could not tell, else
- * 'disagree' when a count does not have the invariant's value, 'extra-modes' when it has it with
- * trivial modes beside, 'agree' otherwise. The same for ends, edges and surfaces.
- */
-export function judge(undetermined: boolean, counts: readonly { agrees: boolean | null; extra: number }[]): BoundaryVerdict {
-  if (undetermined) return 'undetermined';
-  if (counts.some((c) => !c.agrees)) return 'disagree';
-  if (counts.some((c) => c.extra > 0)) return 'extra-modes';
-  return 'agree';
 }

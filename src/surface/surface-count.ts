@@ -32,62 +32,17 @@ import { ModelError, valueText } from '../model/errors.js';
 import { BandSampler } from '../spectra/common.js';
 import { weylPoints } from '../topology/weyl.js';
 import { z2Index } from '../topology/z2.js';
-import type { BoundaryInvariant, BulkBoundaryOptions, BulkBoundaryResult } from './bulk-boundary.js';
 import { bandRanges, energyInGap, zoneBandRanges, type BandRanges } from './bulk-gap.js';
 import { cutInfo, projectToSurface, wholeNumber } from './common.js';
-import { column, expectation, lineCrossings, rotateByDiagonal, type EdgeMode } from './crossings.js';
+import { column, expectation, lineCrossings, rotateByDiagonal } from './crossings.js';
 import type { ProjectedNode } from './fermi-map.js';
 import type { PrincipalLayers } from './layers.js';
-import { checkedInvariant, judge, openSample, thinSample, type OpenSample } from './open-sample.js';
+import { judge, type ArcLine, type ArcStep, type BoundaryInvariant, type BulkBoundaryOptions, type BulkBoundaryResult, type DiracPoint, type SurfaceCount } from './boundary-result.js';
+import { checkedInvariant, openSample, thinSample, type OpenSample } from './open-sample.js';
 
-/** A surface Dirac point: a Kramers pair of surface states at a surface TRIM. */
-export interface DiracPoint {
-  /** The surface TRIM, fractions of the surface reciprocal vectors (0 or 1/2). */
-  kPar: number[];
-  /** The pair's mean <H>. */
-  energy: number;
-}
 
-/** The modes of one surface crossing the energy along a line k'_axis = at of the surface zone. */
-export interface ArcLine {
-  /** The surface coordinate held fixed (0: along A_1, 1: along A_2) and its value (fractions). */
-  axis: number;
-  at: number;
-  /** Crossings (k in fractions along the other surface axis), null when the bulk plane is not gapped at the energy. */
-  modes: EdgeMode[] | null;
-  right: number;
-  left: number;
-  /** right - left along the other axis. */
-  net: number;
-}
 
-/** From one line to the next: the change of the net count against the nodes in between. */
-export interface ArcStep {
-  from: number;
-  to: number;
-  /** Total chirality of the nodes projected between the lines (null when one is not certain). */
-  chirality: number | null;
-  /** net(to) - net(from). */
-  jump: number;
-  /** What the chirality requires of the jump (the sign rule above). */
-  expected: number | null;
-  agrees: boolean | null;
-}
 
-export interface SurfaceCount {
-  /** Z2: the Dirac points found at the surface TRIMs. */
-  cones?: DiracPoint[];
-  /** Weyl: the lines between the node projections, and the steps between them. */
-  lines?: ArcLine[];
-  steps?: ArcStep[];
-  /** Z2: Dirac points; Weyl: crossings on all lines. */
-  count: number;
-  /** Z2: the least number of Dirac points the indices require (parity nu0); Weyl: the total |chirality| of the steps. */
-  expected: number | null;
-  agrees: boolean | null;
-  /** Z2: Dirac points beyond the least number; Weyl: crossings beyond the net counts (trivial pairs). */
-  extra: number;
-}
 
 /** 3 x 3 inverse of the cut's integer basis (rows A_i, in old lattice units): k = A^-1 k'. */
 function inverse3(a: number[][]): number[][] {
