@@ -1,6 +1,6 @@
 /**
  * Real-space samples and invariants (src/realspace) against sources outside the project: a Python
- * transcription of the published generators, Bloch's theorem, published Chern numbers and numpy
+ * rewrite of the published generators, Bloch's theorem, published Chern numbers and numpy
  * (Debian's /usr/bin/python3) running the same algorithms on the same seeded samples.
  */
 import { spawnSync } from 'node:child_process';
@@ -36,7 +36,7 @@ function python(script: string, input: unknown = null): unknown {
 }
 
 describe('seeded generator', () => {
-  it('matches a Python transcription of splitmix64 seeding and xoshiro128** (Blackman & Vigna, ACM TOMS 47, 36 (2021))', () => {
+  it('matches a Python rewrite of splitmix64 seeding and xoshiro128** (Blackman & Vigna, ACM TOMS 47, 36 (2021))', () => {
     const script = String.raw`
 import json, sys
 M64 = (1 << 64) - 1
