@@ -2,23 +2,14 @@
 // Physics references as in tests/browser: Haldane, PRL 61, 2015 (1988); Qi, Wu, Zhang, PRB 74,
 // 085308 (2006); Kane & Mele, PRL 95, 226801 (2005).
 import { describe, expect, it } from 'vitest';
+import { runFigure as run } from './figure-runs.js';
 import { haldane, kaneMele, qwz } from '../../src/index.js';
-import { computeView } from '../../src/views.js';
 import { gapAbove } from '../../figures/bands.js';
 import { integerOrValue } from '../../figures/curvature.js';
 import { wrapBreaks } from '../../figures/flow.js';
-import { figureFor, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
+import { figureFor, tableFor, toCsv } from '../../figures/index.js';
 import { phaseColours } from '../../figures/phase-map.js';
-import type { DiagnosticRequest, DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
-
-type Trace = Record<string, unknown> & { name?: string; type?: string };
-
-function run(spec: ModelSpecView, kind: DiagnosticRequest['kind'], options: Record<string, unknown>, params: Record<string, number> = {}) {
-  const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-  const result = computeView({ ...options, kind, model: spec, params: values });
-  const ctx: FigureContext = { spec, values, options };
-  return { result, ctx, figure: figureFor(result, ctx), traces: figureFor(result, ctx).data as Trace[] };
-}
+import type { DiagnosticResult } from '../../contract/protocol.js';
 
 describe('curvature figure', () => {
   it('QWZ (square lattice): a picture of the reduced zone relative to max|Ω|, an invisible heatmap for hover, a colour bar centred on zero', () => {

@@ -4,22 +4,12 @@
 // sign in the convention of /work/shared/references.md); Bianco & Resta, PRB 84, 241106 (2011)
 // (the marker sums to 0 over an open sample: the trace of a commutator); Haldane, PRL 61, 2015 (1988).
 import { describe, expect, it } from 'vitest';
+import { runFigure as run, type Trace } from './figure-runs.js';
 import { haldane, qwz, ssh } from '../../src/index.js';
-import { computeView } from '../../src/views.js';
-import { figureFor, figureTitle, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
+import { figureFor, figureTitle, tableFor, toCsv } from '../../figures/index.js';
 import { SEQUENTIAL } from '../../figures/realspace.js';
 import { drawFigure } from '../../figures/snapshot/figure.js';
-import type { DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
-
-type Trace = Record<string, unknown> & { name?: string; type?: string };
-
-function run(spec: ModelSpecView, kind: string, options: Record<string, unknown>, params: Record<string, number> = {}) {
-  const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-  const result = computeView({ ...options, kind, model: spec, params: values }) as unknown as DiagnosticResult;
-  const ctx: FigureContext = { spec, values, options };
-  const figure = figureFor(result, ctx);
-  return { result, ctx, figure, traces: figure.data as Trace[] };
-}
+import type { DiagnosticResult } from '../../contract/protocol.js';
 
 describe('local Chern marker figure', () => {
   const { result, figure, traces, ctx } = run(qwz(), 'local-marker', { sizes: [12, 12] }, { u: -1 });

@@ -8,6 +8,7 @@
 //   Fu, Kane & Mele, PRL 98, 106803 (2007): a strong 3D topological insulator has an odd number of
 //     surface Dirac cones (cubicTI at M/B = 2: inverted at Γ only, one cone at Γ̄).
 import { describe, expect, it } from 'vitest';
+import { runFigure as run } from './figure-runs.js';
 import { compute, cubicTI, qwz, ssh, weyl2band } from '../../src/index.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { PLOTLY_MIME, WIDGET_KINDS } from '../../contract/protocol.js';
@@ -15,19 +16,9 @@ import { checkWidgetOptions, widgetState } from '../../kernel/widget-state.js';
 import { diagnosticStateProblem } from '../../contract/state-check.js';
 import { putBuffers, removeBuffers, unpackArrays } from '../../contract/wire.js';
 import { computeView } from '../../src/views.js';
-import { figureFor, figureTitle, tableFor, toCsv, type FigureContext } from '../../figures/index.js';
+import { figureFor, figureTitle, tableFor, toCsv } from '../../figures/index.js';
 import { DECADES, PANELS } from '../../figures/spectral.js';
-import type { DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
-
-type Trace = Record<string, unknown> & { name?: string; type?: string };
-
-function run(spec: ModelSpecView, kind: string, options: Record<string, unknown>, params: Record<string, number> = {}) {
-  const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-  const result = computeView({ ...options, kind, model: spec, params: values }) as unknown as DiagnosticResult;
-  const ctx: FigureContext = { spec, values, options };
-  const figure = figureFor(result, ctx);
-  return { result, ctx, figure, traces: figure.data as Trace[] };
-}
+import type { DiagnosticResult } from '../../contract/protocol.js';
 
 /** Folds a difference of momenta (units of b) into [-1/2, 1/2). */
 const wrap = (d: number) => d - Math.floor(d + 0.5);
