@@ -10,7 +10,7 @@
 import { existsSync } from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import { BlochHamiltonian } from '../src/bloch/hamiltonian.js';
-import { kaneMele, weyl2band } from '../src/model/catalogue.js';
+import { kaneMele, twoBandWeyl } from '../src/model/catalogue.js';
 import { surfaceMap } from '../src/surface/fermi-map.js';
 import { surfaceSpectrum } from '../src/surface/spectrum.js';
 import { numpyDecimation, PYTHON } from '../tests/reference/surface-numpy.js';
@@ -56,7 +56,7 @@ export function benchSurface(): Promise<BenchRow[]> {
  * widget's own target, p95 under 200 ms in Chromium on 2 workers, is measured by the widget bench).
  */
 function mapRow(): BenchRow {
-  const h = new BlochHamiltonian(weyl2band(), {});
+  const h = new BlochHamiltonian(twoBandWeyl(), {});
   const time = (nodes: boolean): number => {
     let best = Infinity;
     for (let i = 0; i < WARMUP + RUNS; i++) {

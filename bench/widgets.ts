@@ -16,7 +16,7 @@ import { writeFileSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { chromium } from 'playwright-core';
-import { compute, kaneMele, weyl2band } from '../src/index.js';
+import { compute, kaneMele, twoBandWeyl } from '../src/index.js';
 import { ensureLabBuilt, registerChernelKernel, startLabServer } from '../lab/launch.js';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../tests/browser/chromium.js';
 import { exportDemo, notebookFor, openPage, type DemoWidget } from '../tests/browser/widgets-harness.js';
@@ -161,7 +161,7 @@ export async function benchWidgets(): Promise<BenchRow[]> {
     {
       // Issue #14: the Weyl nodes move with k0 (each step relocates and projects them), so every step is a full plotly redraw.
       label: 'constant-energy surface map 128x128, Weyl model, k0 dragged',
-      widget: { id: 'bench0000000000000000000000000003', kind: 'surface-map', spec: weyl2band(), values: { k0: 1.2 }, options: { cut: 0, grid: 128, energy: 0 } },
+      widget: { id: 'bench0000000000000000000000000003', kind: 'surface-map', spec: twoBandWeyl(), values: { k0: 1.2 }, options: { cut: 0, grid: 128, energy: 0 } },
       drag: { parameter: 'k0', from: 1.2, step: 0.01 },
       target: 'p95 < 200 ms',
     },

@@ -14,7 +14,7 @@ export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/bu
 export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
 export { bogoliubov, type BogoliubovOptions } from './model/builders/bdg.js';
 export { wireStack, type WireStackOptions } from './model/builders/wires.js';
-export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, weyl2band, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
+export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, twoBandWeyl, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
 
 // Bloch Hamiltonians
 export { BlochHamiltonian, blochHamiltonian, type BlochConvention, type BlochOptions } from './bloch/hamiltonian.js';

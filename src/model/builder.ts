@@ -114,7 +114,7 @@ export class LatticeBuilder {
   private readonly terms = new TermSet();
   /** Amplitudes and matrices to check once all parameters are declared (at build). */
   private readonly pending: { field: string; amplitude?: Amplitude; hermitian?: Dense }[] = [];
-  private doc: string | undefined;
+  private docText: string | undefined;
 
   constructor(name: string, vectors: number[][], periodic = vectors.length) {
     this.name = name;
@@ -246,9 +246,9 @@ export class LatticeBuilder {
     return this.addTerm(term.from, term.to, term.cell, term.amplitude);
   }
 
-  /** Provenance shown with the model (e.g. a citation). */
-  describe(doc: string): this {
-    this.doc = doc;
+  /** The model's `doc`: what it is and where it comes from (a citation), shown with the model. */
+  doc(text: string): this {
+    this.docText = text;
     return this;
   }
 
@@ -270,7 +270,7 @@ export class LatticeBuilder {
       orbitals: this.orbitals.map((o) => ({ ...o, position: [...o.position] })),
       parameters: JSON.parse(JSON.stringify(this.parameters)) as Record<string, ParameterSpec>,
       terms: this.terms.list(),
-      ...(this.doc !== undefined ? { doc: this.doc } : {}),
+      ...(this.docText !== undefined ? { doc: this.docText } : {}),
     };
     return validateModel(spec);
   }

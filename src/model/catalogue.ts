@@ -38,7 +38,7 @@ const SQRT3 = Math.sqrt(3);
 export function ssh(): ModelSpec {
   refuseOptions('ssh', arguments, ssh);
   return lattice('SSH chain', [[1]])
-    .describe('Su–Schrieffer–Heeger chain; Su, Schrieffer, Heeger, PRL 42, 1698 (1979). v intracell, w intercell hopping.')
+    .doc('Su–Schrieffer–Heeger chain; Su, Schrieffer, Heeger, PRL 42, 1698 (1979). v intracell, w intercell hopping.')
     .parameter('v', { default: 0.5, range: [-2, 2], unit: energyIn('w'), doc: 'intracell hopping (A to B in the same cell)' })
     .parameter('w', { default: 1, range: [-2, 2], unit: energyIn('w'), doc: 'intercell hopping (B to A of the next cell)' })
     .site('A', [0]).site('B', [0.5])
@@ -54,7 +54,7 @@ export function ssh(): ModelSpec {
 export function riceMele(): ModelSpec {
   refuseOptions('riceMele', arguments, riceMele);
   return lattice('Rice–Mele chain', [[1]])
-    .describe('Rice–Mele chain; Rice & Mele, PRL 49, 1455 (1982). SSH hoppings v, w plus staggered potential +u (A), -u (B).')
+    .doc('Rice–Mele chain; Rice & Mele, PRL 49, 1455 (1982). SSH hoppings v, w plus staggered potential +u (A), -u (B).')
     .parameter('v', { default: 0.5, range: [-2, 2], unit: energyIn('w'), doc: 'intracell hopping' })
     .parameter('w', { default: 1, range: [-2, 2], unit: energyIn('w'), doc: 'intercell hopping' })
     .parameter('u', { default: 0.2, range: [-2, 2], unit: energyIn('w'), doc: 'staggered onsite energy, +u on A and -u on B' })
@@ -101,7 +101,7 @@ function withDoc(spec: ModelSpec, doc: string): ModelSpec {
 export function qwz(): ModelSpec {
   refuseOptions('qwz', arguments, qwz);
   return lattice('Qi–Wu–Zhang', [[1, 0], [0, 1]])
-    .describe('Qi–Wu–Zhang model H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz; Qi, Wu, Zhang, PRB 74, 085308 (2006).')
+    .doc('Qi–Wu–Zhang model H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz; Qi, Wu, Zhang, PRB 74, 085308 (2006).')
     .parameter('u', { default: -1, range: [-4, 4], unit: energyIn('the hopping'), doc: 'mass (staggered onsite energy)' })
     .site('a', [0, 0]).site('b', [0, 0]).block('s', ['a', 'b'])
     .onsiteMatrix('s', { z: 'u' })
@@ -130,7 +130,7 @@ const NNN_CELLS = [[1, 0], [-1, 1], [0, -1]];
 export function haldane(): ModelSpec {
   refuseOptions('haldane', arguments, haldane);
   const b = lattice('Haldane model', HONEYCOMB)
-    .describe('Haldane model on the honeycomb lattice (C–C distance 1); Haldane, PRL 61, 2015 (1988).')
+    .doc('Haldane model on the honeycomb lattice (C–C distance 1); Haldane, PRL 61, 2015 (1988).')
     .parameter('t1', { default: 1, range: [-2, 2], unit: energyIn('t1'), doc: 'nearest-neighbour hopping' })
     .parameter('t2', { default: 0.1, range: [-0.5, 0.5], unit: energyIn('t1'), doc: 'second-neighbour hopping magnitude' })
     .parameter('phi', { default: Math.PI / 2, range: [-Math.PI, Math.PI], unit: 'rad', doc: 'second-neighbour phase (counter-clockwise)' })
@@ -151,7 +151,7 @@ export function haldane(): ModelSpec {
 export function kaneMele(): ModelSpec {
   refuseOptions('kaneMele', arguments, kaneMele);
   const b = lattice('Kane–Mele model', HONEYCOMB)
-    .describe('Kane–Mele model on the honeycomb lattice (C–C distance 1); Kane & Mele, PRL 95, 226801 (2005).')
+    .doc('Kane–Mele model on the honeycomb lattice (C–C distance 1); Kane & Mele, PRL 95, 226801 (2005).')
     .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'nearest-neighbour hopping' })
     .parameter('lambda_SO', { default: 0.06, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'intrinsic spin–orbit coupling' })
     .parameter('lambda_R', { default: 0.05, range: [-0.5, 0.5], unit: energyIn('t'), doc: 'Rashba coupling' })
@@ -181,7 +181,7 @@ export function kaneMele(): ModelSpec {
 export function bhz(): ModelSpec {
   refuseOptions('bhz', arguments, bhz);
   return lattice('BHZ-type square-lattice model', [[1, 0], [0, 1]])
-    .describe('Four-band BHZ-type quantum spin Hall model on the square lattice; Bernevig, Hughes, Zhang, Science 314, 1757 (2006).')
+    .doc('Four-band BHZ-type quantum spin Hall model on the square lattice; Bernevig, Hughes, Zhang, Science 314, 1757 (2006).')
     .parameter('A', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'spin–orbit (linear) term' })
     .parameter('B', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'band curvature' })
     .parameter('M', { default: 1, range: [-10, 10], unit: energyIn('B'), doc: 'mass' })
@@ -268,10 +268,10 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
  * opposite chirality; smaller m adds Weyl points at kx or ky = pi. Inversion symmetric (P = sz),
  * time reversal broken.
  */
-export function weyl2band(): ModelSpec {
-  refuseOptions('weyl2band', arguments, weyl2band);
+export function twoBandWeyl(): ModelSpec {
+  refuseOptions('twoBandWeyl', arguments, twoBandWeyl);
   return lattice('two-band Weyl semimetal', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
-    .describe('Two-band Weyl semimetal on the cubic lattice (common practice): Weyl points at (0, 0, ±k0).')
+    .doc('Two-band Weyl semimetal on the cubic lattice (common practice): Weyl points at (0, 0, ±k0).')
     .parameter('t', { default: 1, range: [-2, 2], unit: energyIn('t'), doc: 'overall energy scale' })
     .parameter('m', { default: 1, range: [0, 3], unit: '', doc: 'in-plane mass ratio that gaps kx, ky != 0' })
     .parameter('k0', { default: Math.PI / 2, range: [0, Math.PI], unit: 'rad', doc: 'Weyl points at kz = ±k0' })
@@ -297,7 +297,7 @@ export function weyl2band(): ModelSpec {
 export function cubicTI(): ModelSpec {
   refuseOptions('cubicTI', arguments, cubicTI);
   return lattice('cubic topological insulator', [[1, 0, 0], [0, 1, 0], [0, 0, 1]])
-    .describe('Four-band 3D lattice Dirac model on the cubic lattice (common practice; Qi, Hughes & Zhang, PRB 78, 195424 (2008)): strong TI for 0 < M/B < 4, weak for 4 < M/B < 8.')
+    .doc('Four-band 3D lattice Dirac model on the cubic lattice (common practice; Qi, Hughes & Zhang, PRB 78, 195424 (2008)): strong TI for 0 < M/B < 4, weak for 4 < M/B < 8.')
     .parameter('A', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'spin–orbit (linear) term' })
     .parameter('B', { default: 1, range: [-2, 2], unit: energyIn('B'), doc: 'band curvature' })
     .parameter('M', { default: 2, range: [-4, 16], unit: energyIn('B'), doc: 'mass at Γ' })
@@ -322,7 +322,7 @@ export const CATALOGUE: Readonly<Record<string, () => ModelSpec>> = {
   bhz,
   hofstadter: () => hofstadter(),
   coupledWires: () => coupledWires(),
-  weyl2band,
+  twoBandWeyl,
   cubicTI,
 };
 

@@ -8,7 +8,7 @@
 //     205101 (2011): the Fermi arc ends at them.
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { qwz, weyl2band } from '../../src/index.js';
+import { qwz, twoBandWeyl } from '../../src/index.js';
 import { artifactPath, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
 
 let opened: OpenedPage;
@@ -17,7 +17,7 @@ const widget = (i: number): Locator => page.locator('.chernel-widget').nth(i);
 
 const surfaceWidgets: DemoWidget[] = [
   { id: 'c0ffee0000000000000000000000c001', kind: 'surface-spectrum', spec: qwz(), values: { u: -1 }, options: { cut: 1, nk: 81, energyRange: [-3, 3], energyCount: 61, eta: 0.05 } },
-  { id: 'c0ffee0000000000000000000000c002', kind: 'surface-map', spec: weyl2band(), values: { k0: 1.5 }, options: { cut: 0, grid: 48, energy: 0 } },
+  { id: 'c0ffee0000000000000000000000c002', kind: 'surface-map', spec: twoBandWeyl(), values: { k0: 1.5 }, options: { cut: 0, grid: 48, energy: 0 } },
 ];
 
 function control(w: Locator, name: string): { slider: Locator; box: Locator } {

@@ -30,7 +30,7 @@ class Surface(unittest.TestCase):
     def test_each_kind_shows_a_summary_and_its_figure_with_a_picture(self):
         cases = {
             "surface-spectrum": ("compute({kind: 'surface-spectrum', model: qwz(), params: {u: -1}, cut: 1, energyCount: 41})", "Edge spectral function"),
-            "surface-map": ("compute({kind: 'surface-map', model: weyl2band(), cut: 0, grid: 24, energy: 0})", "Surface map at E = 0"),
+            "surface-map": ("compute({kind: 'surface-map', model: twoBandWeyl(), cut: 0, grid: 24, energy: 0})", "Surface map at E = 0"),
             "slab-spectrum": ("compute({kind: 'slab-spectrum', model: cubicTI(), cut: 2, width: 6, nk: 4})", "Slab spectrum"),
             "bulk-boundary": ("compute({kind: 'bulk-boundary', model: qwz(), params: {u: -1}, cut: 1})", "Bulk–boundary check"),
         }
@@ -51,7 +51,7 @@ class Surface(unittest.TestCase):
     def test_surface_widgets_carry_their_state_and_a_picture(self):
         for code, buffer in [
             ("show(qwz(), {kind: 'surface-spectrum', cut: 1, nk: 41, energyCount: 30})", ["result", "bottom", "buffer"]),
-            ("show(weyl2band(), {kind: 'surface-map', cut: 0, grid: 16, energy: 0})", ["result", "top", "buffer"]),
+            ("show(twoBandWeyl(), {kind: 'surface-map', cut: 0, grid: 16, energy: 0})", ["result", "top", "buffer"]),
         ]:
             with self.subTest(code=code):
                 reply, outputs = harness.run(self.kc, code, timeout=60)
@@ -63,9 +63,9 @@ class Surface(unittest.TestCase):
                 self.assertIn(buffer, [b["path"] for b in saved["buffers"]])
                 self.assertEqual(png_size(data["image/png"]), (760, 480))
         # The nodes of the widget's result, from the kernel's copy of it.
-        chiralities = harness.value(self.kc, "show(weyl2band(), {kind: 'surface-map', cut: 0, grid: 8, energy: 0}).result.nodes.map((n) => n.chirality).join(' ')")
+        chiralities = harness.value(self.kc, "show(twoBandWeyl(), {kind: 'surface-map', cut: 0, grid: 8, energy: 0}).result.nodes.map((n) => n.chirality).join(' ')")
         self.assertEqual(chiralities, "'1 -1'")
-        reply, outputs = harness.run(self.kc, "show(weyl2band(), {kind: 'surface-map', cut: 0, energi: 0})")
+        reply, outputs = harness.run(self.kc, "show(twoBandWeyl(), {kind: 'surface-map', cut: 0, energi: 0})")
         self.assertEqual(reply["status"], "error")
         self.assertIn('did you mean "energy"', reply["evalue"])
 

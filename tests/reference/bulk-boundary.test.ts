@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, CATALOGUE, compute, cubicTI, hofstadter, kitaevChain, lattice, ribbon, riceMele, ssh, weyl2band, type ModelSpec,
+  BlochHamiltonian, CATALOGUE, compute, cubicTI, hofstadter, kitaevChain, lattice, ribbon, riceMele, ssh, twoBandWeyl, type ModelSpec,
 } from '../../src/index.js';
 import { bulkBoundary, bulkBoundaryCost, type BulkBoundaryOptions, type BulkBoundaryResult } from '../../src/surface/bulk-boundary.js';
 import { principalLayers } from '../../src/surface/layers.js';
@@ -102,7 +102,7 @@ const PHASES: Record<string, Phase[]> = {
   ],
   // The catalogue's Weyl model (common practice, catalogue.ts): 2 nodes at (0, 0, ±k0) for m > (1 + cos k0)/2,
   // more at kx or ky = pi below. Arcs: Wan, Turner, Vishwanath & Savrasov, PRB 83, 205101 (2011).
-  weyl2band: [
+  twoBandWeyl: [
     { label: 'm = 1, k0 = pi/2: two nodes, one arc between them', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 0, nk: 128 }, value: 2, check: arcs([0, -1]) },
     { label: 'm = 1, cut along y (left-handed basis): the arc counted the other way', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 1, nk: 128 }, value: 2, check: arcs([0, 1]) },
     { label: 'm = 1, surface normal to the nodes\' separation: both project on one point, no arc', params: { m: 1, k0: Math.PI / 2 }, options: { cut: 2, nk: 128 }, value: 2, check: arcs([0]) },
@@ -214,7 +214,7 @@ describe('the conventions and the reasons', () => {
   it('the kind runs through compute for 1D and 3D models (the registry lists sublattice)', () => {
     const end = compute({ kind: 'bulk-boundary', model: kitaevChain(), params: { mu: 0.5 }, cut: 0, width: 40 });
     expect(end.kind === 'bulk-boundary' && end.verdict).toBe('agree');
-    const surface = compute({ kind: 'bulk-boundary', model: weyl2band(), cut: 0, nk: 64, width: 16 });
+    const surface = compute({ kind: 'bulk-boundary', model: twoBandWeyl(), cut: 0, nk: 64, width: 16 });
     expect(surface.kind === 'bulk-boundary' && surface.verdict).toBe('agree');
     const chiral = compute({ kind: 'bulk-boundary', model: ssh(), cut: 0, sublattice: ['B'] });
     expect(chiral.kind === 'bulk-boundary' && chiral.invariant.value).toBe(-1);
@@ -268,7 +268,7 @@ describe('decorated boundaries are reported', () => {
   });
 
   it('Weyl slab with a trivial band crossing E = 0 on its bottom surface: two extra crossings on each line, net counts unchanged (common practice)', () => {
-    const h = new BlochHamiltonian(weyl2band(), {});
+    const h = new BlochHamiltonian(twoBandWeyl(), {});
     const { spec } = openSlab(h, 0, 24);
     const slab = decorate(spec, ['x'], 'a@0', (label) => [{ from: label, to: label, cell: [1, 0], amplitude: -0.5 }]);
     const r = bulkBoundary(h, { cut: 0, nk: 128, ribbon: slab });
@@ -299,6 +299,6 @@ describe('bad input', () => {
     expect(() => bulkBoundary(ti, { cut: 2, invariant: 'chern' })).toThrow(/^invariant: expected "z2" or "weyl" for a 3D model\. Value: "chern"/);
     expect(() => bulkBoundary(ti, { cut: 2, energy: 5 })).toThrow(/^energy: is not inside a bulk gap/);
     expect(() => bulkBoundary(ti, { cut: 2, sublattice: ['s.up'] })).toThrow(/^sublattice: is for 1D chiral chains/);
-    expect(() => bulkBoundary(new BlochHamiltonian(weyl2band(), {}), { cut: 0, energy: Infinity })).toThrow(/^energy: expected a finite number\. Value: Infinity/);
+    expect(() => bulkBoundary(new BlochHamiltonian(twoBandWeyl(), {}), { cut: 0, energy: Infinity })).toThrow(/^energy: expected a finite number\. Value: Infinity/);
   });
 });

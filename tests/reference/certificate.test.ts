@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { BlochHamiltonian } from '../../src/bloch/hamiltonian.js';
 import { computeAsync } from '../../src/compute.js';
 import { lattice } from '../../src/model/builder.js';
-import { bhz, haldane, kaneMele, qwz, weyl2band } from '../../src/model/catalogue.js';
+import { bhz, haldane, kaneMele, qwz, twoBandWeyl } from '../../src/model/catalogue.js';
 import { compileAmplitude } from '../../src/model/expressions.js';
 import type { ModelSpec } from '../../src/model/spec.js';
 import type { PhaseMapResult } from '../../src/scan/sweep.js';
@@ -195,11 +195,11 @@ describe('gap closings off every power-of-two grid', () => {
   it('Weyl nodes at a generic kz: the slice through a node is refused, the slices beside it differ by its chirality (common practice)', () => {
     const k0 = 1.2345;
     const params = { m: 1, k0 };
-    const through = chernNumber(weyl2band(), { params, plane: { normal: 2, at: k0 } });
+    const through = chernNumber(twoBandWeyl(), { params, plane: { normal: 2, at: k0 } });
     expect(through.chern).toBeNull();
     expect(through.checks.gapless).toBe(true);
-    const inner = chernNumber(weyl2band(), { params, plane: { normal: 2, at: k0 - 1e-3 } });
-    const outer = chernNumber(weyl2band(), { params, plane: { normal: 2, at: k0 + 1e-3 } });
+    const inner = chernNumber(twoBandWeyl(), { params, plane: { normal: 2, at: k0 - 1e-3 } });
+    const outer = chernNumber(twoBandWeyl(), { params, plane: { normal: 2, at: k0 + 1e-3 } });
     expect(inner.checks.certified && outer.checks.certified).toBe(true);
     // d = (sin kx, sin ky, cos kz - cos k0 + m(2 - cos kx - cos ky)): for |kz| < k0 d_z > 0 on the whole
     // slice (degree 0); beyond k0 it turns negative at kx = ky = 0 only (degree ±1).

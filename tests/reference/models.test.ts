@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  bhz, blochHamiltonian, coupledWires, eigh, flake, haldane, hofstadter, kaneMele, kitaevChain, magneticFlux, qwz, ribbon, riceMele, ssh, weyl2band,
+  bhz, blochHamiltonian, coupledWires, eigh, flake, haldane, hofstadter, kaneMele, kitaevChain, magneticFlux, qwz, ribbon, riceMele, ssh, twoBandWeyl,
   type ModelSpec,
 } from '../../src/index.js';
 import { chern, solver, spectrum } from './models-helpers.js';
@@ -311,7 +311,7 @@ describe('ribbons approach the bulk', () => {
 describe('two-band Weyl semimetal (common practice)', () => {
   it('closes its gap at (0, 0, ±k0) only, linearly', () => {
     const k0 = 1.1;
-    const s = solver(weyl2band(), { t: 1, m: 1, k0 });
+    const s = solver(twoBandWeyl(), { t: 1, m: 1, k0 });
     const gap = (k: number[]) => { const e = s.at(k).values; return e[1] - e[0]; };
     expect(gap([0, 0, k0])).toBeLessThan(1e-12);
     expect(gap([0, 0, -k0])).toBeLessThan(1e-12);

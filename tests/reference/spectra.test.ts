@@ -1,7 +1,7 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import {
-  bandStructure, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice, qwz as catalogueQwz, ribbonSpectrum, ssh, weyl2band,
+  bandStructure, blochHamiltonian, densityOfStates, directGap, findGapClosings, highSymmetryPoints, kPath, lattice, qwz as catalogueQwz, ribbonSpectrum, ssh, twoBandWeyl,
 } from '../../src/index.js';
 
 // Qi–Wu–Zhang, H = sin kx sx + sin ky sy + (u + cos kx + cos ky) sz (Qi, Wu, Zhang, PRB 74, 085308 (2006)).
@@ -157,7 +157,7 @@ describe('Weyl points in 3D from the closed form |d(k)| = 0 (common practice)', 
 
 describe('Weyl points of the catalogue model, at (0, 0, ±k0) by its closed form (common practice)', () => {
   it('k0 = 1: exactly two nodes, found from a coarse grid', () => {
-    const closed = findGapClosings(weyl2band(), { params: { k0: 1 }, bands: 1, grid: 9 }).points.filter((p) => p.closed);
+    const closed = findGapClosings(twoBandWeyl(), { params: { k0: 1 }, bands: 1, grid: 9 }).points.filter((p) => p.closed);
     expect(closed.map((p) => p.k[2]).sort((a, b) => a - b)).toEqual([expect.closeTo(-1, 7), expect.closeTo(1, 7)]);
     for (const p of closed) expect(Math.hypot(p.k[0], p.k[1])).toBeLessThan(1e-7);
   });

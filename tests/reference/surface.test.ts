@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, cubicTI, eigh, haldane, hofstadter, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, ssh, weyl2band, type ModelSpec,
+  BlochHamiltonian, cubicTI, eigh, haldane, hofstadter, kaneMele, lattice, qwz, ribbon, ribbonSpectrum, ssh, twoBandWeyl, type ModelSpec,
 } from '../../src/index.js';
 import { bulkBoundary, bulkBoundaryCost } from '../../src/surface/bulk-boundary.js';
 import { surfaceMap, surfaceMapCost } from '../../src/surface/fermi-map.js';
@@ -212,7 +212,7 @@ describe('decimation (Lopez Sancho, Lopez Sancho & Rubio, J. Phys. F 15, 851 (19
   });
 
   it('3D: the surface of the two-band Weyl model is sampled on a path of its 2D surface zone', () => {
-    const h = new BlochHamiltonian(weyl2band(), {});
+    const h = new BlochHamiltonian(twoBandWeyl(), {});
     const r = surfaceSpectrum(h, { cut: 0, nk: 4, energyCount: 11, eta: 0.05 });
     expect(r.boundary).toBe('surface');
     expect(r.path.dim).toBe(2);
@@ -313,7 +313,7 @@ describe('bulk–boundary check', () => {
 describe('3D surfaces', () => {
   it('two-band Weyl model: the Fermi arc at E = 0 ends at the surface projections of the two nodes, of opposite chirality (Wan, Turner, Vishwanath & Savrasov, PRB 83, 205101 (2011))', () => {
     for (const k0 of [Math.PI / 2, 1.0]) {
-      const h = new BlochHamiltonian(weyl2band(), { k0 });
+      const h = new BlochHamiltonian(twoBandWeyl(), { k0 });
       const r = surfaceMap(h, { cut: 0, grid: [16, 64], energy: 0, eta: 0.02 });
       expect(r.nodes.length).toBe(2);
       const [a, b] = r.nodes;
@@ -340,7 +340,7 @@ describe('3D surfaces', () => {
   });
 
   it('a 3D slab: every state\'s layer weights sum to 1, surface states of the arc sit on the outer layers; a 2D slab is the ribbon (spectra/ribbon.ts)', () => {
-    const h = new BlochHamiltonian(weyl2band(), {});
+    const h = new BlochHamiltonian(twoBandWeyl(), {});
     const s = slabSpectrum(h, { cut: 0, width: 24, nk: 4, path: [{ label: 'Γ', k: [0, 0] }, { label: 'Z', k: [0, 0.5] }] });
     for (let i = 0; i < s.path.count * s.bandCount; i++) {
       let sum = 0;
@@ -402,7 +402,7 @@ describe('3D surfaces', () => {
 
   it('maps refuse 2D models and energies outside the spectrum, naming the field', () => {
     expect(() => surfaceMap(new BlochHamiltonian(qwz(), { u: -1 }), { cut: 1 })).toThrow(/^cut: constant-energy surface maps are for 3D models/);
-    expect(() => surfaceMap(new BlochHamiltonian(weyl2band()), { cut: 0, energy: 40, nodes: false })).toThrow(/^energy: lies outside the spectrum.*Value: 40/);
-    expect(() => surfaceMap(new BlochHamiltonian(weyl2band()), { cut: 0, grid: 1 })).toThrow(/^grid: .*Value: 1/);
+    expect(() => surfaceMap(new BlochHamiltonian(twoBandWeyl()), { cut: 0, energy: 40, nodes: false })).toThrow(/^energy: lies outside the spectrum.*Value: 40/);
+    expect(() => surfaceMap(new BlochHamiltonian(twoBandWeyl()), { cut: 0, grid: 1 })).toThrow(/^grid: .*Value: 1/);
   });
 });

@@ -7,7 +7,7 @@ import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import {
   bhz, chernNumber, compute, coupledWires, curvatureMap, haldane, hallConductivity, HALL_CONDUCTANCE_QUANTUM, hofstadter,
-  kaneMele, kitaevChain, lattice, majoranaNumber, qwz, spinChern, ssh, wannierFlow, weyl2band, weylPoints, windingNumber, z2Index,
+  kaneMele, kitaevChain, lattice, majoranaNumber, qwz, spinChern, ssh, wannierFlow, twoBandWeyl, weylPoints, windingNumber, z2Index,
   berryPhase, type ModelSpec,
 } from '../../src/index.js';
 
@@ -215,7 +215,7 @@ describe('1D invariants', () => {
 describe('Weyl points', () => {
   it('the two-band Weyl model has two points of chirality +1 and -1 summing to zero, each = sign det(dd_i/dk_j) (common practice)', () => {
     const k0 = Math.PI / 2;
-    const r = weylPoints(weyl2band(), { params: { t: 1, m: 1, k0 } });
+    const r = weylPoints(twoBandWeyl(), { params: { t: 1, m: 1, k0 } });
     expect(r.points).toHaveLength(2);
     expect(r.total).toBe(0);
     for (const p of r.points) {

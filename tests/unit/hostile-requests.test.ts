@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkWidgetOptions, WidgetOptionError } from '../../kernel/widget-state.js';
 import {
-  compute, haldane, setComputeBudget, type ComputeBudget, kaneMele, kitaevChain, ModelError, qwz, requestFields, ssh, weyl2band, type DiagnosticRequest, type ModelSpec,
+  compute, haldane, setComputeBudget, type ComputeBudget, kaneMele, kitaevChain, ModelError, qwz, requestFields, ssh, twoBandWeyl, type DiagnosticRequest, type ModelSpec,
 } from '../../src/index.js';
 import * as catalogueFunctions from '../../src/model/catalogue.js';
 
@@ -42,7 +42,7 @@ const BASE: DiagnosticRequest[] = [
   { kind: 'spin-chern', model: kaneMele(), grid: 8, params: { lambda_R: 0 } },
   { kind: 'winding', model: ssh(), points: 32 },
   { kind: 'majorana', model: kitaevChain() },
-  { kind: 'weyl', model: weyl2band(), grid: 6 },
+  { kind: 'weyl', model: twoBandWeyl(), grid: 6 },
   { kind: 'hall', model: qwz(), grid: 8 },
   { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 4 }] },
   { kind: 'bott', model: qwz(), sizes: [4, 4], onsiteDisorder: 1, seed: 2 },

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
-  blochHamiltonian, bogoliubov, eigh, flake, haldane, hofstadter, lattice, magneticFlux, qwz, ribbon, supercell, weyl2band, wireStack,
+  blochHamiltonian, bogoliubov, eigh, flake, haldane, hofstadter, lattice, magneticFlux, qwz, ribbon, supercell, twoBandWeyl, wireStack,
   type ModelSpec,
 } from '../../src/index.js';
 
@@ -83,7 +83,7 @@ describe('ribbon and flake', () => {
     expect(s.vectors).toEqual([[0, 1], [1, 0]]);
     // A slab of a 3D model: 2 periodic directions left. At kx = ky = 0 only d_z = t (cos kz - cos k0)
     // remains; opening z replaces cos kz by the open-chain levels cos(pi n/(W+1)), one per sz sector.
-    const slab = ribbon(weyl2band(), 2, 6);
+    const slab = ribbon(twoBandWeyl(), 2, 6);
     expect(slab.periodic).toBe(2);
     expect(slab.orbitals).toHaveLength(12);
     const e = energies(slab, { t: 1, m: 1, k0: 1.1 }, [0, 0]);
@@ -196,7 +196,7 @@ describe('magnetic flux by Peierls phases', () => {
     expect(() => magneticFlux(qwz(), { p: 1, q: 0 })).toThrow(/flux\.q: expected a positive integer\. Value: 0/);
     expect(() => magneticFlux(qwz(), { p: 0.5, q: 3 })).toThrow(/flux\.p: expected an integer\. Value: 0\.5/);
     expect(() => magneticFlux(qwz(), { p: 1, q: 3, plane: [0, 0] })).toThrow(/flux\.plane/);
-    expect(magneticFlux(weyl2band(), { p: 1, q: 2, plane: [0, 2] }).orbitals).toHaveLength(4);
+    expect(magneticFlux(twoBandWeyl(), { p: 1, q: 2, plane: [0, 2] }).orbitals).toHaveLength(4);
   });
 });
 

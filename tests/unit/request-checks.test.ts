@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   closestName, compute, computeBudget, DIAGNOSTIC_KINDS, estimateCost, haldane, kaneMele, kitaevChain, ModelError, qwz,
-  requestFields, ribbon, setComputeBudget, ssh, supercell, weyl2band, type DiagnosticKind, type DiagnosticRequest,
+  requestFields, ribbon, setComputeBudget, ssh, supercell, twoBandWeyl, type DiagnosticKind, type DiagnosticRequest,
 } from '../../src/index.js';
 import { coupledWires, hofstadter } from '../../src/model/catalogue.js';
 
@@ -29,7 +29,7 @@ const VALID: Record<string, DiagnosticRequest> = {
   'spin-chern': { kind: 'spin-chern', model: kaneMele(), grid: 8, params: { lambda_R: 0 } },
   winding: { kind: 'winding', model: ssh(), points: 16 },
   majorana: { kind: 'majorana', model: kitaevChain() },
-  weyl: { kind: 'weyl', model: weyl2band(), grid: 6 },
+  weyl: { kind: 'weyl', model: twoBandWeyl(), grid: 6 },
   hall: { kind: 'hall', model: qwz(), grid: 8 },
   'phase-map': { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 3 }] },
   bott: { kind: 'bott', model: qwz(), sizes: [4, 4] },
@@ -39,8 +39,8 @@ const VALID: Record<string, DiagnosticRequest> = {
   'local-density': { kind: 'local-density', model: qwz(), sizes: [4, 4], energy: 0.1, method: 'dense' },
   ensemble: { kind: 'ensemble', model: qwz(), of: 'bott', samples: 2, sizes: [4, 4], onsiteDisorder: 1 },
   'surface-spectrum': { kind: 'surface-spectrum', model: qwz(), cut: 0, nk: 8, energyCount: 8 },
-  'surface-map': { kind: 'surface-map', model: weyl2band(), cut: 2, grid: 8 },
-  'slab-spectrum': { kind: 'slab-spectrum', model: weyl2band(), cut: 2, width: 4, nk: 8 },
+  'surface-map': { kind: 'surface-map', model: twoBandWeyl(), cut: 2, grid: 8 },
+  'slab-spectrum': { kind: 'slab-spectrum', model: twoBandWeyl(), cut: 2, width: 4, nk: 8 },
   'bulk-boundary': { kind: 'bulk-boundary', model: qwz(), cut: 0, width: 8, nk: 16 },
 };
 

@@ -8,7 +8,7 @@
 import { build } from 'esbuild';
 import { describe, expect, it } from 'vitest';
 import {
-  BlochHamiltonian, compute, curvatureMap, haldane, joinParts, kaneMele, lattice, ModelError, partBounds, qwz, wannierFlow, weyl2band,
+  BlochHamiltonian, compute, curvatureMap, haldane, joinParts, kaneMele, lattice, ModelError, partBounds, qwz, wannierFlow, twoBandWeyl,
   type CurvaturePart, type CurvatureResult, type DiagnosticPart, type DiagnosticRequest, type ModelSpec, type WannierFlowPart,
   type WannierFlowResult,
 } from '../../src/index.js';
@@ -155,7 +155,7 @@ describe('curvature map in parts', () => {
   it('the orbital convention and a plane of a 3D model (two-band Weyl model, catalogue, kz = 0 slice)', () => {
     for (const request of [
       { kind: 'curvature', model: HALDANE, convention: 'orbital', method: 'kubo', grid: 6 },
-      { kind: 'curvature', model: weyl2band(), plane: { normal: 2, at: 0 }, grid: [5, 7] },
+      { kind: 'curvature', model: twoBandWeyl(), plane: { normal: 2, at: 0 }, grid: [5, 7] },
     ] as Split[]) {
       const whole = compute(request) as CurvatureResult;
       for (const count of counts(request.grid instanceof Array ? request.grid[1] : 6)) expectIdentical(joinParts(parts(request, count)), whole);

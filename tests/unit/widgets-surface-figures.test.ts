@@ -9,7 +9,7 @@
 //     surface Dirac cones (cubicTI at M/B = 2: inverted at Γ only, one cone at Γ̄).
 import { describe, expect, it } from 'vitest';
 import { runFigure as run } from './figure-runs.js';
-import { compute, cubicTI, qwz, ssh, weyl2band } from '../../src/index.js';
+import { compute, cubicTI, qwz, ssh, twoBandWeyl } from '../../src/index.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { PLOTLY_MIME, WIDGET_KINDS } from '../../contract/protocol.js';
 import { checkWidgetOptions, widgetState } from '../../kernel/widget-state.js';
@@ -102,7 +102,7 @@ describe('surface-spectrum figure', () => {
 describe('surface-map figure', () => {
   it('Weyl model: nodes marked by chirality in every panel, the arc on the bottom termination joins them (Wan et al. 2011)', () => {
     const k0 = Math.PI / 2;
-    const { figure, traces, result } = run(weyl2band(), 'surface-map', { cut: 0, grid: 32, energy: 0 }, { k0 });
+    const { figure, traces, result } = run(twoBandWeyl(), 'surface-map', { cut: 0, grid: 32, energy: 0 }, { k0 });
     expect(figureTitle('surface-map')).toBe('Constant-energy surface map');
     // Nodes at (0, 0, ±k0) (catalogue, common practice): on the (1 0 0) surface at k̄ = (0, ±k0 / 2pi).
     const plus = traces.find((t) => t.name === 'Weyl node, chirality +1') as { x: number[]; y: number[] };
@@ -136,12 +136,12 @@ describe('surface-map figure', () => {
   });
 
   it('a drag step keeps the frame while the nodes move, sketched as dots where plotly draws the markers; the CSV lists every point of the zone', () => {
-    const a = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.5 });
-    const b = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.2 });
-    const c = run(weyl2band(), 'surface-map', { cut: 0, grid: 16, energy: 0.2 }, { k0: 1.2 });
+    const a = run(twoBandWeyl(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.5 });
+    const b = run(twoBandWeyl(), 'surface-map', { cut: 0, grid: 16, energy: 0 }, { k0: 1.2 });
+    const c = run(twoBandWeyl(), 'surface-map', { cut: 0, grid: 16, energy: 0.2 }, { k0: 1.2 });
     expect(b.figure.frameKey).toBe(a.figure.frameKey);
     // A new grid is a new frame.
-    expect(run(weyl2band(), 'surface-map', { cut: 0, grid: 12, energy: 0 }, { k0: 1.5 }).figure.frameKey).not.toBe(a.figure.frameKey);
+    expect(run(twoBandWeyl(), 'surface-map', { cut: 0, grid: 12, energy: 0 }, { k0: 1.5 }).figure.frameKey).not.toBe(a.figure.frameKey);
     expect(c.figure.frameKey).toBe(b.figure.frameKey);
     for (const { figure, traces } of [a, b]) {
       const markers = traces.filter((t) => t.name?.startsWith('Weyl node')) as { x: number[]; y: number[] }[];
@@ -201,7 +201,7 @@ describe('what a cell shows', () => {
   it('each edge and surface result displays its summary, then its figure as plotly JSON, a PNG and a line of text', () => {
     const results = [
       compute({ kind: 'surface-spectrum', model: qwz(), params: { u: -1 }, cut: 1, energyCount: 41 }),
-      compute({ kind: 'surface-map', model: weyl2band(), cut: 0, grid: 24, energy: 0 }),
+      compute({ kind: 'surface-map', model: twoBandWeyl(), cut: 0, grid: 24, energy: 0 }),
       compute({ kind: 'slab-spectrum', model: cubicTI(), cut: 2, width: 6, nk: 4 }),
       compute({ kind: 'bulk-boundary', model: qwz(), params: { u: -1 }, cut: 1 }),
     ];
@@ -230,7 +230,7 @@ describe('the surface widgets: options and state', () => {
   });
 
   it('the synced state travels with binary buffers and comes back drawing the same figure; its saved form passes the state check', () => {
-    const spec = weyl2band();
+    const spec = twoBandWeyl();
     const options = { cut: 0, grid: 16, energy: 0 };
     const { result, ctx, figure } = run(spec, 'surface-map', options, { k0: 1.2 });
     const state = widgetState({ kind: 'surface-map', spec, options, values: ctx.values, result: result as never, error: '', title: '' });
