@@ -13,7 +13,7 @@ export { supercell, type SupercellOptions } from './model/builders/supercell.js'
 export { ribbon, flake, type RibbonOptions, type FlakeOptions } from './model/builders/open.js';
 export { magneticFlux, type FluxOptions } from './model/builders/flux.js';
 export { bogoliubov, type BogoliubovOptions } from './model/builders/bdg.js';
-export { wireStack, type WireStackOptions } from './model/builders/wires.js';
+export { coupledWireArray, type CoupledWireArrayOptions } from './model/builders/wires.js';
 export { ssh, riceMele, kitaevChain, qwz, haldane, kaneMele, bhz, hofstadter, coupledWires, twoBandWeyl, CATALOGUE, catalogueModel, type CoupledWireOptions } from './model/catalogue.js';
 
 // Bloch Hamiltonians

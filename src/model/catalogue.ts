@@ -8,7 +8,7 @@
 import { lattice } from './builder.js';
 import { bogoliubov } from './builders/bdg.js';
 import { magneticFlux } from './builders/flux.js';
-import { wireStack } from './builders/wires.js';
+import { coupledWireArray } from './builders/wires.js';
 import { ModelError, valueText } from './errors.js';
 import type { ModelSpec } from './spec.js';
 import { checkFields, closestName } from './field-names.js';
@@ -245,7 +245,7 @@ export function coupledWires(options: CoupledWireOptions = {}): ModelSpec {
     .hop('a', 'b', [0], 't + delta')
     .hop('b', 'a', [1], 't - delta')
     .build();
-  const stack = wireStack(chain, {
+  const stack = coupledWireArray(chain, {
     wires: options.wires,
     boundary: options.boundary,
     name: 'coupled-wire Chern insulator',

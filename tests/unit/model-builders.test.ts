@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
-  blochHamiltonian, bogoliubov, eigh, flake, haldane, hofstadter, lattice, magneticFlux, qwz, ribbon, supercell, twoBandWeyl, wireStack,
+  blochHamiltonian, bogoliubov, eigh, flake, haldane, hofstadter, lattice, magneticFlux, qwz, ribbon, supercell, twoBandWeyl, coupledWireArray,
   type ModelSpec,
 } from '../../src/index.js';
 
@@ -263,16 +263,16 @@ describe('wire stack', () => {
   const couplings = [{ from: 'a', to: 'a', cell: [0, 1], amplitude: -0.5 }];
 
   it('periodic stacks are 2D with `wires` wires per cell; open stacks are 1D with wire layers', () => {
-    const one = wireStack(chain, { couplings });
+    const one = coupledWireArray(chain, { couplings });
     expect(one.periodic).toBe(2);
     // Anisotropic square lattice: E = -2 cos k - cos ky.
     expect(energies(one, {}, [0.4, 1.1])[0]).toBeCloseTo(-2 * Math.cos(0.4) - Math.cos(1.1), 12);
-    const three = wireStack(chain, { couplings, wires: 3 });
+    const three = coupledWireArray(chain, { couplings, wires: 3 });
     expect(three.orbitals).toHaveLength(3);
     const e = energies(three, {}, [0.4, 0.3]);
     const expected = [0, 1, 2].map((n) => -2 * Math.cos(0.4) - Math.cos((0.3 + 2 * Math.PI * n) / 3)).sort((a, b) => a - b);
     e.forEach((x, i) => expect(x).toBeCloseTo(expected[i], 12));
-    const open = wireStack(chain, { couplings, wires: 4, boundary: 'open' });
+    const open = coupledWireArray(chain, { couplings, wires: 4, boundary: 'open' });
     expect(open.periodic).toBe(1);
     expect(open.orbitals.map((o) => o.layer)).toEqual([0, 1, 2, 3]);
     // Open chain of 4 wires across: -2 cos k - cos(pi n / 5), n = 1..4.
@@ -281,8 +281,8 @@ describe('wire stack', () => {
   });
 
   it('names the field of bad options', () => {
-    expect(() => wireStack(qwz(), { couplings })).toThrow(/wires\.chain: expected a one-dimensional chain/);
-    expect(() => wireStack(chain, { couplings: [{ from: 'b', to: 'a', cell: [0, 1], amplitude: 1 }] })).toThrow(/wires\.couplings\[0\]\.from: unknown orbital "b"/);
-    expect(() => wireStack(chain, { couplings, wires: 0 })).toThrow(/wires\.wires: expected a positive integer\. Value: 0/);
+    expect(() => coupledWireArray(qwz(), { couplings })).toThrow(/wires\.chain: expected a one-dimensional chain/);
+    expect(() => coupledWireArray(chain, { couplings: [{ from: 'b', to: 'a', cell: [0, 1], amplitude: 1 }] })).toThrow(/wires\.couplings\[0\]\.from: unknown orbital "b"/);
+    expect(() => coupledWireArray(chain, { couplings, wires: 0 })).toThrow(/wires\.wires: expected a positive integer\. Value: 0/);
   });
 });

@@ -1,5 +1,5 @@
 /**
- * Coupled-wire stacks: copies of a one-dimensional chain side by side, wire w at w * spacing, with
+ * Coupled-wire arrays: copies of a one-dimensional chain side by side, wire w at w * spacing, with
  * couplings between neighbouring wires. The stack is built as a 2D lattice with one wire per cell
  * (a_1 along the chain, a_2 = spacing across); `boundary: 'periodic'` then takes a supercell of
  * `wires` wires (still 2D), `'open'` a ribbon of `wires` wires (1D, each orbital's `layer` is its
@@ -12,7 +12,7 @@ import { validateModel } from '../validate.js';
 import { ribbon } from './open.js';
 import { supercell } from './supercell.js';
 
-export interface WireStackOptions {
+export interface CoupledWireArrayOptions {
   /** Number of wires in the result (its unit cell when periodic, the sample when open). Default 1. */
   wires?: number;
   /**
@@ -28,7 +28,7 @@ export interface WireStackOptions {
   name?: string;
 }
 
-export function wireStack(chain: ModelSpec, options: WireStackOptions): ModelSpec {
+export function coupledWireArray(chain: ModelSpec, options: CoupledWireArrayOptions): ModelSpec {
   const spec = validateModel(chain);
   if (spec.periodic !== 1) throw new ModelError('wires.chain', `expected a one-dimensional chain (periodic = 1). Value: ${spec.periodic}`);
   const wires = options.wires ?? 1;
