@@ -72,7 +72,7 @@ print(json.dumps({'seconds': best, 'chern': chern.astype(int).ravel().tolist(), 
 
 function request(): PhaseMapRequest {
   return {
-    kind: 'phase-map', model: twoParameterQwz(), invariant: 'chern', grid: K,
+    kind: 'phase-map', model: twoParameterQwz(), quantity: 'chern', grid: K,
     axes: [{ param: 'u', ...U, count: N }, { param: 'b', ...B, count: N }],
   };
 }

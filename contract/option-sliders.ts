@@ -88,6 +88,11 @@ export function sweptOptions(options: Readonly<Record<string, unknown>>, paramet
 /** The request a widget's values describe: model parameters as `params`, option sliders as options. */
 export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: Readonly<Record<string, unknown>>, values: Readonly<Record<string, number>>): DiagnosticRequest {
   const { [OPTION_SLIDERS]: _own, ...rest } = options;
+  // A phase-map widget saved before the rename names its swept kind `invariant`: read as `quantity`.
+  if (kind === 'phase-map' && Object.hasOwn(rest, 'invariant') && !Object.hasOwn(rest, 'quantity')) {
+    const { invariant, ...renamed } = rest;
+    return widgetRequest(kind, model, { ...renamed, quantity: invariant, ...(_own === undefined ? {} : { [OPTION_SLIDERS]: _own }) }, values);
+  }
   const sliders = optionSlidersOf(options);
   const swept = sweptOptions(options, model.parameters);
   const params: Record<string, number> = {};

@@ -15,7 +15,7 @@ interface Axis {
 }
 
 interface PhaseMapData {
-  invariant: string;
+  quantity: string;
   quantised: boolean;
   axes: Axis[];
   values: (number | null)[];
@@ -31,10 +31,13 @@ function read(result: DiagnosticResult): PhaseMapData {
   if (!axes || (axes.length !== 1 && axes.length !== 2) || !values || !gaps || values.length !== expected || gaps.length !== expected) {
     throw new Error(`phase-map result: ${values?.length} values and ${gaps?.length} gaps for axes ${JSON.stringify(axes?.map((a) => [a.param, a.values?.length]))}`);
   }
+  // A map saved before the field was renamed names its quantity `invariant`.
+  const named = typeof result.quantity === 'string' ? result.quantity : result.invariant;
+  const quantity = typeof named === 'string' ? named : 'quantity';
   return {
-    invariant: typeof result.invariant === 'string' ? result.invariant : 'invariant',
+    quantity,
     // Older saved maps carry no flag: only their gap maps were continuous.
-    quantised: typeof result.quantised === 'boolean' ? result.quantised : result.invariant !== 'gap',
+    quantised: typeof result.quantised === 'boolean' ? result.quantised : quantity !== 'gap',
     axes,
     values,
     gaps: Array.from(gaps),
@@ -64,7 +67,7 @@ export const PHASE_POINT_SHAPE = 'current-point';
 export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
   const m = read(result);
   if (!m.quantised) return continuousMapFigure(m, ctx);
-  const sym = SYMBOL[m.invariant] ?? m.invariant;
+  const sym = SYMBOL[m.quantity] ?? m.quantity;
   const distinct = [...new Set(m.values.filter((v): v is number => v !== null))].sort((a, b) => a - b);
   const colours = phaseColours(distinct);
   const label = (v: number | null) => (v === null ? 'gapless' : `${sym} = ${fmt(v)}`);
@@ -193,7 +196,7 @@ export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Fi
 
 /** A map of a quantity that is not quantised: values as a colour map (2D) or a curve (1D). */
 function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
-  const sym = SYMBOL[m.invariant] ?? m.invariant;
+  const sym = SYMBOL[m.quantity] ?? m.quantity;
   const [ax0, ax1] = m.axes;
   const unitOf = (param: string) => ctx.spec.parameters[param]?.unit ?? '';
   const finite = m.values.filter((v): v is number => v !== null && Number.isFinite(v));
@@ -254,5 +257,5 @@ export function phaseMapTable(result: DiagnosticResult): Table {
     v,
     m.gaps[idx],
   ]);
-  return { columns: [...m.axes.map((a) => a.param), m.invariant, 'gap'], rows };
+  return { columns: [...m.axes.map((a) => a.param), m.quantity, 'gap'], rows };
 }

@@ -45,7 +45,7 @@ const OWN_OPTIONS = ['kind', 'values', 'title', OPTION_SLIDERS];
  * computes (the flow widget also takes `invariant: 'z2'`). A misspelt one names the closest.
  */
 export function checkWidgetOptions(kind: WidgetKind, options: Record<string, unknown>): void {
-  const request = requestFields(kind, options.invariant as SweepQuantity | undefined).filter((f) => f !== 'kind' && f !== 'model' && f !== 'params');
+  const request = requestFields(kind, options.quantity as SweepQuantity | undefined).filter((f) => f !== 'kind' && f !== 'model' && f !== 'params');
   const valid = [...OWN_OPTIONS, ...request, ...(kind === 'wannier-flow' ? ['invariant'] : [])];
   for (const key of Object.keys(options)) {
     if (valid.includes(key)) continue;
@@ -63,7 +63,7 @@ export function startValues(spec: ModelSpec, options: Record<string, unknown>, v
 
 /** Checks `optionSliders` against the model and the request's options (field names in the message). */
 export function checkOptionSliders(kind: WidgetKind, spec: ModelSpec, options: Record<string, unknown>): void {
-  const request = requestFields(kind, options.invariant as SweepQuantity | undefined).filter((f) => f !== 'kind' && f !== 'model' && f !== 'params');
+  const request = requestFields(kind, options.quantity as SweepQuantity | undefined).filter((f) => f !== 'kind' && f !== 'model' && f !== 'params');
   const problem = optionSlidersProblem(options[OPTION_SLIDERS], spec.parameters, request);
   if (problem !== null) {
     const cut = problem.indexOf(': ');

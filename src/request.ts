@@ -20,14 +20,14 @@ export type DiagnosticKind = DiagnosticRequest['kind'];
 export const DIAGNOSTIC_KINDS: readonly DiagnosticKind[] = [...KIND_NAMES, 'phase-map'];
 
 /** A phase map's own fields; the rest are those of the kind it sweeps. */
-const PHASE_MAP_FIELDS = ['axes', 'invariant', 'refine'] as const;
+const PHASE_MAP_FIELDS = ['axes', 'quantity', 'refine'] as const;
 const PHASE_MAP_NESTED = { refine: ['tolerance', 'maxRounds'] };
 const AXIS_FIELDS = ['param', 'from', 'to', 'count'];
 
 /** The valid top-level fields of a request of `kind`; for a phase map, those of the swept kind too. */
-export function requestFields(kind: DiagnosticKind, invariant?: SweepQuantity): readonly string[] {
+export function requestFields(kind: DiagnosticKind, quantity?: SweepQuantity): readonly string[] {
   if (kind !== 'phase-map') return [...COMMON_FIELDS, ...diagnosticOf(kind).options];
-  const swept = invariant !== undefined && (SWEEP_QUANTITIES as readonly string[]).includes(invariant) ? diagnosticOf(invariant).options : [];
+  const swept = quantity !== undefined && (SWEEP_QUANTITIES as readonly string[]).includes(quantity) ? diagnosticOf(quantity).options : [];
   return [...COMMON_FIELDS, ...PHASE_MAP_FIELDS, ...swept];
 }
 
@@ -35,8 +35,10 @@ export function requestFields(kind: DiagnosticKind, invariant?: SweepQuantity): 
 function checkRequestFields(r: RequestFields): void {
   const kind = r.kind as DiagnosticKind;
   const mapped = kind === 'phase-map';
-  const swept = mapped && (SWEEP_QUANTITIES as readonly unknown[]).includes(r.invariant) ? diagnosticOf(r.invariant) : null;
-  checkFields(r, requestFields(kind, swept?.kind as SweepQuantity | undefined), '', mapped ? `a phase-map request of ${valueText(r.invariant)}` : `a "${kind}" request`);
+  // A phase map named its swept kind `invariant` before it could map gaps and averages too.
+  if (mapped && Object.hasOwn(r, 'invariant')) throw new ModelError('invariant', `a phase map names what it sweeps in "quantity" (it was "invariant"). Value: ${valueText(r.invariant)}`);
+  const swept = mapped && (SWEEP_QUANTITIES as readonly unknown[]).includes(r.quantity) ? diagnosticOf(r.quantity) : null;
+  checkFields(r, requestFields(kind, swept?.kind as SweepQuantity | undefined), '', mapped ? `a phase-map request of ${valueText(r.quantity)}` : `a "${kind}" request`);
   const nested = { ...(mapped ? PHASE_MAP_NESTED : {}), ...((mapped ? swept : diagnosticOf(kind))?.nested ?? {}) };
   for (const [option, fields] of Object.entries(nested)) {
     const value = r[option];
@@ -56,8 +58,8 @@ export function estimateCost(request: DiagnosticRequest, n: number, dim: number)
   if (request.kind !== 'phase-map') return diagnosticOf(request.kind).cost(r, n, dim);
   const axes = Array.isArray(r.axes) ? (r.axes as RequestFields[]) : [];
   const points = product(axes.map((a) => count(a?.count, 1)));
-  const invariant = typeof r.invariant === 'string' ? r.invariant : 'chern';
-  const each = diagnosticOf(invariant, 'invariant').cost(r, n, dim);
+  const quantity = typeof r.quantity === 'string' ? r.quantity : 'chern';
+  const each = diagnosticOf(quantity, 'quantity').cost(r, n, dim);
   return { bytes: points * POINT_BYTES + each.bytes, seconds: points * each.seconds };
 }
 

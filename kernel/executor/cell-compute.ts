@@ -100,7 +100,7 @@ export function cellCompute(engine: Engine, post: (message: WorkerToHost) => voi
       }
     }
     // A phase map point by point, each point counted against the grid (boundary refinement adds a few more).
-    const bar = new SilentProgress(post, `phase map of ${String(request.invariant ?? 'invariant')}`);
+    const bar = new SilentProgress(post, `phase map of ${String(request.quantity ?? 'quantity')}`);
     try {
       const result = engine.compute(request, { onPoint: (done, planned) => bar.report(done, Math.max(planned, done + 1)) });
       return remember(result, request);

@@ -9,12 +9,14 @@
  * browser Web Worker, a cluster shard. Only baseline
  * SIMD128 is used (no relaxed SIMD, which Node 20 lacks).
  *
- * Memory: users share one instance and its memory (calls are synchronous, so a user's data lives
- * there only during one of its own calls). A request for more than the current memory holds makes
- * a new instance with a larger memory, which later users share; earlier users keep theirs (a
- * memory is never grown: that would detach the buffer under their views, so its maximum is its
- * initial size). Complex arrays are interleaved (re, im) and 16-byte aligned; every address passed
- * to a kernel is a byte offset.
+ * Memory: every module of the engine (the eigensolver's here, the eigenphases', the real-space
+ * kernels') shares one memory (calls are synchronous, so a user's data lives there only during one
+ * of its own calls). A request for more than the memory holds makes a larger memory, on which each
+ * module is instantiated anew when next used; earlier users keep theirs (a memory is never grown:
+ * that would detach the buffer under their views, so its maximum is its initial size). One memory,
+ * not one per module: a host reserves address space for each (about 10 GB on 64-bit V8), and the
+ * kernel bounds a cell's address space. Complex arrays are interleaved (re, im) and 16-byte
+ * aligned; every address passed to a kernel is a byte offset.
  */
 
 /** The few WebAssembly declarations used here (the engine is compiled without DOM or Node types). */
@@ -780,24 +782,32 @@ const MAX_PAGES = 65536;
  */
 export function workspaces<K>(...modules: (() => Uint8Array)[]): (bytes: number) => { kernels: K; memory: ArrayBuffer } {
   let compiled: object[] | null = null;
-  let current: { kernels: K; memory: ArrayBuffer } | null = null;
+  let current: { kernels: K; memory: ArrayBuffer; on: WasmMemory } | null = null;
   return (bytes) => {
-    if (current !== null && current.memory.byteLength >= bytes) return current;
-    // At least double, so that a run of growing sizes makes few instances.
-    const needed = Math.ceil(bytes / PAGE);
-    const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((current?.memory.byteLength ?? 0) / PAGE)));
-    let memory: WasmMemory;
-    try {
-      if (needed > MAX_PAGES) throw new RangeError('too large');
-      memory = new wasm.Memory({ initial: pages, maximum: pages });
-    } catch {
-      throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
-    }
+    const memory = sharedMemory(bytes);
+    if (current !== null && current.on === memory) return current;
     compiled ??= modules.map((bytesOf) => new wasm.Module(bytesOf()));
     const kernels = Object.assign({}, ...compiled.map((module) => new wasm.Instance(module, { m: { memory } }).exports)) as K;
-    current = { kernels, memory: memory.buffer };
+    current = { kernels, memory: memory.buffer, on: memory };
     return current;
   };
+}
+
+/** The one memory every module uses (see the module comment), replaced by a larger one when asked for more. */
+let shared: WasmMemory | null = null;
+
+function sharedMemory(bytes: number): WasmMemory {
+  if (shared !== null && shared.buffer.byteLength >= bytes) return shared;
+  // At least double, so that a run of growing sizes makes few memories.
+  const needed = Math.ceil(bytes / PAGE);
+  const pages = Math.max(needed, Math.min(MAX_PAGES, 2 * ((shared?.buffer.byteLength ?? 0) / PAGE)));
+  try {
+    if (needed > MAX_PAGES) throw new RangeError('too large');
+    shared = new wasm.Memory({ initial: pages, maximum: pages });
+  } catch {
+    throw new RangeError(`linalg: could not allocate ${Math.ceil(bytes / 2 ** 20)} MB of workspace (WebAssembly memory holds at most 4096 MB). Value: ${bytes} bytes`);
+  }
+  return shared;
 }
 
 /** The eigensolver's kernels and a memory of at least `bytes` bytes (see `workspaces`). */

@@ -12,9 +12,9 @@ import type { PointFunction, PointTarget } from './sweep.js';
 /** Build the point function for a target (a diagnostic request without the swept values). */
 export function pointFunction(target: PointTarget): PointFunction {
   const { kind, model, params: fixed = {}, convention, ...options } = target as PointTarget & { convention?: BlochConvention };
-  const diagnostic = diagnosticOf(kind, 'invariant');
+  const diagnostic = diagnosticOf(kind, 'quantity');
   const sweep = diagnostic.sweep;
-  if (sweep === undefined) throw new ModelError('invariant', `a "${kind}" result has no value per point to sweep`);
+  if (sweep === undefined) throw new ModelError('quantity', `a "${kind}" result has no value per point to sweep`);
   const h = new BlochHamiltonian(model, fixed, { convention: convention ?? 'lattice' });
   return (swept: ParameterValues) => {
     // A swept name is a model parameter, or else an option of the point's request (sweep.ts).

@@ -25,7 +25,7 @@ export const CHECKPOINT_FORMAT = 'chernel.sweep-checkpoint';
 export const CHECKPOINT_VERSION = 1;
 
 /**
- * A finished point: its swept coordinates (axis order), the invariant (null: gapless), the gap, and
+ * A finished point: its swept coordinates (axis order), the quantity (null: gapless), the gap, and
  * a trailing 1 when the point's diagnostic flagged it (`PointOutcome.doubtful`).
  */
 export type PointRecord = [coords: number[], value: number | null, gap: number] | [coords: number[], value: number | null, gap: number, doubtful: 1];

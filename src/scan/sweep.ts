@@ -1,5 +1,6 @@
 /**
- * Phase diagrams: an invariant (or the gap) over a 1D or 2D grid of parameters, with the phase
+ * Phase diagrams: a quantity (an invariant, the gap, a disorder average) over a 1D or 2D grid of
+ * parameters, with the phase
  * boundaries located by bisection along every grid edge whose two ends disagree.
  *
  * The sweep is a pure, deterministic schedule: `advanceSweep(request, known)` looks at the points
@@ -50,14 +51,15 @@ export interface PhaseMapRequest {
   params?: ParameterValues;
   /** One or two swept parameters. */
   axes: SweepAxis[];
-  invariant: SweepQuantity;
+  /** What each point computes: a kind of the registry with a value per point (an invariant, the gap, an average). */
+  quantity: SweepQuantity;
   refine?: RefineOptions;
   bands?: number | number[];
   grid?: number | number[] | 'auto';
   [option: string]: unknown;
 }
 
-/** The request computed at each point: the phase map's request with `kind` = its invariant. */
+/** The request computed at each point: the phase map's request with `kind` = its quantity. */
 export interface PointTarget {
   kind: SweepQuantity;
   model: ModelSpec;
@@ -104,7 +106,7 @@ export interface PhaseMapChecks {
 
 export interface PhaseMapResult {
   kind: 'phase-map';
-  invariant: SweepQuantity;
+  quantity: SweepQuantity;
   /** False for a continuous map (a gap, an average): its values are not phases. */
   quantised: boolean;
   axes: PhaseMapAxis[];
@@ -161,10 +163,10 @@ export function axisValues(axis: SweepAxis): number[] {
   return values;
 }
 
-/** The request for each point (the phase map's own fields removed, `kind` = the invariant). */
+/** The request for each point (the phase map's own fields removed, `kind` = its quantity). */
 export function pointTarget(request: PhaseMapRequest): PointTarget {
-  const { kind: _kind, axes: _axes, invariant, refine: _refine, ...rest } = request;
-  return { ...rest, kind: invariant };
+  const { kind: _kind, axes: _axes, quantity, refine: _refine, ...rest } = request;
+  return { ...rest, kind: quantity };
 }
 
 /**
@@ -182,8 +184,8 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     if (err instanceof ModelError) throw new ModelError(`model.${err.field}`, err.message.slice(err.field.length + 2));
     throw err;
   }
-  if (!SWEEP_QUANTITIES.includes(r.invariant as SweepQuantity)) {
-    throw new ModelError('invariant', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${valueText(r.invariant)}`);
+  if (!SWEEP_QUANTITIES.includes(r.quantity as SweepQuantity)) {
+    throw new ModelError('quantity', `expected one of ${SWEEP_QUANTITIES.join(', ')}. Value: ${valueText(r.quantity)}`);
   }
   if (r.params !== undefined) checkParameterValues(model, r.params, 'params');
   if (!Array.isArray(r.axes) || r.axes.length < 1 || r.axes.length > 2) {
@@ -194,9 +196,9 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     const field = `axes[${i}]`;
     if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${valueText(a)}`);
     const spec = typeof a.param === 'string' && Object.hasOwn(model.parameters, a.param) ? model.parameters[a.param] : undefined;
-    const options = diagnosticOf(r.invariant, 'invariant').options;
+    const options = diagnosticOf(r.quantity, 'quantity').options;
     if (typeof a.param !== 'string' || (spec === undefined && !options.includes(a.param))) {
-      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} and a "${r.invariant}" request no such option (parameters: ${Object.keys(model.parameters).join(', ') || 'none'}; options: ${options.join(', ')})`);
+      throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} and a "${r.quantity}" request no such option (parameters: ${Object.keys(model.parameters).join(', ') || 'none'}; options: ${options.join(', ')})`);
     }
     if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);
     seen.add(a.param);
@@ -219,8 +221,8 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     if (maxRounds !== undefined && (!Number.isInteger(maxRounds) || maxRounds < 0)) {
       throw new ModelError('refine.maxRounds', `expected a whole number >= 0. Value: ${valueText(maxRounds)}`);
     }
-    if (diagnosticOf(r.invariant, 'invariant').quantised === false) {
-      throw new ModelError('refine', `boundaries are refined between different values of a quantised invariant; a map of "${r.invariant}" has none (drop refine, or sweep an invariant)`);
+    if (diagnosticOf(r.quantity, 'quantity').quantised === false) {
+      throw new ModelError('refine', `boundaries are refined between different values of a quantised invariant; a map of "${r.quantity}" has none (drop refine, or sweep an invariant)`);
     }
   }
   return r as PhaseMapRequest;
@@ -337,19 +339,19 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
   outcomes.forEach((o, n) => {
     if (o.gap < outcomes[minIndex].gap) minIndex = n;
   });
-  const quantised = diagnosticOf(request.invariant, 'invariant').quantised !== false;
+  const quantised = diagnosticOf(request.quantity, 'quantity').quantised !== false;
   const gaplessCount = quantised ? outcomes.filter((o) => o.value === null).length : 0;
   const doubtful = outcomes.findIndex((o) => o.doubtful === true);
   if (doubtful >= 0) {
     const count = outcomes.filter((o) => o.doubtful === true).length;
-    warnings.unshift(`${count} of ${outcomes.length} grid points were flagged by the ${request.invariant} diagnostic (k-grid too coarse or not converged), first at ${valueText(sweptParams(axes, gridCoords[doubtful]))}; use a finer grid`);
+    warnings.unshift(`${count} of ${outcomes.length} grid points were flagged by the ${request.quantity} diagnostic (k-grid too coarse or not converged), first at ${valueText(sweptParams(axes, gridCoords[doubtful]))}; use a finer grid`);
   }
   if (gaplessCount > 0) {
     warnings.unshift(`${gaplessCount} of ${outcomes.length} grid points are gapless (no invariant there); the smallest gap is ${outcomes[minIndex].gap} at ${valueText(sweptParams(axes, gridCoords[minIndex]))}`);
   }
   const result: PhaseMapResult = {
     kind: 'phase-map',
-    invariant: request.invariant,
+    quantity: request.quantity,
     quantised,
     axes: axes.map((a, i) => ({ param: a.param, from: a.from, to: a.to, count: a.count, values: grids[i] })),
     values: outcomes.map((o) => o.value),

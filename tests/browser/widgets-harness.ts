@@ -47,7 +47,7 @@ export function moreWidgets(): DemoWidget[] {
       id: 'c0ffee0000000000000000000000b003',
       kind: 'phase-map',
       spec: haldane(),
-      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 13 }, { param: 'M', from: -1, to: 1, count: 13 }], invariant: 'chern', grid: 12, bands: 1 },
+      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 13 }, { param: 'M', from: -1, to: 1, count: 13 }], quantity: 'chern', grid: 12, bands: 1 },
     },
     { id: 'c0ffee0000000000000000000000b004', kind: 'wannier-flow', spec: kaneMele(), values: { lambda_R: 0 }, options: { grid: [48, 32], bands: 2, invariant: 'z2' } },
     {
@@ -55,7 +55,7 @@ export function moreWidgets(): DemoWidget[] {
       id: 'c0ffee0000000000000000000000b005',
       kind: 'phase-map',
       spec: haldane(),
-      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 90 }, { param: 'M', from: -1, to: 1, count: 90 }], invariant: 'chern', grid: 24, bands: 1 },
+      options: { axes: [{ param: 'phi', from: -3, to: 3, count: 90 }, { param: 'M', from: -1, to: 1, count: 90 }], quantity: 'chern', grid: 24, bands: 1 },
     },
   ];
 }

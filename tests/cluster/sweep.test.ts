@@ -36,7 +36,7 @@ describe('phase diagram on Slurm', () => {
     expect(process.env.SLURM_CONF, 'run through tests/cluster/run.sh').toBeTruthy();
     // Haldane (PRL 61, 2015 (1988)): one grid round and one bisection round along phi.
     const request = {
-      kind: 'phase-map', model: 'haldane', invariant: 'chern', grid: 12, params: { t2: 0.1 },
+      kind: 'phase-map', model: 'haldane', quantity: 'chern', grid: 12, params: { t2: 0.1 },
       axes: [{ param: 'phi', from: -3, to: 3, count: 8 }, { param: 'M', from: -0.7, to: 0.7, count: 6 }],
       refine: { tolerance: 0.45 },
     };
@@ -72,7 +72,7 @@ describe('phase diagram on Slurm', () => {
 describe('a shard killed with SIGKILL', () => {
   it('reruns to the same output without recomputing its saved points', async () => {
     const request = {
-      kind: 'phase-map', model: 'haldane', invariant: 'chern', grid: 12, params: { t2: 0.1 },
+      kind: 'phase-map', model: 'haldane', quantity: 'chern', grid: 12, params: { t2: 0.1 },
       axes: [{ param: 'phi', from: -3, to: 3, count: 6 }, { param: 'M', from: -0.7, to: 0.7, count: 5 }],
     };
     writeFileSync(join(work, 'kill.request.json'), JSON.stringify(request));

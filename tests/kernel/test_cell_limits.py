@@ -109,7 +109,7 @@ class CellLimits(unittest.TestCase):
             ("compute({kind: 'chern', model: qwz(), grid: 100000})", "grid", "the largest grid that fits is"),
             ("compute({kind: 'z2', model: kaneMele(), grid: 100000})", "grid", "the largest grid that fits is"),
             ("compute({kind: 'ribbon', model: qwz(), direction: 0, width: 100000})", "width", "the largest width that fits is"),
-            ("compute({kind: 'phase-map', model: qwz(), invariant: 'chern', axes: [{param: 'u', from: -3, to: 3, count: 1e9}]})", "axes[0].count", "fits is"),
+            ("compute({kind: 'phase-map', model: qwz(), quantity: 'chern', axes: [{param: 'u', from: -3, to: 3, count: 1e9}]})", "axes[0].count", "fits is"),
             ("qwz({uu: 3})", "qwz", "did you mean params: {u: ...}"),
             ("show(qwz(), {kind: 'curvature', gird: 32})", "gird", 'did you mean "grid"'),
             ("show(qwz(), {kind: 'bands', tolerence: 1})", "tolerence", 'did you mean "tolerance"'),

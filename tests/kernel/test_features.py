@@ -191,7 +191,7 @@ class Features(unittest.TestCase):
             "ribbon": "compute({kind: 'ribbon', model: qwz(), direction: 0, width: 10, params: {u: -1}})",
             "curvature": "compute({kind: 'curvature', model: haldane(), grid: 16, bands: 1})",
             "wannier-flow": "compute({kind: 'wannier-flow', model: kaneMele(), grid: [16, 8], bands: 2})",
-            "phase-map": "compute({kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{param: 'u', from: -3, to: 3, count: 5}]})",
+            "phase-map": "compute({kind: 'phase-map', model: qwz(), quantity: 'chern', grid: 8, axes: [{param: 'u', from: -3, to: 3, count: 5}]})",
             "gap": "compute({kind: 'gap', model: qwz(), grid: 12, params: {u: -1}})",
         }
         for kind, code in cases.items():
@@ -258,7 +258,7 @@ class Features(unittest.TestCase):
 
     def test_a_long_phase_map_shows_a_progress_bar_with_the_time_left(self):
         # A fine map takes seconds (well under a millisecond a point, thousands of points).
-        code = "compute({kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 24, axes: [{param: 'phi', from: -3, to: 3, count: 80}, {param: 'M', from: -0.6, to: 0.6, count: 60}]})"
+        code = "compute({kind: 'phase-map', model: haldane(), quantity: 'chern', grid: 24, axes: [{param: 'phi', from: -3, to: 3, count: 80}, {param: 'M', from: -0.6, to: 0.6, count: 60}]})"
         reply, outputs = harness.run(self.kc, code, timeout=120)
         self.assertEqual(reply["status"], "ok")
         bars = [(m, c["data"]["text/plain"]) for m, c, _ in outputs if "display" in m and "<progress" in c["data"].get("text/html", "")]

@@ -12,7 +12,7 @@ import zmq
 # A long sweep of the engine: a Chern-number phase map over many parameter points. Engine loops
 # call checkInterrupt() once per row of k-points.
 LONG_SWEEP = """
-const sweep = compute({kind: 'phase-map', model: qwz(), axes: [{param: 'u', from: -3, to: 3, count: 200000}], invariant: 'chern', grid: 32})
+const sweep = compute({kind: 'phase-map', model: qwz(), axes: [{param: 'u', from: -3, to: 3, count: 200000}], quantity: 'chern', grid: 32})
 """
 
 

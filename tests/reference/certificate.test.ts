@@ -315,7 +315,7 @@ print(json.dumps(out))
 describe('phase maps land on the true closing', () => {
   it('the Kane–Mele boundary is refined to within the tolerance of 3 sqrt3 lambda_SO, and the gap closes there (Kane & Mele 2005)', async () => {
     const map = (await computeAsync({
-      kind: 'phase-map', model: kaneMele(), invariant: 'z2', params: { lambda_SO: 0.06, lambda_R: 0 },
+      kind: 'phase-map', model: kaneMele(), quantity: 'z2', params: { lambda_SO: 0.06, lambda_R: 0 },
       axes: [{ param: 'lambda_v', from: 0, to: 0.6, count: 7 }], refine: { tolerance: 1e-4 },
     })) as PhaseMapResult;
     expect(map.boundaries).toHaveLength(1);

@@ -432,7 +432,7 @@ describe('disorder phase maps through the one request (a swept option: the disor
   // convention), so the clean Bott index is 1 and 0 there; strong disorder localises every state and
   // the averaged index goes to 0 (common practice).
   const request = {
-    kind: 'phase-map' as const, model: qwz(), invariant: 'ensemble' as const, of: 'bott', samples: 3, sizes: [8, 8], seed: 7,
+    kind: 'phase-map' as const, model: qwz(), quantity: 'ensemble' as const, of: 'bott', samples: 3, sizes: [8, 8], seed: 7,
     axes: [{ param: 'onsiteDisorder', from: 0, to: 30, count: 2 }, { param: 'u', from: -1, to: -3, count: 2 }],
   };
 

@@ -10,7 +10,7 @@ describe('QWZ phase boundaries (Qi, Wu, Zhang, PRB 74, 085308 (2006))', () => {
     // 0 or 2 (one that did would be gapless, giving a bracket on each side of it). The k-grid (24,
     // even) contains (0,0), (pi,0), (0,pi), (pi,pi), where the QWZ gap closes.
     const map = phaseMapSync(
-      { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 24, axes: [{ param: 'u', from: -3.1, to: 3.05, count: 16 }], refine: { tolerance: 1e-3 } },
+      { kind: 'phase-map', model: qwz(), quantity: 'chern', grid: 24, axes: [{ param: 'u', from: -3.1, to: 3.05, count: 16 }], refine: { tolerance: 1e-3 } },
       pointFunction,
     );
     // C(lower) = 0, +1, -1, 0 on u < -2, -2 < u < 0, 0 < u < 2, u > 2 (shared/references.md convention).
@@ -34,7 +34,7 @@ describe('Haldane phase diagram (Haldane, PRL 61, 2015 (1988), Fig. 2)', () => {
   it('locates the boundary M = ±3√3 t2 sin(phi) to 1e-3 along M at fixed phi', () => {
     for (const phi of [Math.PI / 2, 1.0, -2.2]) {
       const map = phaseMapSync(
-        { kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 24, params: { t2, phi, t1: 1 }, axes: [{ param: 'M', from: -1, to: 1, count: 9 }], refine: { tolerance: 1e-3 } },
+        { kind: 'phase-map', model: haldane(), quantity: 'chern', grid: 24, params: { t2, phi, t1: 1 }, axes: [{ param: 'M', from: -1, to: 1, count: 9 }], refine: { tolerance: 1e-3 } },
         pointFunction,
       );
       const mc = critical(phi);
@@ -52,7 +52,7 @@ describe('Haldane phase diagram (Haldane, PRL 61, 2015 (1988), Fig. 2)', () => {
   it('maps the (phi, M) plane: every refined bracket straddles the published boundary', () => {
     const map = phaseMapSync(
       {
-        kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 24, params: { t2 },
+        kind: 'phase-map', model: haldane(), quantity: 'chern', grid: 24, params: { t2 },
         axes: [{ param: 'phi', from: -3, to: 3, count: 12 }, { param: 'M', from: -0.7, to: 0.7, count: 11 }],
         refine: { tolerance: 1e-3 },
       },
@@ -83,7 +83,7 @@ describe('Kitaev chain (Kitaev, Physics-Uspekhi 44, 131 (2001))', () => {
   it('the Majorana number changes at |mu| = 2|t|, located to 1e-3 in a 2D (mu, t) map', () => {
     const map = phaseMapSync(
       {
-        kind: 'phase-map', model: kitaevChain(), invariant: 'majorana', params: { Delta: 1 },
+        kind: 'phase-map', model: kitaevChain(), quantity: 'majorana', params: { Delta: 1 },
         axes: [{ param: 'mu', from: -3.25, to: 3.15, count: 9 }, { param: 't', from: 0.55, to: 1.45, count: 4 }],
         refine: { tolerance: 1e-3 },
       },

@@ -274,7 +274,7 @@ describe('compute() runs every topology kind', () => {
     expect(z.kind === 'z2' && z.z2).toBe(1);
     const w = compute({ kind: 'winding', model: ssh(), params: { v: 0.2, w: 1 } });
     expect(w.kind === 'winding' && w.winding).toBe(1);
-    const map = compute({ kind: 'phase-map', model: qwz(), axes: [{ param: 'u', from: -2.5, to: 2.5, count: 6 }], invariant: 'chern' });
+    const map = compute({ kind: 'phase-map', model: qwz(), axes: [{ param: 'u', from: -2.5, to: 2.5, count: 6 }], quantity: 'chern' });
     expect(map.kind).toBe('phase-map');
     if (map.kind === 'phase-map') expect(Array.from(map.values)).toEqual([0, 1, 1, -1, -1, 0]);
   });

@@ -3,7 +3,7 @@ import { compute, computeAsync, InterruptedError, qwz, type PhaseMapResult } fro
 
 describe('computeAsync', () => {
   const request = {
-    kind: 'phase-map' as const, model: qwz(), invariant: 'chern' as const, grid: 12,
+    kind: 'phase-map' as const, model: qwz(), quantity: 'chern' as const, grid: 12,
     axes: [{ param: 'u', from: -3.1, to: 2.9, count: 7 }], refine: { tolerance: 0.05 },
   };
 

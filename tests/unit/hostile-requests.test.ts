@@ -44,7 +44,7 @@ const BASE: DiagnosticRequest[] = [
   { kind: 'majorana', model: kitaevChain() },
   { kind: 'weyl', model: twoBandWeyl(), grid: 6 },
   { kind: 'hall', model: qwz(), grid: 8 },
-  { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 4 }] },
+  { kind: 'phase-map', model: qwz(), quantity: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 4 }] },
   { kind: 'bott', model: qwz(), sizes: [4, 4], onsiteDisorder: 1, seed: 2 },
   { kind: 'local-marker', model: qwz(), sizes: [4, 4] },
   { kind: 'surface-spectrum', model: qwz(), cut: 1, nk: 8, energyCount: 8 },

@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { blochHamiltonian, compute, curvatureMap, DIAGNOSTIC_KINDS, DIAGNOSTICS, KIND_NAMES, kitaevChain, ModelError, pointFunction, qwz, requestFields, ssh, SWEEP_QUANTITIES, type ModelSpec } from '../../src/index.js';
 import { SPLIT_ROWS } from '../../src/topology/parts.js';
+import { widgetRequest } from '../../contract/option-sliders.js';
 
 describe('the registry of diagnostic kinds', () => {
   it('gives every kind a module whose options are its own (kind, model, params and convention are every request\'s)', () => {
@@ -41,7 +42,15 @@ describe('the registry of diagnostic kinds', () => {
 
   it('refuses to sweep a kind with no scalar per point, naming the field', () => {
     expect(() => pointFunction({ kind: 'bands' as never, model: qwz() })).toThrow(ModelError);
-    expect(() => compute({ kind: 'phase-map', model: qwz(), invariant: 'bands' as never, axes: [{ param: 'u', from: -1, to: 1, count: 3 }] })).toThrow(/invariant/);
+    expect(() => compute({ kind: 'phase-map', model: qwz(), quantity: 'bands' as never, axes: [{ param: 'u', from: -1, to: 1, count: 3 }] })).toThrow(/^quantity: /);
+  });
+
+  it('names a phase map\'s swept kind "quantity", and says so to a request that still calls it "invariant"', () => {
+    const axes = [{ param: 'u', from: -1, to: 1, count: 3 }];
+    expect(() => compute({ kind: 'phase-map', model: qwz(), invariant: 'chern', axes } as never)).toThrow(/^invariant: a phase map names what it sweeps in "quantity"/);
+    // A widget saved before the rename still reads as its request (contract/option-sliders.ts).
+    expect(widgetRequest('phase-map', qwz(), { invariant: 'chern', axes }, { u: 0 })).toMatchObject({ kind: 'phase-map', quantity: 'chern', axes });
+    expect('invariant' in widgetRequest('phase-map', qwz(), { invariant: 'chern', axes }, { u: 0 })).toBe(false);
   });
 
   it('refuses a convention that differs from the compiled model\'s instead of ignoring it', () => {

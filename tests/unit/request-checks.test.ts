@@ -31,7 +31,7 @@ const VALID: Record<string, DiagnosticRequest> = {
   majorana: { kind: 'majorana', model: kitaevChain() },
   weyl: { kind: 'weyl', model: twoBandWeyl(), grid: 6 },
   hall: { kind: 'hall', model: qwz(), grid: 8 },
-  'phase-map': { kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 3 }] },
+  'phase-map': { kind: 'phase-map', model: qwz(), quantity: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 3 }] },
   bott: { kind: 'bott', model: qwz(), sizes: [4, 4] },
   'spin-bott': { kind: 'spin-bott', model: kaneMele(), sizes: [3, 3], params: { lambda_R: 0 } },
   'chain-winding': { kind: 'chain-winding', model: ssh(), sizes: [10] },
@@ -76,8 +76,8 @@ describe('strict request fields (src/request.ts)', () => {
     expect(refusal(() => compute({ kind: 'chern', model, parms: { u: 99 } } as never)).message).toContain('did you mean "params"?');
     expect(refusal(() => compute({ kind: 'chern', model, gird: 64 } as never)).message).toContain('did you mean "grid"?');
     expect(refusal(() => compute({ kind: 'chern', model, plane: { normal: 2, att: 0 } } as never)).field).toBe('plane.att');
-    expect(refusal(() => compute({ kind: 'phase-map', model, invariant: 'chern', axes: [{ param: 'u', from: 0, to: 1, count: 2 }], refine: { tolerence: 0.1 } } as never)).field).toBe('refine.tolerence');
-    expect(refusal(() => compute({ kind: 'phase-map', model, invariant: 'chern', axes: [{ parm: 'u', from: 0, to: 1, count: 2 }] } as never)).field).toBe('axes[0].parm');
+    expect(refusal(() => compute({ kind: 'phase-map', model, quantity: 'chern', axes: [{ param: 'u', from: 0, to: 1, count: 2 }], refine: { tolerence: 0.1 } } as never)).field).toBe('refine.tolerence');
+    expect(refusal(() => compute({ kind: 'phase-map', model, quantity: 'chern', axes: [{ parm: 'u', from: 0, to: 1, count: 2 }] } as never)).field).toBe('axes[0].parm');
     expect(refusal(() => compute({ kind: 'chrn', model } as never)).message).toContain('did you mean "chern"?');
     expect(refusal(() => compute({ kind: 'bands', model: { ...model, term: [] } } as never)).message).toContain('did you mean "terms"?');
     const amplitudeTypo = { ...model, terms: [{ ...model.terms[0], amplitude: { re: 1, img: 0 } }, ...model.terms.slice(1)] };
@@ -120,7 +120,7 @@ describe('cost known before running (src/cost.ts)', () => {
     [{ kind: 'wannier-flow', model: qwz(), grid: 100000 }, 'grid'],
     [{ kind: 'z2', model: kaneMele(), grid: 100000 }, 'grid'],
     [{ kind: 'curvature', model: qwz(), grid: [100000, 100000] }, 'grid'],
-    [{ kind: 'phase-map', model: qwz(), invariant: 'chern', axes: [{ param: 'u', from: -3, to: 3, count: 1e9 }] }, 'axes[0].count'],
+    [{ kind: 'phase-map', model: qwz(), quantity: 'chern', axes: [{ param: 'u', from: -3, to: 3, count: 1e9 }] }, 'axes[0].count'],
     [{ kind: 'ribbon', model: qwz(), direction: 0, width: 100000 }, 'width'],
     [{ kind: 'bott', model: qwz(), sizes: [400, 400] }, 'sizes'],
     [{ kind: 'local-marker', model: qwz(), sizes: [3000, 3000], method: 'chebyshev' }, 'sizes'],

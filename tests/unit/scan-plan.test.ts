@@ -15,7 +15,7 @@ import { phaseMapSync } from '../../src/scan/run.js';
 import type { PhaseMapRequest, PointFunction } from '../../src/scan/sweep.js';
 
 const request: PhaseMapRequest = {
-  kind: 'phase-map', model: haldane(), invariant: 'chern', grid: 12, params: { t2: 0.1 },
+  kind: 'phase-map', model: haldane(), quantity: 'chern', grid: 12, params: { t2: 0.1 },
   axes: [{ param: 'phi', from: -3, to: 3, count: 7 }, { param: 'M', from: -0.7, to: 0.7, count: 5 }],
   refine: { tolerance: 0.1 },
 };
@@ -156,7 +156,7 @@ describe('chernel sweep: bad input fails before any compute, naming the field', 
   });
   const cli = (...args: string[]) => runSweepCli(args, () => {});
   const writeRequest = (edit: (r: Record<string, any>) => void = () => {}) => {
-    const r: Record<string, any> = { kind: 'phase-map', model: 'qwz', invariant: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 7 }] };
+    const r: Record<string, any> = { kind: 'phase-map', model: 'qwz', quantity: 'chern', grid: 8, axes: [{ param: 'u', from: -3, to: 3, count: 7 }] };
     edit(r);
     const path = join(dir, 'q.request.json');
     writeFileSync(path, JSON.stringify(r));

@@ -27,7 +27,7 @@ afterAll(async () => Promise.all([enginePool.close(), fixturePool.close()]));
 describe('NodeWorkerExecutor', () => {
   it('gives exactly the in-process phase map (QWZ, 2 threads, with refinement)', async () => {
     const request: PhaseMapRequest = {
-      kind: 'phase-map', model: qwz(), invariant: 'chern', grid: 12,
+      kind: 'phase-map', model: qwz(), quantity: 'chern', grid: 12,
       axes: [{ param: 'u', from: -3.1, to: 3.3, count: 17 }], refine: { tolerance: 1e-3 },
     };
     const inProcess = phaseMapSync(request, pointFunction);
@@ -40,7 +40,7 @@ describe('NodeWorkerExecutor', () => {
 
   it('runs a 2D map through a point module, and names the point that fails', async () => {
     const request: PhaseMapRequest = {
-      kind: 'phase-map', model: knobs, invariant: 'chern',
+      kind: 'phase-map', model: knobs, quantity: 'chern',
       axes: [{ param: 'x', from: -3, to: 3, count: 7 }, { param: 'y', from: -3, to: 3, count: 5 }], refine: { tolerance: 1e-3 },
     };
     const { pointFunction: local } = await import('./fixtures/scan-points.js');
@@ -56,7 +56,7 @@ describe('NodeWorkerExecutor', () => {
     try {
       const file = join(dir, 'sweep.checkpoint.json');
       const request: PhaseMapRequest = {
-        kind: 'phase-map', model: knobs, invariant: 'chern', delayMs: 5,
+        kind: 'phase-map', model: knobs, quantity: 'chern', delayMs: 5,
         axes: [{ param: 'x', from: -3, to: 3, count: 40 }, { param: 'y', from: -1, to: 1, count: 3 }],
       };
       const executor = fixturePool;

@@ -22,7 +22,7 @@ const model = lattice('two knobs', [[1, 0], [0, 1]])
   .build();
 
 function request(extra: Partial<PhaseMapRequest>): PhaseMapRequest {
-  return { kind: 'phase-map', model, invariant: 'chern', axes: [{ param: 'x', from: -3, to: 3, count: 13 }], ...extra };
+  return { kind: 'phase-map', model, quantity: 'chern', axes: [{ param: 'x', from: -3, to: 3, count: 13 }], ...extra };
 }
 
 /** A counting point function: 1D steps at the given positions, values 0, 1, 2, ... left to right. */
@@ -122,8 +122,8 @@ describe('phase-map validation (fails before any compute, naming the field)', ()
     [{ axes: [] }, 'axes', /one or two/],
     [{ axes: [{ param: 'z', from: 0, to: 1, count: 3 }] }, 'axes[0].param', /no parameter "z"/],
     [{ axes: [{ param: 'x', from: 0, to: 11, count: 3 }] }, 'axes[0].to', /outside its declared range/],
-    [{ invariant: 'hall' as never }, 'invariant', /"hall"/],
-    [{ invariant: 'gap' as const, refine: { tolerance: 0.1 } }, 'refine', /quantised invariant/],
+    [{ quantity: 'hall' as never }, 'quantity', /"hall"/],
+    [{ quantity: 'gap' as const, refine: { tolerance: 0.1 } }, 'refine', /quantised invariant/],
     [{ refine: { tolerance: 0 } }, 'refine.tolerance', /positive/],
     [{ params: { w: 1 } }, 'params.w', /no parameter "w"/],
     [{ model: { ...model, orbitals: [] } }, 'model.orbitals', /at least one orbital/],

@@ -175,7 +175,7 @@ describe('figure pictures', () => {
       ['wannier-flow', draw(kaneMele(), 'wannier-flow', { grid: [24, 12], bands: 2 }), [31, 78, 156]],
       ['bands', draw(qwz(), 'bands', { bands: 1 }, { u: -1 }), [192, 57, 43]],
       ['ribbon', draw(qwz(), 'ribbon', { direction: 0, width: 12 }, { u: -1 }), [179, 38, 30]],
-      ['phase-map', draw(qwz(), 'phase-map', { invariant: 'chern', grid: 10, axes: [{ param: 'u', from: -3, to: 3, count: 7 }, { param: 'u', from: -3, to: 3, count: 2 }].slice(0, 1) }), [59, 110, 168]],
+      ['phase-map', draw(qwz(), 'phase-map', { quantity: 'chern', grid: 10, axes: [{ param: 'u', from: -3, to: 3, count: 7 }, { param: 'u', from: -3, to: 3, count: 2 }].slice(0, 1) }), [59, 110, 168]],
       // The marker of the smallest gap.
       ['gap', draw(qwz(), 'gap', { grid: 12 }, { u: -1 }), [217, 130, 43]],
     ];

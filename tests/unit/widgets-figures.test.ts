@@ -144,7 +144,7 @@ describe('bands, ribbon and phase-map figures', () => {
   it('phase map: discrete colours with legend entries, gap contours, the current point, the phase there', () => {
     const { figure, traces } = run(haldane(), 'phase-map', {
       axes: [{ param: 'phi', from: -3, to: 3, count: 7 }, { param: 'M', from: -1, to: 1, count: 5 }],
-      invariant: 'chern',
+      quantity: 'chern',
       grid: 12,
       bands: 1,
     }, { phi: Math.PI / 2, M: 0 });

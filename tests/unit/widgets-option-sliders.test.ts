@@ -65,7 +65,7 @@ describe('option sliders', () => {
   });
 
   it("a phase map swept over a request option (disorder): a click's value there places the point, never the request", () => {
-    const map = { axes: [{ param: 'onsiteDisorder', from: 0, to: 4, count: 2 }, { param: 'u', from: -3, to: -1, count: 2 }], invariant: 'ensemble', of: 'bott', samples: 2, sizes: [6, 6] };
+    const map = { axes: [{ param: 'onsiteDisorder', from: 0, to: 4, count: 2 }, { param: 'u', from: -3, to: -1, count: 2 }], quantity: 'ensemble', of: 'bott', samples: 2, sizes: [6, 6] };
     const values = checkControlValues(spec, map, { u: -1, onsiteDisorder: 2 }, 'values (from the front end)');
     expect(values).toEqual({ u: -1, onsiteDisorder: 2 });
     expect(() => checkControlValues(spec, map, { onsiteDisorder: 'x' }, 'setValues')).toThrow(/^setValues\.onsiteDisorder: must be a finite number/);
