@@ -117,7 +117,6 @@ export function rasterBitmap(raster: Raster): Uint8Array {
   return bytes;
 }
 
-
 /** The raster as a plotly layout image in data coordinates, below the traces. */
 export function rasterImage(raster: Raster): Partial<LayoutImage> {
   return {

@@ -14,7 +14,6 @@ import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_RANGE, WIDGET_VIEW_NAME
 import { packArrays } from '../contract/wire.js';
 import { OPTION_SLIDERS, optionSlidersOf, optionSlidersProblem, optionStart, optionValueProblem, sweptOptions } from '../contract/option-sliders.js';
 
-
 export type Values = Record<string, number>;
 export type Result = Record<string, unknown> & { kind: string };
 

@@ -132,7 +132,6 @@ function checkCost(request: DiagnosticRequest): CostEstimate {
   throw new ModelError('model.orbitals', `a "${request.kind}" request on ${n} orbitals ${over}, even at its smallest sizes`);
 }
 
-
 /** Checks a request's kind, the names of its fields and the shape of its parameter values. */
 export function checkRequestShape(request: DiagnosticRequest): void {
   if (!isObject(request)) throw new ModelError('request', `expected a diagnostic request object. Value: ${valueText(request)}`);

@@ -36,12 +36,6 @@ export type {
   ArcLine, ArcStep, BoundaryInvariant, BoundaryKind, BoundaryVerdict, BulkBoundaryOptions, BulkBoundaryResult, DiracPoint, EdgeCount, EndCount, EndMode, SurfaceCount,
 } from './boundary-result.js';
 
-
-
-
-
-
-
 /** Count the boundary modes of an open sample and compare them with the bulk invariant. */
 export function bulkBoundary(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBoundaryResult {
   if (options === null || typeof options !== 'object') throw new ModelError('options', `expected {cut, energy, ...}. Value: ${valueText(options)}`);

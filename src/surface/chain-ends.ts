@@ -31,9 +31,6 @@ import { column, expectation, rotateByDiagonal, weightOn } from './crossings.js'
 import { judge, type BoundaryInvariant, type BoundaryVerdict, type BulkBoundaryOptions, type BulkBoundaryResult, type EndCount, type EndMode } from './boundary-result.js';
 import { checkedInvariant, openSample, thinSample } from './open-sample.js';
 
-
-
-
 /** The 1D check: zero modes at the two ends of an open chain. */
 export function chainEnds(h: BlochHamiltonian, options: BulkBoundaryOptions): BulkBoundaryResult {
   const sample = openSample(h, options, 64);

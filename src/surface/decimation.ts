@@ -341,7 +341,6 @@ function invert4(gr: Float64Array, gi: Float64Array, small: number): boolean {
   return true;
 }
 
-
 /**
  * Im Tr (omega - eps)^{-1} for 4 x 4 by the blocks of invert4: Tr M^-1 = Tr P^-1 + Tr Z^-1 (1 + Y X),
  * only the traces needed. NaN when a block's determinant is tiny (the caller then inverts in full).
@@ -398,7 +397,6 @@ function imTraceInverse4(er: Float64Array, ei: Float64Array, energy: number, eta
   const c11r = y10r * x01r - y10i * x01i + y11r * x11r - y11i * x11i, c11i = y10r * x01i + y10i * x01r + y11r * x11i + y11i * x11r;
   return t00i + t11i + w00i + w11i + w00r * c00i + w00i * c00r + w01r * c10i + w01i * c10r + w10r * c01i + w10i * c01r + w11r * c11i + w11i * c11r;
 }
-
 
 /** The same with partial pivoting (rows swapped while eliminating, the inverse's columns swapped back). */
 function pivotedResolvent(n: number, er: Float64Array, ei: Float64Array, energy: number, eta: number, gr: Float64Array, gi: Float64Array, piv: Int32Array): void {

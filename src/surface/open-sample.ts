@@ -49,7 +49,6 @@ export function checkedInvariant(h: BlochHamiltonian, given: unknown): BoundaryI
   return given as BoundaryInvariant;
 }
 
-
 /** Decay lengths the sample must span: below this, end or surface modes of the two sides may hybridise out of the gap. */
 export const DECAY_LENGTHS = 4;
 

@@ -40,10 +40,6 @@ import type { PrincipalLayers } from './layers.js';
 import { judge, type ArcLine, type ArcStep, type BoundaryInvariant, type BulkBoundaryOptions, type BulkBoundaryResult, type DiracPoint, type SurfaceCount } from './boundary-result.js';
 import { checkedInvariant, openSample, thinSample, type OpenSample } from './open-sample.js';
 
-
-
-
-
 /** 3 x 3 inverse of the cut's integer basis (rows A_i, in old lattice units): k = A^-1 k'. */
 function inverse3(a: number[][]): number[][] {
   const [[a0, a1, a2], [b0, b1, b2], [c0, c1, c2]] = a;

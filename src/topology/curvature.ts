@@ -25,7 +25,6 @@ import { gridMomentum, joinCurvatureParts, resolvePart, type CurvatureChecks, ty
 export type { CurvatureChecks, CurvatureMethod, CurvatureResult };
 import { resolvePair } from './wilson.js';
 
-
 export interface CurvatureOptions extends TopologyOptions {
   method?: CurvatureMethod;
   /** k-points per direction, one number or two; default 64. */
@@ -36,8 +35,6 @@ export interface CurvatureOptions extends TopologyOptions {
   /** Compute only this part of the map's rows (along the second axis); see parts.ts. */
   part?: PartSpec;
 }
-
-
 
 /** Kubo-formula curvature of every band and of a group, at one k; preallocated. */
 export class KuboCurvature {

@@ -23,4 +23,3 @@ export function withZ2<R extends ViewResult>(flow: R, z2: ViewResult): R {
 
 /** Where a part of a split flow (split.ts) carries the Z2 count, computed by part 0 only. */
 export const Z2_OF_PARTS = 'z2Count';
-

@@ -191,8 +191,6 @@ export interface WannierFlowOptions extends TopologyOptions {
   part?: PartSpec;
 }
 
-
-
 export function resolvePair(grid: [number, number] | number | undefined, defaults: [number, number], field = 'grid'): [number, number] {
   const pair = grid === undefined ? defaults : typeof grid === 'number' ? [grid, grid] : grid;
   if (!Array.isArray(pair) || pair.length !== 2) throw new ModelError(field, `expected a number of k-points or [along, across]. Value: ${valueText(grid)}`);

@@ -9,7 +9,6 @@ import { PLOTLY_MIME, WIDGET_STATE_MIME, WIDGET_VIEW_MIME } from '../../contract
 import { WIDGET_MODULE } from '../../contract/protocol.js';
 import { DiagnosticModel, DiagnosticView } from './widget.js';
 
-
 function failure(where: Element, message: string): void {
   const box = document.createElement('div');
   box.className = 'chernel-message';

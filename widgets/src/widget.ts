@@ -22,8 +22,6 @@ import { diagnosticStateProblem } from '../../contract/state-check.js';
 import { packArrays, unpackArrays } from '../../contract/wire.js';
 import { optionSlidersOf, optionStart, requestValues, widgetRequest } from '../../contract/option-sliders.js';
 
-
-
 export type Values = Record<string, number>;
 
 export function sameValues(a: Values | null | undefined, b: Values | null | undefined): boolean {
