@@ -8,7 +8,7 @@
  * The widget's request takes them as options; `optionSliders` itself is the widget's, never the
  * engine's. The kernel and the page both read this module.
  */
-import type { DiagnosticRequest, ModelSpecView, WidgetKind } from './protocol.js';
+import type { ViewRequest, ModelSpecView, WidgetKind } from './protocol.js';
 
 /** The widget option naming the request options that get a slider. */
 export const OPTION_SLIDERS = 'optionSliders';
@@ -86,7 +86,7 @@ export function sweptOptions(options: Readonly<Record<string, unknown>>, paramet
 }
 
 /** The request a widget's values describe: model parameters as `params`, option sliders as options. */
-export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: Readonly<Record<string, unknown>>, values: Readonly<Record<string, number>>): DiagnosticRequest {
+export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: Readonly<Record<string, unknown>>, values: Readonly<Record<string, number>>): ViewRequest {
   const { [OPTION_SLIDERS]: _own, ...rest } = options;
   // A phase-map widget saved before the rename names its swept kind `invariant`: read as `quantity`.
   if (kind === 'phase-map' && Object.hasOwn(rest, 'invariant') && !Object.hasOwn(rest, 'quantity')) {

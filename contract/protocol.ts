@@ -1,9 +1,9 @@
 /**
  * The contract between the kernel and the widgets, which both import and neither owns: the widget
  * kinds, the names and versions of the widget's model and view, the MIME types of the outputs, and
- * the shapes of a widget's request and result as they travel (the request is the engine's own
- * `DiagnosticRequest`, src/request.ts; the result types list only the fields the figures draw, so a
- * saved notebook from an older engine still opens). Typed arrays travel packed (wire.ts).
+ * the shapes of a view's request and result as they travel (`ViewRequest` is the engine's
+ * `DiagnosticRequest`, src/request.ts, as JSON; `ViewResult` lists only the fields the figures draw,
+ * so a saved notebook from an older engine still opens). Typed arrays travel packed (wire.ts).
  */
 
 /** The front-end module, its version, and the semver range the kernel writes into widget state. */
@@ -51,7 +51,8 @@ export interface ModelSpecView {
   parameters: Record<string, ParameterDecl>;
 }
 
-export interface DiagnosticRequest {
+/** A view's request: the engine's request as a widget holds it (plain JSON; the engine checks it). */
+export interface ViewRequest {
   kind: WidgetKind;
   model: ModelSpecView;
   params: Record<string, number>;
@@ -68,7 +69,8 @@ export interface Checks {
   gapless?: boolean;
 }
 
-export interface DiagnosticResult {
+/** A result as a view reads it (src/topology/flow-z2.ts has the engine's side of the same shape). */
+export interface ViewResult {
   kind: string;
   checks: Checks;
   convention?: 'lattice' | 'orbital';

@@ -3,7 +3,7 @@
  * the gap above them shaded and annotated.
  */
 import type { Data, Layout } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface PathInfo {
@@ -20,7 +20,7 @@ interface BandsData {
   group: { lo: number; hi: number } | null;
 }
 
-function read(result: DiagnosticResult): BandsData {
+function read(result: ViewResult): BandsData {
   const path = result.path as PathInfo | undefined;
   const energies = numberArray(result, 'energies');
   const bandCount = result.bandCount;
@@ -52,7 +52,7 @@ export function gapAbove(energies: ArrayLike<number>, count: number, bandCount: 
   return [top, bottom];
 }
 
-export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function bandsFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { path, bandCount, energies, group } = read(result);
   const strong = highlighted(ctx, group, bandCount);
   const unit = energyUnit(ctx.spec);
@@ -132,7 +132,7 @@ export function bandsFigure(result: DiagnosticResult, ctx: FigureContext): Figur
   };
 }
 
-export function bandsTable(result: DiagnosticResult): Table {
+export function bandsTable(result: ViewResult): Table {
   const { path, bandCount, energies } = read(result);
   const columns = ['distance', ...Array.from({ length: bandCount }, (_, n) => `E${n}`)];
   const rows = Array.from({ length: path.count }, (_, p) => [path.distance[p], ...Array.from({ length: bandCount }, (__, n) => energies[p * bandCount + n])]);

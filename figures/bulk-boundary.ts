@@ -5,7 +5,7 @@
  * chain's two ends and a slab's two surfaces are drawn as their counts beside what the invariant
  * requires.
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import { BASE_LAYOUT, fmt, ResultShapeError, titled, type Figure, type FigureContext, type Table } from './common.js';
 import { cutText, warningText } from './spectral.js';
@@ -43,7 +43,7 @@ function isEdge(e: unknown): e is EdgeShape {
     edge.modes.every((m) => typeof m?.k === 'number' && typeof m.velocity === 'number' && typeof m.weight === 'number');
 }
 
-function read(result: DiagnosticResult): CheckData {
+function read(result: ViewResult): CheckData {
   const { energy, verdict, summary, invariant, edges } = result as Record<string, unknown>;
   if (typeof energy !== 'number') throw new ResultShapeError(result.kind, 'energy', energy);
   if (typeof verdict !== 'string') throw new ResultShapeError(result.kind, 'verdict', verdict);
@@ -66,14 +66,14 @@ interface CountShape {
   agrees: boolean | null;
 }
 
-function countsOf(result: DiagnosticResult): [string, CountShape][] | null {
+function countsOf(result: ViewResult): [string, CountShape][] | null {
   const sides = (result.ends ?? result.surfaces) as Record<string, CountShape> | undefined;
   if (sides === undefined || sides === null || typeof sides !== 'object') return null;
   const named = Object.entries(sides).filter(([, c]) => c !== null && typeof c === 'object' && (typeof c.net === 'number' || typeof c.count === 'number'));
   return named.length === 2 ? named : null;
 }
 
-function countsFigure(result: DiagnosticResult, sides: [string, CountShape][]): Figure {
+function countsFigure(result: ViewResult, sides: [string, CountShape][]): Figure {
   const verdict = String(result.verdict);
   const counted = sides.map(([, c]) => (typeof c.net === 'number' ? c.net : (c.count as number)));
   const what = result.ends !== undefined ? 'end' : 'surface';
@@ -97,7 +97,7 @@ function countsFigure(result: DiagnosticResult, sides: [string, CountShape][]): 
   };
 }
 
-export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext): Figure {
+export function bulkBoundaryFigure(result: ViewResult, _ctx: FigureContext): Figure {
   const sides = result.edges === undefined ? countsOf(result) : null;
   if (sides !== null) return countsFigure(result, sides);
   const r = read(result);
@@ -148,7 +148,7 @@ export function bulkBoundaryFigure(result: DiagnosticResult, _ctx: FigureContext
   };
 }
 
-export function bulkBoundaryTable(result: DiagnosticResult): Table {
+export function bulkBoundaryTable(result: ViewResult): Table {
   const sides = result.edges === undefined ? countsOf(result) : null;
   if (sides !== null) {
     return { columns: ['boundary', 'counted', 'the invariant requires', 'agrees'], rows: sides.map(([name, c]) => [name, typeof c.net === 'number' ? c.net : (c.count as number), c.expected ?? '', c.agrees === null ? '' : String(c.agrees)]) };

@@ -1,6 +1,6 @@
 /** What every figure builder returns, and helpers for reading results defensively. */
 import type { Data, Layout } from './plotly-json.js';
-import type { DiagnosticResult, ModelSpecView } from '../contract/protocol.js';
+import type { ViewResult, ModelSpecView } from '../contract/protocol.js';
 import type { Raster, Sketch } from './picture.js';
 import type { NumericArray } from '../contract/wire.js';
 
@@ -49,21 +49,21 @@ function describe(value: unknown): string {
   return text === undefined ? String(value) : text.length > 80 ? `${text.slice(0, 77)}...` : text;
 }
 
-export function numberArray(result: DiagnosticResult, field: string): ArrayLike<number> {
+export function numberArray(result: ViewResult, field: string): ArrayLike<number> {
   const value = result[field];
   if (ArrayBuffer.isView(value) && !(value instanceof DataView)) return value as NumericArray;
   if (Array.isArray(value) && value.every((v) => typeof v === 'number' || v === null)) return value as number[];
   throw new ResultShapeError(result.kind, field, value);
 }
 
-export function optionalNumber(result: DiagnosticResult, field: string): number | null {
+export function optionalNumber(result: ViewResult, field: string): number | null {
   const value = result[field];
   if (value === null || value === undefined) return null;
   if (typeof value === 'number') return value;
   throw new ResultShapeError(result.kind, field, value);
 }
 
-export function gridOf(result: DiagnosticResult, field = 'grid'): [number, number] {
+export function gridOf(result: ViewResult, field = 'grid'): [number, number] {
   const value = result[field] ?? result.checks?.grid;
   if (Array.isArray(value) && value.length >= 2 && value.every((n) => Number.isInteger(n) && n > 0)) {
     return [value[0] as number, value[1] as number];
@@ -101,7 +101,7 @@ export function withUnit(label: string, unit: string): string {
 }
 
 /** A gap line for summaries: "min gap 0.42 eV" or the closing point (minGapAt is in units of b_i) when gapless. */
-export function gapText(result: DiagnosticResult, unit: string): string {
+export function gapText(result: ViewResult, unit: string): string {
   const { minGap, minGapAt, gapless } = result.checks;
   if (minGap === null || minGap === undefined) return 'gap not measured';
   const at = minGapAt && minGapAt.length ? ` at k = (${minGapAt.map((k) => fmt(k)).join(', ')})` : '';

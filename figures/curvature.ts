@@ -5,7 +5,7 @@
  */
 import { boundaryReduced } from './geometry.js';
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Raster } from './picture.js';
 import {
   BASE_LAYOUT,
@@ -34,7 +34,7 @@ interface CurvatureData {
   chern: number | null;
 }
 
-function read(result: DiagnosticResult): CurvatureData {
+function read(result: ViewResult): CurvatureData {
   const [n1, n2] = gridOf(result);
   const omega = numberArray(result, 'values');
   const k1 = numberArray(result, 'k1');
@@ -66,7 +66,7 @@ function tiling(corners: [number, number][] | null): { from: number; to: number 
   });
 }
 
-export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function curvatureFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { n1, n2, x1, x2, omega, chern } = read(result);
   const corners = ctx.spec.vectors.length >= 2 && ctx.spec.periodic >= 2 ? boundaryReduced(ctx.spec.vectors) : null;
   const [t1, t2] = tiling(corners);
@@ -209,7 +209,7 @@ export function curvatureFigure(result: DiagnosticResult, ctx: FigureContext): F
   };
 }
 
-export function curvatureTable(result: DiagnosticResult): Table {
+export function curvatureTable(result: ViewResult): Table {
   const { n1, n2, x1, x2, omega } = read(result);
   const rows: number[][] = [];
   for (let b = 0; b < n2; b++) for (let a = 0; a < n1; a++) rows.push([x1[a], x2[b], omega[b * n1 + a]]);

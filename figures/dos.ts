@@ -2,17 +2,17 @@
  * Density of states per unit cell against energy (src/spectra/dos.ts), with how it was computed:
  * linear interpolation on simplices (no broadening) or Gaussian broadening of a stated width.
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, fmt, numberArray, titled, type Figure, type Table } from './common.js';
 
-function read(result: DiagnosticResult): { energy: ArrayLike<number>; density: ArrayLike<number> } {
+function read(result: ViewResult): { energy: ArrayLike<number>; density: ArrayLike<number> } {
   const energy = numberArray(result, 'energy');
   const density = numberArray(result, 'density');
   if (energy.length !== density.length || energy.length === 0) throw new Error(`dos result: ${energy.length} energies for ${density.length} densities`);
   return { energy, density };
 }
 
-export function dosFigure(result: DiagnosticResult): Figure {
+export function dosFigure(result: ViewResult): Figure {
   const { energy, density } = read(result);
   const method = result.method === 'gaussian' ? `Gaussian broadening ${fmt(Number(result.width))}` : 'linear on simplices, no broadening';
   const bands = typeof result.bandCount === 'number' ? result.bandCount : null;
@@ -41,7 +41,7 @@ export function dosFigure(result: DiagnosticResult): Figure {
   };
 }
 
-export function dosTable(result: DiagnosticResult): Table {
+export function dosTable(result: ViewResult): Table {
   const { energy, density } = read(result);
   return { columns: ['energy', 'density'], rows: Array.from(energy, (e, i) => [e, density[i]]) };
 }

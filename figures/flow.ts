@@ -3,7 +3,7 @@
  * momentum k1, the largest-gap line, and the winding (Chern number) or Z2 index in the title.
  */
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, energyUnit, fmt, gapText, numberArray, optionalNumber, titled, type Figure, type FigureContext, type Table } from './common.js';
 import { integerOrValue } from './curvature.js';
 
@@ -22,7 +22,7 @@ interface FlowData {
   z2: number | null;
 }
 
-function read(result: DiagnosticResult): FlowData {
+function read(result: ViewResult): FlowData {
   const across = numberArray(result, 'across');
   const centres = numberArray(result, 'centres');
   const gapMidpoint = numberArray(result, 'gapMidpoint');
@@ -55,7 +55,7 @@ export function wrapBreaks(x: number[], y: ArrayLike<number>): { x: (number | nu
   return { x: outX, y: outY };
 }
 
-export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function flowFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { x, m, centres, gapMidpoint, winding, z2 } = read(result);
   const px: number[] = [];
   const py: number[] = [];
@@ -121,7 +121,7 @@ export function flowFigure(result: DiagnosticResult, ctx: FigureContext): Figure
   };
 }
 
-export function flowTable(result: DiagnosticResult): Table {
+export function flowTable(result: ViewResult): Table {
   const { x, m, centres, gapMidpoint } = read(result);
   const columns = ['k1 [b1]', ...Array.from({ length: m }, (_, j) => `centre ${j} [a2]`), 'largest-gap midpoint [a2]'];
   const rows = x.map((k, i) => [k, ...Array.from({ length: m }, (_, j) => centres[i * m + j]), gapMidpoint[i]]);

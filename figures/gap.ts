@@ -4,7 +4,7 @@
  * the gap closes. A 3D gap is drawn on the k3 plane through its minimum.
  */
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, gapText, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 /** Light where the gap is wide, dark where it closes. */
@@ -22,7 +22,7 @@ interface GapData {
   at: number[];
 }
 
-function read(result: DiagnosticResult): GapData {
+function read(result: ViewResult): GapData {
   const grid = result.grid;
   const gap = numberArray(result, 'gap');
   const at = (result.at as { fractions?: number[] } | undefined)?.fractions;
@@ -35,7 +35,7 @@ function read(result: DiagnosticResult): GapData {
 /** Sample j of n along one direction, in units of the reciprocal lattice (k = -pi + 2 pi j / n). */
 const fraction = (j: number, n: number): number => -0.5 + j / n;
 
-export function gapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function gapFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { grid, gap, at } = read(result);
   const unit = energyUnit(ctx.spec);
   const gapless = result.checks.gapless === true;
@@ -80,7 +80,7 @@ export function gapFigure(result: DiagnosticResult, ctx: FigureContext): Figure 
   };
 }
 
-export function gapTable(result: DiagnosticResult): Table {
+export function gapTable(result: ViewResult): Table {
   const { grid, gap } = read(result);
   const columns = [...grid.map((_, d) => `k${d + 1} [b${d + 1}]`), 'gap'];
   const rows: number[][] = [];

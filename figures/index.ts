@@ -3,7 +3,7 @@
  * data table for export. Pure (no DOM): the widgets, the kernel's outputs, the exported pages and
  * the still pictures (snapshot/) all draw a kind with the same module, so it looks the same in each.
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Figure, FigureContext, Table } from './common.js';
 import { bandsFigure, bandsTable } from './bands.js';
 import { curvatureFigure, curvatureTable } from './curvature.js';
@@ -24,8 +24,8 @@ export type { Figure, FigureContext, Table } from './common.js';
 interface Renderer {
   /** What the kind is called in a widget's header and a summary's caption. */
   title: string;
-  figure(result: DiagnosticResult, ctx: FigureContext): Figure;
-  table(result: DiagnosticResult, ctx: FigureContext): Table;
+  figure(result: ViewResult, ctx: FigureContext): Figure;
+  table(result: ViewResult, ctx: FigureContext): Table;
 }
 
 const RENDERERS: Record<string, Renderer> = {
@@ -62,11 +62,11 @@ function rendererFor(kind: string): Renderer {
   return renderer;
 }
 
-export function figureFor(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function figureFor(result: ViewResult, ctx: FigureContext): Figure {
   return rendererFor(result.kind).figure(result, ctx);
 }
 
-export function tableFor(result: DiagnosticResult, ctx: FigureContext): Table {
+export function tableFor(result: ViewResult, ctx: FigureContext): Table {
   return rendererFor(result.kind).table(result, ctx);
 }
 

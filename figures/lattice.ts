@@ -6,7 +6,7 @@
  * data from the model (kernel/display/lattice.ts); this draws it.
  */
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, fmt, titled, type Figure, type Table } from './common.js';
 
 export interface LatticeSite {
@@ -67,7 +67,7 @@ export function phaseColour(phase: number): string {
   return hex((r + m) * 255, (g + m) * 255, (b + m) * 255);
 }
 
-function read(result: DiagnosticResult): LatticePicture {
+function read(result: ViewResult): LatticePicture {
   const picture = result as unknown as LatticePicture;
   if (!Array.isArray(picture.sites) || !Array.isArray(picture.bonds) || !Array.isArray(picture.orbitals)) {
     throw new Error(`lattice picture: sites, bonds and orbitals expected. Value: ${Object.keys(result).join(', ')}`);
@@ -83,7 +83,7 @@ function amplitudeText(re: number, im: number): string {
   return `${fmt(modulus)} e^(${fmt(phase / Math.PI)}πi)`;
 }
 
-export function latticeFigure(result: DiagnosticResult): Figure {
+export function latticeFigure(result: ViewResult): Figure {
   const m = read(result);
   const biggest = Math.max(1e-300, ...m.bonds.map((b) => Math.hypot(b.re, b.im)));
   // Bonds grouped by colour step and width, one trace each (a few traces, not one per bond).
@@ -158,7 +158,7 @@ export function latticeFigure(result: DiagnosticResult): Figure {
   };
 }
 
-export function latticeTable(result: DiagnosticResult): Table {
+export function latticeTable(result: ViewResult): Table {
   const m = read(result);
   return {
     columns: ['x0', 'y0', 'x1', 'y1', 'Re t', 'Im t', 'term'],

@@ -6,7 +6,7 @@
  * colour map instead, with a colour bar.
  */
 import type { Data, Layout } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, CLOSING_MARKER, energyUnit, fmt, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface Axis {
@@ -23,7 +23,7 @@ interface PhaseMapData {
   boundaries: { at: Record<string, number> }[];
 }
 
-function read(result: DiagnosticResult): PhaseMapData {
+function read(result: ViewResult): PhaseMapData {
   const axes = result.axes as Axis[] | undefined;
   const values = result.values as (number | null)[] | undefined;
   const gaps = result.gaps as number[] | ArrayLike<number> | undefined;
@@ -64,7 +64,7 @@ export function phaseColours(distinct: number[]): Map<number, string> {
 /** The name of the draggable current-point shape (the view finds it by this name). */
 export const PHASE_POINT_SHAPE = 'current-point';
 
-export function phaseMapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function phaseMapFigure(result: ViewResult, ctx: FigureContext): Figure {
   const m = read(result);
   if (!m.quantised) return continuousMapFigure(m, ctx);
   const sym = SYMBOL[m.quantity] ?? m.quantity;
@@ -248,7 +248,7 @@ function locate(m: PhaseMapData, values: Record<string, number>): number | null 
   return m.values[flat];
 }
 
-export function phaseMapTable(result: DiagnosticResult): Table {
+export function phaseMapTable(result: ViewResult): Table {
   const m = read(result);
   const n0 = m.axes[0].values.length;
   const rows = m.values.map((v, idx) => [

@@ -9,7 +9,7 @@
  * shows its middle layer.
  */
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult, ModelSpecView } from '../contract/protocol.js';
+import type { ViewResult, ModelSpecView } from '../contract/protocol.js';
 import type { Raster } from './picture.js';
 import { BASE_LAYOUT, DIVERGING, ResultShapeError, fmt, numberArray, optionalNumber, titled, type Figure, type FigureContext, type Table } from './common.js';
 
@@ -49,13 +49,13 @@ interface SampleMap {
   axes: [string, string];
 }
 
-function sizesOf(result: DiagnosticResult): number[] {
+function sizesOf(result: ViewResult): number[] {
   const s = result.sizes;
   if (Array.isArray(s) && s.length >= 1 && s.length <= 3 && s.every((n) => Number.isInteger(n) && n > 0)) return s as number[];
   throw new ResultShapeError(result.kind, 'sizes', s);
 }
 
-function read(result: DiagnosticResult, spec: ModelSpecView, field: 'marker' | 'density'): SampleMap {
+function read(result: ViewResult, spec: ModelSpecView, field: 'marker' | 'density'): SampleMap {
   const sizes = sizesOf(result);
   const dim = sizes.length;
   const cells = numberArray(result, 'cells');
@@ -243,7 +243,7 @@ function mapFigure(m: SampleMap, scale: Scale, title: string, boundary: string):
 }
 
 /** What the sample's disorder was, in a few words. */
-function disorderText(result: DiagnosticResult): string {
+function disorderText(result: ViewResult): string {
   const d = result.disorder as
     | { seed?: number; onsite?: { width?: number }; bond?: { width?: number }; vacancies?: { fraction?: number }; displacement?: { width?: number } }
     | undefined;
@@ -256,21 +256,21 @@ function disorderText(result: DiagnosticResult): string {
   return parts.length === 0 ? 'clean sample' : `${parts.join(', ')}, seed ${d.seed ?? 0}`;
 }
 
-function warningText(result: DiagnosticResult): string {
+function warningText(result: ViewResult): string {
   const n = result.checks?.warnings?.length ?? 0;
   return n === 0 ? '' : ` · ${n} warning${n === 1 ? '' : 's'}`;
 }
 
-const allOpen = (result: DiagnosticResult) => Array.isArray(result.boundary) && result.boundary.every((b) => b === 'open');
+const allOpen = (result: ViewResult) => Array.isArray(result.boundary) && result.boundary.every((b) => b === 'open');
 
 /** "open", "periodic" or "open × periodic". */
-function boundaryText(result: DiagnosticResult): string {
+function boundaryText(result: ViewResult): string {
   const b = Array.isArray(result.boundary) ? (result.boundary as unknown[]).map(String) : [];
   return b.length === 0 ? 'open' : b.every((x) => x === b[0]) ? b[0] : b.join(' × ');
 }
 
 /** The clean crystal's Chern number beside a marker (src/views.ts adds it): a number, null when withheld, absent when not computed. */
-function cleanChern(result: DiagnosticResult): number | null | undefined {
+function cleanChern(result: ViewResult): number | null | undefined {
   if (!('cleanChern' in result)) return undefined;
   return optionalNumber(result, 'cleanChern');
 }
@@ -280,7 +280,7 @@ function markerSpan(clean: number | null | undefined): number {
   return Math.max(2, 2 * Math.abs(clean ?? 0));
 }
 
-export function markerFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function markerFigure(result: ViewResult, ctx: FigureContext): Figure {
   const m = read(result, ctx.spec, 'marker');
   const clean = cleanChern(result);
   const gapless = result.checks.gapless === true;
@@ -305,7 +305,7 @@ export function markerFigure(result: DiagnosticResult, ctx: FigureContext): Figu
   return { ...mapFigure(m, scale, 'Local Chern marker', boundaryText(result)), summary, invariant: null, gapless };
 }
 
-export function densityFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function densityFigure(result: ViewResult, ctx: FigureContext): Figure {
   const m = read(result, ctx.spec, 'density');
   const energy = optionalNumber(result, 'energy');
   let peak = 0;
@@ -338,16 +338,16 @@ function table(m: SampleMap, value: string): Table {
   };
 }
 
-export function markerTable(result: DiagnosticResult, ctx: FigureContext): Table {
+export function markerTable(result: ViewResult, ctx: FigureContext): Table {
   return table(read(result, ctx.spec, 'marker'), 'marker');
 }
 
-export function densityTable(result: DiagnosticResult, ctx: FigureContext): Table {
+export function densityTable(result: ViewResult, ctx: FigureContext): Table {
   return table(read(result, ctx.spec, 'density'), 'density [states per energy]');
 }
 
 /** Each member of a disorder ensemble by its seed, the mean and its standard error (a band). */
-export function ensembleFigure(result: DiagnosticResult): Figure {
+export function ensembleFigure(result: ViewResult): Figure {
   const { seeds, values, mean, error, of, nulls } = readEnsemble(result);
   const xs: number[] = [];
   const ys: number[] = [];
@@ -398,7 +398,7 @@ export function ensembleFigure(result: DiagnosticResult): Figure {
   };
 }
 
-function readEnsemble(result: DiagnosticResult) {
+function readEnsemble(result: ViewResult) {
   const seeds = numberArray(result, 'seeds');
   const values = numberArray(result, 'values');
   if (seeds.length !== values.length) throw new Error(`ensemble result: ${seeds.length} seeds for ${values.length} values`);
@@ -408,7 +408,7 @@ function readEnsemble(result: DiagnosticResult) {
   return { seeds, values, members, mean: optionalNumber(result, 'mean'), error: optionalNumber(result, 'standardError'), of: String(result.of ?? 'value'), nulls };
 }
 
-export function ensembleTable(result: DiagnosticResult): Table {
+export function ensembleTable(result: ViewResult): Table {
   const { seeds, values, members, of } = readEnsemble(result);
   return { columns: ['member', 'seed', of], rows: Array.from(values, (v, i) => [members[i], seeds[i], Number.isNaN(v) ? null : v]) };
 }

@@ -3,7 +3,7 @@
  * state coloured by where it lives: red on the first edge, blue on the last, grey in the bulk.
  */
 import type { Data } from './plotly-json.js';
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import { BASE_LAYOUT, boundaryWeightedStates, energyUnit, fmt, numberArray, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 
 interface RibbonData {
@@ -28,7 +28,7 @@ interface PathInfo {
   labels: { label: string; distance: number }[];
 }
 
-function read(result: DiagnosticResult): RibbonData {
+function read(result: ViewResult): RibbonData {
   const path = result.path as PathInfo | undefined;
   const bandCount = result.bandCount;
   const energies = numberArray(result, 'energies');
@@ -51,7 +51,7 @@ function read(result: DiagnosticResult): RibbonData {
   };
 }
 
-export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function ribbonFigure(result: ViewResult, ctx: FigureContext): Figure {
   const r = read(result);
   const unit = energyUnit(ctx.spec);
   const data: Data[] = [
@@ -78,7 +78,7 @@ export function ribbonFigure(result: DiagnosticResult, ctx: FigureContext): Figu
   };
 }
 
-export function ribbonTable(result: DiagnosticResult): Table {
+export function ribbonTable(result: ViewResult): Table {
   const r = read(result);
   const rows: number[][] = [];
   for (let p = 0; p < r.count; p++) {

@@ -4,7 +4,7 @@
  * the ribbon figure colours its states: red on the bottom layers, blue on the top layers, grey in
  * the bulk. The surface layers are the outer tenth of the slab on each side (at least one plane).
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import { BASE_LAYOUT, boundaryWeightedStates, energyUnit, numberArray, ResultShapeError, titled, unitText, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 import { cutText, warningText } from './spectral.js';
@@ -34,7 +34,7 @@ export function surfaceLayers(width: number): number {
   return Math.max(1, Math.round(width / 10));
 }
 
-function read(result: DiagnosticResult): SlabData {
+function read(result: ViewResult): SlabData {
   const path = result.path as Partial<PathShape> | undefined;
   const { bandCount, width } = result;
   if (!path || typeof path.count !== 'number' || path.distance === undefined || !Array.isArray(path.labels)) throw new ResultShapeError(result.kind, 'path', path);
@@ -58,7 +58,7 @@ function read(result: DiagnosticResult): SlabData {
   return { name, path: path as PathShape, width, bandCount, energies, bottom, top, surfaceLayers: e };
 }
 
-export function slabFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function slabFigure(result: ViewResult, ctx: FigureContext): Figure {
   const r = read(result);
   const unit = energyUnit(ctx.spec);
   const layers = `${r.surfaceLayers} plane${r.surfaceLayers > 1 ? 's' : ''}`;
@@ -87,7 +87,7 @@ export function slabFigure(result: DiagnosticResult, ctx: FigureContext): Figure
   };
 }
 
-export function slabTable(result: DiagnosticResult): Table {
+export function slabTable(result: ViewResult): Table {
   const r = read(result);
   const rows: number[][] = [];
   for (let p = 0; p < r.path.count; p++) {

@@ -4,7 +4,7 @@
  * relative to the largest weight shown; and the summary line (the cut, eta, the warnings).
  * One x axis (not subplots) so a drag step previews the whole picture as one image (preview.ts).
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Raster } from './picture.js';
 import { fmt, numberArray, ResultShapeError, unitText } from './common.js';
 import type { Data } from './plotly-json.js';
@@ -51,7 +51,7 @@ export function panelGeometry(columns: number, x0: number, dx: number): PanelGeo
 }
 
 /** The three weights of a result, each `columns * rows` long, checked. */
-export function panelWeights(result: DiagnosticResult, size: number): ArrayLike<number>[] {
+export function panelWeights(result: ViewResult, size: number): ArrayLike<number>[] {
   return PANELS.map(({ field }) => {
     const w = numberArray(result, field);
     if (w.length !== size) throw new ResultShapeError(result.kind, field, w);
@@ -125,14 +125,14 @@ export interface CutShape {
 }
 
 /** The cut as the summary writes it: Miller indices "(0 1)". */
-export function cutText(result: DiagnosticResult): string {
+export function cutText(result: ViewResult): string {
   const cut = result.cut as Partial<CutShape> | undefined;
   if (!cut || !Array.isArray(cut.miller) || !cut.miller.every((m) => typeof m === 'number')) throw new ResultShapeError(result.kind, 'cut', cut);
   return `cut (${cut.miller.join(' ')})`;
 }
 
 /** "1 warning: ..." (the first, and how many more), or '' without warnings. */
-export function warningText(result: DiagnosticResult): string {
+export function warningText(result: ViewResult): string {
   const warnings = result.checks?.warnings ?? [];
   if (warnings.length === 0) return '';
   const first = warnings[0].length > 90 ? `${warnings[0].slice(0, 87)}...` : warnings[0];
@@ -140,7 +140,7 @@ export function warningText(result: DiagnosticResult): string {
 }
 
 /** "cut (0 1) · η = 0.036 (units of t)" with the warnings after. */
-export function spectralSummary(result: DiagnosticResult, unit: string, lead: string): string {
+export function spectralSummary(result: ViewResult, unit: string, lead: string): string {
   const eta = result.eta;
   if (typeof eta !== 'number') throw new ResultShapeError(result.kind, 'eta', eta);
   return `${lead} · ${cutText(result)} · η = ${fmt(eta)}${unitText(unit)}${warningText(result)}`;

@@ -6,7 +6,7 @@
  * each panel: a Fermi arc ends at projections of nodes of opposite chirality. A drag step previews
  * the picture with the nodes sketched over it (widgets/src/preview.ts).
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import type { Sketch } from './picture.js';
 import { BASE_LAYOUT, energyUnit, fmt, gridOf, ResultShapeError, titled, unitText, type Figure, type FigureContext, type Table } from './common.js';
@@ -26,7 +26,7 @@ interface MapData {
   nodes: NodeShape[];
 }
 
-function read(result: DiagnosticResult): MapData {
+function read(result: ViewResult): MapData {
   const [n1, n2] = gridOf(result);
   const energy = result.energy;
   if (typeof energy !== 'number') throw new ResultShapeError(result.kind, 'energy', energy);
@@ -47,7 +47,7 @@ const NODE_MARKS = [
 /** Ticks of each panel (its edges, ±1/2, would crowd the neighbouring panel's). */
 const TICKS = [-0.25, 0, 0.25];
 
-export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function surfaceMapFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { n1, n2, energy, weights, nodes } = read(result);
   const dx = 1 / n1;
   const dy = 1 / n2;
@@ -140,7 +140,7 @@ export function surfaceMapFigure(result: DiagnosticResult, ctx: FigureContext): 
   };
 }
 
-export function surfaceMapTable(result: DiagnosticResult): Table {
+export function surfaceMapTable(result: ViewResult): Table {
   const { n1, n2, weights } = read(result);
   const rows: number[][] = [];
   for (let j2 = 0; j2 < n2; j2++) {

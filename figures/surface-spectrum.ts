@@ -4,7 +4,7 @@
  * the bottom and top terminations and the bulk projection side by side (spectral.ts). The picture is
  * a raster, so a drag step recolours it without a plotly replot.
  */
-import type { DiagnosticResult } from '../contract/protocol.js';
+import type { ViewResult } from '../contract/protocol.js';
 import type { Data } from './plotly-json.js';
 import { BASE_LAYOUT, energyUnit, fmt, numberArray, ResultShapeError, titled, withUnit, type Figure, type FigureContext, type Table } from './common.js';
 import { colourBarTrace, largestWeight, panelAnnotations, panelGeometry, panelRaster, panelWeights, PANELS, cutText, spectralSummary } from './spectral.js';
@@ -24,7 +24,7 @@ interface SpectrumData {
   weights: ArrayLike<number>[];
 }
 
-function read(result: DiagnosticResult): SpectrumData {
+function read(result: ViewResult): SpectrumData {
   const path = result.path as Partial<PathShape> | undefined;
   if (!path || typeof path.count !== 'number' || typeof path.dim !== 'number' || !Array.isArray(path.labels) || path.fractions === undefined) {
     throw new ResultShapeError(result.kind, 'path', path);
@@ -40,7 +40,7 @@ function columns(path: PathShape): { x0: number; dx: number; xTitle: string } {
   return path.dim === 1 ? { x0: path.fractions[0], dx, xTitle: 'k along the edge [b], per panel' } : { x0: 0, dx, xTitle: 'k along the surface path, per panel' };
 }
 
-export function surfaceSpectrumFigure(result: DiagnosticResult, ctx: FigureContext): Figure {
+export function surfaceSpectrumFigure(result: ViewResult, ctx: FigureContext): Figure {
   const { boundary, path, energies, weights } = read(result);
   const ne = energies.length;
   const { x0, dx, xTitle } = columns(path);
@@ -111,7 +111,7 @@ export function surfaceSpectrumFigure(result: DiagnosticResult, ctx: FigureConte
   };
 }
 
-export function surfaceSpectrumTable(result: DiagnosticResult): Table {
+export function surfaceSpectrumTable(result: ViewResult): Table {
   const { path, energies, weights } = read(result);
   const ne = energies.length;
   const rows: number[][] = [];

@@ -17,7 +17,7 @@ import type { LatticePicture } from '../figures/lattice.js';
 import { figurePng } from './display/pictures.js';
 import { integerOrValue } from '../figures/curvature.js';
 import { figureFor } from '../figures/index.js';
-import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_PROTOCOL_VERSION, WIDGET_VIEW_MIME, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../contract/protocol.js';
+import { SAVED_WIDGET_MIME, WIDGET_KINDS, WIDGET_PROTOCOL_VERSION, WIDGET_VIEW_MIME, type ViewResult, type ModelSpecView, type WidgetKind } from '../contract/protocol.js';
 import { putBuffers, removeBuffers, unpackArrays, type BufferPath } from '../contract/wire.js';
 import { widgetRequest } from '../contract/option-sliders.js';
 import {
@@ -156,7 +156,7 @@ export class DiagnosticWidget {
     if (this.lastResult === null) return null;
     const values = this.resultValues ?? this.current;
     try {
-      const figure = figureFor(this.lastResult as DiagnosticResult, { spec: this.spec as unknown as ModelSpecView, values, options: this.options });
+      const figure = figureFor(this.lastResult as ViewResult, { spec: this.spec as unknown as ModelSpecView, values, options: this.options });
       return figurePng(figure);
     } catch {
       return null; // the view shows the same figure error; the state still travels

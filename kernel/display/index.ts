@@ -16,7 +16,7 @@ import { inspect } from 'node:util';
 import { resolveParameters, type ModelSpec } from '../../src/index.js';
 import { figureFor, hasFigure, type Figure, type FigureContext } from '../../figures/index.js';
 import { rasterImage } from '../../figures/picture.js';
-import { PLOTLY_MIME, type DiagnosticResult, type ModelSpecView } from '../../contract/protocol.js';
+import { PLOTLY_MIME, type ViewResult, type ModelSpecView } from '../../contract/protocol.js';
 import type { DisplayOutput, MimeBundle } from '../executor/channel.js';
 import { latticePicture } from './lattice.js';
 import { figurePng } from './pictures.js';
@@ -81,7 +81,7 @@ export function figureOutput(result: ResultLike): DisplayOutput | null {
   if (!hasFigure(result.kind)) return null;
   let figure: Figure;
   try {
-    figure = figureFor(result as unknown as DiagnosticResult, contextOf(result));
+    figure = figureFor(result as unknown as ViewResult, contextOf(result));
   } catch {
     // A result of an older or partial shape: its summary still shows.
     return null;

@@ -10,7 +10,7 @@ import { show } from '../../kernel/widgets.js';
 import { BlochHamiltonian, densityOfStates, haldane, ssh } from '../../src/index.js';
 import { figureFor } from '../../figures/index.js';
 import { phaseColour } from '../../figures/lattice.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 
 const length = (b: { x0: number; y0: number; x1: number; y1: number }) => Math.hypot(b.x1 - b.x0, b.y1 - b.y0);
 
@@ -46,7 +46,7 @@ describe('lattice picture', () => {
   it('draws bonds coloured by phase (opposite phases, different colours), sites per orbital, the unit cell', () => {
     expect(phaseColour(0.7)).not.toBe(phaseColour(-0.7));
     expect(phaseColour(0)).toBe(phaseColour(2 * Math.PI));
-    const figure = figureFor(latticePicture(haldane()) as unknown as DiagnosticResult, { spec: haldane() as never, values: {}, options: {} });
+    const figure = figureFor(latticePicture(haldane()) as unknown as ViewResult, { spec: haldane() as never, values: {}, options: {} });
     const names = figure.data.map((t) => (t as { name?: string }).name);
     expect(names).toContain('unit cell');
     expect(names).toEqual(expect.arrayContaining(['A (onsite 0.2)', 'B (onsite -0.2)']));

@@ -10,7 +10,7 @@ import { figurePng } from '../../kernel/display/pictures.js';
 import { haldane, kaneMele, qwz } from '../../src/index.js';
 import { computeView } from '../../src/views.js';
 import { figureFor, type Figure } from '../../figures/index.js';
-import type { DiagnosticRequest, ModelSpecView } from '../../contract/protocol.js';
+import type { ViewRequest, ModelSpecView } from '../../contract/protocol.js';
 import { drawable, glyph, GLYPH_HEIGHT, textWidth } from '../../figures/snapshot/font.js';
 import { drawFigure, niceTicks } from '../../figures/snapshot/figure.js';
 import { parseColour, Pixels } from '../../figures/snapshot/pixels.js';
@@ -163,7 +163,7 @@ describe('figure pictures', () => {
 
   function draw(spec: ModelSpecView, kind: string, options: Record<string, unknown>, params: Record<string, number> = {}): { figure: Figure; px: Pixels } {
     const values = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...params };
-    const result = computeView({ ...options, kind, model: spec, params: values } as DiagnosticRequest);
+    const result = computeView({ ...options, kind, model: spec, params: values } as ViewRequest);
     const figure = figureFor(result, { spec, values, options });
     return { figure, px: drawFigure(figure) };
   }

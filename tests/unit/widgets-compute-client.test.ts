@@ -2,7 +2,7 @@
 // while a message is pending, newer updates replace older ones; common practice).
 import { describe, expect, it } from 'vitest';
 import { LatestWinsClient, type Outcome, type SplitPlan, type WorkerLike } from '../../widgets/src/compute-client.js';
-import type { DiagnosticRequest } from '../../contract/protocol.js';
+import type { ViewRequest } from '../../contract/protocol.js';
 import type { ComputeMessage, ComputeReply } from '../../widgets/src/worker-messages.js';
 
 /** A worker whose replies the test releases by hand, to order events exactly. */
@@ -37,7 +37,7 @@ function heldClient(plan?: SplitPlan): { client: LatestWinsClient; workers: Held
   return { client: new LatestWinsClient(spawn, (o) => outcomes.push(o), plan), workers, outcomes };
 }
 
-function request(u: number): DiagnosticRequest {
+function request(u: number): ViewRequest {
   return { kind: 'curvature', model: { format: 'chernel.model', name: 'm', periodic: 2, vectors: [], orbitals: [], parameters: {} }, params: { u } };
 }
 

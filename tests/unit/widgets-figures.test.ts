@@ -9,7 +9,7 @@ import { integerOrValue } from '../../figures/curvature.js';
 import { wrapBreaks } from '../../figures/flow.js';
 import { figureFor, tableFor, toCsv } from '../../figures/index.js';
 import { phaseColours } from '../../figures/phase-map.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 
 describe('curvature figure', () => {
   it('QWZ (square lattice): a picture of the reduced zone relative to max|Ω|, an invisible heatmap for hover, a colour bar centred on zero', () => {
@@ -161,7 +161,7 @@ describe('bands, ribbon and phase-map figures', () => {
   });
 
   it('names the missing field of a malformed result', () => {
-    const broken = { kind: 'curvature', grid: [2, 2], k1: new Float64Array(2), k2: new Float64Array(2), checks: { minGap: 1, warnings: [] } } as DiagnosticResult;
+    const broken = { kind: 'curvature', grid: [2, 2], k1: new Float64Array(2), k2: new Float64Array(2), checks: { minGap: 1, warnings: [] } } as ViewResult;
     const ctx = { spec: qwz(), values: {}, options: {} };
     expect(() => figureFor(broken, ctx)).toThrow('curvature result: field "values" missing or malformed. Value: undefined');
     expect(() => figureFor({ kind: 'nonsense', checks: { minGap: 1, warnings: [] } }, ctx)).toThrow('no figure for result kind "nonsense"');

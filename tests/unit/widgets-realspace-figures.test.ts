@@ -9,7 +9,7 @@ import { haldane, qwz, ssh } from '../../src/index.js';
 import { figureFor, figureTitle, tableFor, toCsv } from '../../figures/index.js';
 import { SEQUENTIAL } from '../../figures/realspace.js';
 import { drawFigure } from '../../figures/snapshot/figure.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 
 describe('local Chern marker figure', () => {
   const { result, figure, traces, ctx } = run(qwz(), 'local-marker', { sizes: [12, 12] }, { u: -1 });
@@ -154,7 +154,7 @@ describe('local density of states figure', () => {
 
   it('names the missing field of a malformed result', () => {
     const { result, ctx } = run(qwz(), 'local-density', { sizes: [4, 4], energy: 0, method: 'dense' }, { u: -1 });
-    expect(() => figureFor({ ...result, density: 'x' } as DiagnosticResult, ctx)).toThrow(/local-density result: field "density"/);
+    expect(() => figureFor({ ...result, density: 'x' } as ViewResult, ctx)).toThrow(/local-density result: field "density"/);
   });
 });
 

@@ -4,15 +4,15 @@
 import { describe, expect, it } from 'vitest';
 import { kaneMele, qwz } from '../../src/index.js';
 import { computeView } from '../../src/views.js';
-import type { DiagnosticRequest } from '../../contract/protocol.js';
+import type { ViewRequest } from '../../contract/protocol.js';
 import { engineWorkers, splitPlan } from '../../widgets/src/split.js';
 
-function request(kind: DiagnosticRequest['kind'], spec: ReturnType<typeof qwz>, options: Record<string, unknown>, values: Record<string, number> = {}): DiagnosticRequest {
+function request(kind: ViewRequest['kind'], spec: ReturnType<typeof qwz>, options: Record<string, unknown>, values: Record<string, number> = {}): ViewRequest {
   const params = { ...Object.fromEntries(Object.entries(spec.parameters).map(([k, p]) => [k, p.default])), ...values };
-  return { ...options, kind, model: spec, params } as DiagnosticRequest;
+  return { ...options, kind, model: spec, params } as ViewRequest;
 }
 
-function viaParts(r: DiagnosticRequest, workers: number) {
+function viaParts(r: ViewRequest, workers: number) {
   const plan = splitPlan(workers);
   const count = plan.parts(r);
   const parts = Array.from({ length: count }, (_, i) => structuredClone(computeView(plan.partRequest(r, i, count))));

@@ -18,7 +18,7 @@ import { putBuffers, removeBuffers, unpackArrays } from '../../contract/wire.js'
 import { computeView } from '../../src/views.js';
 import { figureFor, figureTitle, tableFor, toCsv } from '../../figures/index.js';
 import { DECADES, PANELS } from '../../figures/spectral.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 
 /** Folds a difference of momenta (units of b) into [-1/2, 1/2). */
 const wrap = (d: number) => d - Math.floor(d + 0.5);
@@ -240,7 +240,7 @@ describe('the surface widgets: options and state', () => {
     expect(split.buffer_paths.map((p) => p.join('.'))).toEqual(expect.arrayContaining(['result.bottom.buffer', 'result.top.buffer', 'result.bulk.buffer']));
     const back = { ...split.state };
     putBuffers(back, split.buffer_paths, split.buffers);
-    const again = figureFor(unpackArrays(back.result) as DiagnosticResult, ctx);
+    const again = figureFor(unpackArrays(back.result) as ViewResult, ctx);
     expect(again.summary).toBe(figure.summary);
     expect(Array.from(again.raster!.values)).toEqual(Array.from(figure.raster!.values));
   });

@@ -4,16 +4,16 @@
  * stale one is dropped, never sent), so the plot follows the pointer instead of a queue. A request the
  * split plan divides goes out in parts, one per worker, computed side by side and joined on return.
  */
-import type { DiagnosticRequest, DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewRequest, ViewResult } from '../../contract/protocol.js';
 import type { ComputeMessage, ComputeProgress, ComputeReply } from './worker-messages.js';
 
 export interface Outcome {
-  request: DiagnosticRequest;
+  request: ViewRequest;
   /** Milliseconds from submit() to the reply, including time waiting behind an earlier request. */
   latency: number;
   /** Milliseconds the engine spent: the slowest part, plus the join. */
   computeMs: number;
-  result?: DiagnosticResult;
+  result?: ViewResult;
   error?: { name: string; message: string };
 }
 
@@ -26,9 +26,9 @@ export interface WorkerLike {
 
 /** How a request is shared among workers: into how many parts, the part requests, and the join. */
 export interface SplitPlan {
-  parts(request: DiagnosticRequest): number;
-  partRequest(request: DiagnosticRequest, index: number, count: number): DiagnosticRequest;
-  join(request: DiagnosticRequest, parts: DiagnosticResult[]): DiagnosticResult;
+  parts(request: ViewRequest): number;
+  partRequest(request: ViewRequest, index: number, count: number): ViewRequest;
+  join(request: ViewRequest, parts: ViewResult[]): ViewResult;
 }
 
 /** Every request whole, on one worker. */
@@ -39,7 +39,7 @@ export const WHOLE: SplitPlan = {
 };
 
 interface Pending {
-  request: DiagnosticRequest;
+  request: ViewRequest;
   submitted: number;
 }
 
@@ -65,14 +65,14 @@ export class LatestWinsClient {
     private readonly deliver: (outcome: Outcome) => void,
     private readonly plan: SplitPlan = WHOLE,
     /** Progress of the request in flight (a phase map), as a fraction of the points planned. */
-    private readonly progress: (fraction: number, request: DiagnosticRequest) => void = () => undefined,
+    private readonly progress: (fraction: number, request: ViewRequest) => void = () => undefined,
   ) {}
 
   /**
    * Stops the request in flight and drops any waiting: its workers are ended (a computation cannot
    * be interrupted inside a worker) and started afresh for the next request. Returns the stopped request.
    */
-  stop(): DiagnosticRequest | null {
+  stop(): ViewRequest | null {
     const stopped = this.inFlight?.silent === false ? this.inFlight.request : (this.waiting?.request ?? null);
     for (const worker of this.workers) worker?.terminate();
     this.workers = [];
@@ -81,7 +81,7 @@ export class LatestWinsClient {
     return stopped;
   }
 
-  submit(request: DiagnosticRequest): void {
+  submit(request: ViewRequest): void {
     const pending = { request, submitted: performance.now() };
     if (this.inFlight === null) {
       this.send(pending);
@@ -95,7 +95,7 @@ export class LatestWinsClient {
    * Computes `request` without delivering it, when nothing else is pending: the workers start and
    * compile the model, and their JIT warms up, before the pointer starts dragging.
    */
-  warm(request: DiagnosticRequest): void {
+  warm(request: ViewRequest): void {
     if (this.inFlight === null && this.waiting === null) this.send({ request, submitted: performance.now() }, true);
   }
 
@@ -159,7 +159,7 @@ export class LatestWinsClient {
     const latency = () => performance.now() - current.submitted;
     const failed = replies.find((r) => !r.ok);
     if (failed !== undefined && !failed.ok) return { request: current.request, latency: latency(), computeMs: 0, error: failed.error };
-    const results = replies.map((r) => (r.ok ? r.result : null)) as DiagnosticResult[];
+    const results = replies.map((r) => (r.ok ? r.result : null)) as ViewResult[];
     const slowest = Math.max(...replies.map((r) => (r.ok ? r.ms : 0)));
     const started = performance.now();
     try {

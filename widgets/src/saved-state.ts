@@ -4,7 +4,7 @@
  * what its view shows, drawn by the shared rasteriser (snapshot/) on a canvas for its PNG.
  */
 import { figureFor } from '../../figures/index.js';
-import type { DiagnosticResult, ModelSpecView } from '../../contract/protocol.js';
+import type { ViewResult, ModelSpecView } from '../../contract/protocol.js';
 import { drawFigure } from '../../figures/snapshot/figure.js';
 import { packArrays, savedStateEntry } from '../../contract/wire.js';
 
@@ -48,7 +48,7 @@ export function savedEntry(model: ModelLike): Record<string, unknown> {
 
 /** A PNG (base64) of the widget's last result as its view draws it, and a line saying what it shows. */
 export function viewPicture(model: ModelLike, doc: Document = document): { png: string; text: string } | null {
-  const result = model.get('result') as DiagnosticResult | null;
+  const result = model.get('result') as ViewResult | null;
   const spec = model.get('spec') as ModelSpecView | null;
   if (result === null || spec === null || model.get('error')) return null;
   const values = (model.get('result_values') ?? model.get('values')) as Record<string, number>;

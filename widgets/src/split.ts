@@ -9,7 +9,7 @@
 import { joinParts, SPLIT_ROWS, type DiagnosticPart } from '../../src/topology/parts.js';
 import type { SplitPlan } from './compute-client.js';
 import { withZ2, Z2_OF_PARTS } from '../../src/topology/flow-z2.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 
 /** Fewer rows per part than this: splitting costs more (the extra edge row, the messages) than it saves. */
 const MIN_ROWS_PER_PART = 8;
@@ -28,12 +28,12 @@ export function splitPlan(workers: number): SplitPlan {
     },
     partRequest: (request, index, count) => ({ ...request, part: { index, count } }),
     join: (_request, parts) => {
-      const joined = joinParts(parts as unknown as DiagnosticPart[]) as unknown as DiagnosticResult;
+      const joined = joinParts(parts as unknown as DiagnosticPart[]) as unknown as ViewResult;
       // Each part echoes the parameter values it used (compute()); so does the whole.
       const params = (parts[0] as { params?: unknown } | undefined)?.params;
       const whole = params === undefined ? joined : { ...joined, params };
       // A flow's Z2 count comes whole with its first part (src/views.ts).
-      const z2 = parts[0]?.[Z2_OF_PARTS] as DiagnosticResult | undefined;
+      const z2 = parts[0]?.[Z2_OF_PARTS] as ViewResult | undefined;
       return z2 === undefined ? whole : withZ2(whole, z2);
     },
   };

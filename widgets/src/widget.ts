@@ -15,7 +15,7 @@ import Plotly, { plotlyTraces, type Config, type PlotlyHTMLElement } from './plo
 import { rasterImage } from '../../figures/picture.js';
 import { DragPreview } from './preview.js';
 import { forgetLiveModel, registerLiveModel } from './saved-state.js';
-import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_VERSION, WIDGET_VIEW_NAME, type DiagnosticRequest, type DiagnosticResult, type ModelSpecView, type WidgetKind } from '../../contract/protocol.js';
+import { WIDGET_MODEL_NAME, WIDGET_MODULE, WIDGET_MODULE_VERSION, WIDGET_VIEW_NAME, type ViewRequest, type ViewResult, type ModelSpecView, type WidgetKind } from '../../contract/protocol.js';
 import { engineWorkers, splitPlan } from './split.js';
 import { ensureStyles } from './styles.js';
 import { diagnosticStateProblem } from '../../contract/state-check.js';
@@ -80,7 +80,7 @@ export class DiagnosticModel extends DOMWidgetModel {
   }
 
   /** The request the current values describe (option sliders' values as request options). */
-  request(values: Values = this.get('values')): DiagnosticRequest {
+  request(values: Values = this.get('values')): ViewRequest {
     return widgetRequest(this.get('kind'), this.get('spec'), this.get('options') as Record<string, unknown>, values);
   }
 }
@@ -277,7 +277,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.el.dispatchEvent(new CustomEvent('chernel-error', { bubbles: true, detail: { message: damaged } }));
       return;
     }
-    const result = this.model.get('result') as DiagnosticResult | null;
+    const result = this.model.get('result') as ViewResult | null;
     const error = this.model.get('error') as string;
     if (result && this.model.answers(this.model.get('result_values'), this.live)) {
       this.draw(result, this.live, null);
@@ -288,7 +288,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private showModelState(): void {
-    const result = this.model.get('result') as DiagnosticResult | null;
+    const result = this.model.get('result') as ViewResult | null;
     const error = this.model.get('error') as string;
     if (error) this.showMessage('error', error);
     else if (result) this.draw(result, this.model.get('result_values') ?? this.live, null);
@@ -308,7 +308,7 @@ export class DiagnosticView extends DOMWidgetView {
   private moveTo(changes: Values): void {
     this.live = { ...this.live, ...changes };
     this.model.set('values', { ...this.live }, { updated_view: this });
-    const result = this.model.get('result') as DiagnosticResult | null;
+    const result = this.model.get('result') as ViewResult | null;
     if (result && this.model.answers(this.model.get('result_values'), this.live)) {
       // Only swept parameters moved: same map, the marker moves.
       this.sync();
@@ -453,7 +453,7 @@ export class DiagnosticView extends DOMWidgetView {
       this.el.dispatchEvent(new CustomEvent('chernel-error', { bubbles: true, detail: { message } }));
       return;
     }
-    const result = outcome.result as DiagnosticResult;
+    const result = outcome.result as ViewResult;
     this.model.set({ result, result_values: values, error: '', values: { ...this.live } }, { updated_view: this });
     // During a drag the kernel hears once the drag rests (with the full redraw), not on every step:
     // a result is tens of kilobytes, and the page would serialise each one while the pointer moves.
@@ -469,7 +469,7 @@ export class DiagnosticView extends DOMWidgetView {
    * Draws a result; true when it was a drag preview (plotly and the kernel follow at rest). `full`:
    * redraw everything through plotly even where a preview would do (the drag has rested).
    */
-  private draw(result: DiagnosticResult, values: Values, outcome: Outcome | null, full = false): boolean {
+  private draw(result: ViewResult, values: Values, outcome: Outcome | null, full = false): boolean {
     if (!this.attached) return false;
     let figure: Figure;
     const started = performance.now();
@@ -564,7 +564,7 @@ export class DiagnosticView extends DOMWidgetView {
   }
 
   private exportData(format: 'csv' | 'json'): void {
-    const result = this.model.get('result') as DiagnosticResult | null;
+    const result = this.model.get('result') as ViewResult | null;
     if (!result) return;
     const values = (this.model.get('result_values') as Values | null) ?? this.live;
     const text =

@@ -1,10 +1,10 @@
 /** The messages between a view and its engine workers (compute-client.ts, worker.ts). */
-import type { DiagnosticRequest, DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewRequest, ViewResult } from '../../contract/protocol.js';
 
 /** Main thread -> worker. */
 export interface ComputeMessage {
   id: number;
-  request: DiagnosticRequest;
+  request: ViewRequest;
 }
 
 /** Worker -> main thread, while a long request (a phase map) computes: points done of those planned. */
@@ -15,5 +15,5 @@ export interface ComputeProgress {
 
 /** Worker -> main thread. */
 export type ComputeReply =
-  | { id: number; ok: true; result: DiagnosticResult; ms: number }
+  | { id: number; ok: true; result: ViewResult; ms: number }
   | { id: number; ok: false; error: { name: string; message: string } };

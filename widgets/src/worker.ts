@@ -8,7 +8,7 @@ const PROGRESS_MS = 100;
  * a file:// page.
  */
 import { computeView } from '../../src/views.js';
-import type { DiagnosticResult } from '../../contract/protocol.js';
+import type { ViewResult } from '../../contract/protocol.js';
 import type { ComputeMessage, ComputeProgress, ComputeReply } from './worker-messages.js';
 import { transferablesOf } from '../../contract/wire.js';
 
@@ -32,7 +32,7 @@ scope.onmessage = (event) => {
       scope.postMessage({ id, progress: { done, total } });
     };
     // Every engine result carries the checks the contract's result shape names.
-    const result = computeView(request, onPoints) as DiagnosticResult;
+    const result = computeView(request, onPoints) as ViewResult;
     reply = { id, ok: true, result, ms: performance.now() - started };
   } catch (err) {
     const error = err instanceof Error ? { name: err.name, message: err.message } : { name: 'Error', message: String(err) };
