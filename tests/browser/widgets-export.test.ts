@@ -8,7 +8,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { artifactPath, exportDemo, openPage, type OpenedPage } from './widgets-harness.js';
+import { artifactPath, control, drag, exportDemo, openPage, typeValue, type OpenedPage } from './widgets-harness.js';
 
 const HALDANE = { t2: 0.1, phi: Math.PI / 2 };
 const haldaneBoundary = 3 * Math.sqrt(3) * HALDANE.t2 * Math.abs(Math.sin(HALDANE.phi));
@@ -20,11 +20,6 @@ let page: Page;
 
 function widget(index: number): Locator {
   return page.locator('.chernel-widget').nth(index);
-}
-
-function control(w: Locator, name: string): { slider: Locator; box: Locator } {
-  const row = w.locator(`.chernel-control[data-parameter="${name}"]`);
-  return { slider: row.locator('input[type=range]'), box: row.locator('input.chernel-control-value') };
 }
 
 /** Waits until the widget shows a result for the value its `name` box shows, and returns it. */
@@ -39,25 +34,6 @@ async function settled(w: Locator, name: string): Promise<{ value: number; invar
     invariant: (await summary.getAttribute('data-invariant')) ?? '',
     gapless: (await summary.getAttribute('data-gapless')) ?? '',
   };
-}
-
-/** Drags a slider's thumb with the mouse, in small moves, to the position of `target`. */
-async function drag(slider: Locator, target: number): Promise<void> {
-  const box = (await slider.boundingBox())!;
-  const [min, max, now] = await slider.evaluate((el: HTMLInputElement) => [Number(el.min), Number(el.max), Number(el.value)]);
-  const thumb = 8; // half the thumb width in Chromium's default range style (common practice)
-  const xOf = (v: number) => box.x + thumb + ((v - min) / (max - min)) * (box.width - 2 * thumb);
-  const y = box.y + box.height / 2;
-  await page.mouse.move(xOf(now), y);
-  await page.mouse.down();
-  await page.mouse.move(xOf(target), y, { steps: 12 });
-  await page.mouse.up();
-}
-
-async function typeValue(w: Locator, name: string, value: number): Promise<void> {
-  const { box } = control(w, name);
-  await box.fill(String(value));
-  await box.press('Enter');
 }
 
 async function traceNames(w: Locator): Promise<string[]> {
@@ -95,13 +71,13 @@ describe('exported notebook page', () => {
   it('dragging M across the Haldane phase boundary changes the plotted Chern number, and back', async () => {
     const haldane = widget(0);
     const { slider } = control(haldane, 'M');
-    await drag(slider, 1.2);
+    await drag(page, slider, 1.2);
     const outside = await settled(haldane, 'M');
     expect(Math.abs(outside.value)).toBeGreaterThan(haldaneBoundary + 0.05);
     expect(outside.invariant).toBe(String(haldaneChern(outside.value)));
     expect(await haldane.locator('.gtitle').textContent()).toContain(`C = ${haldaneChern(outside.value)}`);
 
-    await drag(slider, -0.2);
+    await drag(page, slider, -0.2);
     const inside = await settled(haldane, 'M');
     expect(Math.abs(inside.value)).toBeLessThan(haldaneBoundary - 0.05);
     expect(inside.invariant).toBe(String(haldaneChern(inside.value)));
@@ -141,7 +117,7 @@ describe('exported notebook page', () => {
 
   it('dragging u in the flow widget changes the winding across the QWZ transition at u = 0', async () => {
     const flow = widget(1);
-    await drag(control(flow, 'u').slider, 1);
+    await drag(page, control(flow, 'u').slider, 1);
     const after = await settled(flow, 'u');
     expect(after.value).toBeGreaterThan(0.2);
     expect(after.invariant).toBe(String(qwzChern(after.value)));

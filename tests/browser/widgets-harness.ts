@@ -4,7 +4,7 @@
 import { mkdirSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { chromium, type BrowserContext, type Locator, type Page } from 'playwright-core';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from './chromium.js';
 import { displayOutputs } from '../../kernel/display/index.js';
 import { exportHtmlCommand } from '../../cli/export-html.js';
@@ -165,4 +165,31 @@ export async function openPage(path: string): Promise<OpenedPage> {
 export function artifactPath(name: string): string {
   mkdirSync(artifactsDir, { recursive: true });
   return join(artifactsDir, name);
+}
+
+/** A parameter's (or option slider's) controls in a widget: its slider and its typed box. */
+export function control(w: Locator, name: string): { slider: Locator; box: Locator } {
+  const row = w.locator(`.chernel-control[data-parameter="${name}"]`);
+  return { slider: row.locator('input[type=range]'), box: row.locator('input.chernel-control-value') };
+}
+
+/** Drags a slider's thumb with the mouse, in small moves, to the position of `target`. */
+export async function drag(page: Page, slider: Locator, target: number): Promise<void> {
+  await slider.scrollIntoViewIfNeeded();
+  const box = (await slider.boundingBox())!;
+  const [min, max, now] = await slider.evaluate((el: HTMLInputElement) => [Number(el.min), Number(el.max), Number(el.value)]);
+  const thumb = 8; // half the thumb width in Chromium's default range style (common practice)
+  const xOf = (v: number) => box.x + thumb + ((v - min) / (max - min)) * (box.width - 2 * thumb);
+  const y = box.y + box.height / 2;
+  await page.mouse.move(xOf(now), y);
+  await page.mouse.down();
+  await page.mouse.move(xOf(target), y, { steps: 12 });
+  await page.mouse.up();
+}
+
+/** Types a value into a control's box and commits it with Enter. */
+export async function typeValue(w: Locator, name: string, value: number): Promise<void> {
+  const { box } = control(w, name);
+  await box.fill(String(value));
+  await box.press('Enter');
 }

@@ -6,7 +6,7 @@
 //     one branch on each edge (bulk-boundary correspondence).
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { artifactPath, exportDemo, moreWidgets, openPage, type OpenedPage } from './widgets-harness.js';
+import { artifactPath, exportDemo, moreWidgets, openPage, typeValue, type OpenedPage } from './widgets-harness.js';
 
 const haldaneChern = (M: number, t2: number, phi: number) => (Math.abs(M) < 3 * Math.sqrt(3) * t2 * Math.abs(Math.sin(phi)) ? -Math.sign(Math.sin(phi)) : 0);
 const kaneMeleZ2 = (lambdaV: number, lambdaSO: number) => (Math.abs(lambdaV) < 3 * Math.sqrt(3) * Math.abs(lambdaSO) ? 1 : 0);
@@ -25,12 +25,6 @@ interface Trace {
 
 function traces(w: Locator): Promise<Trace[]> {
   return w.locator('.chernel-plot').evaluate((el) => JSON.parse(JSON.stringify((el as unknown as { data: unknown[] }).data)) as Trace[]);
-}
-
-async function typeValue(w: Locator, name: string, value: number): Promise<void> {
-  const box = w.locator(`.chernel-control[data-parameter="${name}"] input.chernel-control-value`);
-  await box.fill(String(value));
-  await box.press('Enter');
 }
 
 beforeAll(async () => {

@@ -6,7 +6,7 @@
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { qwz } from '../../src/index.js';
-import { artifactPath, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
+import { artifactPath, control, drag, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
 
 let opened: OpenedPage;
 let page: Page;
@@ -22,24 +22,6 @@ const WIDGETS: DemoWidget[] = [
   },
   { id: 'c0ffee0000000000000000000000c002', kind: 'local-density', spec: qwz(), values: { u: -1 }, options: { sizes: [10, 10], energy: 0, method: 'dense' } },
 ];
-
-function control(w: Locator, name: string): { slider: Locator; box: Locator } {
-  const row = w.locator(`.chernel-control[data-parameter="${name}"]`);
-  return { slider: row.locator('input[type=range]'), box: row.locator('input.chernel-control-value') };
-}
-
-/** Drags a slider's thumb with the mouse to the position of `target` (thumb half-width 8 px, common practice). */
-async function drag(slider: Locator, target: number): Promise<void> {
-  await slider.scrollIntoViewIfNeeded();
-  const box = (await slider.boundingBox())!;
-  const [min, max, now] = await slider.evaluate((el: HTMLInputElement) => [Number(el.min), Number(el.max), Number(el.value)]);
-  const xOf = (v: number) => box.x + 8 + ((v - min) / (max - min)) * (box.width - 16);
-  const y = box.y + box.height / 2;
-  await page.mouse.move(xOf(now), y);
-  await page.mouse.down();
-  await page.mouse.move(xOf(target), y, { steps: 10 });
-  await page.mouse.up();
-}
 
 /** Waits for the result of the value the box shows, drawn in full by plotly; returns the value and the picture. */
 async function settled(w: Locator, name: string): Promise<{ value: number; picture: string; summary: string }> {
@@ -84,20 +66,20 @@ describe('real-space widgets', () => {
   it('dragging the disorder slider recomputes the map in the page; the seed slider gives another sample, the same seed the same picture', async () => {
     const w = widget(0);
     const clean = await w.locator('.chernel-plot').evaluate((el) => (el as unknown as { layout: { images: { source: string }[] } }).layout.images[0].source);
-    await drag(control(w, 'onsiteDisorder').slider, 3);
+    await drag(page, control(w, 'onsiteDisorder').slider, 3);
     const disordered = await settled(w, 'onsiteDisorder');
     expect(disordered.value).toBeGreaterThan(1);
     expect(disordered.summary).toContain(`W = ${disordered.value}, seed 0`);
     expect(disordered.picture).not.toBe(clean);
 
-    await drag(control(w, 'seed').slider, 10);
+    await drag(page, control(w, 'seed').slider, 10);
     const first = await settled(w, 'seed');
     expect(Number.isInteger(first.value)).toBe(true);
     expect(first.value).toBeGreaterThan(0);
     expect(first.summary).toContain(`seed ${first.value}`);
     expect(first.picture).not.toBe(disordered.picture);
 
-    await drag(control(w, 'seed').slider, 30);
+    await drag(page, control(w, 'seed').slider, 30);
     const second = await settled(w, 'seed');
     expect(second.value).not.toBe(first.value);
     expect(second.picture).not.toBe(first.picture);

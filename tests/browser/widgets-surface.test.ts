@@ -9,7 +9,7 @@
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { qwz, twoBandWeyl } from '../../src/index.js';
-import { artifactPath, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
+import { artifactPath, control, drag, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
 
 let opened: OpenedPage;
 let page: Page;
@@ -19,25 +19,6 @@ const surfaceWidgets: DemoWidget[] = [
   { id: 'c0ffee0000000000000000000000c001', kind: 'surface-spectrum', spec: qwz(), values: { u: -1 }, options: { cut: 1, nk: 81, energyRange: [-3, 3], energyCount: 61, eta: 0.05 } },
   { id: 'c0ffee0000000000000000000000c002', kind: 'surface-map', spec: twoBandWeyl(), values: { k0: 1.5 }, options: { cut: 0, grid: 48, energy: 0 } },
 ];
-
-function control(w: Locator, name: string): { slider: Locator; box: Locator } {
-  const row = w.locator(`.chernel-control[data-parameter="${name}"]`);
-  return { slider: row.locator('input[type=range]'), box: row.locator('input.chernel-control-value') };
-}
-
-/** Drags a slider's thumb with the mouse, in small moves, to the position of `target`. */
-async function drag(slider: Locator, target: number): Promise<void> {
-  await slider.scrollIntoViewIfNeeded();
-  const box = (await slider.boundingBox())!;
-  const [min, max, now] = await slider.evaluate((el: HTMLInputElement) => [Number(el.min), Number(el.max), Number(el.value)]);
-  const thumb = 8; // half the thumb width in Chromium's default range style (common practice)
-  const xOf = (v: number) => box.x + thumb + ((v - min) / (max - min)) * (box.width - 2 * thumb);
-  const y = box.y + box.height / 2;
-  await page.mouse.move(xOf(now), y);
-  await page.mouse.down();
-  await page.mouse.move(xOf(target), y, { steps: 12 });
-  await page.mouse.up();
-}
 
 /** Waits until the widget shows a result for the value its `name` box shows, drawn in full; returns the value. */
 async function settled(w: Locator, name: string): Promise<number> {
@@ -89,7 +70,7 @@ describe('edge and surface widgets in the exported page', () => {
     const drawn: boolean[] = [];
     await page.exposeFunction('chernelSurfaceDrawn', (previewed: boolean) => drawn.push(previewed));
     await w.evaluate((el) => el.addEventListener('chernel-drawn', (e) => (window as unknown as { chernelSurfaceDrawn(p: boolean): void }).chernelSurfaceDrawn((e as CustomEvent<{ previewed: boolean }>).detail.previewed)));
-    await drag(control(w, 'u').slider, -2.6);
+    await drag(page, control(w, 'u').slider, -2.6);
     const u = await settled(w, 'u');
     expect(u).toBeLessThan(-2);
     expect(await picture(w)).not.toBe(before);
@@ -119,7 +100,7 @@ describe('edge and surface widgets in the exported page', () => {
       const seen: boolean[] = ((window as unknown as { chernelMapDrawn: boolean[] }).chernelMapDrawn = []);
       el.addEventListener('chernel-drawn', (e) => seen.push((e as CustomEvent<{ previewed: boolean }>).detail.previewed));
     });
-    await drag(control(w, 'k0').slider, 1.0);
+    await drag(page, control(w, 'k0').slider, 1.0);
     const k0 = await settled(w, 'k0');
     // The nodes move on every step, and the steps are still previews: the nodes are sketched over the picture.
     expect(await page.evaluate(() => (window as unknown as { chernelMapDrawn: boolean[] }).chernelMapDrawn.some((p) => p))).toBe(true);
