@@ -5,8 +5,10 @@ Importing this module is enough for `KernelManager(kernel_name='chernel')` to fi
 Run with Debian's /usr/bin/python3 after `npm run build`."""
 
 import atexit
+import base64
 import os
 import shutil
+import struct
 import subprocess
 import tempfile
 import time
@@ -90,3 +92,20 @@ def value(kc, code, timeout=30):
     if reply["status"] != "ok":
         raise AssertionError(f"cell failed: {code!r}: {reply.get('ename')}: {reply.get('evalue')}")
     return result_text(outputs)
+
+
+def png_size(data):
+    """Width and height of a base64 PNG (the IHDR chunk: PNG specification, RFC 2083); None when it is no PNG."""
+    png = base64.b64decode(data)
+    if png[:8] != b"\x89PNG\r\n\x1a\n":
+        return None
+    return struct.unpack(">II", png[16:24])
+
+
+def summary_and_figure(test, kc, code, timeout=60):
+    """Runs a cell whose value is a result with a figure: its two outputs' data, summary then figure."""
+    reply, outputs = run(kc, code, timeout=timeout)
+    test.assertEqual(reply["status"], "ok")
+    shown = [(m, c["data"]) for m, c, _ in outputs if m in ("display_data", "execute_result")]
+    test.assertEqual([m for m, _ in shown], ["display_data", "execute_result"])
+    return shown[0][1], shown[1][1]

@@ -177,14 +177,6 @@ class Features(unittest.TestCase):
         self.assertIn("gapless", data["text/plain"])
         self.assertIn("gap closes at k = (0, pi)", data["text/html"])
 
-    def png_size(self, data):
-        """Width and height of a base64 PNG (the IHDR chunk: PNG specification, RFC 2083)."""
-        import base64
-
-        png = base64.b64decode(data)
-        self.assertEqual(png[:8], b"\x89PNG\r\n\x1a\n")
-        return struct.unpack(">II", png[16:24])
-
     def test_every_plottable_result_shows_a_summary_and_its_figure_with_a_picture(self):
         cases = {
             "bands": "compute({kind: 'bands', model: qwz(), params: {u: -1}})",
@@ -196,16 +188,12 @@ class Features(unittest.TestCase):
         }
         for kind, code in cases.items():
             with self.subTest(kind=kind):
-                reply, outputs = harness.run(self.kc, code, timeout=60)
-                self.assertEqual(reply["status"], "ok")
-                shown = [(m, c["data"]) for m, c, _ in outputs if m in ("display_data", "execute_result")]
-                self.assertEqual([m for m, _ in shown], ["display_data", "execute_result"])
-                summary, figure = shown[0][1], shown[1][1]
+                summary, figure = harness.summary_and_figure(self, self.kc, code)
                 self.assertIn(f"{kind} result", summary["text/plain"])
                 self.assertIn("<table", summary["text/html"])
                 # No HTML beside the figure: a viewer showing one type per output shows the picture.
                 self.assertEqual(sorted(figure), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
-                self.assertEqual(self.png_size(figure["image/png"]), (760, 480))
+                self.assertEqual(harness.png_size(figure["image/png"]), (760, 480))
                 self.assertTrue(figure["application/vnd.plotly.v1+json"]["data"])
         # A result without a figure shows its summary alone.
         _, outputs = harness.run(self.kc, "compute({kind: 'chern', model: qwz(), params: {u: -1}, bands: 1})")
@@ -232,7 +220,7 @@ class Features(unittest.TestCase):
         self.assertEqual(saved["state"]["values"], {"u": -1})
         # The result's arrays travel as base64 buffers beside their paths (widget state schema 2).
         self.assertIn(["result", "values", "buffer"], [b["path"] for b in saved["buffers"]])
-        self.assertEqual(self.png_size(data["image/png"]), (760, 480))
+        self.assertEqual(harness.png_size(data["image/png"]), (760, 480))
         # Moving the controls from a cell shows no second view; the Chern number has its name.
         reply, outputs = harness.run(self.kc, "cw.setValues({u: 1})")
         self.assertEqual(reply["status"], "ok")

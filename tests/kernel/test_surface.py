@@ -4,18 +4,9 @@ Physics: Qi, Wu & Zhang, PRB 74, 085308 (2006): at u = -1 (C = +1) each QWZ edge
 chiral mode, opposite on the two edges; the two-band Weyl model has nodes at (0, 0, +-k0) of
 opposite chirality (catalogue, common practice)."""
 
-import base64
-import struct
 import unittest
 
 import harness
-
-
-def png_size(data):
-    """Width and height of a base64 PNG (the IHDR chunk: PNG specification, RFC 2083)."""
-    png = base64.b64decode(data)
-    assert png[:8] == b"\x89PNG\r\n\x1a\n"
-    return struct.unpack(">II", png[16:24])
 
 
 class Surface(unittest.TestCase):
@@ -36,14 +27,10 @@ class Surface(unittest.TestCase):
         }
         for kind, (code, title) in cases.items():
             with self.subTest(kind=kind):
-                reply, outputs = harness.run(self.kc, code, timeout=60)
-                self.assertEqual(reply["status"], "ok")
-                shown = [(m, c["data"]) for m, c, _ in outputs if m in ("display_data", "execute_result")]
-                self.assertEqual([m for m, _ in shown], ["display_data", "execute_result"])
-                summary, figure = shown[0][1], shown[1][1]
+                summary, figure = harness.summary_and_figure(self, self.kc, code)
                 self.assertIn(f"{kind} result", summary["text/plain"])
                 self.assertEqual(sorted(figure), ["application/vnd.plotly.v1+json", "image/png", "text/plain"])
-                self.assertEqual(png_size(figure["image/png"]), (760, 480))
+                self.assertEqual(harness.png_size(figure["image/png"]), (760, 480))
                 self.assertIn(title, figure["application/vnd.plotly.v1+json"]["layout"]["title"]["text"])
                 self.assertRegex(figure["text/plain"], rf"^{kind} figure: .*cut \(")
         self.assertEqual(harness.value(self.kc, "compute({kind: 'bulk-boundary', model: qwz(), params: {u: -1}, cut: 1}).verdict"), "'agree'")
@@ -61,7 +48,7 @@ class Surface(unittest.TestCase):
                 self.assertEqual(saved["model_id"], data["application/vnd.jupyter.widget-view+json"]["model_id"])
                 self.assertEqual(saved["state"]["error"], "")
                 self.assertIn(buffer, [b["path"] for b in saved["buffers"]])
-                self.assertEqual(png_size(data["image/png"]), (760, 480))
+                self.assertEqual(harness.png_size(data["image/png"]), (760, 480))
         # The nodes of the widget's result, from the kernel's copy of it.
         chiralities = harness.value(self.kc, "show(twoBandWeyl(), {kind: 'surface-map', cut: 0, grid: 8, energy: 0}).result.nodes.map((n) => n.chirality).join(' ')")
         self.assertEqual(chiralities, "'1 -1'")
