@@ -50,7 +50,7 @@ export { hallConductivity, ELEMENTARY_CHARGE, PLANCK_CONSTANT, HALL_CONDUCTANCE_
 
 // Sweeps, phase maps, cluster plans
 export { runPhaseMap, phaseMapSync, makeCheckpoint, CHECKPOINT_FORMAT, type RunPhaseMapOptions, type SweepCheckpoint, type SweepProgress, type PointRecord } from './scan/run.js';
-export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointTarget } from './scan/sweep.js';
+export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, type PhaseMapRequest, type PhaseMapResult, type PhaseBoundary, type LevelCrossing, RESOLVING_ERRORS, type PhaseMapAxis, type PhaseMapChecks, type SweepAxis, type SweepQuantity, type RefineOptions, type PointFunction, type PointTarget } from './scan/sweep.js';
 export { InProcessExecutor, PointError, type SweepExecutor, type StopSignal, type EvaluateHooks, type PointFunctionFactory } from './scan/executor.js';
 export { WorkerPoolExecutor, serveSweepWorker, type WorkerPort } from './scan/pool.js';
 export { pointFunction } from './scan/point.js';

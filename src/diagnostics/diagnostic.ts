@@ -28,6 +28,11 @@ export interface PointOutcome {
   gap: number;
   /** Set when the diagnostic flagged its own result (grid too coarse, not converged): kept, but warned about. */
   doubtful?: boolean;
+  /**
+   * The standard error of a value that is an average (an ensemble's mean); null when there were too
+   * few members for one. Absent when the value is not an average.
+   */
+  standardError?: number | null;
 }
 
 /** The fields every request carries besides its options. */

@@ -8,7 +8,7 @@
 import { ModelError, valueText } from '../model/errors.js';
 import { canonicalJson, digest } from './checksum.js';
 import { PointError, type SweepExecutor } from './executor.js';
-import { pointsToRecords, recordsToPoints, type PointRecord } from './run.js';
+import { pointsToRecords, recordsToPoints, type PointRecord } from './record.js';
 import {
   advanceSweep,
   pointKey,

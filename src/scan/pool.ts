@@ -12,22 +12,22 @@
 import { InterruptedError, installInterruptFlag } from '../interrupt.js';
 import type { ParameterValues } from '../model/spec.js';
 import { PointError, checkStopped, type EvaluateHooks, type PointFunctionFactory, type SweepExecutor } from './executor.js';
-import type { PointFunction, PointTarget } from './sweep.js';
+import type { PointFunction, PointOutcome, PointTarget } from './sweep.js';
 
 /** Messages to a worker. */
 export type ToSweepWorker =
   | { type: 'init'; flag: Int32Array | null; pointModule: string | null }
   | { type: 'chunk'; run: number; target: PointTarget | null; indices: number[]; params: ParameterValues[] };
 
-/** Messages from a worker: one per chunk, the points done and, if it stopped early, why. */
+/**
+ * Messages from a worker: one per chunk, the points done (their whole outcomes: value, gap, flag,
+ * standard error; structured cloning keeps NaN) and, if it stopped early, why.
+ */
 export interface FromSweepWorker {
   type: 'chunk-done';
   run: number;
   indices: number[];
-  values: (number | null)[];
-  gaps: number[];
-  /** Indices (into `indices`) of points whose diagnostic flagged them. */
-  doubtful: number[];
+  outcomes: PointOutcome[];
   failure: { index: number; name: string; message: string } | null;
 }
 
@@ -137,10 +137,7 @@ export class WorkerPoolExecutor implements SweepExecutor {
             slot.busy = false;
             inFlight--;
             try {
-              message.indices.forEach((index, n) => {
-                const doubtful = message.doubtful.includes(n);
-                hooks.onResult(index, doubtful ? { value: message.values[n], gap: message.gaps[n], doubtful } : { value: message.values[n], gap: message.gaps[n] });
-              });
+              message.indices.forEach((index, n) => hooks.onResult(index, message.outcomes[n]));
             } catch (err) {
               stop(err as Error);
             }
@@ -206,9 +203,7 @@ export function serveSweepWorker(
             });
       return;
     }
-    const values: (number | null)[] = [];
-    const gaps: number[] = [];
-    const doubtful: number[] = [];
+    const outcomes: PointOutcome[] = [];
     let failure: FromSweepWorker['failure'] = null;
     try {
       if (factory === null) throw new Error('sweep worker used before init');
@@ -218,22 +213,19 @@ export function serveSweepWorker(
       }
     } catch (err) {
       const e = err as Error;
-      post({ type: 'chunk-done', run: message.run, indices: [], values, gaps, doubtful, failure: { index: message.indices[0], name: e.name, message: e.message } });
+      post({ type: 'chunk-done', run: message.run, indices: [], outcomes, failure: { index: message.indices[0], name: e.name, message: e.message } });
       return;
     }
     for (let n = 0; n < message.indices.length; n++) {
       try {
         checkStopped(undefined);
-        const outcome = current.fn(message.params[n]);
-        if (outcome.doubtful === true) doubtful.push(values.length);
-        values.push(outcome.value);
-        gaps.push(outcome.gap);
+        outcomes.push(current.fn(message.params[n]));
       } catch (err) {
         const e = err as Error;
         failure = { index: message.indices[n], name: e?.name ?? 'Error', message: e?.message ?? String(err) };
         break;
       }
     }
-    post({ type: 'chunk-done', run: message.run, indices: message.indices.slice(0, values.length), values, gaps, doubtful, failure });
+    post({ type: 'chunk-done', run: message.run, indices: message.indices.slice(0, outcomes.length), outcomes, failure });
   };
 }

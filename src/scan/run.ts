@@ -8,6 +8,7 @@
 import { InterruptedError } from '../interrupt.js';
 import { ModelError, valueText } from '../model/errors.js';
 import { InProcessExecutor, checkStopped, PointError, type PointFunctionFactory, type StopSignal, type SweepExecutor } from './executor.js';
+import { pointsToRecords, recordsToPoints, type PointRecord } from './record.js';
 import {
   advanceSweep,
   pointKey,
@@ -21,14 +22,10 @@ import {
   type SweepStage,
 } from './sweep.js';
 
+export type { PointRecord };
+
 export const CHECKPOINT_FORMAT = 'chernel.sweep-checkpoint';
 export const CHECKPOINT_VERSION = 1;
-
-/**
- * A finished point: its swept coordinates (axis order), the quantity (null: gapless), the gap, and
- * a trailing 1 when the point's diagnostic flagged it (`PointOutcome.doubtful`).
- */
-export type PointRecord = [coords: number[], value: number | null, gap: number] | [coords: number[], value: number | null, gap: number, doubtful: 1];
 
 /** Everything a sweep needs to resume: the finished points, tied to the request by its fingerprint. */
 export interface SweepCheckpoint {
@@ -73,35 +70,6 @@ export function checkpointPoints(checkpoint: unknown, request: PhaseMapRequest):
   }
   if (!Array.isArray(c.points)) throw new ModelError('checkpoint.points', `expected an array. Value: ${valueText(c.points)}`);
   return recordsToPoints(c.points, request.axes.length, 'checkpoint.points');
-}
-
-/** Records -> known points, checking each record's shape. */
-export function recordsToPoints(records: readonly unknown[], dims: number, field: string): Map<string, PointOutcome> {
-  const known = new Map<string, PointOutcome>();
-  records.forEach((rec, n) => {
-    const ok =
-      Array.isArray(rec) &&
-      (rec.length === 3 || (rec.length === 4 && rec[3] === 1)) &&
-      Array.isArray(rec[0]) &&
-      rec[0].length === dims &&
-      rec[0].every((x: unknown) => typeof x === 'number' && Number.isFinite(x)) &&
-      (rec[1] === null || typeof rec[1] === 'number') &&
-      (typeof rec[2] === 'number' || rec[2] === null);
-    if (!ok) throw new ModelError(`${field}[${n}]`, `expected [[${dims} coordinates], value or null, gap]. Value: ${valueText(rec)}`);
-    const [coords, value, gap, flag] = rec as [number[], number | null, number | null, 1 | undefined];
-    known.set(pointKey(coords), flag === 1 ? { value, gap: gap ?? Number.NaN, doubtful: true } : { value, gap: gap ?? Number.NaN });
-  });
-  return known;
-}
-
-/** Known points -> records, in key order (so equal sets give equal files). */
-export function pointsToRecords(known: ReadonlyMap<string, PointOutcome>): PointRecord[] {
-  const keys = [...known.keys()].sort();
-  return keys.map((k) => {
-    const o = known.get(k)!;
-    const coords = k.split(',').map(Number);
-    return o.doubtful === true ? [coords, o.value, o.gap, 1] : [coords, o.value, o.gap];
-  });
 }
 
 export function makeCheckpoint(request: PhaseMapRequest, known: ReadonlyMap<string, PointOutcome>): SweepCheckpoint {

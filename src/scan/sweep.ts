@@ -87,6 +87,33 @@ export interface PhaseBoundary {
   gaps: [number, number];
 }
 
+/**
+ * Where the mean of an averaged map crosses a half-integer between two neighbouring grid points:
+ * the averaged invariant going from one plateau towards the next (0 -> 1 crosses 1/2).
+ */
+export interface LevelCrossing {
+  /** Where the straight line between the two means meets the level. */
+  at: ParameterValues;
+  /** The swept parameter the grid edge runs along, and its ends. */
+  along: string;
+  lower: number;
+  upper: number;
+  /** The half-integer crossed. */
+  level: number;
+  /** The means and their standard errors at `lower` and at `upper`. */
+  values: [number, number];
+  standardErrors: [number | null, number | null];
+  /**
+   * True when each end lies more than RESOLVING_ERRORS standard errors from the level: the errors
+   * resolve the change. Otherwise either end is consistent with the level itself (or has no error)
+   * and the crossing is not a resolved boundary.
+   */
+  resolved: boolean;
+}
+
+/** How many standard errors from a half-integer a mean must lie to count as on one side of it. */
+export const RESOLVING_ERRORS = 2;
+
 export interface PhaseMapAxis extends SweepAxis {
   /** The grid values along the axis. */
   values: number[];
@@ -117,6 +144,13 @@ export interface PhaseMapResult {
   values: (number | null)[];
   /** The gap at each grid point, same layout. */
   gaps: number[];
+  /**
+   * A map of an average (an ensemble's mean): the standard error of each value, same layout; null
+   * where there is none (fewer than two members gave a value). Absent for other quantities.
+   */
+  standardErrors?: (number | null)[];
+  /** A map of an average: every crossing of a half-integer between neighbouring grid points, in scan order. */
+  crossings?: LevelCrossing[];
   /** Refined boundaries (empty without `refine`), in the order the grid edges were scanned. */
   boundaries: PhaseBoundary[];
   /** Bisection rounds run and points evaluated beyond the grid. */
@@ -335,6 +369,14 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
     refinement = { tolerance, rounds, points: extra };
   }
 
+  const averaged = outcomes.some((o) => o.standardError !== undefined);
+  const standardErrors = averaged ? outcomes.map((o) => o.standardError ?? null) : undefined;
+  const crossings = standardErrors !== undefined ? levelCrossings(axes, grids, outcomes.map((o) => o.value), standardErrors) : undefined;
+  const unresolved = crossings?.filter((c) => !c.resolved).length ?? 0;
+  if (unresolved > 0) {
+    warnings.push(`${unresolved} of ${crossings!.length} crossings of a half-integer are not resolved: an end lies within ${RESOLVING_ERRORS} standard errors of the level (more samples narrow the errors)`);
+  }
+
   let minIndex = 0;
   outcomes.forEach((o, n) => {
     if (o.gap < outcomes[minIndex].gap) minIndex = n;
@@ -356,6 +398,7 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
     axes: axes.map((a, i) => ({ param: a.param, from: a.from, to: a.to, count: a.count, values: grids[i] })),
     values: outcomes.map((o) => o.value),
     gaps: outcomes.map((o) => o.gap),
+    ...(standardErrors !== undefined ? { standardErrors, crossings } : {}),
     boundaries,
     ...(refinement !== undefined ? { refinement } : {}),
     checks: {
@@ -367,4 +410,48 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
     },
   };
   return { done: true, result };
+}
+
+/**
+ * The crossings of half-integers along every grid edge (axis 0 first, then axis 1) of an averaged
+ * map. A level at an end counts (the end sits on it: not resolved); an edge with a null mean has none.
+ */
+function levelCrossings(axes: readonly SweepAxis[], grids: number[][], means: (number | null)[], errors: (number | null)[]): LevelCrossing[] {
+  const n0 = grids[0].length;
+  const n1 = grids.length > 1 ? grids[1].length : 1;
+  const out: LevelCrossing[] = [];
+  const coordsOf = (i: number, j: number) => (grids.length > 1 ? [grids[0][i], grids[1][j]] : [grids[0][i]]);
+  for (let axis = 0; axis < grids.length; axis++) {
+    for (let j = 0; j < n1; j++) {
+      for (let i = 0; i < n0; i++) {
+        const i2 = axis === 0 ? i + 1 : i;
+        const j2 = axis === 1 ? j + 1 : j;
+        if (i2 >= n0 || j2 >= n1) continue;
+        const a = means[j * n0 + i];
+        const b = means[j2 * n0 + i2];
+        if (a === null || b === null || a === b) continue;
+        const ea = errors[j * n0 + i];
+        const eb = errors[j2 * n0 + i2];
+        const lo = coordsOf(i, j);
+        const hi = coordsOf(i2, j2);
+        for (let k = Math.ceil(Math.min(a, b) - 0.5); k + 0.5 <= Math.max(a, b); k++) {
+          const level = k + 0.5;
+          const t = (level - a) / (b - a);
+          const clear = (mean: number, error: number | null) => error !== null && Math.abs(mean - level) > RESOLVING_ERRORS * error;
+          const ascending = lo[axis] <= hi[axis];
+          out.push({
+            at: sweptParams(axes, withCoord(lo, axis, lo[axis] + t * (hi[axis] - lo[axis]))),
+            along: axes[axis].param,
+            lower: Math.min(lo[axis], hi[axis]),
+            upper: Math.max(lo[axis], hi[axis]),
+            level,
+            values: ascending ? [a, b] : [b, a],
+            standardErrors: ascending ? [ea, eb] : [eb, ea],
+            resolved: clear(a, ea) && clear(b, eb),
+          });
+        }
+      }
+    }
+  }
+  return out;
 }

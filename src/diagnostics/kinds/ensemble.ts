@@ -11,8 +11,9 @@ export const ensemble: SweptDiagnostic<EnsembleOptions, EnsembleResult> = {
   run: disorderEnsemble,
   cost: (request, n) => ensembleCost(n, termCount(request), request as unknown as EnsembleOptions),
   sizeFields: () => ['samples', 'sizes'],
-  // An average is not quantised: a phase map of it is a continuous map (no boundaries to refine).
-  sweep: (r) => ({ value: r.mean, gap: Number.NaN }),
+  // An average is not quantised: a phase map of it is a continuous map (no boundaries to refine),
+  // and each point keeps its standard error.
+  sweep: (r) => ({ value: r.mean, gap: Number.NaN, standardError: r.standardError }),
   quantised: false,
   headline: ['mean', 'standardError', 'count'],
 };
