@@ -3,7 +3,9 @@
  * as contour lines, gapless grid points crossed out, refined boundary points, and the current
  * parameter point as a marker the user can drag (the view enables shape dragging for this figure).
  * A map of a quantity that is not quantised (a gap, a disorder average) is drawn as a continuous
- * colour map instead, with a colour bar.
+ * colour map instead, with a colour bar. An average carries its standard errors: a curve is drawn
+ * inside a band of ±2 SE, a 2D map hatches the cells whose mean lies within 2 SE of a half-integer
+ * (undecided between the two integers beside it) and its hover reads mean ± SE.
  */
 import type { Data, Layout } from './plotly-json.js';
 import type { ViewResult } from '../contract/protocol.js';
@@ -14,6 +16,13 @@ interface Axis {
   values: number[];
 }
 
+/** A crossing of a half-integer between two grid points of an averaged map (the engine's LevelCrossing). */
+interface Crossing {
+  at: Record<string, number>;
+  level: number;
+  resolved: boolean;
+}
+
 interface PhaseMapData {
   quantity: string;
   quantised: boolean;
@@ -21,7 +30,16 @@ interface PhaseMapData {
   values: (number | null)[];
   gaps: number[];
   boundaries: { at: Record<string, number> }[];
+  /** An averaged map's standard errors (null where none); absent for other maps and maps saved before they were kept. */
+  standardErrors?: (number | null)[];
+  crossings: Crossing[];
 }
+
+/**
+ * How many standard errors wide the band is, and how far from a half-integer a mean must lie to be
+ * decided: the engine's RESOLVING_ERRORS (src/scan/sweep.ts), which rules its crossings.
+ */
+export const ERROR_BAND = 2;
 
 function read(result: ViewResult): PhaseMapData {
   const axes = result.axes as Axis[] | undefined;
@@ -30,6 +48,10 @@ function read(result: ViewResult): PhaseMapData {
   const expected = axes ? axes.reduce((n, a) => n * (a.values?.length ?? 0), 1) : -1;
   if (!axes || (axes.length !== 1 && axes.length !== 2) || !values || !gaps || values.length !== expected || gaps.length !== expected) {
     throw new Error(`phase-map result: ${values?.length} values and ${gaps?.length} gaps for axes ${JSON.stringify(axes?.map((a) => [a.param, a.values?.length]))}`);
+  }
+  const errors = result.standardErrors as (number | null)[] | ArrayLike<number> | undefined;
+  if (errors !== undefined && (errors === null || typeof errors !== 'object' || errors.length !== expected)) {
+    throw new Error(`phase-map result: ${(errors as ArrayLike<number> | null)?.length} standard errors for ${expected} values`);
   }
   // A map saved before the field was renamed names its quantity `invariant`.
   const named = typeof result.quantity === 'string' ? result.quantity : result.invariant;
@@ -42,6 +64,8 @@ function read(result: ViewResult): PhaseMapData {
     values,
     gaps: Array.from(gaps),
     boundaries: (result.boundaries as { at: Record<string, number> }[] | undefined) ?? [],
+    ...(errors !== undefined ? { standardErrors: Array.from(errors as ArrayLike<number | null>, (e) => (typeof e === 'number' && Number.isFinite(e) ? e : null)) } : {}),
+    crossings: Array.isArray(result.crossings) ? (result.crossings as Crossing[]).filter((c) => c !== null && typeof c === 'object' && typeof c.level === 'number') : [],
   };
 }
 
@@ -202,20 +226,48 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
   const finite = m.values.filter((v): v is number => v !== null && Number.isFinite(v));
   const range = finite.length ? `${fmt(Math.min(...finite))} to ${fmt(Math.max(...finite))}` : 'no value';
   const n0 = ax0.values.length;
-  const data: Data[] = ax1 === undefined
-    ? [{ type: 'scatter', mode: 'lines+markers', x: ax0.values, y: m.values, line: { color: PALETTE[0] }, name: sym, hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g}<extra></extra>` }]
-    : [{
-        type: 'heatmap',
-        x: ax0.values,
-        y: ax1.values,
-        z: ax1.values.map((_, j) => ax0.values.map((__, i) => m.values[j * n0 + i])),
-        colorscale: CONTINUOUS,
-        colorbar: { title: { text: sym } },
-        name: sym,
-        hovertemplate: `${ax0.param} = %{x:.4g}<br>${ax1.param} = %{y:.4g}<br>${sym} = %{z:.4g}<extra></extra>`,
-      }];
+  const errors = m.standardErrors;
+  const data: Data[] = [];
+  const shapes: NonNullable<Layout['shapes']> = [];
+  if (ax1 === undefined) {
+    if (errors !== undefined) data.push(...errorBand(ax0.values, m.values, errors));
+    data.push({
+      type: 'scatter', mode: 'lines+markers', x: ax0.values, y: m.values, line: { color: PALETTE[0] }, marker: { color: PALETTE[0] }, name: sym,
+      ...(errors !== undefined
+        ? { customdata: errors, hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g} ± %{customdata:.2g} (1 SE)<extra></extra>` }
+        : { hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g}<extra></extra>` }),
+    });
+    if (errors !== undefined) {
+      // The half-integers the band reaches: where a mean is undecided between two integers.
+      const reach = m.values.flatMap((v, i) => (v === null ? [] : [v - ERROR_BAND * (errors[i] ?? 0), v + ERROR_BAND * (errors[i] ?? 0)]));
+      for (const level of halfIntegers(Math.min(...reach), Math.max(...reach))) {
+        shapes.push({ type: 'line', xref: 'paper', yref: 'y', x0: 0, x1: 1, y0: level, y1: level, line: { color: '#8a8a8a', width: 1, dash: 'dot' } });
+      }
+      data.push(...crossingMarkers(m.crossings, ax0.param, null, true));
+    }
+  } else {
+    data.push({
+      type: 'heatmap',
+      x: ax0.values,
+      y: ax1.values,
+      z: ax1.values.map((_, j) => ax0.values.map((__, i) => m.values[j * n0 + i])),
+      ...(errors !== undefined ? { text: ax1.values.map((_, j) => ax0.values.map((__, i) => meanText(m.values[j * n0 + i], errors[j * n0 + i]))) } : {}),
+      colorscale: CONTINUOUS,
+      colorbar: { title: { text: sym } },
+      name: sym,
+      hovertemplate: `${ax0.param} = %{x:.4g}<br>${ax1.param} = %{y:.4g}<br>${sym} = ${errors !== undefined ? '%{text}' : '%{z:.4g}'}<extra></extra>`,
+    });
+    if (errors !== undefined) {
+      const hatch = undecidedHatching(ax0.values, ax1.values, m.values, errors);
+      if (hatch !== null) data.push(hatch);
+      data.push(...crossingMarkers(m.crossings, ax0.param, ax1.param, false));
+    }
+  }
   const here = locate(m, ctx.values);
-  const hereText = here === undefined ? '' : ` · here: ${here === null ? 'none' : fmt(here)}`;
+  const hereError = errors !== undefined ? locateIndex(m, ctx.values) : undefined;
+  const hereText = here === undefined ? '' : ` · here: ${here === null ? 'none' : errors !== undefined && hereError !== undefined ? meanText(here, errors[hereError]) : fmt(here)}`;
+  const resolved = m.crossings.filter((c) => c.resolved).length;
+  const crossingText = errors === undefined || m.crossings.length === 0 ? '' : ` · crossings of a half-integer: ${resolved} resolved, ${m.crossings.length - resolved} within ${ERROR_BAND} SE`;
   return {
     data,
     layout: {
@@ -223,15 +275,98 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
       title: titled(`Map of ${sym} — ${range}`),
       xaxis: { title: { text: withUnit(ax0.param, unitOf(ax0.param)) }, zeroline: false },
       yaxis: { title: { text: ax1 ? withUnit(ax1.param, unitOf(ax1.param)) : sym }, zeroline: false },
+      ...(errors !== undefined ? { shapes, legend: { orientation: 'h', x: 0, y: -0.2 } } : {}),
     },
-    summary: `${sym}: ${range}${hereText}`,
+    summary: `${sym}: ${range}${hereText}${crossingText}`,
     invariant: null,
     gapless: false,
   };
 }
 
+/** "0.625 ± 0.0625" (one standard error), or the mean alone when it has none. */
+function meanText(mean: number | null, error: number | null): string {
+  if (mean === null) return 'none';
+  return error === null ? `${fmt(mean)} (no error)` : `${fmt(mean)} ± ${fmt(error, 2)}`;
+}
+
+/** The half-integers in [lo, hi]. */
+function halfIntegers(lo: number, hi: number): number[] {
+  const out: number[] = [];
+  if (!Number.isFinite(lo) || !Number.isFinite(hi)) return out;
+  for (let k = Math.ceil(lo - 0.5); k + 0.5 <= hi && out.length < 16; k++) out.push(k + 0.5);
+  return out;
+}
+
+/**
+ * The band mean ± ERROR_BAND SE of a 1D averaged map: its lower edge (no line, no legend) and its
+ * upper edge filled down to it. A point without an error has a band of no width; one without a
+ * mean is left out.
+ */
+function errorBand(xs: number[], means: (number | null)[], errors: (number | null)[]): Data[] {
+  const kept = means.flatMap((v, i) => (v === null ? [] : [i]));
+  const edge = (sign: number) => kept.map((i) => (means[i] as number) + sign * ERROR_BAND * (errors[i] ?? 0));
+  const x = kept.map((i) => xs[i]);
+  const common = { type: 'scatter', mode: 'lines', x, line: { width: 0, color: BAND_FILL }, hoverinfo: 'skip' };
+  return [
+    { ...common, y: edge(-1), name: `mean − ${ERROR_BAND} SE`, showlegend: false },
+    { ...common, y: edge(+1), name: `mean ± ${ERROR_BAND} SE`, fill: 'tonexty', fillcolor: BAND_FILL, showlegend: true },
+  ];
+}
+
+const BAND_FILL = 'rgba(59, 110, 168, 0.22)';
+const HATCH = 'rgba(40, 40, 40, 0.6)';
+
+/**
+ * Diagonal strokes over every cell whose mean lies within ERROR_BAND standard errors of a
+ * half-integer (or has no error): one trace of line segments broken by nulls, three per cell, so
+ * neighbouring cells' strokes join into a hatched region. Null when no cell is undecided.
+ */
+function undecidedHatching(xs: number[], ys: number[], means: (number | null)[], errors: (number | null)[]): Data | null {
+  // The grid is even: every cell reaches half a step either side of its point.
+  const halfStep = (v: number[]) => (v.length > 1 ? Math.abs(v[v.length - 1] - v[0]) / (v.length - 1) / 2 : 0.5);
+  const [hx0, hy0] = [halfStep(xs), halfStep(ys)];
+  const hx: (number | null)[] = [];
+  const hy: (number | null)[] = [];
+  means.forEach((mean, n) => {
+    if (mean === null) return;
+    const e = errors[n];
+    const nearest = Math.round(mean - 0.5) + 0.5;
+    if (e !== null && Math.abs(mean - nearest) > ERROR_BAND * e) return;
+    const i = n % xs.length;
+    const j = Math.floor(n / xs.length);
+    const [l, r, b, t] = [xs[i] - hx0, xs[i] + hx0, ys[j] - hy0, ys[j] + hy0];
+    const mx = (l + r) / 2;
+    const my = (b + t) / 2;
+    hx.push(l, r, null, l, mx, null, mx, r, null);
+    hy.push(b, t, null, my, t, null, b, my, null);
+  });
+  if (hx.length === 0) return null;
+  return { type: 'scatter', mode: 'lines', x: hx, y: hy, line: { color: HATCH, width: 1 }, name: `within ${ERROR_BAND} SE of a half-integer`, showlegend: true, hoverinfo: 'skip' };
+}
+
+/** Markers where the mean crosses a half-integer: filled when the errors resolve it, open when not (1D only). */
+function crossingMarkers(crossings: Crossing[], p0: string, p1: string | null, withUnresolved: boolean): Data[] {
+  const trace = (list: Crossing[], name: string, marker: Record<string, unknown>): Data[] =>
+    list.length === 0 ? [] : [{
+      type: 'scatter', mode: 'markers', name, showlegend: true, marker, cliponaxis: false,
+      x: list.map((c) => c.at[p0]),
+      y: list.map((c) => (p1 === null ? c.level : c.at[p1])),
+      hovertemplate: `${p0} = %{x:.4g}<br>${name}<extra></extra>`,
+    }];
+  return [
+    ...trace(crossings.filter((c) => c.resolved), 'crossing resolved', { size: 7, color: '#1a1a1a' }),
+    ...(withUnresolved ? trace(crossings.filter((c) => !c.resolved), `crossing within ${ERROR_BAND} SE`, { size: 9, symbol: 'circle-open', color: '#b5445b', line: { width: 2, color: '#b5445b' } }) : []),
+  ];
+}
+
 /** The map's value at the grid point nearest to the current parameters; undefined outside. */
 function locate(m: PhaseMapData, values: Record<string, number>): number | null | undefined {
+  const n = locateIndex(m, values);
+  return n === undefined ? undefined : m.values[n];
+}
+
+/** The index of the grid point nearest to the current parameters; undefined outside. */
+function locateIndex(m: PhaseMapData, values: Record<string, number>): number | undefined {
   const idx: number[] = [];
   for (const a of m.axes) {
     const v = values[a.param];
@@ -244,8 +379,7 @@ function locate(m: PhaseMapData, values: Record<string, number>): number | null 
     });
     idx.push(best);
   }
-  const flat = idx.length === 1 ? idx[0] : idx[1] * m.axes[0].values.length + idx[0];
-  return m.values[flat];
+  return idx.length === 1 ? idx[0] : idx[1] * m.axes[0].values.length + idx[0];
 }
 
 export function phaseMapTable(result: ViewResult): Table {
@@ -256,6 +390,7 @@ export function phaseMapTable(result: ViewResult): Table {
     ...(m.axes[1] ? [m.axes[1].values[Math.floor(idx / n0)]] : []),
     v,
     m.gaps[idx],
+    ...(m.standardErrors !== undefined ? [m.standardErrors[idx]] : []),
   ]);
-  return { columns: [...m.axes.map((a) => a.param), m.quantity, 'gap'], rows };
+  return { columns: [...m.axes.map((a) => a.param), m.quantity, 'gap', ...(m.standardErrors !== undefined ? ['standard error'] : [])], rows };
 }

@@ -171,7 +171,7 @@ function wrap(text: string, width: number, scale: number): string[] {
 interface Legend {
   name: string;
   paint: Paint;
-  mark: 'line' | 'dot' | 'square' | 'cross';
+  mark: 'line' | 'dot' | 'ring' | 'square' | 'cross';
   dashed: boolean;
 }
 
@@ -194,9 +194,11 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     const marker = obj(t.marker);
     const line = obj(t.line);
     const mode = str(t.mode) || 'lines';
-    const paint = parseColour(marker.color) ?? parseColour(line.color) ?? parseColour(SEQUENCE[i % SEQUENCE.length]) ?? DEFAULT_LINE;
+    const filled = str(t.fill) !== '' && str(t.fill) !== 'none';
+    const paint = (filled ? parseColour(t.fillcolor) : null) ?? parseColour(marker.color) ?? parseColour(line.color) ?? parseColour(SEQUENCE[i % SEQUENCE.length]) ?? DEFAULT_LINE;
     const symbol = str(marker.symbol);
-    legend.push({ name, paint, mark: symbol === 'square' ? 'square' : symbol.startsWith('x') ? 'cross' : mode.includes('lines') ? 'line' : 'dot', dashed: str(line.dash) !== '' && str(line.dash) !== 'solid' });
+    const mark = filled || symbol === 'square' ? 'square' : symbol.startsWith('x') ? 'cross' : symbol.includes('open') && !mode.includes('lines') ? 'ring' : mode.includes('lines') ? 'line' : 'dot';
+    legend.push({ name, paint, mark, dashed: str(line.dash) !== '' && str(line.dash) !== 'solid' });
   });
 
   const top = 14 + titleLines.length * (GLYPH_HEIGHT * 2 + 6) + 8;
@@ -266,6 +268,24 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     const [x0, x1, y0, y1] = [num(s.x0), num(s.x1), num(s.y0), num(s.y1)];
     if (x0 !== null && x1 !== null && y0 !== null && y1 !== null) px.segment(along(s.xref, x0, 'x'), along(s.yref, y0, 'y'), along(s.xref, x1, 'x'), along(s.yref, y1, 'y'), w, paint);
   }
+  // Filled areas under every line: a trace filled 'tonexty' down to the scatter trace before it
+  // (a band between two curves), or 'toself'.
+  let previous: Json | null = null;
+  for (const t of traces) {
+    if (str(t.type) !== 'scatter' && str(t.type) !== 'scattergl') continue;
+    const fill = str(t.fill);
+    const paint = parseColour(t.fillcolor);
+    if (paint !== null && (fill === 'toself' || (fill === 'tonexty' && previous !== null))) {
+      const ys = t.yaxis === 'y2' && y2 ? y2 : yAxis;
+      const points = (trace: Json) => {
+        const yv = numbers(trace.y);
+        return numbers(trace.x).flatMap((a, k) => (a === null || yv[k] === null || yv[k] === undefined ? [] : [[x.at(a), ys.at(yv[k] as number)]]));
+      };
+      const outline = fill === 'toself' ? points(t) : [...points(t), ...points(previous!).reverse()];
+      px.polygon(outline.map((p) => p[0]), outline.map((p) => p[1]), paint);
+    }
+    previous = t;
+  }
   // Scatter traces: lines first, then markers, in trace order.
   traces.forEach((t, i) => {
     if (str(t.type) !== 'scatter' && str(t.type) !== 'scattergl') return;
@@ -277,7 +297,7 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     const marker = obj(t.marker);
     const fallback = parseColour(SEQUENCE[i % SEQUENCE.length]) ?? DEFAULT_LINE;
     const opacity = num(t.opacity) ?? 1;
-    if (mode.includes('lines')) {
+    if (mode.includes('lines') && num(line.width) !== 0) {
       const stroke = parseColour(line.color) ?? fallback;
       const paint = { ...stroke, alpha: stroke.alpha * opacity };
       const dash = str(line.dash);
@@ -368,6 +388,7 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     if (entry.mark === 'line') px.segment(lx, cy, lx + 18, cy, 2, entry.paint, entry.dashed ? [5, 3] : null);
     else if (entry.mark === 'square') px.fillRect(lx + 3, cy - 6, lx + 15, cy + 6, entry.paint);
     else if (entry.mark === 'cross') cross(px, lx + 9, cy, 5, 2, entry.paint);
+    else if (entry.mark === 'ring') px.ring(lx + 9, cy, 4, 2, entry.paint);
     else px.disc(lx + 9, cy, 3, entry.paint);
     px.text(lx + 24, ly, entry.name, TEXT);
     lx += w;

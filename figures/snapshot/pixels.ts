@@ -84,6 +84,35 @@ export class Pixels {
     for (let y = ya; y < yb; y++) for (let x = xa; x < xb; x++) this.blend(x, y, paint);
   }
 
+  /**
+   * A filled polygon (even-odd rule, closed from the last vertex to the first): every pixel whose
+   * centre lies inside is blended once, so a translucent fill stays even where edges overlap.
+   */
+  polygon(xs: ArrayLike<number>, ys: ArrayLike<number>, paint: Paint): void {
+    const n = Math.min(xs.length, ys.length);
+    if (n < 3) return;
+    const [l, t, r, b] = this.clip;
+    let top = Infinity;
+    let bottom = -Infinity;
+    for (let i = 0; i < n; i++) {
+      top = Math.min(top, ys[i]);
+      bottom = Math.max(bottom, ys[i]);
+    }
+    const crossings: number[] = [];
+    for (let y = Math.max(t, Math.floor(top)); y < Math.min(b, Math.ceil(bottom)); y++) {
+      const cy = y + 0.5;
+      crossings.length = 0;
+      for (let i = 0, j = n - 1; i < n; j = i++) {
+        const [ya, yb] = [ys[j], ys[i]];
+        if ((ya <= cy) !== (yb <= cy)) crossings.push(xs[j] + ((cy - ya) / (yb - ya)) * (xs[i] - xs[j]));
+      }
+      crossings.sort((p, q) => p - q);
+      for (let k = 0; k + 1 < crossings.length; k += 2) {
+        for (let x = Math.max(l, Math.ceil(crossings[k] - 0.5)); x < Math.min(r, Math.ceil(crossings[k + 1] - 0.5)); x++) this.blend(x, y, paint);
+      }
+    }
+  }
+
   /** A disc of radius `r` centred at (cx, cy), edge antialiased. */
   disc(cx: number, cy: number, r: number, paint: Paint): void {
     const x0 = Math.floor(cx - r - 1);
