@@ -228,7 +228,6 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
   const n0 = ax0.values.length;
   const errors = m.standardErrors;
   const data: Data[] = [];
-  const shapes: NonNullable<Layout['shapes']> = [];
   if (ax1 === undefined) {
     if (errors !== undefined) data.push(...errorBand(ax0.values, m.values, errors));
     data.push({
@@ -240,8 +239,14 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
     if (errors !== undefined) {
       // The half-integers the band reaches: where a mean is undecided between two integers.
       const reach = m.values.flatMap((v, i) => (v === null ? [] : [v - ERROR_BAND * (errors[i] ?? 0), v + ERROR_BAND * (errors[i] ?? 0)]));
-      for (const level of halfIntegers(Math.min(...reach), Math.max(...reach))) {
-        shapes.push({ type: 'line', xref: 'paper', yref: 'y', x0: 0, x1: 1, y0: level, y1: level, line: { color: '#8a8a8a', width: 1, dash: 'dot' } });
+      // A trace, not layout shapes: a phase-map widget makes its shapes draggable.
+      const levels = halfIntegers(Math.min(...reach), Math.max(...reach));
+      const [x0, x1] = [ax0.values[0], ax0.values[n0 - 1]];
+      if (levels.length > 0) {
+        data.unshift({
+          type: 'scatter', mode: 'lines', name: 'half-integers', showlegend: false, hoverinfo: 'skip', line: { color: '#8a8a8a', width: 1, dash: 'dot' },
+          x: levels.flatMap(() => [x0, x1, null]), y: levels.flatMap((h) => [h, h, null]),
+        });
       }
       data.push(...crossingMarkers(m.crossings, ax0.param, null, true));
     }
@@ -275,7 +280,7 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
       title: titled(`Map of ${sym} — ${range}`),
       xaxis: { title: { text: withUnit(ax0.param, unitOf(ax0.param)) }, zeroline: false },
       yaxis: { title: { text: ax1 ? withUnit(ax1.param, unitOf(ax1.param)) : sym }, zeroline: false },
-      ...(errors !== undefined ? { shapes, legend: { orientation: 'h', x: 0, y: -0.2 } } : {}),
+      ...(errors !== undefined ? { legend: { orientation: 'h', x: 0, y: -0.2 } } : {}),
     },
     summary: `${sym}: ${range}${hereText}${crossingText}`,
     invariant: null,
