@@ -404,6 +404,7 @@ describe('ensembles', () => {
     expect(weak.standardError).toBe(0);
     const strong = disorderEnsemble(h, { of: 'bott', sizes: [10, 10], onsiteDisorder: 20, samples: 6 });
     expect(Math.abs(strong.mean!)).toBeLessThan(0.2);
+    expect(weak.checks.warnings.join()).not.toMatch(/disagree/);
     expect(Array.from(strong.seeds)).toEqual([0, 1, 2, 3, 4, 5]);
   });
 
@@ -452,6 +453,13 @@ describe('a disorder-driven transition: the topological Anderson insulator of a 
       expect(inside ? e.mean - 0.5 : 0.5 - e.mean, `W = ${W}: mean ${e.mean} +- ${e.standardError}`).toBeGreaterThan(3 * e.standardError);
       if (W === (W1 + W2) / 2) expect(Math.abs(e.mean - 1), `middle of the window: ${e.mean} +- ${e.standardError}`).toBeLessThan(Math.max(3 * e.standardError, 0.02));
     }
+  });
+
+  it('at the edge of the window the members round to different integers, and the ensemble says its mean is no invariant', () => {
+    const e = compute({ kind: 'ensemble', model: ssh(), params: { v: 1.2, w: 1 }, of: 'chain-winding', sizes: [60], boundary: 'periodic', parameterDisorder: { v: W2 }, samples: 8 }) as unknown as { values: Float64Array; checks: { warnings: string[] } };
+    const rounded = Array.from(e.values).map(Math.round);
+    expect(new Set(rounded).size, `members ${rounded}`).toBeGreaterThan(1);
+    expect(e.checks.warnings.join()).toMatch(/the members disagree \(\d+ near 0, \d+ near 1\): the mean is a fraction, not an invariant/);
   });
 
   it('the same relative disorder on every bond (bondDisorder) moves no boundary: the clean trivial chain stays trivial', () => {
