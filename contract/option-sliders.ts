@@ -6,7 +6,9 @@
  * beside the parameter values (names never clash: a model parameter cannot be an option slider),
  * so they sync, save, export and answer "is the saved result current?" exactly as parameters do.
  * The widget's request takes them as options; `optionSliders` itself is the widget's, never the
- * engine's. The kernel and the page both read this module.
+ * engine's. A name "option.key" is one entry of an object option, as a phase map's axis names it:
+ * `{'parameterDisorder.v': [0, 6]}` drags the disorder width of the model parameter v. The kernel
+ * and the page both read this module.
  */
 import type { ViewRequest, ModelSpecView, WidgetKind } from './protocol.js';
 
@@ -21,6 +23,19 @@ export interface OptionSlider {
 
 const isObject = (x: unknown): x is Record<string, unknown> => x !== null && typeof x === 'object' && !Array.isArray(x);
 
+/** The request option a slider name sets, and the key within it for "option.key" (src/scan/sweep.ts reads axes alike). */
+function optionPath(name: string): [option: string, key: string | undefined] {
+  const dot = name.indexOf('.');
+  return dot < 0 ? [name, undefined] : [name.slice(0, dot), name.slice(dot + 1)];
+}
+
+/** The value a request holds for a slider name (a number, or an entry of an object option). */
+function optionValue(options: Readonly<Record<string, unknown>>, name: string): unknown {
+  const [option, key] = optionPath(name);
+  const own = options[option];
+  return key === undefined ? own : isObject(own) ? own[key] : undefined;
+}
+
 /**
  * The first problem of an `optionSliders` value, naming the field, or null. `parameters`: the model's
  * (a parameter already has its slider); `requestFields`: the options the widget's request takes, when
@@ -32,7 +47,7 @@ export function optionSlidersProblem(sliders: unknown, parameters: Readonly<Reco
   for (const [name, spec] of Object.entries(sliders)) {
     const field = `${OPTION_SLIDERS}.${name}`;
     if (Object.hasOwn(parameters, name)) return `${field}: "${name}" is a model parameter, which has its slider already`;
-    if (requestFields !== undefined && !requestFields.includes(name)) return `${field}: not an option of this widget's request (options: ${requestFields.join(', ')})`;
+    if (requestFields !== undefined && !requestFields.includes(optionPath(name)[0])) return `${field}: not an option of this widget's request (options: ${requestFields.join(', ')})`;
     if (!Array.isArray(spec) || (spec.length !== 2 && spec.length !== 3) || !spec.every((v) => typeof v === 'number' && Number.isFinite(v))) {
       return `${field}: expected [from, to] or [from, to, step] of finite numbers. Value: ${JSON.stringify(spec)}`;
     }
@@ -71,7 +86,7 @@ export function stepProblem(value: number, from: number, step: number | null | u
 
 /** Where a slider starts when no value is given: the request option's own value, else the low end. */
 export function optionStart(name: string, slider: OptionSlider, options: Readonly<Record<string, unknown>>): number {
-  const own = options[name];
+  const own = optionValue(options, name);
   return typeof own === 'number' ? own : slider.range[0];
 }
 
@@ -96,10 +111,19 @@ export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: R
   const sliders = optionSlidersOf(options);
   const swept = sweptOptions(options, model.parameters);
   const params: Record<string, number> = {};
-  const chosen: Record<string, number> = {};
+  const chosen: Record<string, unknown> = {};
   for (const [name, value] of Object.entries(values)) {
     if (swept.includes(name)) continue;
-    (Object.hasOwn(sliders, name) ? chosen : params)[name] = value;
+    if (!Object.hasOwn(sliders, name)) {
+      params[name] = value;
+      continue;
+    }
+    const [option, key] = optionPath(name);
+    if (key === undefined) chosen[option] = value;
+    else {
+      const own = chosen[option] ?? rest[option];
+      chosen[option] = { ...(isObject(own) ? own : {}), [key]: value };
+    }
   }
   return { ...rest, ...chosen, kind, model, params };
 }
@@ -107,6 +131,9 @@ export function widgetRequest(kind: WidgetKind, model: ModelSpecView, options: R
 /** The values a widget's request was made from (its inverse): parameters and option sliders. */
 export function requestValues(options: Readonly<Record<string, unknown>>, request: Readonly<Record<string, unknown>> & { params: Record<string, number> }): Record<string, number> {
   const values = { ...request.params };
-  for (const name of Object.keys(optionSlidersOf(options))) if (typeof request[name] === 'number') values[name] = request[name];
+  for (const name of Object.keys(optionSlidersOf(options))) {
+    const value = optionValue(request, name);
+    if (typeof value === 'number') values[name] = value;
+  }
   return values;
 }

@@ -140,6 +140,15 @@ export class BlochHamiltonian {
     return { count, cellDim, from: this.termFrom.slice(), to: this.termTo.slice(), cells, re, im };
   }
 
+  /**
+   * Term t's amplitude at complete parameter values `values` (defaults already filled), into
+   * out[offset], out[offset + 1]: a sample whose parameters vary from bond to bond evaluates its
+   * terms one by one. The model's own values are left as they are.
+   */
+  termAmplitude(t: number, values: ParameterValues, out: Float64Array, offset = 0): void {
+    this.evaluators[t](values, out, offset);
+  }
+
   private computePhases(k: ArrayLike<number>): void {
     const dim = this.dim;
     if (k.length < dim) throw new ModelError('k', `expected ${dim} components. Value: ${valueText(Array.from(k))}`);

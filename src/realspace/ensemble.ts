@@ -89,6 +89,15 @@ function summarise(of: EnsembleDiagnostic, members: Int32Array, seeds: Float64Ar
   const warnings: string[] = [];
   if (nulls > 0) warnings.push(`${nulls} of ${values.length} member(s) gave no value (gapless or singular samples); the mean is over the rest`);
   if (count < 2) warnings.push('fewer than two values: no standard error');
+  // Members of an integer-valued diagnostic that round to different integers: the average is a fraction, not an invariant.
+  if (of !== 'local-marker') {
+    const tally = new Map<number, number>();
+    for (const v of good) tally.set(Math.round(v) + 0, (tally.get(Math.round(v) + 0) ?? 0) + 1);
+    if (tally.size > 1) {
+      const split = [...tally].sort((a, b) => a[0] - b[0]).map(([k, n]) => `${n} near ${k}`).join(', ');
+      warnings.push(`the members disagree (${split}): the mean is a fraction, not an invariant; the samples are near a transition or not much larger than the localisation length`);
+    }
+  }
   return { kind: 'ensemble', of, members, seeds, values, mean, standardError: variance === null ? null : Math.sqrt(variance / count), count, checks: { warnings, nulls } };
 }
 

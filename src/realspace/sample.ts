@@ -14,12 +14,20 @@
  *   [-D/2, D/2]. Amplitudes are unchanged (the positions enter the position operators of the
  *   invariants only) unless `decayLength` l is given: then t -> t exp(-(|r'| - |r|)/l), r and r'
  *   the bond's Cartesian vector before and after displacement.
+ * - parameter disorder {p: w, ...}: each bond, and each site for the terms within one site, draws
+ *   its own value of each named model parameter, uniform in [p - w/2, p + w/2] (p the model's
+ *   value), and its terms are evaluated with those values. This is disorder in whatever a
+ *   parameter controls: a hopping (v and w of a chiral chain, each with its own width, as in
+ *   Mondragon-Shem, Hughes, Song & Prodan, PRL 113, 046802 (2014)), a mass, a flux.
  * Draw order, stated so a reference can reproduce it: sites in cell order (direction 0 fastest),
  * model sites in order, 2 + dim uniforms each (vacancy, potential, displacement components) drawn
  * whatever is enabled; then, when B > 0, bonds in cell order and term order, one uniform per bond
- * on its first appearance (bonds leaving an open sample included). So a sample at W and at 2W has the same configuration, scaled.
+ * on its first appearance (bonds leaving an open sample included). Parameter draws come from the
+ * seed's stream 2: bonds and sites in the same order, on first appearance, one uniform per named
+ * parameter in name order. So a sample at W and at 2W has the same configuration, scaled.
  */
 import type { BlochHamiltonian, Hoppings } from '../bloch/hamiltonian.js';
+import type { ParameterValues } from '../model/spec.js';
 import type { CostEstimate } from '../cost.js';
 import { ModelError, valueText } from '../model/errors.js';
 import type { ModelSpec } from '../model/spec.js';
@@ -41,6 +49,8 @@ export interface SampleOptions {
   bondDisorder?: number;
   /** Fraction of sites removed, in [0, 1). Default 0. */
   vacancies?: number;
+  /** Width >= 0 of the uniform disorder in each named model parameter, per bond (or site). */
+  parameterDisorder?: Record<string, number>;
   /** Width D >= 0 of the uniform displacement per Cartesian component. Default 0. */
   displacement?: number;
   /** Decay length of the hopping law for displaced sites; default: amplitudes unchanged. */
@@ -53,6 +63,7 @@ export interface DisorderDescription {
   seed: number;
   onsite: { width: number; distribution: string };
   bond: { width: number; distribution: string };
+  parameters: { widths: Record<string, number>; distribution: string };
   vacancies: { fraction: number; removed: number };
   displacement: { width: number; distribution: string; hoppings: string };
 }
@@ -83,6 +94,8 @@ interface Checked {
   boundary: Boundary[];
   onsite: number;
   bond: number;
+  /** Disordered parameters in name order, with their widths. */
+  parameters: [string, number][];
   vacancies: number;
   displacement: number;
   decayLength: number | null;
@@ -115,11 +128,15 @@ export function checkSampleOptions(options: SampleOptions, dim: number): Checked
   if (decay !== undefined && (typeof decay !== 'number' || !(decay > 0) || !Number.isFinite(decay))) {
     throw new ModelError('decayLength', `expected a positive length. Value: ${valueText(decay)}`);
   }
+  const widths = options.parameterDisorder ?? {};
+  if (widths === null || typeof widths !== 'object' || Array.isArray(widths)) throw new ModelError('parameterDisorder', `expected an object of widths, one per model parameter. Value: ${valueText(widths)}`);
+  const parameters = Object.keys(widths).sort().map((name): [string, number] => [name, nonnegative(widths[name], `parameterDisorder.${name}`, 0)]);
   return {
     sizes: [...sizes],
     boundary: [...boundary],
     onsite: nonnegative(options.onsiteDisorder, 'onsiteDisorder', 0),
     bond: nonnegative(options.bondDisorder, 'bondDisorder', 0),
+    parameters: parameters.some(([, w]) => w > 0) ? parameters : [],
     vacancies,
     displacement: nonnegative(options.displacement, 'displacement', 0),
     decayLength: decay ?? null,
@@ -183,6 +200,12 @@ export function buildSample(h: BlochHamiltonian, options: SampleOptions): Sample
   if (o.displacement > 0 && vectors[0].length !== dim) {
     throw new ModelError('displacement', `needs lattice vectors with ${dim} Cartesian components (the model's have ${vectors[0].length}). Value: ${o.displacement}`);
   }
+  for (const [name] of o.parameters) {
+    if (!Object.hasOwn(spec.parameters, name)) {
+      const known = Object.keys(spec.parameters);
+      throw new ModelError(`parameterDisorder.${name}`, `model "${spec.name}" has no parameter ${JSON.stringify(name)} (it has: ${known.length ? known.join(', ') : 'none'})`);
+    }
+  }
   const hop = h.hoppings();
   for (let t = 0; t < hop.count; t++) {
     for (let j = dim; j < hop.cellDim; j++) {
@@ -241,7 +264,7 @@ export function buildSample(h: BlochHamiltonian, options: SampleOptions): Sample
     }
   }
 
-  addTerms(hop, o, { dim, norb, sitesPerCell, siteOf, cellCount, stride, index, shift, vectors, spec }, rng, triplets, cellOf);
+  addTerms(h, hop, o, { dim, norb, sitesPerCell, siteOf, cellCount, stride, index, shift, vectors, spec }, rng, triplets, cellOf);
   const hamiltonian = triplets.toCsr(size);
   const orientation = dim >= 2 && vectors[0][0] * vectors[1][1] - vectors[0][1] * vectors[1][0] < 0 ? -1 : 1;
   return {
@@ -250,6 +273,10 @@ export function buildSample(h: BlochHamiltonian, options: SampleOptions): Sample
       seed: o.seed,
       onsite: { width: o.onsite, distribution: `uniform in [-${o.onsite / 2}, ${o.onsite / 2}] per site, added to each orbital of the site` },
       bond: { width: o.bond, distribution: `each bond times (1 + d), d uniform in [-${o.bond / 2}, ${o.bond / 2}], one d per bond` },
+      parameters: {
+        widths: Object.fromEntries(o.parameters),
+        distribution: o.parameters.length === 0 ? 'none' : `each bond (or site) draws ${o.parameters.map(([p, w]) => `${p} uniform in [${p} - ${w / 2}, ${p} + ${w / 2}]`).join(', ')}, around ${o.parameters.map(([p]) => `${p} = ${h.params[p]}`).join(', ')}`,
+      },
       vacancies: { fraction: o.vacancies, removed },
       displacement: {
         width: o.displacement,
@@ -273,13 +300,17 @@ interface Layout {
   spec: ModelSpec;
 }
 
-/** Every term from every cell, wrapped or dropped at the boundary, with bond disorder and the distance law. */
-function addTerms(hop: Hoppings, o: Checked, l: Layout, rng: SeededRandom, triplets: TripletList, cellOf: (i: number, out: number[]) => number[]): void {
+/** Every term from every cell, wrapped or dropped at the boundary, with bond and parameter disorder and the distance law. */
+function addTerms(h: BlochHamiltonian, hop: Hoppings, o: Checked, l: Layout, rng: SeededRandom, triplets: TripletList, cellOf: (i: number, out: number[]) => number[]): void {
   const { dim, norb, sitesPerCell, siteOf } = l;
   const cell = new Array<number>(dim).fill(0);
   const target = new Array<number>(dim).fill(0);
-  // One draw per bond (a pair of sites and the cell vector between them), on its first appearance.
+  // One draw per bond (a pair of sites and the cell vector between them), or per site for the
+  // terms within a site, on its first appearance.
   const bonds = new Map<string, number>();
+  const parameterRng = new SeededRandom(o.seed, 2);
+  const bondParameters = new Map<string, ParameterValues>();
+  const amplitude = new Float64Array(2);
   for (let c = 0; c < l.cellCount; c++) {
     cellOf(c, cell);
     for (let t = 0; t < hop.count; t++) {
@@ -297,18 +328,31 @@ function addTerms(hop: Hoppings, o: Checked, l: Layout, rng: SeededRandom, tripl
       let tc = 0;
       for (let j = 0; j < dim; j++) tc += target[j] * l.stride[j];
       const sameSite = siteOf[a] === siteOf[b] && R.every((x) => x === 0);
-      let factor = 1;
-      if (!sameSite && o.bond > 0) {
-        const ga = c * sitesPerCell + siteOf[a], gb = tc * sitesPerCell + siteOf[b];
+      const ga = c * sitesPerCell + siteOf[a], gb = tc * sitesPerCell + siteOf[b];
+      let key = '';
+      if (sameSite) key = `${ga}`;
+      else if (o.bond > 0 || o.parameters.length > 0) {
         const forward = `${ga}|${gb}|${R.join(',')}`;
         const backward = `${gb}|${ga}|${R.map((x) => -x).join(',')}`;
-        const key = ga < gb || (ga === gb && forward < backward) ? forward : backward;
+        key = ga < gb || (ga === gb && forward < backward) ? forward : backward;
+      }
+      let factor = 1;
+      if (!sameSite && o.bond > 0) {
         let d = bonds.get(key);
         if (d === undefined) {
           d = rng.centred(o.bond);
           bonds.set(key, d);
         }
         factor = 1 + d;
+      }
+      let values: ParameterValues | undefined;
+      if (o.parameters.length > 0) {
+        values = bondParameters.get(key);
+        if (values === undefined) {
+          values = { ...h.params };
+          for (const [name, width] of o.parameters) values[name] += parameterRng.centred(width);
+          bondParameters.set(key, values);
+        }
       }
       if (!inside) continue;
       const i = l.index[c * norb + a], k = l.index[tc * norb + b];
@@ -325,7 +369,13 @@ function addTerms(hop: Hoppings, o: Checked, l: Layout, rng: SeededRandom, tripl
         const r1 = Math.hypot(...cartesian(l.vectors, dim, after));
         factor *= Math.exp(-(r1 - r0) / o.decayLength);
       }
-      const re = hop.re[t] * factor, im = hop.im[t] * factor;
+      let re = hop.re[t], im = hop.im[t];
+      if (values !== undefined) {
+        h.termAmplitude(t, values, amplitude);
+        [re, im] = [amplitude[0], amplitude[1]];
+      }
+      re *= factor;
+      im *= factor;
       const onsite = a === b && R.every((x) => x === 0);
       triplets.add(k, i, re, im);
       if (!onsite) triplets.add(i, k, re, -im);

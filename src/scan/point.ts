@@ -7,7 +7,7 @@ import { BlochHamiltonian, type BlochConvention } from '../bloch/hamiltonian.js'
 import { diagnosticOf } from '../diagnostics/registry.js';
 import { ModelError } from '../model/errors.js';
 import type { ParameterValues } from '../model/spec.js';
-import type { PointFunction, PointTarget } from './sweep.js';
+import { splitOptionAxis, type PointFunction, type PointTarget } from './sweep.js';
 
 /** Build the point function for a target (a diagnostic request without the swept values). */
 export function pointFunction(target: PointTarget): PointFunction {
@@ -22,7 +22,10 @@ export function pointFunction(target: PointTarget): PointFunction {
     const request: Record<string, unknown> = { ...options };
     for (const [name, value] of Object.entries(swept)) {
       if (Object.hasOwn(h.spec.parameters, name)) params[name] = value;
-      else request[name] = value;
+      else {
+        const [option, key] = splitOptionAxis(name);
+        request[option] = key === undefined ? value : { ...(request[option] as object | undefined), [key]: value };
+      }
     }
     // The diagnostic runs on the compiled model with its values set (diagnostics/diagnostic.ts).
     return sweep(diagnostic.run(h.setParameters(params), request));

@@ -22,9 +22,19 @@ import { diagnosticOf, SWEEP_QUANTITIES, type SweepQuantity } from '../diagnosti
 export { SWEEP_QUANTITIES, type PointOutcome, type SweepQuantity };
 
 /**
+ * A swept option's name and, for "option.key" (a width of `parameterDisorder`, say), the key in the
+ * option's object that each point sets.
+ */
+export function splitOptionAxis(name: string): [option: string, key: string | undefined] {
+  const dot = name.indexOf('.');
+  return dot < 0 ? [name, undefined] : [name.slice(0, dot), name.slice(dot + 1)];
+}
+
+/**
  * One swept parameter: `count` evenly spaced values from `from` to `to` inclusive. `param` names a
  * parameter of the model, or else a numeric option of the swept kind (a disorder strength, say),
- * which each point sets in its request.
+ * or "option.parameter" for one width of an option keyed by the model's parameters
+ * (`parameterDisorder.v`), which each point sets in its request.
  */
 export interface SweepAxis {
   param: string;
@@ -231,7 +241,11 @@ export function validatePhaseMapRequest(request: unknown): PhaseMapRequest {
     if (a === null || typeof a !== 'object') throw new ModelError(field, `expected {param, from, to, count}. Value: ${valueText(a)}`);
     const spec = typeof a.param === 'string' && Object.hasOwn(model.parameters, a.param) ? model.parameters[a.param] : undefined;
     const options = diagnosticOf(r.quantity, 'quantity').options;
-    if (typeof a.param !== 'string' || (spec === undefined && !options.includes(a.param))) {
+    const [option, key] = typeof a.param === 'string' ? splitOptionAxis(a.param) : ['', undefined];
+    if (key !== undefined && spec === undefined && (!options.includes(option) || !Object.hasOwn(model.parameters, key))) {
+      throw new ModelError(`${field}.param`, `expected "option.parameter" with an option of a "${r.quantity}" request and a parameter of model "${model.name}" (parameters: ${Object.keys(model.parameters).join(', ') || 'none'}). Value: ${valueText(a.param)}`);
+    }
+    if (typeof a.param !== 'string' || (spec === undefined && !options.includes(option))) {
       throw new ModelError(`${field}.param`, `model "${model.name}" has no parameter ${valueText(a.param)} and a "${r.quantity}" request no such option (parameters: ${Object.keys(model.parameters).join(', ') || 'none'}; options: ${options.join(', ')})`);
     }
     if (seen.has(a.param)) throw new ModelError(`${field}.param`, `"${a.param}" is swept twice`);

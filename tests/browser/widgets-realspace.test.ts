@@ -5,7 +5,7 @@
 // (convention of /work/shared/references.md), the bulk value the clean marker approaches.
 import type { Locator, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { qwz } from '../../src/index.js';
+import { qwz, ssh } from '../../src/index.js';
 import { artifactPath, control, drag, exportDemo, openPage, type DemoWidget, type OpenedPage } from './widgets-harness.js';
 
 let opened: OpenedPage;
@@ -21,6 +21,14 @@ const WIDGETS: DemoWidget[] = [
     options: { sizes: [12, 12], optionSliders: { onsiteDisorder: [0, 8], seed: [0, 40, 1] } },
   },
   { id: 'c0ffee0000000000000000000000c002', kind: 'local-density', spec: qwz(), values: { u: -1 }, options: { sizes: [10, 10], energy: 0, method: 'dense' } },
+  // A trivial chain (v = 1.2 > w = 1, Su, Schrieffer & Heeger) whose intracell disorder width is a slider.
+  {
+    id: 'c0ffee0000000000000000000000c003',
+    kind: 'local-density',
+    spec: ssh(),
+    values: { v: 1.2, w: 1 },
+    options: { sizes: [40], energy: 0, method: 'dense', seed: 2, optionSliders: { 'parameterDisorder.v': [0, 6] } },
+  },
 ];
 
 /** Waits for the result of the value the box shows, drawn in full by plotly; returns the value and the picture. */
@@ -102,6 +110,21 @@ describe('real-space widgets', () => {
     await box.fill('2.5');
     await box.press('Enter');
     await expect.poll(() => w.locator('.chernel-message').textContent()).toMatch(/^seed: expected 0 plus a whole number of steps of 1\. Value: 2\.5; kept \d+/);
+  });
+
+  it('a slider for one entry of an object option: dragging the disorder width of v recomputes the chain in the page', async () => {
+    const w = widget(2);
+    await w.locator('.chernel-plot .scatterlayer .trace').first().waitFor();
+    expect(await w.locator('.chernel-control').evaluateAll((rows) => rows.map((r) => (r as HTMLElement).dataset.parameter))).toEqual(['v', 'w', 'parameterDisorder.v']);
+    // A 1D sample is a line over its cells (figures/realspace.ts): its densities are the first trace's y.
+    const line = () => w.locator('.chernel-plot').evaluate((el) => JSON.stringify((el as unknown as { data: { y: number[] }[] }).data[0].y));
+    const clean = await line();
+    await drag(page, control(w, 'parameterDisorder.v').slider, 3);
+    const shown = await control(w, 'parameterDisorder.v').box.inputValue();
+    expect(Number(shown)).toBeGreaterThan(1);
+    await w.locator('.chernel-status', { hasText: new RegExp(`^v = 1.2, w = 1, parameterDisorder.v = ${shown} · engine`) }).waitFor();
+    await w.locator('.chernel-plot:not(.chernel-stale)').waitFor();
+    expect(await line()).not.toBe(clean);
   });
 
   it('the local density map: a sequential picture of the sample at E = 0', async () => {

@@ -126,6 +126,57 @@ describe('samples', () => {
   });
 });
 
+describe('parameter disorder', () => {
+  it('draws each bond its own value of the named parameter, uniform in the stated window, reproducible and scaled with the width', () => {
+    const h = blochHamiltonian(ssh(), { v: 1.2, w: 1 });
+    const hopping = (W: number, seed = 3) => {
+      const s = buildSample(h, { sizes: [50], parameterDisorder: { v: W }, seed });
+      const d = toDense(s.hamiltonian);
+      const n = s.size;
+      const at = (i: number, j: number) => d[2 * (i * n + j)];
+      // orbitals in cell order, A then B: H[B_m, A_m] = v_m, H[A_{m+1}, B_m] = w (the model's terms)
+      return { intra: Array.from({ length: 50 }, (_, m) => at(2 * m + 1, 2 * m)), inter: Array.from({ length: 49 }, (_, m) => at(2 * m + 2, 2 * m + 1)), s };
+    };
+    const one = hopping(2), two = hopping(4);
+    for (const v of one.intra) expect(Math.abs(v - 1.2)).toBeLessThanOrEqual(1);
+    expect(new Set(one.intra).size).toBe(50);
+    expect(Math.max(...one.intra) - Math.min(...one.intra)).toBeGreaterThan(1.5);
+    for (const w of one.inter) expect(w).toBe(1);
+    one.intra.forEach((v, m) => expect(two.intra[m] - 1.2).toBeCloseTo(2 * (v - 1.2), 12));
+    expect(hopping(2).intra).toEqual(one.intra);
+    expect(hopping(2, 4).intra).not.toEqual(one.intra);
+    expect(one.s.disorder.parameters.widths).toEqual({ v: 2 });
+    expect(one.s.disorder.parameters.distribution).toMatch(/v uniform in \[v - 1, v \+ 1\]/);
+    // the bond draws (stream 0) and the parameter draws (stream 2) do not disturb each other
+    const both = buildSample(h, { sizes: [50], parameterDisorder: { v: 2 }, bondDisorder: 0.3, seed: 3 });
+    expect(both.disorder.bond.width).toBe(0.3);
+    const bondOnly = toDense(buildSample(h, { sizes: [50], bondDisorder: 0.3, seed: 3 }).hamiltonian);
+    const dBoth = toDense(both.hamiltonian);
+    for (let m = 0; m < 50; m++) {
+      const k = 2 * ((2 * m + 1) * 100 + 2 * m);
+      expect(dBoth[k]).toBeCloseTo(one.intra[m] * (bondOnly[k] / 1.2), 12);
+    }
+  });
+
+  it('a parameter of terms within one site is drawn once per site: QWZ mass disorder keeps +u_i and -u_i on the two orbitals', () => {
+    const h = blochHamiltonian(qwz(), { u: -1 });
+    const s = buildSample(h, { sizes: [6, 6], parameterDisorder: { u: 1.5 }, seed: 2 });
+    const clean = toDense(buildSample(h, { sizes: [6, 6] }).hamiltonian);
+    const d = toDense(s.hamiltonian);
+    const n = s.size;
+    const masses = new Set<number>();
+    for (let i = 0; i < n; i += 2) {
+      const u = d[2 * (i * n + i)];
+      expect(d[2 * ((i + 1) * n + i + 1)]).toBeCloseTo(-u, 14);
+      expect(Math.abs(u - -1)).toBeLessThanOrEqual(0.75);
+      masses.add(u);
+    }
+    expect(masses.size).toBe(36);
+    // hoppings do not depend on u: unchanged
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (Math.floor(i / 2) !== Math.floor(j / 2)) expect(d[2 * (i * n + j)]).toBe(clean[2 * (i * n + j)]);
+  });
+});
+
 describe('dense products (blocked) against the textbook sums', () => {
   it('A B, A^dagger B, A B^dagger and Psi^dagger D Psi on odd sizes across block edges', () => {
     const rng = new SeededRandom(9);
@@ -353,6 +404,7 @@ describe('ensembles', () => {
     expect(weak.standardError).toBe(0);
     const strong = disorderEnsemble(h, { of: 'bott', sizes: [10, 10], onsiteDisorder: 20, samples: 6 });
     expect(Math.abs(strong.mean!)).toBeLessThan(0.2);
+    expect(weak.checks.warnings.join()).not.toMatch(/disagree/);
     expect(Array.from(strong.seeds)).toEqual([0, 1, 2, 3, 4, 5]);
   });
 
@@ -367,6 +419,53 @@ describe('ensembles', () => {
     const mean = Array.from(whole.values).reduce((a, b) => a + b, 0) / 5;
     const sd = Math.sqrt(Array.from(whole.values).reduce((a, b) => a + (b - mean) ** 2, 0) / 4);
     expect(whole.standardError).toBeCloseTo(sd / Math.sqrt(5), 14);
+  });
+});
+
+describe('a disorder-driven transition: the topological Anderson insulator of a chiral chain', () => {
+  // Mondragon-Shem, Hughes, Song & Prodan, PRL 113, 046802 (2014): in a chiral chain with hoppings
+  // v_m (intracell) and w_m (intercell) the winding changes where the localisation length of the
+  // E = 0 state diverges, <ln|v_m|> = <ln|w_m|>. For v_m uniform in [v - W/2, v + W/2] the average is
+  // closed-form, (F(v + W/2) - F(v - W/2)) / W with F(x) = x ln|x| - x (evaluated here; the model's
+  // values and widths are our own choice). A clean chain with v = 1.2 > w = 1 is trivial; disorder in
+  // v alone opens a window of winding 1 between the two roots W1 ~ 2.12 and W2 ~ 4.76.
+  const F = (x: number) => (x === 0 ? 0 : x * Math.log(Math.abs(x)) - x);
+  const margin = (W: number) => -(F(1.2 + W / 2) - F(1.2 - W / 2)) / W; // <ln|w|> - <ln|v|>, w = 1
+  const root = (a: number, b: number) => {
+    for (let i = 0; i < 60; i++) {
+      const m = (a + b) / 2;
+      if (Math.sign(margin(m)) === Math.sign(margin(a))) a = m;
+      else b = m;
+    }
+    return (a + b) / 2;
+  };
+  const [W1, W2] = [root(1, 3), root(3, 7)];
+
+  it('the averaged real-space winding is 0 outside the published window and 1 inside, each beyond 3 standard errors', () => {
+    expect(W1).toBeGreaterThan(2);
+    expect(W2).toBeLessThan(5);
+    // Points half a unit outside each edge, the middle, and one unit inside the upper edge (its
+    // localisation length 1/|margin| is longer: 1/0.15 there, at most 1/0.09 at the others, vs 200 cells).
+    for (const W of [W1 - 0.5, W1 + 0.5, (W1 + W2) / 2, W2 - 1, W2 + 0.75]) {
+      const e = compute({ kind: 'ensemble', model: ssh(), params: { v: 1.2, w: 1 }, of: 'chain-winding', sizes: [200], boundary: 'periodic', parameterDisorder: { v: W }, samples: 16 }) as unknown as { mean: number; standardError: number };
+      const inside = margin(W) > 0;
+      expect(Math.abs(margin(W)), `W = ${W}`).toBeGreaterThanOrEqual(0.09);
+      expect(inside ? e.mean - 0.5 : 0.5 - e.mean, `W = ${W}: mean ${e.mean} +- ${e.standardError}`).toBeGreaterThan(3 * e.standardError);
+      if (W === (W1 + W2) / 2) expect(Math.abs(e.mean - 1), `middle of the window: ${e.mean} +- ${e.standardError}`).toBeLessThan(Math.max(3 * e.standardError, 0.02));
+    }
+  });
+
+  it('at the edge of the window the members round to different integers, and the ensemble says its mean is no invariant', () => {
+    const e = compute({ kind: 'ensemble', model: ssh(), params: { v: 1.2, w: 1 }, of: 'chain-winding', sizes: [60], boundary: 'periodic', parameterDisorder: { v: W2 }, samples: 8 }) as unknown as { values: Float64Array; checks: { warnings: string[] } };
+    const rounded = Array.from(e.values).map(Math.round);
+    expect(new Set(rounded).size, `members ${rounded}`).toBeGreaterThan(1);
+    expect(e.checks.warnings.join()).toMatch(/the members disagree \(\d+ near 0, \d+ near 1\): the mean is a fraction, not an invariant/);
+  });
+
+  it('the same relative disorder on every bond (bondDisorder) moves no boundary: the clean trivial chain stays trivial', () => {
+    // <ln|v(1 + d)|> - <ln|w(1 + d)|> = ln(v / w) whatever the width: no window (same criterion).
+    const e = compute({ kind: 'ensemble', model: ssh(), params: { v: 1.2, w: 1 }, of: 'chain-winding', sizes: [200], boundary: 'periodic', bondDisorder: 1.5, samples: 8 }) as unknown as { mean: number; standardError: number };
+    expect(Math.abs(e.mean)).toBeLessThan(Math.max(3 * e.standardError, 0.02));
   });
 });
 
@@ -395,6 +494,9 @@ describe('bad input: a ModelError naming the field, nothing built', () => {
     expect(field(() => localMarker(h, { sizes: [6, 6], cells: [[6, 0]] }))).toMatch(/^cells\[0\]: /);
     expect(field(() => disorderEnsemble(h, { of: 'chern' as 'bott', sizes: [4, 4], samples: 2 }))).toMatch(/^of: /);
     expect(field(() => chainWinding(blochHamiltonian(ssh()), { sizes: [10], window: 0 }))).toMatch(/^window: /);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], parameterDisorder: { m: 1 } }))).toMatch(/^parameterDisorder\.m: model "Qi–Wu–Zhang.*" has no parameter "m" \(it has: u\)/);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], parameterDisorder: { u: -1 } }))).toMatch(/^parameterDisorder\.u: expected a nonnegative number\. Value: -1/);
+    expect(field(() => bottIndex(h, { sizes: [6, 6], parameterDisorder: [1] as unknown as Record<string, number> }))).toMatch(/^parameterDisorder: expected an object/);
   });
 
   it('refuses a Fermi energy or an energy outside the spectrum', () => {
@@ -452,7 +554,16 @@ describe('disorder phase maps through the one request (a swept option: the disor
     expect(map.values[1]).toBe(cell.mean);
   });
 
+  it('sweeps one width of parameterDisorder ("parameterDisorder.v"), keeping the widths it does not sweep', () => {
+    const chain = { kind: 'phase-map' as const, model: ssh(), params: { v: 1.2, w: 1 }, quantity: 'ensemble' as const, of: 'chain-winding', samples: 2, sizes: [40], boundary: 'periodic', parameterDisorder: { w: 0.5 } };
+    const map = compute({ ...chain, axes: [{ param: 'parameterDisorder.v', from: 0, to: 3, count: 2 }] }) as PhaseMapResult;
+    const cell = compute({ kind: 'ensemble', model: ssh(), params: { v: 1.2, w: 1 }, of: 'chain-winding', samples: 2, sizes: [40], boundary: 'periodic', parameterDisorder: { v: 3, w: 0.5 } }) as unknown as { mean: number };
+    expect(map.values[1]).toBe(cell.mean);
+    expect(Math.abs(map.values[0]!)).toBeLessThan(0.01); // v = 1.2 > w = 1 with little disorder: trivial
+  });
+
   it('refuses an axis that is neither a model parameter nor an option of the swept kind, naming it', () => {
     expect(() => compute({ ...request, axes: [{ param: 'onsiteDisorderr', from: 0, to: 1, count: 2 }] })).toThrow(/^axes\[0\]\.param: .*no parameter "onsiteDisorderr"/);
+    expect(() => compute({ ...request, axes: [{ param: 'parameterDisorder.m', from: 0, to: 1, count: 2 }] })).toThrow(/^axes\[0\]\.param: expected "option\.parameter" .*parameters: u\)\. Value: "parameterDisorder\.m"/);
   });
 });

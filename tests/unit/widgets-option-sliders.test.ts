@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { qwz } from '../../src/index.js';
 import { computeView } from '../../src/views.js';
-import { optionSlidersProblem, widgetRequest } from '../../contract/option-sliders.js';
+import { optionSlidersProblem, requestValues, widgetRequest } from '../../contract/option-sliders.js';
 import { diagnosticStateProblem } from '../../contract/state-check.js';
 import { checkControlValues, checkOptionSliders, checkWidgetOptions, WidgetOptionError } from '../../kernel/widget-state.js';
 import type { ModelSpecView } from '../../contract/protocol.js';
@@ -53,6 +53,20 @@ describe('option sliders', () => {
     const result = computeView(request) as unknown as { disorder: { seed: number; onsite: { width: number } } };
     expect(result.disorder.seed).toBe(4);
     expect(result.disorder.onsite.width).toBe(3);
+  });
+
+  it('"option.key" drags one entry of an object option (a parameter\'s disorder width), keeping the entries it does not drag', () => {
+    const chain = { sizes: [30], parameterDisorder: { u: 0.5 }, optionSliders: { 'parameterDisorder.u': [0, 4], seed: [0, 9, 1] } };
+    expect(() => checkOptionSliders('local-marker', spec, chain)).not.toThrow();
+    expect(() => checkOptionSliders('local-marker', spec, { optionSliders: { 'parameterDisorderr.u': [0, 1] } })).toThrow(/^optionSliders\.parameterDisorderr\.u: not an option/);
+    const start = checkControlValues(spec, chain, { u: -1 }, 'values', true);
+    expect(start).toEqual({ u: -1, 'parameterDisorder.u': 0.5, seed: 0 });
+    const request = widgetRequest('local-marker', view, { ...chain, sizes: [6, 6] }, { ...start, 'parameterDisorder.u': 2 });
+    expect(request.parameterDisorder).toEqual({ u: 2 });
+    const result = computeView(request) as unknown as { disorder: { parameters: { widths: Record<string, number> } } };
+    expect(result.disorder.parameters.widths).toEqual({ u: 2 });
+    expect(requestValues(chain, request as unknown as Record<string, unknown> & { params: Record<string, number> })).toEqual({ u: -1, 'parameterDisorder.u': 2, seed: 0 });
+    expect(diagnosticStateProblem({ kind: 'local-marker', spec, options: chain, values: start, result: null })).toBeNull();
   });
 
   it('saved state: slider values are accepted beside parameter values; an old state without sliders still opens', () => {

@@ -4,7 +4,7 @@ import type { FermiOptions } from '../../realspace/occupied.js';
 import type { SampleOptions } from '../../realspace/sample.js';
 
 export const SAMPLE_FIELDS = {
-  sizes: true, boundary: true, onsiteDisorder: true, bondDisorder: true, vacancies: true, displacement: true, decayLength: true, seed: true,
+  sizes: true, boundary: true, onsiteDisorder: true, bondDisorder: true, parameterDisorder: true, vacancies: true, displacement: true, decayLength: true, seed: true,
 } as const satisfies Exact<SampleOptions>;
 
 export const FERMI_FIELDS = { fermiEnergy: true, gapTolerance: true } as const satisfies Exact<FermiOptions>;
