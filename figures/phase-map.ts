@@ -233,7 +233,7 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
     data.push({
       type: 'scatter', mode: 'lines+markers', x: ax0.values, y: m.values, line: { color: PALETTE[0] }, marker: { color: PALETTE[0] }, name: sym,
       ...(errors !== undefined
-        ? { customdata: errors, hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g} ± %{customdata:.2g} (1 SE)<extra></extra>` }
+        ? { text: m.values.map((v, i) => meanText(v, errors[i])), hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{text}<extra></extra>` }
         : { hovertemplate: `${ax0.param} = %{x:.4g}<br>${sym} = %{y:.4g}<extra></extra>` }),
     });
     if (errors !== undefined) {
@@ -288,10 +288,10 @@ function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
   };
 }
 
-/** "0.625 ± 0.0625" (one standard error), or the mean alone when it has none. */
+/** "0.625 ± 0.062 (1 SE)", or the mean alone when it has no error. */
 function meanText(mean: number | null, error: number | null): string {
   if (mean === null) return 'none';
-  return error === null ? `${fmt(mean)} (no error)` : `${fmt(mean)} ± ${fmt(error, 2)}`;
+  return error === null ? `${fmt(mean)} (no error)` : `${fmt(mean)} ± ${fmt(error, 2)} (1 SE)`;
 }
 
 /** The half-integers in [lo, hi]. */

@@ -448,11 +448,11 @@ function levelCrossings(axes: readonly SweepAxis[], grids: number[][], means: (n
         const eb = errors[j2 * n0 + i2];
         const lo = coordsOf(i, j);
         const hi = coordsOf(i2, j2);
+        const ascending = lo[axis] <= hi[axis];
         for (let k = Math.ceil(Math.min(a, b) - 0.5); k + 0.5 <= Math.max(a, b); k++) {
           const level = k + 0.5;
           const t = (level - a) / (b - a);
           const clear = (mean: number, error: number | null) => error !== null && Math.abs(mean - level) > RESOLVING_ERRORS * error;
-          const ascending = lo[axis] <= hi[axis];
           out.push({
             at: sweptParams(axes, withCoord(lo, axis, lo[axis] + t * (hi[axis] - lo[axis]))),
             along: axes[axis].param,

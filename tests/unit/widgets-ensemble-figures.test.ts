@@ -55,9 +55,13 @@ describe('a 1D map of a disorder average', () => {
     // The clean end has no spread; some disordered point has.
     expect(errors[0]).toBe(0);
     expect(Math.max(...errors)).toBeGreaterThan(0);
-    const mean = traces.find((t) => t.name === 'mean') as Trace & { customdata: number[]; hovertemplate: string };
-    expect(mean.customdata).toEqual(errors);
-    expect(mean.hovertemplate).toContain('± %{customdata:.2g} (1 SE)');
+    const mean = traces.find((t) => t.name === 'mean') as Trace & { text: string[]; hovertemplate: string };
+    expect(mean.hovertemplate).toContain('%{text}');
+    mean.text.forEach((text, i) => {
+      const [m, e] = /^(\S+) ± (\S+) \(1 SE\)$/.exec(text)!.slice(1).map(Number);
+      expect(m).toBeCloseTo(means[i], 2);
+      expect(e).toBeCloseTo(errors[i], 2);
+    });
   });
 
   it('marks each crossing of 1/2 as the engine judged it, and says so in the summary', () => {
@@ -105,8 +109,9 @@ describe('a 2D map of a disorder average', () => {
     });
     const map = traces.find((t) => t.type === 'heatmap') as { text: string[][]; hovertemplate: string };
     expect(map.hovertemplate).toContain('%{text}');
-    expect(map.text[1][2]).toMatch(new RegExp(`^\\S+ ± \\S+$`));
-    expect(Number(map.text[1][2].split(' ± ')[0])).toBeCloseTo(means[5 + 2], 2);
+    const [m, e] = /^(\S+) ± (\S+) \(1 SE\)$/.exec(map.text[1][2])!.slice(1).map(Number);
+    expect(m).toBeCloseTo(means[5 + 2], 2);
+    expect(e).toBeCloseTo(errors[5 + 2], 2);
   });
 
   it('the still picture draws the hatching; a map saved without errors has none', () => {
