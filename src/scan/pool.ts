@@ -219,7 +219,9 @@ export function serveSweepWorker(
     for (let n = 0; n < message.indices.length; n++) {
       try {
         checkStopped(undefined);
-        outcomes.push(current.fn(message.params[n]));
+        // Only the outcome's own fields travel (a point module may return more, not all of it cloneable).
+        const { value, gap, doubtful, standardError } = current.fn(message.params[n]);
+        outcomes.push({ value, gap, ...(doubtful === true ? { doubtful } : {}), ...(standardError !== undefined ? { standardError } : {}) });
       } catch (err) {
         const e = err as Error;
         failure = { index: message.indices[n], name: e?.name ?? 'Error', message: e?.message ?? String(err) };
