@@ -319,20 +319,12 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
   if (request.refine !== undefined) {
     const tolerance = request.refine.tolerance;
     const maxRounds = request.refine.maxRounds ?? DEFAULT_MAX_ROUNDS;
-    // Initial brackets: every grid edge whose ends disagree, along axis 0 then axis 1.
+    // Initial brackets: every grid edge whose ends disagree.
     let brackets: Bracket[] = [];
-    const at = (i: number, j: number) => j * n0 + i;
-    for (let axis = 0; axis < grids.length; axis++) {
-      for (let j = 0; j < n1; j++) {
-        for (let i = 0; i < n0; i++) {
-          const i2 = axis === 0 ? i + 1 : i;
-          const j2 = axis === 1 ? j + 1 : j;
-          if (i2 >= n0 || j2 >= n1) continue;
-          const a = outcomes[at(i, j)].value;
-          const b = outcomes[at(i2, j2)].value;
-          if (a !== b) brackets.push({ axis, lo: gridCoords[at(i, j)], hi: gridCoords[at(i2, j2)], vlo: a, vhi: b });
-        }
-      }
+    for (const [axis, p, q] of gridEdges(n0, n1, grids.length)) {
+      const a = outcomes[p].value;
+      const b = outcomes[q].value;
+      if (a !== b) brackets.push({ axis, lo: gridCoords[p], hi: gridCoords[q], vlo: a, vhi: b });
     }
     let rounds = 0;
     let extra = 0;
@@ -385,7 +377,7 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
 
   const averaged = outcomes.some((o) => o.standardError !== undefined);
   const standardErrors = averaged ? outcomes.map((o) => o.standardError ?? null) : undefined;
-  const crossings = standardErrors !== undefined ? levelCrossings(axes, grids, outcomes.map((o) => o.value), standardErrors) : undefined;
+  const crossings = standardErrors !== undefined ? levelCrossings(axes, gridCoords, n1, outcomes.map((o) => o.value), standardErrors) : undefined;
   const unresolved = crossings?.filter((c) => !c.resolved).length ?? 0;
   if (unresolved > 0) {
     warnings.push(`${unresolved} of ${crossings!.length} crossings of a half-integer are not resolved: an end lies within ${RESOLVING_ERRORS} standard errors of the level (more samples narrow the errors)`);
@@ -427,44 +419,43 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
 }
 
 /**
- * The crossings of half-integers along every grid edge (axis 0 first, then axis 1) of an averaged
- * map. A level at an end counts (the end sits on it: not resolved); an edge with a null mean has none.
+ * Every edge between neighbouring grid points, as [axis, index, neighbour's index] into the
+ * row-major grid (first axis fastest): along axis 0, then along axis 1.
  */
-function levelCrossings(axes: readonly SweepAxis[], grids: number[][], means: (number | null)[], errors: (number | null)[]): LevelCrossing[] {
-  const n0 = grids[0].length;
-  const n1 = grids.length > 1 ? grids[1].length : 1;
+function* gridEdges(n0: number, n1: number, dims: number): Generator<[axis: number, from: number, to: number]> {
+  for (let axis = 0; axis < dims; axis++) {
+    for (let j = 0; j < n1 - (axis === 1 ? 1 : 0); j++) {
+      for (let i = 0; i < n0 - (axis === 0 ? 1 : 0); i++) yield [axis, j * n0 + i, axis === 0 ? j * n0 + i + 1 : (j + 1) * n0 + i];
+    }
+  }
+}
+
+/**
+ * The crossings of half-integers along every grid edge of an averaged map. A level at an end counts
+ * (the end sits on it: not resolved); an edge with a null mean has none.
+ */
+function levelCrossings(axes: readonly SweepAxis[], gridCoords: number[][], n1: number, means: (number | null)[], errors: (number | null)[]): LevelCrossing[] {
   const out: LevelCrossing[] = [];
-  const coordsOf = (i: number, j: number) => (grids.length > 1 ? [grids[0][i], grids[1][j]] : [grids[0][i]]);
-  for (let axis = 0; axis < grids.length; axis++) {
-    for (let j = 0; j < n1; j++) {
-      for (let i = 0; i < n0; i++) {
-        const i2 = axis === 0 ? i + 1 : i;
-        const j2 = axis === 1 ? j + 1 : j;
-        if (i2 >= n0 || j2 >= n1) continue;
-        const a = means[j * n0 + i];
-        const b = means[j2 * n0 + i2];
-        if (a === null || b === null || a === b) continue;
-        const ea = errors[j * n0 + i];
-        const eb = errors[j2 * n0 + i2];
-        const lo = coordsOf(i, j);
-        const hi = coordsOf(i2, j2);
-        const ascending = lo[axis] <= hi[axis];
-        for (let k = Math.ceil(Math.min(a, b) - 0.5); k + 0.5 <= Math.max(a, b); k++) {
-          const level = k + 0.5;
-          const t = (level - a) / (b - a);
-          const clear = (mean: number, error: number | null) => error !== null && Math.abs(mean - level) > RESOLVING_ERRORS * error;
-          out.push({
-            at: sweptParams(axes, withCoord(lo, axis, lo[axis] + t * (hi[axis] - lo[axis]))),
-            along: axes[axis].param,
-            lower: Math.min(lo[axis], hi[axis]),
-            upper: Math.max(lo[axis], hi[axis]),
-            level,
-            values: ascending ? [a, b] : [b, a],
-            standardErrors: ascending ? [ea, eb] : [eb, ea],
-            resolved: clear(a, ea) && clear(b, eb),
-          });
-        }
-      }
+  for (const [axis, p, q] of gridEdges(gridCoords.length / n1, n1, axes.length)) {
+    const [a, b] = [means[p], means[q]];
+    if (a === null || b === null || a === b) continue;
+    const [ea, eb] = [errors[p], errors[q]];
+    const [lo, hi] = [gridCoords[p], gridCoords[q]];
+    const ascending = lo[axis] <= hi[axis];
+    for (let k = Math.ceil(Math.min(a, b) - 0.5); k + 0.5 <= Math.max(a, b); k++) {
+      const level = k + 0.5;
+      const t = (level - a) / (b - a);
+      const clear = (mean: number, error: number | null) => error !== null && Math.abs(mean - level) > RESOLVING_ERRORS * error;
+      out.push({
+        at: sweptParams(axes, withCoord(lo, axis, lo[axis] + t * (hi[axis] - lo[axis]))),
+        along: axes[axis].param,
+        lower: Math.min(lo[axis], hi[axis]),
+        upper: Math.max(lo[axis], hi[axis]),
+        level,
+        values: ascending ? [a, b] : [b, a],
+        standardErrors: ascending ? [ea, eb] : [eb, ea],
+        resolved: clear(a, ea) && clear(b, eb),
+      });
     }
   }
   return out;
