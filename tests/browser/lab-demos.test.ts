@@ -128,8 +128,8 @@ describe('demo notebooks in the lab with the chernel kernel', () => {
     if (rootDir) rmSync(rootDir, { recursive: true, force: true });
   });
 
-  it('finds the six demo notebooks', () => {
-    expect(demoNames).toHaveLength(6);
+  it('finds the seven demo notebooks', () => {
+    expect(demoNames).toHaveLength(7);
     expect(demoNames).toContain('01-coupled-wires.ipynb');
   });
 
