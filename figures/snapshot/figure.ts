@@ -269,19 +269,18 @@ export function drawFigure(figure: DrawableFigure, width = WIDTH, height = HEIGH
     if (x0 !== null && x1 !== null && y0 !== null && y1 !== null) px.segment(along(s.xref, x0, 'x'), along(s.yref, y0, 'y'), along(s.xref, x1, 'x'), along(s.yref, y1, 'y'), w, paint);
   }
   // Filled areas under every line: a trace filled 'tonexty' down to the scatter trace before it
-  // (a band between two curves), or 'toself'.
+  // (a band between two curves).
   let previous: Json | null = null;
   for (const t of traces) {
     if (str(t.type) !== 'scatter' && str(t.type) !== 'scattergl') continue;
-    const fill = str(t.fill);
     const paint = parseColour(t.fillcolor);
-    if (paint !== null && (fill === 'toself' || (fill === 'tonexty' && previous !== null))) {
+    if (paint !== null && str(t.fill) === 'tonexty' && previous !== null) {
       const ys = t.yaxis === 'y2' && y2 ? y2 : yAxis;
       const points = (trace: Json) => {
         const yv = numbers(trace.y);
         return numbers(trace.x).flatMap((a, k) => (a === null || yv[k] === null || yv[k] === undefined ? [] : [[x.at(a), ys.at(yv[k] as number)]]));
       };
-      const outline = fill === 'toself' ? points(t) : [...points(t), ...points(previous!).reverse()];
+      const outline = [...points(t), ...points(previous).reverse()];
       px.polygon(outline.map((p) => p[0]), outline.map((p) => p[1]), paint);
     }
     previous = t;

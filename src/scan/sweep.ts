@@ -377,7 +377,7 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
 
   const averaged = outcomes.some((o) => o.standardError !== undefined);
   const standardErrors = averaged ? outcomes.map((o) => o.standardError ?? null) : undefined;
-  const crossings = standardErrors !== undefined ? levelCrossings(axes, gridCoords, n1, outcomes.map((o) => o.value), standardErrors) : undefined;
+  const crossings = standardErrors !== undefined ? levelCrossings(axes, gridCoords, n0, n1, outcomes.map((o) => o.value), standardErrors) : undefined;
   const unresolved = crossings?.filter((c) => !c.resolved).length ?? 0;
   if (unresolved > 0) {
     warnings.push(`${unresolved} of ${crossings!.length} crossings of a half-integer are not resolved: an end lies within ${RESOLVING_ERRORS} standard errors of the level (more samples narrow the errors)`);
@@ -434,9 +434,9 @@ function* gridEdges(n0: number, n1: number, dims: number): Generator<[axis: numb
  * The crossings of half-integers along every grid edge of an averaged map. A level at an end counts
  * (the end sits on it: not resolved); an edge with a null mean has none.
  */
-function levelCrossings(axes: readonly SweepAxis[], gridCoords: number[][], n1: number, means: (number | null)[], errors: (number | null)[]): LevelCrossing[] {
+function levelCrossings(axes: readonly SweepAxis[], gridCoords: number[][], n0: number, n1: number, means: (number | null)[], errors: (number | null)[]): LevelCrossing[] {
   const out: LevelCrossing[] = [];
-  for (const [axis, p, q] of gridEdges(gridCoords.length / n1, n1, axes.length)) {
+  for (const [axis, p, q] of gridEdges(n0, n1, axes.length)) {
     const [a, b] = [means[p], means[q]];
     if (a === null || b === null || a === b) continue;
     const [ea, eb] = [errors[p], errors[q]];
