@@ -4,6 +4,7 @@
 // format: RFC 2083; zlib: RFC 1950), and every figure kind drawn from a real engine result.
 // Physics as in tests/unit/widgets-figures.test.ts: Qi, Wu, Zhang, PRB 74, 085308 (2006); Haldane,
 // PRL 61, 2015 (1988); Kane & Mele, PRL 95, 226801 (2005).
+import { readdirSync, readFileSync } from 'node:fs';
 import { inflateSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { figurePng } from '../../kernel/display/pictures.js';
@@ -58,6 +59,16 @@ describe('font', () => {
     expect(drawable('k₁ [b₁] · x̄₂ — Ω')).toBe('k1 [b1] · x2 - Ω');
     expect(drawable('☃')).toBe('?');
     expect(textWidth('abc', 2)).toBe((3 * 6 - 1) * 2);
+  });
+
+  it('draws every character the figure library writes (no "?" in a still picture\'s labels)', () => {
+    const dir = new URL('../../figures/', import.meta.url);
+    const used = new Set<string>();
+    for (const name of readdirSync(dir).filter((f) => f.endsWith('.ts'))) {
+      for (const ch of readFileSync(new URL(name, dir), 'utf8')) if (ch.charCodeAt(0) > 126) used.add(ch);
+    }
+    expect(used.size).toBeGreaterThan(5);
+    for (const ch of used) expect(drawable(ch), `"${ch}" (U+${ch.codePointAt(0)!.toString(16)})`).not.toContain('?');
   });
 });
 
