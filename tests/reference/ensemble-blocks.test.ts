@@ -113,6 +113,23 @@ describe('a plan that splits averaged points into blocks of members', () => {
   });
 });
 
+describe('a point function that returns no members', () => {
+  it('fails each block it computes, by point and first member, and the merge reports them', async () => {
+    const bare = new InProcessExecutor((target) => {
+      const fn = pointFunction(target);
+      return (p) => {
+        const { members: _, ...outcome } = fn(p);
+        return outcome;
+      };
+    });
+    const out = json((await runShard(plan, 1, 2, { executor: bare, onSave: () => {} })).output);
+    expect(out.failures).toHaveLength(8);
+    const report = mergeShards(plan, [undefined, out]);
+    expect(report.complete).toBe(false);
+    expect(report.failed[0]).toEqual({ shard: 1, coords: [0], first: 3, error: 'the point function returned no members for members 3..5' });
+  });
+});
+
 describe('block records and plans that are refused', () => {
   // Shard 1's blocks, re-signed after an edit so that only the edit is wrong.
   const signed = (blocks: unknown[]) => makeShardOutput(plan, 1, 2, [], [], blocks as BlockRecord[]);
