@@ -28,9 +28,9 @@ export type PointRecord =
   | [coords: number[], value: number | null, gap: number, doubtful: 1]
   | [coords: number[], value: number | null, gap: number, doubtful: 0 | 1, standardError: number | null];
 
-const isNumberOrNull = (x: unknown): boolean => x === null || typeof x === 'number';
-
 export type BlockRecord = [coords: number[], first: number, values: (number | null)[]];
+
+const isNumberOrNull = (x: unknown): boolean => x === null || typeof x === 'number';
 
 /** One point's record (the shortest form that keeps everything the outcome says). */
 export function pointRecord(coords: number[], o: PointOutcome): PointRecord {
