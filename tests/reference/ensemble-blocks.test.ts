@@ -58,6 +58,7 @@ describe('a plan that splits averaged points into blocks of members', () => {
     const whole = sweepPlan(request)!;
     expect('membersPerTask' in whole).toBe(false);
     expect(planTasks(whole)).toEqual(whole.points.map((coords) => ({ coords })));
+    expect('blocks' in makeShardOutput(whole, 0, 1, [], [])).toBe(false);
   });
 
   it('stops a shard mid-ensemble, resumes it past its saved blocks, and merges to the unsplit ensembles exactly', async () => {
