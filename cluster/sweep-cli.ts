@@ -18,7 +18,7 @@ import { catalogueModel } from '../src/model/catalogue.js';
 import { ModelError, valueText } from '../src/model/errors.js';
 import { InProcessExecutor, type PointFunctionFactory, type SweepExecutor } from '../src/scan/executor.js';
 import { lockFile, NodeWorkerExecutor, ShardLockedError, writeFileAtomic, writeFileAtomicSync } from './node-workers.js';
-import { mergeShards, runShard, shardPoints, sweepPlan, validatePlan, checkShard, type MergeReport, type SweepPlan } from '../src/scan/plan.js';
+import { mergeShards, planTasks, runShard, shardTasks, sweepPlan, validatePlan, checkShard, type MergeReport, type MergeTask, type SweepPlan } from '../src/scan/plan.js';
 import { pointFunction } from '../src/scan/point.js';
 import { checkRequestShape } from '../src/request.js';
 import { pointTarget, validatePhaseMapRequest, type PhaseMapRequest } from '../src/scan/sweep.js';
@@ -30,7 +30,8 @@ class UsageError extends Error {
 }
 
 const USAGE = `usage: chernel sweep <command> ...
-  plan <request.json> [-o plan.json]        write the first plan of a phase-map request
+  plan <request.json> [-o plan.json]        write the first plan of a phase-map request; with
+      [--members-per-task m]                  m, each averaged point's members in tasks of m
   run <plan.json> [--shard i --shards N]    compute one shard (i, N default to Slurm's array
       [--workers n] [--point-module m.js]     variables); resumes from its own output
   merge <plan.json> [--shards N] [-o out]   check and merge the shard outputs: writes the result,
@@ -45,7 +46,7 @@ interface Parsed {
   flags: Map<string, string | true>;
 }
 
-const VALUE_FLAGS = new Set(['o', 'shard', 'shards', 'workers', 'point-module', 'save-every', 'partition', 'time', 'cpus-per-task', 'mem', 'account', 'poll']);
+const VALUE_FLAGS = new Set(['o', 'members-per-task', 'shard', 'shards', 'workers', 'point-module', 'save-every', 'partition', 'time', 'cpus-per-task', 'mem', 'account', 'poll']);
 
 function parseArgs(args: string[]): Parsed {
   const positional: string[] = [];
@@ -123,12 +124,13 @@ function loadRequest(path: string): PhaseMapRequest {
 async function cmdPlan(p: Parsed, out: (s: string) => void): Promise<number> {
   const [requestPath] = p.positional;
   if (requestPath === undefined) throw new UsageError('plan: give the request file');
-  const plan = sweepPlan(loadRequest(requestPath));
+  const plan = sweepPlan(loadRequest(requestPath), new Map(), { membersPerTask: intFlag(p, 'members-per-task') });
   if (plan === null) throw new UsageError('plan: the request has nothing to compute');
   const target = (p.flags.get('o') as string | undefined) ?? requestPath.replace(/(\.request)?\.json$/, '') + '.plan.json';
   await writeFileAtomic(resolve(target), JSON.stringify(plan, null, 1) + '\n');
   out(`${resolve(target)}\n`);
-  process.stderr.write(`sweep plan: ${plan.points.length} grid points (${plan.request.axes.map((a) => `${a.param} x ${a.count}`).join(', ')})${plan.request.refine ? `, then bisection to ${plan.request.refine.tolerance}` : ''}\n`);
+  const blocks = plan.membersPerTask === undefined ? '' : `, ${planTasks(plan).length} tasks of at most ${plan.membersPerTask} members`;
+  process.stderr.write(`sweep plan: ${plan.points.length} grid points (${plan.request.axes.map((a) => `${a.param} x ${a.count}`).join(', ')})${blocks}${plan.request.refine ? `, then bisection to ${plan.request.refine.tolerance}` : ''}\n`);
   return 0;
 }
 
@@ -211,14 +213,14 @@ async function runLockedShard(
     if (r.restartedBecause !== null) process.stderr.write(`sweep run: shard ${shard}/${shards}: ignored its earlier output (${r.restartedBecause})\n`);
     const failed = r.output.failures.length;
     process.stderr.write(
-      `sweep run: shard ${shard}/${shards} of round ${plan.round}: ${r.output.assigned} points, ${r.reused} reused from its checkpoint, ` +
+      `sweep run: shard ${shard}/${shards} of round ${plan.round}: ${r.output.assigned} ${unitOf(plan)}, ${r.reused} reused from its checkpoint, ` +
         `${r.computed} computed, ${failed} failed, in ${((Date.now() - started) / 1000).toFixed(1)} s\n`,
     );
     out(`${file}\n`);
     return failed > 0 ? 1 : 0;
   } catch (err) {
     if (err instanceof InterruptedError) {
-      process.stderr.write(`sweep run: shard ${shard}/${shards} stopped; its finished points are saved in ${file}\n`);
+      process.stderr.write(`sweep run: shard ${shard}/${shards} stopped; its finished ${unitOf(plan)} are saved in ${file}\n`);
       return 143;
     }
     throw err;
@@ -256,21 +258,26 @@ function readShards(planPath: string, shards: number): unknown[] {
   });
 }
 
+/** What a task of the plan is: a point, or a block of a point's members. */
+function unitOf(plan: SweepPlan): string {
+  return plan.membersPerTask === undefined ? 'points' : 'blocks of members';
+}
+
 function describe(report: MergeReport, plan: SweepPlan, shards: number, limit = 20): string {
   const lines: string[] = [];
-  const total = plan.points.length;
+  const total = planTasks(plan).length;
   const missing = report.missing.length + report.failed.length;
-  lines.push(`round ${plan.round} (${plan.stage}): ${total - missing} of ${total} points done in ${shards} shards`);
+  lines.push(`round ${plan.round} (${plan.stage}): ${total - missing} of ${total} ${unitOf(plan)} done in ${shards} shards`);
   for (const r of report.rejected) lines.push(`  shard ${r.shard}: rejected: ${r.problem}`);
-  const byShard = new Map<number, number[][]>();
-  for (const m of report.missing) byShard.set(m.shard, [...(byShard.get(m.shard) ?? []), m.coords]);
+  const byShard = new Map<number, MergeTask[]>();
+  for (const m of report.missing) byShard.set(m.shard, [...(byShard.get(m.shard) ?? []), m]);
   const names = plan.request.axes.map((a) => a.param);
-  const at = (c: number[]) => c.map((x, i) => `${names[i]}=${x}`).join(' ');
+  const at = (t: MergeTask) => t.coords.map((x, i) => `${names[i]}=${x}`).join(' ') + (t.first === undefined ? '' : ` from member ${t.first}`);
   for (const [shard, list] of byShard) {
     lines.push(`  shard ${shard}: ${list.length} missing: ${list.slice(0, limit).map(at).join('; ')}${list.length > limit ? '; ...' : ''}`);
   }
-  for (const f of report.failed.slice(0, limit)) lines.push(`  shard ${f.shard}: failed at ${at(f.coords)}: ${f.error}`);
-  if (report.failed.length > limit) lines.push(`  ... ${report.failed.length - limit} more failed points`);
+  for (const f of report.failed.slice(0, limit)) lines.push(`  shard ${f.shard}: failed at ${at(f)}: ${f.error}`);
+  if (report.failed.length > limit) lines.push(`  ... ${report.failed.length - limit} more failed ${unitOf(plan)}`);
   return lines.join('\n') + '\n';
 }
 
@@ -315,7 +322,7 @@ async function cmdStatus(p: Parsed, out: (s: string) => void): Promise<number> {
   out(describe(report, plan, shards, 50));
   for (let i = 0; i < shards; i++) {
     if (report.rejected.some((r) => r.shard === i)) continue;
-    const n = shardPoints(plan, i, shards).length;
+    const n = shardTasks(plan, i, shards).length;
     const left = report.missing.filter((m) => m.shard === i).length + report.failed.filter((f) => f.shard === i).length;
     out(`  shard ${i}: ${n - left} of ${n} done\n`);
   }

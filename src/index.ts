@@ -54,7 +54,7 @@ export { advanceSweep, axisValues, validatePhaseMapRequest, SWEEP_QUANTITIES, ty
 export { InProcessExecutor, PointError, type SweepExecutor, type StopSignal, type EvaluateHooks, type PointFunctionFactory } from './scan/executor.js';
 export { WorkerPoolExecutor, serveSweepWorker, type WorkerPort } from './scan/pool.js';
 export { pointFunction } from './scan/point.js';
-export { sweepPlan, validatePlan, shardPoints, runShard, mergeShards, PLAN_FORMAT, SHARD_FORMAT, type SweepPlan, type ShardOutput, type MergeReport } from './scan/plan.js';
+export { sweepPlan, validatePlan, planTasks, shardTasks, runShard, mergeShards, PLAN_FORMAT, SHARD_FORMAT, type SweepPlan, type ShardOutput, type MergeReport } from './scan/plan.js';
 
 // Linear algebra
 export { type CMatrix, cmatrix } from './linalg/cmatrix.js';

@@ -33,6 +33,11 @@ export interface PointOutcome {
    * few members for one. Absent when the value is not an average.
    */
   standardError?: number | null;
+  /**
+   * An average's members: the index of the first and each member's value (null where it gave
+   * none), so blocks of one ensemble computed apart join into the unsplit average (scan/blocks.ts).
+   */
+  members?: { first: number; values: (number | null)[] };
 }
 
 /** The fields every request carries besides its options. */

@@ -103,11 +103,15 @@ function summarise(of: EnsembleDiagnostic, members: Int32Array, seeds: Float64Ar
 
 /** Members [first, first + samples) of the ensemble; `run` gives one member's number from its seed. */
 export function ensembleOf(of: EnsembleDiagnostic, run: (seed: number) => number | null, seed: number, first: number, samples: number): EnsembleResult {
-  const members = Int32Array.from({ length: samples }, (_, i) => first + i);
-  const seeds = Float64Array.from(members, (i) => seed + i);
+  const seeds = Float64Array.from({ length: samples }, (_, i) => seed + first + i);
   seeds.forEach((s) => checkSeed(s, 'seed'));
-  const values = Float64Array.from(seeds, (s) => run(s) ?? NaN);
-  return summarise(of, members, seeds, values);
+  return ensembleOfValues(of, seed, first, Array.from(seeds, run));
+}
+
+/** The ensemble of members [first, first + values.length) whose values are known (null: gave none). */
+export function ensembleOfValues(of: EnsembleDiagnostic, seed: number, first: number, values: readonly (number | null)[]): EnsembleResult {
+  const members = Int32Array.from(values, (_, i) => first + i);
+  return summarise(of, members, Float64Array.from(members, (i) => seed + i), Float64Array.from(values, (v) => v ?? NaN));
 }
 
 export function disorderEnsemble(h: BlochHamiltonian, options: EnsembleOptions): EnsembleResult {

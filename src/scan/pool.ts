@@ -220,8 +220,11 @@ export function serveSweepWorker(
       try {
         checkStopped(undefined);
         // Only the outcome's own fields travel (a point module may return more, not all of it cloneable).
-        const { value, gap, doubtful, standardError } = current.fn(message.params[n]);
-        outcomes.push({ value, gap, ...(doubtful === true ? { doubtful } : {}), ...(standardError !== undefined ? { standardError } : {}) });
+        const { value, gap, doubtful, standardError, members } = current.fn(message.params[n]);
+        outcomes.push({
+          value, gap, ...(doubtful === true ? { doubtful } : {}), ...(standardError !== undefined ? { standardError } : {}),
+          ...(members !== undefined ? { members: { first: members.first, values: [...members.values] } } : {}),
+        });
       } catch (err) {
         const e = err as Error;
         failure = { index: message.indices[n], name: e?.name ?? 'Error', message: e?.message ?? String(err) };

@@ -10,6 +10,15 @@
  * coords are the swept values in axis order; value is null where the quantity is not defined; gap
  * is null where it is not a number (JSON has no NaN). Records written before averaged points kept
  * their error (the first two forms) still load: such a point simply has none.
+ *
+ * A plan that splits each averaged point's ensemble into blocks of members (plan.ts,
+ * `membersPerTask`) has its shards write one record per finished block instead:
+ *
+ *   [coords, first, values]                             members first, first + 1, ... of the point's
+ *                                                       ensemble, each value a number or null (gave none)
+ *
+ * The values themselves, not a summary, so the merge joins them in member order and computes the
+ * point exactly as the unsplit ensemble does (blocks.ts).
  */
 import { ModelError, valueText } from '../model/errors.js';
 import { pointKey, type PointOutcome } from './sweep.js';
@@ -18,6 +27,8 @@ export type PointRecord =
   | [coords: number[], value: number | null, gap: number]
   | [coords: number[], value: number | null, gap: number, doubtful: 1]
   | [coords: number[], value: number | null, gap: number, doubtful: 0 | 1, standardError: number | null];
+
+export type BlockRecord = [coords: number[], first: number, values: (number | null)[]];
 
 const isNumberOrNull = (x: unknown): boolean => x === null || typeof x === 'number';
 
@@ -52,6 +63,23 @@ export function recordsToPoints(records: readonly unknown[], dims: number, field
     known.set(pointKey(read.coords), read.outcome);
   });
   return known;
+}
+
+/**
+ * A block record read back, checking its shape: errors name `field[n]` and the part that is wrong.
+ * Whether the block is one of the point's blocks is the plan's to check (blocks.ts).
+ */
+export function readBlockRecord(rec: unknown, dims: number, field: string): { coords: number[]; first: number; values: (number | null)[] } {
+  if (!Array.isArray(rec) || rec.length !== 3) throw new ModelError(field, `expected a block record [[${dims} coordinates], first member, [member values or null]]. Value: ${valueText(rec)}`);
+  const [coords, first, values] = rec as unknown[];
+  if (!Array.isArray(coords) || coords.length !== dims || !coords.every((x: unknown) => typeof x === 'number' && Number.isFinite(x))) {
+    throw new ModelError(`${field}.coords`, `expected ${dims} finite coordinates. Value: ${valueText(coords)}`);
+  }
+  if (typeof first !== 'number' || !Number.isInteger(first) || first < 0) throw new ModelError(`${field}.first`, `expected a member index >= 0. Value: ${valueText(first)}`);
+  if (!Array.isArray(values) || values.length === 0 || !values.every((v: unknown) => v === null || (typeof v === 'number' && Number.isFinite(v)))) {
+    throw new ModelError(`${field}.values`, `expected a non-empty array of member values (finite numbers, or null where a member gave none). Value: ${valueText(values)}`);
+  }
+  return { coords: coords as number[], first, values: values as (number | null)[] };
 }
 
 /** Known points -> records, in key order (so equal sets give equal files). */

@@ -12,8 +12,11 @@ export const ensemble: SweptDiagnostic<EnsembleOptions, EnsembleResult> = {
   cost: (request, n) => ensembleCost(n, termCount(request), request as unknown as EnsembleOptions),
   sizeFields: () => ['samples', 'sizes'],
   // An average is not quantised: a phase map of it is a continuous map (no boundaries to refine),
-  // and each point keeps its standard error.
-  sweep: (r) => ({ value: r.mean, gap: Number.NaN, standardError: r.standardError }),
+  // and each point keeps its standard error, and its members for joining blocks computed apart.
+  sweep: (r) => ({
+    value: r.mean, gap: Number.NaN, standardError: r.standardError,
+    members: { first: r.members[0], values: Array.from(r.values, (v) => (Number.isNaN(v) ? null : v)) },
+  }),
   quantised: false,
   headline: ['mean', 'standardError', 'count'],
 };
