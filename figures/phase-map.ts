@@ -33,6 +33,8 @@ interface PhaseMapData {
   /** An averaged map's standard errors (null where none); absent for other maps and maps saved before they were kept. */
   standardErrors?: (number | null)[];
   crossings: Crossing[];
+  /** A map of an ensemble: the diagnostic averaged. */
+  averaged?: string;
 }
 
 /**
@@ -65,6 +67,7 @@ function read(result: ViewResult): PhaseMapData {
     gaps: Array.from(gaps),
     boundaries: (result.boundaries as { at: Record<string, number> }[] | undefined) ?? [],
     ...(errors !== undefined ? { standardErrors: Array.from(errors as ArrayLike<number | null>, (e) => (typeof e === 'number' && Number.isFinite(e) ? e : null)) } : {}),
+    ...(typeof result.averaged === 'string' ? { averaged: result.averaged } : {}),
     crossings: Array.isArray(result.crossings) ? (result.crossings as Crossing[]).filter((c) => c !== null && typeof c === 'object' && typeof c.level === 'number') : [],
   };
 }
@@ -220,7 +223,7 @@ export function phaseMapFigure(result: ViewResult, ctx: FigureContext): Figure {
 
 /** A map of a quantity that is not quantised: values as a colour map (2D) or a curve (1D). */
 function continuousMapFigure(m: PhaseMapData, ctx: FigureContext): Figure {
-  const sym = SYMBOL[m.quantity] ?? m.quantity;
+  const sym = m.averaged !== undefined ? `mean ${m.averaged}` : SYMBOL[m.quantity] ?? m.quantity;
   const [ax0, ax1] = m.axes;
   const unitOf = (param: string) => ctx.spec.parameters[param]?.unit ?? '';
   const finite = m.values.filter((v): v is number => v !== null && Number.isFinite(v));

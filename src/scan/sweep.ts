@@ -161,6 +161,8 @@ export interface PhaseMapResult {
   standardErrors?: (number | null)[];
   /** A map of an average: every crossing of a half-integer between neighbouring grid points, in scan order. */
   crossings?: LevelCrossing[];
+  /** A map of an ensemble: the diagnostic it averages (the request's `of`). */
+  averaged?: string;
   /** Refined boundaries (empty without `refine`), in the order the grid edges were scanned. */
   boundaries: PhaseBoundary[];
   /** Bisection rounds run and points evaluated beyond the grid. */
@@ -405,6 +407,7 @@ export function advanceSweep(request: PhaseMapRequest, known: KnownPoints): Swee
     values: outcomes.map((o) => o.value),
     gaps: outcomes.map((o) => o.gap),
     ...(standardErrors !== undefined ? { standardErrors, crossings } : {}),
+    ...(typeof request.of === 'string' && request.quantity === 'ensemble' ? { averaged: request.of } : {}),
     boundaries,
     ...(refinement !== undefined ? { refinement } : {}),
     checks: {

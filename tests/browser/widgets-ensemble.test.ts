@@ -38,6 +38,7 @@ beforeAll(async () => {
   expect(old.result.standardErrors).toHaveLength(9);
   delete old.result.standardErrors;
   delete old.result.crossings;
+  delete old.result.averaged;
   old.result.checks.warnings = old.result.checks.warnings.filter((text: string) => !text.includes('crossings of a half-integer'));
   nb.metadata.widgets[STATE_MIME].state[WIDGETS[2].id].state.result.standardErrors.pop();
   writeFileSync(notebook, JSON.stringify(nb));
@@ -57,7 +58,7 @@ describe('the phase-map widget of a disorder average', () => {
     await w.locator('.chernel-plot .scatterlayer .trace').first().waitFor({ state: 'attached' });
     await expect.poll(async () => (await fills(w)).length).toBe(1);
     const t = await traces(w);
-    const mean = t.find((x) => x.name === 'mean')!;
+    const mean = t.find((x) => x.name === 'mean bott')!;
     const upper = t.find((x) => x.name === 'mean ± 2 SE')!;
     const lower = t.find((x) => x.name === 'mean − 2 SE')!;
     expect(upper.fill).toBe('tonexty');

@@ -30,7 +30,7 @@ function overWhite(colour: string): [number, number, number] {
 
 /** The result as saved before standard errors were kept. */
 function withoutErrors(result: ViewResult): ViewResult {
-  const { standardErrors: _e, crossings: _c, ...old } = result;
+  const { standardErrors: _e, crossings: _c, averaged: _a, ...old } = result;
   return old as ViewResult;
 }
 
@@ -55,7 +55,10 @@ describe('a 1D map of a disorder average', () => {
     // The clean end has no spread; some disordered point has.
     expect(errors[0]).toBe(0);
     expect(Math.max(...errors)).toBeGreaterThan(0);
-    const mean = traces.find((t) => t.name === 'mean') as Trace & { text: string[]; hovertemplate: string };
+    // The curve and the title name what is averaged (the request's `of`).
+    expect(result.averaged).toBe('bott');
+    expect(JSON.stringify(figure.layout.title)).toContain('Map of mean bott');
+    const mean = traces.find((t) => t.name === 'mean bott') as Trace & { text: string[]; hovertemplate: string };
     expect(mean.hovertemplate).toContain('%{text}');
     mean.text.forEach((text, i) => {
       const [m, e] = /^(\S+) ± (\S+) \(1 SE\)$/.exec(text)!.slice(1).map(Number);
