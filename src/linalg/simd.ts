@@ -184,6 +184,15 @@ export class Body {
     return this.op(0x0b);
   }
 
+  /** if (the i32 on the stack is not 0) then() else otherwise() */
+  if(then: () => void, otherwise: () => void): this {
+    this.op(0x04, 0x40);
+    then();
+    this.op(0x05);
+    otherwise();
+    return this.op(0x0b);
+  }
+
   /** while (ptr < end) { body(); ptr += step } (locals; `step` a constant, or a local as [index]). */
   forBytes(ptr: number, end: number, step: number | [number], body: () => void): this {
     this.op(0x02, 0x40); // block
@@ -573,13 +582,17 @@ function columnDots(): Body {
  * similarityRows(a, stride, u, s, n, k1, beta): A <- P A P for P = I - beta u u^dagger acting on
  * indices k1.. (u stored at those indices), given s = u^dagger A (columnDots), row by row, each row
  * once: rows i >= k1 first get A_ij -= beta u_i s_j, then every row gets A_ij -= t conj(u_j) with
- * t = beta sum_j A_ij u_j; columns j >= k1 only.
+ * t = beta sum_j A_ij u_j; columns j >= k1 only. Two sweeps of the row, not four: the left update
+ * and the dot for t share one, the right update and the next reflector's dots the other (the same
+ * operations in the same order as four sweeps, so the same numbers; the sweeps run from L1 cache
+ * and the loads and stores, not the arithmetic, were half of their time).
  */
 function similarityRows(dots: boolean): Body {
   const [a, stride, u, s, n, k1, beta, next] = [0, 1, 2, 3, 4, 5, 6, 7];
   const f = new Body(dots ? [I32, I32, I32, I32, I32, I32, F64, I32] : [I32, I32, I32, I32, I32, I32, F64]);
   const i = f.local(I32), iEnd = f.local(I32), leftFrom = f.local(I32), row = f.local(I32), j = f.local(I32), jEnd = f.local(I32), j0 = f.local(I32);
   const [c, d, x, m1, m2, uu] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  const [cx, dx, acc] = [f.local(V128), f.local(V128), f.local(V128)];
   const [tr, ti, ur, ui] = [f.local(F64), f.local(F64), f.local(F64), f.local(F64)];
   f.get(k1).i32(16).mul().set(j0);
   f.get(n).i32(16).mul().set(jEnd);
@@ -592,63 +605,69 @@ function similarityRows(dots: boolean): Body {
       f.get(next).get(j).add().vzero().vstore();
     });
   }
+  /** t += x u_j in lanes (xr ur, xi ui) and (xr ui, xi ur), x the row's entry j as it now is. */
+  const dot = (): void => {
+    f.get(u).get(j).add().vload().set(uu);
+    f.get(x).get(uu).accumulate(m1);
+    f.get(x).swapped(uu).accumulate(m2);
+  };
+  /** x = row entry j - t conj(u_j) = - (tr, -tr) u - (ti, ti) swap(u), stored back. */
+  const right = (): void => {
+    f.get(u).get(j).add().vload().set(uu);
+    f.get(row).get(j).add().vload();
+    f.get(c).get(uu).vmul().vsub();
+    f.get(d).swapped(uu).vmul().vsub();
+    f.set(x);
+    f.get(row).get(j).add().get(x).vstore();
+  };
   f.get(a).set(row);
   f.forBytes(i, iEnd, 16, () => {
-    f.get(i).get(leftFrom).op(0x4f).when(() => {
-      // c = beta u_i: row -= (cr, cr) s + (-ci, ci) swap(s)
+    f.vzero().set(m1).vzero().set(m2);
+    f.get(j0).set(j);
+    f.get(i).get(leftFrom).op(0x4f).if(() => {
+      // c = beta u_i: x = row - (cr, cr) s - (-ci, ci) swap(s), stored, and into the dot.
       f.get(u).get(i).add().fload().get(beta).fmul().set(ur);
       f.get(u).get(i).add().fload(8).get(beta).fmul().set(ui);
       f.get(ur).splat().set(c);
       f.get(ui).fneg().plusMinus().set(d);
-      f.get(j0).set(j);
       f.forBytes(j, jEnd, 16, () => {
-        f.get(row).get(j).add();
         f.get(row).get(j).add().vload();
-        f.get(s).get(j).add().vload().set(x);
-        f.get(c).get(x).vmul().vsub();
-        f.get(d).swapped(x).vmul().vsub();
-        f.vstore();
+        f.get(s).get(j).add().vload().set(uu);
+        f.get(c).get(uu).vmul().vsub();
+        f.get(d).swapped(uu).vmul().vsub();
+        f.set(x);
+        f.get(row).get(j).add().get(x).vstore();
+        dot();
       });
-    });
-    // t = beta sum_j A_ij u_j: lanes (xr ur, xi ui) and (xr ui, xi ur).
-    f.vzero().set(m1).vzero().set(m2);
-    f.get(j0).set(j);
-    f.forBytes(j, jEnd, 16, () => {
-      f.get(row).get(j).add().vload().set(x);
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(x).get(uu).accumulate(m1);
-      f.get(x).swapped(uu).accumulate(m2);
+    }, () => {
+      f.forBytes(j, jEnd, 16, () => {
+        f.get(row).get(j).add().vload().set(x);
+        dot();
+      });
     });
     f.get(m1).lane(0).get(m1).lane(1).fsub().get(beta).fmul().set(tr);
     f.get(m2).lane(0).get(m2).lane(1).fadd().get(beta).fmul().set(ti);
-    // row -= t conj(u) = (tr, -tr) u + (ti, ti) swap(u)
     f.get(tr).plusMinus().set(c);
     f.get(ti).splat().set(d);
     f.get(j0).set(j);
-    f.forBytes(j, jEnd, 16, () => {
-      f.get(u).get(j).add().vload().set(uu);
-      f.get(row).get(j).add();
-      f.get(row).get(j).add().vload();
-      f.get(c).get(uu).vmul().vsub();
-      f.get(d).swapped(uu).vmul().vsub();
-      f.vstore();
-    });
     if (dots) {
-      // Rows below k1: next_j += conj(x_i) A_ij (j > k1), x_i = A_{i,k1} as just updated.
-      f.get(i).get(leftFrom).op(0x4b).when(() => {
-        f.get(row).get(j0).add().vload().set(x);
-        f.get(x).lane(0).splat().set(c);
-        f.get(x).lane(1).plusMinus().set(d); // (xi, -xi)
+      // Rows below k1: next_j += conj(x_i) A_ij (j > k1), x_i = A_{i,k1} once updated (the
+      // sweep's first entry): conj(x) y = (xr, xr) y + (xi, -xi) swap(y).
+      f.get(i).get(leftFrom).op(0x4b).if(() => {
+        right();
+        f.get(x).lane(0).splat().set(cx);
+        f.get(x).lane(1).plusMinus().set(dx);
         f.get(j0).i32(16).add().set(j);
         f.forBytes(j, jEnd, 16, () => {
-          f.get(row).get(j).add().vload().set(uu);
-          f.get(next).get(j).add();
-          f.get(next).get(j).add().vload().set(m1);
-          f.get(c).get(uu).accumulate(m1);
-          f.get(d).swapped(uu).accumulate(m1);
-          f.get(m1).vstore();
+          right();
+          f.get(next).get(j).add().vload().set(acc);
+          f.get(cx).get(x).accumulate(acc);
+          f.get(dx).swapped(x).accumulate(acc);
+          f.get(next).get(j).add().get(acc).vstore();
         });
-      });
+      }, () => f.forBytes(j, jEnd, 16, right));
+    } else {
+      f.forBytes(j, jEnd, 16, right);
     }
     f.get(row).get(stride).add().set(row);
   });
