@@ -203,8 +203,37 @@ function realBlockProduct(): Body {
   return f;
 }
 
+/**
+ * gramCombine(p1, p2, p3, ar, ai, br, bi, bytes, c, s): over `bytes` bytes of seven real arrays
+ * laid out alike, R = p1 + p2 and I = (p3 - p1) + p2 (a Hermitian Gram block from its three real
+ * products, see simdGramSum), then ar += c R, ai += c I, br += s R, bi += s I, and p1 = p2 = p3 = 0
+ * for the next group.
+ */
+function gramCombine(): Body {
+  const [p1, p2, p3, ar, ai, br, bi, bytes, c, s] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9];
+  const f = new Body([I32, I32, I32, I32, I32, I32, I32, I32, F64, F64]);
+  const o = f.local(I32);
+  const [cv, sv, x1, x2, re, im] = [f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128), f.local(V128)];
+  f.get(c).splat().set(cv);
+  f.get(s).splat().set(sv);
+  f.i32(0).set(o);
+  f.forBytes(o, bytes, 16, () => {
+    f.get(p1).get(o).add().vload().set(x1);
+    f.get(p2).get(o).add().vload().set(x2);
+    f.get(x1).get(x2).vadd().set(re);
+    f.get(p3).get(o).add().vload().get(x1).vsub().get(x2).vadd().set(im);
+    for (const at of [p1, p2, p3]) f.get(at).get(o).add().vzero().vstore();
+    for (const [out, w, part] of [[ar, cv, re], [ai, cv, im], [br, sv, re], [bi, sv, im]]) {
+      f.get(out).get(o).add();
+      f.get(out).get(o).add().vload().get(w).get(part).vmul().vadd();
+      f.vstore();
+    }
+  });
+  return f;
+}
+
 function moduleBytes(): Uint8Array {
-  const kernels: [string, Body][] = [['product', complexProduct()], ['realProduct', realBlockProduct()]];
+  const kernels: [string, Body][] = [['product', complexProduct()], ['realProduct', realBlockProduct()], ['gramCombine', gramCombine()]];
   for (let k = 1; k <= MAX_BATCH; k++) for (let q = 1; q <= MAX_OUTPUTS && k * q <= MAX_TOTAL_OUTPUTS; q++) kernels.push([`step${k}x${q}`, chebyshevStep(k, q)]);
   return assemble(kernels);
 }
@@ -305,6 +334,92 @@ export function simdProduct(p: number, q: number, r: number, fillA: (view: Float
       const o = i * re + j, t1 = t[o], t2 = t[p * re + o], t3 = t[2 * p * re + o];
       out[2 * (i * r + j)] = t1 - t2;
       out[2 * (i * r + j) + 1] = t3 - t1 - t2;
+    }
+  }
+  return out;
+}
+
+/** Rows and columns of an output tile of simdGramSum: its products and sums (7 x 128 KiB) stay in cache. */
+const GRAM_TILE = 128;
+
+/**
+ * out (m x m) = sum_g w_g Psi_g^dagger Psi_g, Psi_g the rows of the n x m frame `psi` (complex
+ * interleaved, row i = orbital i) listed in order[starts[g] .. starts[g + 1]), w_g = wr[g] + i wi[g]:
+ * Psi^dagger D Psi for a diagonal D that takes few values (one per group). Each Gram matrix
+ * G_g = Psi_g^dagger Psi_g is Hermitian, so only its upper triangle is formed, by three real products
+ * of the parts X, Y of Psi_g (as in simdProduct: XX = X^T X, YY = Y^T Y, Re G = XX + YY,
+ * Im G = (X - Y)^T (X + Y) - XX + YY), and serves both the real and the imaginary part of w_g: half
+ * the operations of the direct product Psi^dagger (D Psi). Tile by tile of the upper triangle, every
+ * group's products are summed into A = sum Re(w_g) G_g and B = sum Im(w_g) G_g while in cache, then
+ * u = A + i B goes to out. Returns out.
+ */
+export function simdGramSum(n: number, m: number, psi: Float64Array, order: Int32Array, starts: number[], wr: number[], wi: number[], out: Float64Array): Float64Array {
+  const T = GRAM_TILE, tile = T * T;
+  // Planar parts, transposed (row a = state a, over the orbitals in group order): X, Y, X - Y, X + Y;
+  // a column block of X, Y and X + Y packed for the kernel (panels of 4 columns, group by group);
+  // a tile's three products and four sums (real and imaginary parts of A and B).
+  const plane = m * n;
+  const [xt, yt, dt, st] = [0, 1, 2, 3].map((t) => 8 * t * plane);
+  const packAt = 32 * plane, productsAt = packAt + 24 * n * T, sumsAt = productsAt + 24 * tile;
+  const { kernels, memory } = realspaceWorkspace(sumsAt + 32 * tile);
+  const view = (byte: number, length: number) => new Float64Array(memory, byte, length);
+  const [x, y, d, t] = [xt, yt, dt, st].map((at) => view(at, plane));
+  for (let k0 = 0; k0 < n; k0 += TILE) {
+    const k1 = Math.min(n, k0 + TILE);
+    for (let a = 0; a < m; a++) {
+      for (let k = k0, o = a * n + k0; k < k1; k++, o++) {
+        const at = 2 * (order[k] * m + a), re = psi[at], im = psi[at + 1];
+        x[o] = re;
+        y[o] = im;
+        d[o] = re - im;
+        t[o] = re + im;
+      }
+    }
+  }
+  const pack = view(packAt, 3 * n * T);
+  const products = view(productsAt, 3 * tile), sums = view(sumsAt, 4 * tile);
+  products.fill(0);
+  const [are, aim, bre, bim] = [0, 1, 2, 3].map((s) => sums.subarray(s * tile, (s + 1) * tile));
+  // The three products: the A operand (a transposed part) and the part whose columns B takes.
+  const operands: [number, Float64Array][] = [[xt, x], [yt, y], [dt, t]];
+  for (let j0 = 0; j0 < m; j0 += T) {
+    const cols = Math.min(T, m - j0), padded = (cols + 3) & ~3;
+    operands.forEach(([, b], p) => {
+      for (let g = 0; g + 1 < starts.length; g++) {
+        const from = starts[g], depth = starts[g + 1] - from, base = p * n * T + from * T;
+        for (let j = 0; j < padded; j++) {
+          const to = base + (j >> 2) * 4 * depth + (j & 3), row = (j0 + j) * n + from;
+          if (j < cols) for (let k = 0; k < depth; k++) pack[to + 4 * k] = b[row + k];
+          else for (let k = 0; k < depth; k++) pack[to + 4 * k] = 0;
+        }
+      }
+    });
+    for (let i0 = 0; i0 <= j0; i0 += T) {
+      const rows = Math.min(T, m - i0);
+      sums.fill(0);
+      for (let g = 0; g + 1 < starts.length; g++) {
+        const from = starts[g], depth = starts[g + 1] - from;
+        operands.forEach(([aAt], p) => {
+          kernels.realProduct(aAt + 8 * (i0 * n + from), 8 * n, packAt + 8 * (p * n * T + from * T), 32, productsAt + 8 * p * tile, 8 * T, rows, depth, padded, 32 * depth);
+        });
+        kernels.gramCombine(productsAt, productsAt + 8 * tile, productsAt + 16 * tile, sumsAt, sumsAt + 8 * tile, sumsAt + 16 * tile, sumsAt + 24 * tile, 8 * rows * T, wr[g], wi[g]);
+      }
+      // u_ij = A_ij + i B_ij above the diagonal, u_ji = conj(A_ij) + i conj(B_ij) below it, the
+      // diagonal from the real parts alone (A and B are Hermitian).
+      for (let i = i0; i < i0 + rows; i++) {
+        for (let j = Math.max(j0, i); j < j0 + cols; j++) {
+          const o = (i - i0) * T + j - j0;
+          if (i === j) {
+            out[2 * (i * m + i)] = are[o];
+            out[2 * (i * m + i) + 1] = bre[o];
+            continue;
+          }
+          out[2 * (i * m + j)] = are[o] - bim[o];
+          out[2 * (i * m + j) + 1] = aim[o] + bre[o];
+          out[2 * (j * m + i)] = are[o] + bim[o];
+          out[2 * (j * m + i) + 1] = bre[o] - aim[o];
+        }
+      }
     }
   }
   return out;
