@@ -142,15 +142,17 @@ function complexProduct(): Body {
 }
 
 /**
- * realProduct(a, lda, b, ldb, c, ldc, p, q, r, panel): C += A B for real blocks (A p x q and
- * C p x r row-major, r even; row strides in bytes). B (q x r) is read in panels of 4 columns:
- * entry (k, j) at b + (j / 4) panel + k ldb + 8 (j % 4), so a row-major B has panel = 32, and a
- * packed one (each panel's rows contiguous) ldb = 32, panel = 32 q. Register tile: 4 rows of C
+ * realProduct(a, lda, b, ldb, c, ldc, p, q, r, panel, aPanel, step): C += A B for real blocks (C
+ * p x r row-major, r even; strides in bytes). B (q x r) is read in panels of 4 columns: entry
+ * (k, j) at b + (j / 4) panel + k ldb + 8 (j % 4), so a row-major B has panel = 32, and a packed
+ * one (each panel's rows contiguous) ldb = 32, panel = 32 q. A (p x q) likewise in panels of 4
+ * rows: entry (i, k) at a + (i / 4) aPanel + (i % 4) lda + k step, so a row-major A has
+ * aPanel = 4 lda and step = 8, and one stored as the panels of its transpose lda = 8, step = 32. Register tile: 4 rows of C
  * by 4 columns (8 f64x2 accumulators); then 2 columns, then single rows.
  */
 function realBlockProduct(): Body {
-  const [a, lda, b, ldb, c, ldc, p, q, r, panel] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9];
-  const f = new Body([I32, I32, I32, I32, I32, I32, I32, I32, I32, I32]);
+  const [a, lda, b, ldb, c, ldc, p, q, r, panel, aPanel, step] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11];
+  const f = new Body(new Array<number>(12).fill(I32));
   const i = f.local(I32), iEnd = f.local(I32), j = f.local(I32), jEnd = f.local(I32);
   const pa = f.local(I32), paEnd = f.local(I32), pb = f.local(I32), pc = f.local(I32), lda2 = f.local(I32), lda3 = f.local(I32);
   const bv = [f.local(V128), f.local(V128)];
@@ -161,10 +163,11 @@ function realBlockProduct(): Body {
   const rowOffset = [null, lda, lda2, lda3];
   const tile = (rows: number, vecs: number): void => {
     for (let t = 0; t < rows; t++) for (let v = 0; v < vecs; v++) f.vzero().set(acc[2 * t + v]);
-    f.get(a).get(i).get(lda).mul().add().set(pa);
-    f.get(pa).get(q).i32(8).mul().add().set(paEnd);
+    // row i at a + (i / 4) aPanel + (i % 4) lda
+    f.get(a).get(i).i32(2).op(0x76).get(aPanel).mul().add().get(i).i32(3).and().get(lda).mul().add().set(pa);
+    f.get(pa).get(q).get(step).mul().add().set(paEnd);
     f.get(b).get(j).i32(2).op(0x76).get(panel).mul().add().set(pb); // j / 4 (j a multiple of 4)
-    f.forBytes(pa, paEnd, 8, () => {
+    f.forBytes(pa, paEnd, [step], () => {
       for (let v = 0; v < vecs; v++) f.get(pb).vload(16 * v).set(bv[v]);
       for (let t = 0; t < rows; t++) {
         f.get(pa);
@@ -270,7 +273,7 @@ function blockedReal(kernels: RealspaceKernels, memory: ArrayBuffer, aAt: number
         const from = (k0 + k) * r + j0;
         for (let j = 0; j < cols; j++) pack[(j >> 2) * 4 * depth + 4 * k + (j & 3)] = b[from + j];
       }
-      kernels.realProduct(aAt + 8 * k0, 8 * q, packAt, 32, cAt + 8 * j0, 8 * r, p, depth, cols, 32 * depth);
+      kernels.realProduct(aAt + 8 * k0, 8 * q, packAt, 32, cAt + 8 * j0, 8 * r, p, depth, cols, 32 * depth, 32 * q, 8);
     }
   }
 }
@@ -355,52 +358,42 @@ const GRAM_TILE = 64;
  */
 export function simdGramSum(n: number, m: number, psi: Float64Array, order: Int32Array, starts: number[], wr: number[], wi: number[], out: Float64Array): Float64Array {
   const T = GRAM_TILE, tile = T * T;
-  // Planar parts, transposed (row a = state a, over the orbitals in group order): X, Y, X - Y, X + Y;
-  // a column block of X, Y and X + Y packed for the kernel (panels of 4 columns, group by group);
-  // a tile's three products and four sums (real and imaginary parts of A and B).
-  const plane = m * n;
-  const [xt, yt, dt, st] = [0, 1, 2, 3].map((t) => 8 * t * plane);
-  const packAt = 32 * plane, productsAt = packAt + 24 * n * T, sumsAt = productsAt + 24 * tile;
+  // The parts X, Y, X - Y, X + Y of the rows of Psi in group order (group g: rows starts[g] ..
+  // starts[g + 1]), each stored as panels of 4 columns (entry (k, a) at (a / 4) 4n + 4k + a % 4):
+  // a group's rows are then a panel block that the kernel reads both as B and, transposed, as A,
+  // with nothing to pack. Then a tile's three products and four sums (real and imaginary parts
+  // of A and B).
+  const mp = (m + 3) & ~3, plane = mp * n;
+  const [xp, yp, dp, sp] = [0, 1, 2, 3].map((t) => 8 * t * plane);
+  const productsAt = 32 * plane, sumsAt = productsAt + 24 * tile;
   const { kernels, memory } = realspaceWorkspace(sumsAt + 32 * tile);
   const view = (byte: number, length: number) => new Float64Array(memory, byte, length);
-  const [x, y, d, t] = [xt, yt, dt, st].map((at) => view(at, plane));
-  for (let k0 = 0; k0 < n; k0 += TILE) {
-    const k1 = Math.min(n, k0 + TILE);
-    for (let a = 0; a < m; a++) {
-      for (let k = k0, o = a * n + k0; k < k1; k++, o++) {
-        const at = 2 * (order[k] * m + a), re = psi[at], im = psi[at + 1];
-        x[o] = re;
-        y[o] = im;
-        d[o] = re - im;
-        t[o] = re + im;
-      }
+  const [x, y, d, t] = [xp, yp, dp, sp].map((at) => view(at, plane));
+  for (let k = 0; k < n; k++) {
+    const from = 2 * order[k] * m;
+    for (let a = 0; a < mp; a++) {
+      const o = (a >> 2) * 4 * n + 4 * k + (a & 3);
+      const re = a < m ? psi[from + 2 * a] : 0, im = a < m ? psi[from + 2 * a + 1] : 0;
+      x[o] = re;
+      y[o] = im;
+      d[o] = re - im;
+      t[o] = re + im;
     }
   }
-  const pack = view(packAt, 3 * n * T);
   const products = view(productsAt, 3 * tile), sums = view(sumsAt, 4 * tile);
   products.fill(0);
   const [are, aim, bre, bim] = [0, 1, 2, 3].map((s) => sums.subarray(s * tile, (s + 1) * tile));
-  // The three products: the A operand (a transposed part) and the part whose columns B takes.
-  const operands: [number, Float64Array][] = [[xt, x], [yt, y], [dt, t]];
+  // The three products' A and B operands.
+  const operands: [number, number][] = [[xp, xp], [yp, yp], [dp, sp]];
   for (let j0 = 0; j0 < m; j0 += T) {
     const cols = Math.min(T, m - j0), padded = (cols + 3) & ~3;
-    operands.forEach(([, b], p) => {
-      for (let g = 0; g + 1 < starts.length; g++) {
-        const from = starts[g], depth = starts[g + 1] - from, base = p * n * T + from * T;
-        for (let j = 0; j < padded; j++) {
-          const to = base + (j >> 2) * 4 * depth + (j & 3), row = (j0 + j) * n + from;
-          if (j < cols) for (let k = 0; k < depth; k++) pack[to + 4 * k] = b[row + k];
-          else for (let k = 0; k < depth; k++) pack[to + 4 * k] = 0;
-        }
-      }
-    });
     for (let i0 = 0; i0 <= j0; i0 += T) {
       const rows = Math.min(T, m - i0);
       sums.fill(0);
       for (let g = 0; g + 1 < starts.length; g++) {
         const from = starts[g], depth = starts[g + 1] - from;
-        operands.forEach(([aAt], p) => {
-          kernels.realProduct(aAt + 8 * (i0 * n + from), 8 * n, packAt + 8 * (p * n * T + from * T), 32, productsAt + 8 * p * tile, 8 * T, rows, depth, padded, 32 * depth);
+        operands.forEach(([aAt, bAt], p) => {
+          kernels.realProduct(aAt + 8 * (i0 * n + 4 * from), 8, bAt + 8 * (j0 * n + 4 * from), 32, productsAt + 8 * p * tile, 8 * T, rows, depth, padded, 32 * n, 32 * n, 32);
         });
         kernels.gramCombine(productsAt, productsAt + 8 * tile, productsAt + 16 * tile, sumsAt, sumsAt + 8 * tile, sumsAt + 16 * tile, sumsAt + 24 * tile, 8 * rows * T, wr[g], wi[g]);
       }
