@@ -31,7 +31,8 @@ export class UnitaryEigenphases {
    */
   readonly eigenvalues: Float64Array;
   private readonly a: Float64Array;
-  private readonly q: Float64Array;
+  /** The Schur vectors, made on the first solve that asks for them (an eigenvalue-only solve needs none). */
+  private q: Float64Array = new Float64Array(0);
   private readonly u: Float64Array;
   /**
    * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s and s2 (the dots) and of the
@@ -63,7 +64,6 @@ export class UnitaryEigenphases {
     this.dots = new Float64Array(memory, this.sAt, 4 * n);
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
-    this.q = new Float64Array(2 * n * n);
     this.u = new Float64Array(memory, this.uAt, 2 * n);
     this.raw = new Float64Array(2 * n);
     this.rawPhase = new Float64Array(n);
@@ -105,7 +105,8 @@ export class UnitaryEigenphases {
     }
     const wantVectors = vecs !== null;
     if (wantVectors) {
-      this.q.fill(0);
+      if (this.q.length === 0) this.q = new Float64Array(2 * n * n);
+      else this.q.fill(0);
       for (let i = 0; i < n; i++) this.q[2 * (i * n + i)] = 1;
     }
     this.hessenberg(wantVectors);
