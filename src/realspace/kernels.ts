@@ -1,6 +1,6 @@
 /**
  * WebAssembly SIMD kernels of the real-space invariants, assembled with the emitter of
- * src/linalg/simd.ts (a module and memory of their own, same sharing rules; 6 kB, compiled
+ * src/linalg/simd.ts (a module and memory of their own, same sharing rules; 8 kB, compiled
  * synchronously in Node, a Web Worker or a shard, where real-space computations run).
  *
  * chebyshevStep (kpm.ts): one step of the Chebyshev recursion for a batch of k vectors at once,
@@ -147,8 +147,8 @@ function complexProduct(): Body {
  * (k, j) at b + (j / 4) panel + k ldb + 8 (j % 4), so a row-major B has panel = 32, and a packed
  * one (each panel's rows contiguous) ldb = 32, panel = 32 q. A (p x q) likewise in panels of 4
  * rows: entry (i, k) at a + (i / 4) aPanel + (i % 4) lda + k step, so a row-major A has
- * aPanel = 4 lda and step = 8, and one stored as the panels of its transpose lda = 8, step = 32. Register tile: 4 rows of C
- * by 4 columns (8 f64x2 accumulators); then 2 columns, then single rows.
+ * aPanel = 4 lda and step = 8, and one stored as the panels of its transpose lda = 8, step = 32.
+ * Register tile: 4 rows of C by 4 columns (8 f64x2 accumulators); then 2 columns, then single rows.
  */
 function realBlockProduct(): Body {
   const [a, lda, b, ldb, c, ldc, p, q, r, panel, aPanel, step] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11];
@@ -342,7 +342,10 @@ export function simdProduct(p: number, q: number, r: number, fillA: (view: Float
   return out;
 }
 
-/** Rows and columns of an output tile of simdGramSum: its products and sums (7 x 32 KiB) stay in cache, and the triangle is covered with little waste (64 beat 128 by 5 %, measured). */
+/**
+ * Rows and columns of an output tile of simdGramSum: its products and sums (7 x 32 KiB) stay in
+ * cache, and the triangle is covered with little waste (64 beat 128 by 5 %, measured).
+ */
 const GRAM_TILE = 64;
 
 /**
