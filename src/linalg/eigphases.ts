@@ -13,6 +13,9 @@ const EPS = 2 ** -52;
 const DEFER = 32;
 /** Phases within this of -pi are reported as +pi. */
 const BRANCH_CUT = -Math.PI + 64 * EPS;
+/** Inside [SQUARES_MIN, SQUARES_MAX] a sum of two squares lost nothing to underflow or overflow. */
+const SQUARES_MIN = 2 ** -600;
+const SQUARES_MAX = 2 ** 600;
 
 function checkArray(name: string, x: ArrayLike<number>, offset: number, needed: number): void {
   if (!Number.isInteger(offset) || offset < 0) {
@@ -31,7 +34,8 @@ export class UnitaryEigenphases {
    */
   readonly eigenvalues: Float64Array;
   private readonly a: Float64Array;
-  private readonly q: Float64Array;
+  /** The Schur vectors, made on the first solve that asks for them (an eigenvalue-only solve needs none). */
+  private q: Float64Array = new Float64Array(0);
   private readonly u: Float64Array;
   /**
    * The SIMD kernels (src/linalg/simd.ts) and the byte offsets of u, of s and s2 (the dots) and of the
@@ -63,7 +67,6 @@ export class UnitaryEigenphases {
     this.dots = new Float64Array(memory, this.sAt, 4 * n);
     this.simd = kernels;
     this.a = new Float64Array(memory, 0, 2 * n * n);
-    this.q = new Float64Array(2 * n * n);
     this.u = new Float64Array(memory, this.uAt, 2 * n);
     this.raw = new Float64Array(2 * n);
     this.rawPhase = new Float64Array(n);
@@ -105,7 +108,8 @@ export class UnitaryEigenphases {
     }
     const wantVectors = vecs !== null;
     if (wantVectors) {
-      this.q.fill(0);
+      if (this.q.length === 0) this.q = new Float64Array(2 * n * n);
+      else this.q.fill(0);
       for (let i = 0; i < n; i++) this.q[2 * (i * n + i)] = 1;
     }
     this.hessenberg(wantVectors);
@@ -312,8 +316,8 @@ export class UnitaryEigenphases {
           gi = a[2 * ((k + 1) * n + k - 1) + 1];
         }
         // G = [[c, s], [-conj(s), c]] with G (f, g) = (r, 0), c real.
-        const fa = Math.hypot(fr, fi);
-        const ga = Math.hypot(gr, gi);
+        const fa = modulus(fr, fi);
+        const ga = modulus(gr, gi);
         if (ga === 0) continue;
         let c: number;
         let sr: number;
@@ -323,7 +327,7 @@ export class UnitaryEigenphases {
           sr = gr / ga;
           si = -gi / ga;
         } else {
-          const nrm = Math.hypot(fa, ga);
+          const nrm = modulus(fa, ga);
           c = fa / nrm;
           const pr = fr / fa, pi = fi / fa;
           sr = (pr * gr + pi * gi) / nrm;
@@ -347,6 +351,16 @@ export class UnitaryEigenphases {
       flush(k0);
     }
   }
+}
+
+/**
+ * sqrt(x^2 + y^2): directly while the sum of squares is safely inside the normal range (every
+ * rotation of a QR sweep takes three, and Math.hypot costs several times a square root), else
+ * Math.hypot (no overflow or underflow).
+ */
+function modulus(x: number, y: number): number {
+  const s = x * x + y * y;
+  return s > SQUARES_MIN && s < SQUARES_MAX ? Math.sqrt(s) : Math.hypot(x, y);
 }
 
 /** M <- M (I - beta u u^dagger) on columns from..n-1 (u stored at those indices). */
