@@ -27,10 +27,9 @@
  * parameter in name order. So a sample at W and at 2W has the same configuration, scaled.
  */
 import type { BlochHamiltonian, Hoppings } from '../bloch/hamiltonian.js';
-import type { ParameterValues } from '../model/spec.js';
 import type { CostEstimate } from '../cost.js';
 import { ModelError, valueText } from '../model/errors.js';
-import type { ModelSpec } from '../model/spec.js';
+import type { ModelSpec, ParameterValues } from '../model/spec.js';
 import { refuseIfTooLarge } from './budget.js';
 import { checkSeed, SeededRandom } from './random.js';
 import { sparseBytes, TripletList, type SparseMatrix } from './sparse.js';
@@ -330,8 +329,9 @@ function addTerms(h: BlochHamiltonian, hop: Hoppings, o: Checked, l: Layout, rng
       const sameSite = siteOf[a] === siteOf[b] && R.every((x) => x === 0);
       const ga = c * sitesPerCell + siteOf[a], gb = tc * sitesPerCell + siteOf[b];
       let key = '';
-      if (sameSite) key = `${ga}`;
-      else if (o.bond > 0 || o.parameters.length > 0) {
+      if (sameSite) {
+        if (o.parameters.length > 0) key = `${ga}`;
+      } else if (o.bond > 0 || o.parameters.length > 0) {
         const forward = `${ga}|${gb}|${R.join(',')}`;
         const backward = `${gb}|${ga}|${R.map((x) => -x).join(',')}`;
         key = ga < gb || (ga === gb && forward < backward) ? forward : backward;
