@@ -7,6 +7,7 @@
  * (and e^{-ik·(R + r_b - r_a)} in the 'orbital' convention, where |k,a> carries e^{ik·r_a}).
  */
 import type { CMatrix } from '../linalg/cmatrix.js';
+import { eigh } from '../linalg/eigh.js';
 import { ModelError, valueText } from '../model/errors.js';
 import { compileAmplitude, resolveParameters, type AmplitudeEvaluator } from '../model/expressions.js';
 import type { ModelSpec, ParameterValues } from '../model/spec.js';
@@ -35,6 +36,17 @@ export interface Hoppings {
   im: Float64Array;
 }
 
+/** The spectral norm of a Hermitian m x m matrix: closed form up to 2 x 2, else its eigenvalues. */
+function hermitianNorm(m: number, M: Float64Array): number {
+  if (m === 1) return Math.abs(M[0]);
+  if (m === 2) {
+    const mean = (M[0] + M[6]) / 2, half = (M[0] - M[6]) / 2;
+    return Math.abs(mean) + Math.sqrt(half * half + M[2] * M[2] + M[3] * M[3]);
+  }
+  const values = eigh(m, M).values;
+  return Math.max(Math.abs(values[0]), Math.abs(values[m - 1]));
+}
+
 export class BlochHamiltonian {
   readonly spec: ModelSpec;
   /** Number of orbitals: the matrix size. */
@@ -58,6 +70,8 @@ export class BlochHamiltonian {
   private readonly amplitudes: Float64Array;
   /** Per-k scratch: (cos, sin) of each distinct phase. */
   private readonly phases: Float64Array;
+  /** Each phase's sup_theta ||T e^{i theta} + h.c.|| at the current amplitudes (slotNorms); null until asked. */
+  private phaseNorms: Float64Array | null = null;
 
   constructor(model: ModelSpec, params: ParameterValues = {}, options: BlochOptions = {}) {
     const spec = validateModel(model);
@@ -119,6 +133,7 @@ export class BlochHamiltonian {
       }
     }
     this.params = resolved;
+    this.phaseNorms = null;
     return this;
   }
 
@@ -183,7 +198,7 @@ export class BlochHamiltonian {
    * inequality every eigenvalue moves by at most this much between k and k + delta.
    */
   variationBound(steps: ArrayLike<number>, capped = true): number {
-    return this.rowSumBound(steps, capped ? (x) => Math.min(2, x) : (x) => x);
+    return this.changeBound(steps, capped ? (x) => Math.min(2, x) : (x) => x);
   }
 
   /**
@@ -191,7 +206,89 @@ export class BlochHamiltonian {
    * the second-order remainder, |e^{-ix} - 1 + ix| <= x^2/2 per term.
    */
   remainderBound(steps: ArrayLike<number>): number {
-    return this.rowSumBound(steps, (x) => (x * x) / 2);
+    return this.changeBound(steps, (x) => (x * x) / 2);
+  }
+
+  /**
+   * The smaller of two bounds on the norm of a change of H(k) whose every phase factor e^{-i d·k}
+   * changes by at most change(x), x = sum_i |d_i| steps_i:
+   * - by rows (rowSumBound), term by term;
+   * - by phases: the terms sharing a phase vector d add up to A(k) = T e^{-i d·k} + h.c., and a
+   *   change z of its phase factor changes A by T z + h.c. = |z| (T e^{i theta} + h.c.) for some
+   *   theta, whose norm is at most |z| sup_theta ||T e^{i theta} + h.c.|| (slotNorms). Where the
+   *   terms of one phase share rows (a Pauli structure: cos k sz + sin k sx) this is up to twice
+   *   tighter: the rows count |cos| and |sin| apart, the norm counts them together.
+   */
+  private changeBound(steps: ArrayLike<number>, change: (x: number) => number): number {
+    const norms = this.slotNorms();
+    const dim = this.dim;
+    let byPhase = 0;
+    for (let p = 0; p < this.phaseCount; p++) {
+      if (norms[p] === 0) continue;
+      let x = 0;
+      for (let j = 0; j < dim; j++) x += Math.abs(this.phaseVectors[p * dim + j]) * steps[j];
+      byPhase += norms[p] * change(x);
+    }
+    return Math.min(this.rowSumBound(steps, change), byPhase);
+  }
+
+  /**
+   * For each phase vector, an upper bound on sup_theta ||T e^{i theta} + T^dagger e^{-i theta}||, T the
+   * sum of its terms: the largest norm at 64 angles, plus how far the norm can move between them,
+   * 2 ||T|| pi / 64 with ||T|| <= sqrt(largest row sum x largest column sum of |T|); never more than
+   * 2 ||T||. Solved on the few orbitals the phase's terms touch (above 12 of them only 2 ||T||).
+   */
+  private slotNorms(): Float64Array {
+    if (this.phaseNorms !== null) return this.phaseNorms;
+    const ANGLES = 64, MAX_ORBITALS = 12;
+    const norms = new Float64Array(this.phaseCount);
+    const amps = this.amplitudes;
+    for (let p = 0; p < this.phaseCount; p++) {
+      const terms: number[] = [];
+      for (let t = 0; t < this.termFrom.length; t++) if (this.termPhase[t] === p && !this.termOnsite[t]) terms.push(t);
+      if (terms.length === 0) continue;
+      const orbitals = [...new Set(terms.flatMap((t) => [this.termFrom[t], this.termTo[t]]))];
+      const m = orbitals.length;
+      const at = new Map(orbitals.map((o, i) => [o, i]));
+      // T[to][from], m x m interleaved complex.
+      const T = new Float64Array(2 * m * m);
+      for (const t of terms) {
+        const q = 2 * (at.get(this.termTo[t])! * m + at.get(this.termFrom[t])!);
+        T[q] += amps[2 * t];
+        T[q + 1] += amps[2 * t + 1];
+      }
+      const rowSums = new Float64Array(m), colSums = new Float64Array(m);
+      for (let r = 0; r < m; r++) for (let c = 0; c < m; c++) {
+        const a = Math.hypot(T[2 * (r * m + c)], T[2 * (r * m + c) + 1]);
+        rowSums[r] += a;
+        colSums[c] += a;
+      }
+      const normT = Math.sqrt(Math.max(...rowSums) * Math.max(...colSums));
+      if (normT === 0) continue;
+      if (m > MAX_ORBITALS) {
+        norms[p] = 2 * normT;
+        continue;
+      }
+      let largest = 0;
+      const M = new Float64Array(2 * m * m);
+      for (let j = 0; j < ANGLES; j++) {
+        const c = Math.cos((2 * Math.PI * j) / ANGLES), s = Math.sin((2 * Math.PI * j) / ANGLES);
+        M.fill(0);
+        for (let r = 0; r < m; r++) for (let q = 0; q < m; q++) {
+          const re = T[2 * (r * m + q)], im = T[2 * (r * m + q) + 1];
+          // T e^{i theta} at (r, q) and its conjugate transpose at (q, r).
+          M[2 * (r * m + q)] += re * c - im * s;
+          M[2 * (r * m + q) + 1] += re * s + im * c;
+          M[2 * (q * m + r)] += re * c - im * s;
+          M[2 * (q * m + r) + 1] -= re * s + im * c;
+        }
+        largest = Math.max(largest, hermitianNorm(m, M));
+      }
+      // The margin between angles, and a hair for the solver's rounding.
+      norms[p] = Math.min(2 * normT, largest + (2 * Math.PI * normT) / ANGLES + 1e-12 * normT * m);
+    }
+    this.phaseNorms = norms;
+    return norms;
   }
 
   /**

@@ -16,6 +16,7 @@ import type { ModelSpec } from '../../src/model/spec.js';
 import type { PhaseMapResult } from '../../src/scan/sweep.js';
 import { certifyGap } from '../../src/spectra/certify.js';
 import { directGap } from '../../src/spectra/gap.js';
+import { eigh } from '../../src/linalg/eigh.js';
 import { chernNumber } from '../../src/topology/chern.js';
 import { windingNumber } from '../../src/topology/chiral.js';
 import { FrameSampler, resolvePlane } from '../../src/topology/common.js';
@@ -233,30 +234,30 @@ describe('a certificate that can fail where sampling accepts', () => {
   });
 });
 
+function random(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = Math.imul(a ^ (a >>> 15), 1 | a);
+    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+function randomModel(rand: () => number, n: number, index: number): ModelSpec {
+  const b = lattice(`random ${n}-band model ${index}`, [[1, 0], [0, 1]]);
+  for (let a = 0; a < n; a++) b.site(`o${a}`, [0, 0]);
+  for (let a = 0; a < n; a++) b.onsite(`o${a}`, 4 * rand() - 2);
+  for (const cell of [[1, 0], [0, 1], [1, 1], [1, -1]]) {
+    for (let a = 0; a < n; a++) for (let c = 0; c < n; c++) {
+      if (rand() < 0.5) b.hop(`o${a}`, `o${c}`, cell, { re: 2 * rand() - 1, im: 2 * rand() - 1 });
+    }
+  }
+  for (let a = 0; a < n; a++) for (let c = a + 1; c < n; c++) b.hop(`o${a}`, `o${c}`, [0, 0], { re: 2 * rand() - 1, im: 2 * rand() - 1 });
+  return b.build();
+}
+
 describe('random gapped models against numpy on a fine grid', () => {
   /** Seeded (mulberry32), so the set of models is the same on every run. */
-  function random(seed: number): () => number {
-    let a = seed >>> 0;
-    return () => {
-      a = (a + 0x6d2b79f5) >>> 0;
-      let t = Math.imul(a ^ (a >>> 15), 1 | a);
-      t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-    };
-  }
-  function randomModel(rand: () => number, n: number, index: number): ModelSpec {
-    const b = lattice(`random ${n}-band model ${index}`, [[1, 0], [0, 1]]);
-    for (let a = 0; a < n; a++) b.site(`o${a}`, [0, 0]);
-    for (let a = 0; a < n; a++) b.onsite(`o${a}`, 4 * rand() - 2);
-    for (const cell of [[1, 0], [0, 1], [1, 1], [1, -1]]) {
-      for (let a = 0; a < n; a++) for (let c = 0; c < n; c++) {
-        if (rand() < 0.5) b.hop(`o${a}`, `o${c}`, cell, { re: 2 * rand() - 1, im: 2 * rand() - 1 });
-      }
-    }
-    for (let a = 0; a < n; a++) for (let c = a + 1; c < n; c++) b.hop(`o${a}`, `o${c}`, [0, 0], { re: 2 * rand() - 1, im: 2 * rand() - 1 });
-    return b.build();
-  }
-
   it('zero wrong integers in 300 seeded 2- and 4-band models; refusals only where the gap is tiny', () => {
     const rand = random(20261205);
     const models = Array.from({ length: 300 }, (_, i) => randomModel(rand, i < 150 ? 2 : 4, i));
@@ -309,6 +310,57 @@ print(json.dumps(out))
     });
     console.log(`random models: ${agreed} agree with numpy, ${refused} refused (numpy gaps ${refusedGaps.map((g) => g.toExponential(1)).join(', ') || 'none'}), ${unresolved} where even the 256^2 numpy grid is not sound (${again.length} needed it)`);
     expect(agreed).toBeGreaterThan(250);
+  });
+});
+
+describe("the variation bounds the proof rests on hold (Weyl's inequality needs them)", () => {
+  // At random k and steps delta with |delta_i| <= s_i: ||H(k + delta) - H(k)|| <= variationBound(s),
+  // ||H(k + delta) - H(k) - sum_i delta_i dH/dk_i|| <= remainderBound(s), ||dH/dk_i|| <=
+  // variationBound(e_i, false); spectral norms as the largest |eigenvalue| of the Hermitian
+  // difference (common practice). Catalogue models and seeded random ones of 2 and 4 bands.
+  const rand = random(51205);
+  const models: [string, BlochHamiltonian][] = [
+    ['QWZ', new BlochHamiltonian(qwz(), { u: -1 })],
+    ['Haldane', new BlochHamiltonian(haldane())],
+    ['Kane–Mele with Rashba', new BlochHamiltonian(kaneMele(), { lambda_R: 0.05, lambda_v: 0.1 })],
+    ['BHZ', new BlochHamiltonian(bhz())],
+    ['QWZ, orbital convention', new BlochHamiltonian(qwz(), { u: 0.5 }, { convention: 'orbital' })],
+    ...Array.from({ length: 40 }, (_, i): [string, BlochHamiltonian] => [`random ${i}`, new BlochHamiltonian(randomModel(rand, i < 20 ? 2 : 4, i))]),
+  ];
+  const norm = (n: number, m: Float64Array) => {
+    const v = eigh(n, m).values;
+    return Math.max(Math.abs(v[0]), Math.abs(v[n - 1]));
+  };
+
+  it('at 200 random (k, delta) per model, for steps from 0.01 to 4', () => {
+    for (const [name, h] of models) {
+      const n = h.size;
+      const [a, b, d0, d1, diff] = Array.from({ length: 5 }, () => new Float64Array(2 * n * n));
+      for (let trial = 0; trial < 200; trial++) {
+        const scale = [0.01, 0.1, 0.5, 1, 4];
+        const steps = [scale[trial % 5] * rand(), scale[(3 * trial) % 5] * rand()];
+        const k = [2 * Math.PI * rand() - Math.PI, 2 * Math.PI * rand() - Math.PI];
+        const delta = steps.map((s) => s * (2 * rand() - 1));
+        h.fill(k, a);
+        h.fill([k[0] + delta[0], k[1] + delta[1]], b);
+        for (let q = 0; q < a.length; q++) diff[q] = b[q] - a[q];
+        expect(norm(n, diff), `${name}: change at steps ${steps}`).toBeLessThanOrEqual(h.variationBound(steps) * (1 + 1e-12) + 1e-14);
+        h.fillDerivative(k, 0, d0);
+        h.fillDerivative(k, 1, d1);
+        for (let q = 0; q < a.length; q++) diff[q] = b[q] - a[q] - delta[0] * d0[q] - delta[1] * d1[q];
+        expect(norm(n, diff), `${name}: remainder at steps ${steps}`).toBeLessThanOrEqual(h.remainderBound(steps) * (1 + 1e-12) + 1e-14);
+        expect(norm(n, d0), `${name}: dH/dk1`).toBeLessThanOrEqual(h.variationBound([1, 0], false) * (1 + 1e-12) + 1e-14);
+        expect(norm(n, d1), `${name}: dH/dk2`).toBeLessThanOrEqual(h.variationBound([0, 1], false) * (1 + 1e-12) + 1e-14);
+      }
+    }
+  });
+
+  it('is tight where the terms of one hopping share rows: QWZ, whose largest change is |e^{i delta} - 1| per axis', () => {
+    // H = sin k1 sx + sin k2 sy + (u + cos k1 + cos k2) sz (Qi, Wu & Zhang 2006): along k1 the vector
+    // (sin k1, cos k1) turns, so ||dH/dk1|| = 1 at every k; a bound by rows would say 2.
+    const h = new BlochHamiltonian(qwz(), { u: -1 });
+    expect(h.variationBound([1, 0], false)).toBeGreaterThanOrEqual(1);
+    expect(h.variationBound([1, 0], false)).toBeLessThan(1.11);
   });
 });
 
