@@ -92,7 +92,10 @@ function summarise(of: EnsembleDiagnostic, members: Int32Array, seeds: Float64Ar
   // Members of an integer-valued diagnostic that round to different integers: the average is a fraction, not an invariant.
   if (of !== 'local-marker') {
     const tally = new Map<number, number>();
-    for (const v of good) tally.set(Math.round(v) + 0, (tally.get(Math.round(v) + 0) ?? 0) + 1);
+    for (const v of good) {
+      const nearest = Math.round(v) + 0; // + 0: no "-0" in the message
+      tally.set(nearest, (tally.get(nearest) ?? 0) + 1);
+    }
     if (tally.size > 1) {
       const split = [...tally].sort((a, b) => a[0] - b[0]).map(([k, n]) => `${n} near ${k}`).join(', ');
       warnings.push(`the members disagree (${split}): the mean is a fraction, not an invariant; the samples are near a transition or not much larger than the localisation length`);
